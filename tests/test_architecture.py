@@ -1,0 +1,48 @@
+"""Layering rules (guide sec. 3): the core never imports Qt; detectors never import synth.
+
+Source: project architecture rule (DEVELOPERS.md), no external reference needed.
+"""
+
+import ast
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+PKG = Path(__file__).resolve().parents[1] / "wakemeter"
+CORE = ["physics", "scene", "detect", "synth", "evidence"]
+
+
+@pytest.mark.parametrize("layer", CORE)
+def test_core_layer_does_not_import_qt(layer):
+    if not (PKG / layer / "__init__.py").exists():
+        pytest.fail(f"layer {layer} missing")
+    code = (f"import sys, importlib, pkgutil\n"
+            f"import wakemeter.{layer} as m\n"
+            f"for i in pkgutil.walk_packages(m.__path__, m.__name__ + '.'):\n"
+            f"    importlib.import_module(i.name)\n"
+            f"bad = [k for k in sys.modules if k.split('.')[0] in ('PySide6', 'PyQt5', 'PyQt6', 'pyqtgraph')]\n"
+            f"print(bad); sys.exit(1 if bad else 0)\n")
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert r.returncode == 0, r.stdout + r.stderr
+
+
+def _imports(path: Path) -> set[str]:
+    tree = ast.parse(path.read_text())
+    out: set[str] = set()
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Import):
+            out |= {a.name for a in node.names}
+        elif isinstance(node, ast.ImportFrom):
+            mod = node.module or ""
+            out.add("." * node.level + mod)
+    return out
+
+
+@pytest.mark.parametrize("layer, forbidden", [("detect", "synth"), ("physics", "scene"), ("physics", "detect"),
+                                              ("scene", "detect"), ("detect", "evidence"), ("detect", "app")])
+def test_dependencies_point_one_way(layer, forbidden):
+    for f in (PKG / layer).rglob("*.py"):
+        for imp in _imports(f):
+            assert forbidden not in imp.split("."), f"{f} imports {imp}"

@@ -1,0 +1,56 @@
+"""Error types of wakemeter.
+
+One root, :class:`WakemeterError`; every subclass also inherits the built-in
+exception it resembles, so callers may catch either.  Third-party errors are
+translated at the boundary of the package that calls them (``raise ... from err``).
+"""
+
+from __future__ import annotations
+
+
+class WakemeterError(Exception):
+    """Root of every error raised on purpose by wakemeter."""
+
+
+class ParameterError(WakemeterError, ValueError):
+    """A parameter is outside what the method allows (names it, its value and the range)."""
+
+
+class SceneReadError(WakemeterError, OSError):
+    """A scene cannot be opened or read (names the file and what is wrong)."""
+
+
+class GeoreferenceError(WakemeterError, ValueError):
+    """A scene has no usable georeference for the operation asked for."""
+
+
+class SceneWriteError(WakemeterError, OSError):
+    """An output file cannot be written; nothing half-written is left behind."""
+
+
+class CancelledError(WakemeterError):
+    """Long work was cancelled by the user."""
+
+
+def check_finite(name: str, value: object) -> None:
+    """Raise :class:`ParameterError` if ``value`` (scalar or array) holds NaN or inf."""
+    import numpy as np
+
+    arr = np.asarray(value, dtype=float)
+    if not np.all(np.isfinite(arr)):
+        raise ParameterError(f"{name} must be finite, got {value!r}")
+
+
+def check_positive(name: str, value: object, *, allow_inf: bool = False, allow_zero: bool = False) -> None:
+    """Raise :class:`ParameterError` unless every element of ``value`` is > 0 (or >= 0)."""
+    import numpy as np
+
+    arr = np.asarray(value, dtype=float)
+    if np.any(np.isnan(arr)):
+        raise ParameterError(f"{name} must be a number, got NaN ({value!r})")
+    if not allow_inf and np.any(np.isinf(arr)):
+        raise ParameterError(f"{name} must be finite, got {value!r}")
+    bad = arr < 0 if allow_zero else arr <= 0
+    if np.any(bad):
+        rel = ">= 0" if allow_zero else "> 0"
+        raise ParameterError(f"{name} must be {rel}, got {value!r}")

@@ -1,0 +1,1 @@
+"""Annotated images, reports and provenance. No Qt in the composition logic."""

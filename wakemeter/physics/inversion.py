@@ -1,0 +1,405 @@
+"""From wake measurements to speed estimates with 95 % intervals.
+
+Each estimator takes measurements as :class:`Uncertain` values (value and
+standard uncertainty) plus the :class:`Conditions` they were made under
+(gravity, depth, pixel-size uncertainty) and propagates every uncertainty by
+Monte Carlo with a seeded generator (JCGM 101:2008).  Independent estimates
+are combined by inverse-variance weighting with a chi-square consistency test;
+disagreement is reported, not averaged away.
+
+References
+----------
+1. JCGM 101:2008. Evaluation of measurement data - Supplement 1 to the "Guide
+   to the expression of uncertainty in measurement" - Propagation of
+   distributions using a Monte Carlo method.
+2. JCGM 100:2008 (GUM), section 5 (law of propagation of uncertainty).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy import stats
+
+from ..errors import ParameterError
+from . import havelock, kelvin, radar
+from .dispersion import phase_speed
+from .gravity import STANDARD_GRAVITY
+from .units import KNOT_MPS
+
+DEFAULT_DRAWS = 100_000
+
+
+@dataclass(frozen=True)
+class Uncertain:
+    """A measured value with its standard uncertainty (same unit)."""
+
+    value: float
+    std: float
+
+    def __post_init__(self) -> None:
+        if not np.isfinite(self.value):
+            raise ParameterError(f"measured value must be finite, got {self.value!r}")
+        if not np.isfinite(self.std) or self.std < 0:
+            raise ParameterError(f"standard uncertainty must be finite and >= 0, got {self.std!r}")
+
+
+@dataclass(frozen=True)
+class Conditions:
+    """What the measurements assume.
+
+    ``g_mps2`` defaults to standard gravity with 0.015 m/s^2 standard
+    uncertainty, which covers the WGS 84 normal gravity from equator
+    (9.780) to pole (9.832) when the latitude is not used.  ``depth_m`` None
+    means deep water is assumed (and said).  ``pixel_scale_rel_std`` is the
+    relative standard uncertainty of the pixel size; every length scales with it.
+    """
+
+    g_mps2: Uncertain = Uncertain(STANDARD_GRAVITY, 0.015)
+    depth_m: Uncertain | None = None
+    pixel_scale_rel_std: float = 0.0
+
+    def __post_init__(self) -> None:
+        if self.g_mps2.value <= 0:
+            raise ParameterError(f"gravity must be > 0 m/s^2, got {self.g_mps2.value!r}")
+        if self.depth_m is not None and self.depth_m.value <= 0:
+            raise ParameterError(f"depth_m must be > 0, got {self.depth_m.value!r}")
+        if not np.isfinite(self.pixel_scale_rel_std) or not 0 <= self.pixel_scale_rel_std < 0.5:
+            raise ParameterError(f"pixel_scale_rel_std must be within [0, 0.5), got {self.pixel_scale_rel_std!r}")
+
+    def assumptions(self) -> tuple[str, ...]:
+        out = [f"gravity {self.g_mps2.value:.4f} +/- {self.g_mps2.std:.4f} m/s^2"]
+        if self.depth_m is None:
+            out.append("deep water assumed (depth not given)")
+        else:
+            out.append(f"depth {self.depth_m.value:.2f} +/- {self.depth_m.std:.2f} m")
+        out.append(f"pixel size relative uncertainty {100 * self.pixel_scale_rel_std:.1f} %")
+        out.append("linear steady waves, vessel at constant speed and heading, no current")
+        return tuple(out)
+
+
+@dataclass(frozen=True)
+class SpeedEstimate:
+    """A speed through the water from one method, with its 95 % interval."""
+
+    method: str
+    speed_mps: float  #: median of the Monte Carlo draws
+    std_mps: float
+    ci95_low_mps: float
+    ci95_high_mps: float
+    draws: int
+    valid_fraction: float  #: share of draws that gave a physical speed
+    assumptions: tuple[str, ...] = field(default_factory=tuple)
+
+    @property
+    def speed_knots(self) -> float:
+        return self.speed_mps / KNOT_MPS
+
+    @property
+    def ci95_knots(self) -> tuple[float, float]:
+        return self.ci95_low_mps / KNOT_MPS, self.ci95_high_mps / KNOT_MPS
+
+    def summary(self) -> str:
+        return (f"{self.method}: {self.speed_mps:.2f} m/s ({self.speed_knots:.1f} kn), "
+                f"95 % interval {self.ci95_low_mps:.2f}-{self.ci95_high_mps:.2f} m/s "
+                f"({self.ci95_knots[0]:.1f}-{self.ci95_knots[1]:.1f} kn)")
+
+
+def _rng(seed: int | np.random.Generator | None) -> np.random.Generator:
+    return seed if isinstance(seed, np.random.Generator) else np.random.default_rng(seed)
+
+
+def _draw(u: Uncertain, n: int, rng: np.random.Generator) -> np.ndarray:
+    if u.std == 0:
+        return np.full(n, u.value)
+    return rng.normal(u.value, u.std, n)
+
+
+def _check_draws(draws: int) -> None:
+    if not isinstance(draws, (int, np.integer)) or draws < 100:
+        raise ParameterError(f"draws must be an integer >= 100, got {draws!r}")
+
+
+def _summarise(method: str, samples: np.ndarray, n: int, assumptions: tuple[str, ...]) -> SpeedEstimate:
+    ok = np.isfinite(samples) & (samples > 0)
+    frac = float(np.mean(ok))
+    if frac < 0.5:
+        raise ParameterError(
+            f"{method}: only {100 * frac:.0f} % of the uncertainty draws give a physical speed; "
+            "the measurements do not fit this method (check depth, angle and wavelength)")
+    s = samples[ok]
+    lo, med, hi = np.percentile(s, [2.5, 50.0, 97.5])
+    extra = () if frac > 0.999 else (f"{100 * (1 - frac):.1f} % of draws had no steady wave and were dropped",)
+    return SpeedEstimate(method, float(med), float(np.std(s, ddof=1)), float(lo), float(hi), int(n), frac,
+                         assumptions + extra)
+
+
+def _common(conditions: Conditions, n: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    g = _draw(conditions.g_mps2, n, rng)
+    scale = rng.normal(1.0, conditions.pixel_scale_rel_std, n) if conditions.pixel_scale_rel_std > 0 else np.ones(n)
+    if conditions.depth_m is None:
+        h = np.full(n, np.inf)
+    else:
+        h = _draw(conditions.depth_m, n, rng)
+        h = np.where(h > 0, h, np.nan)
+    return g, scale, h
+
+
+def _speed_from_crest(lam: np.ndarray, theta_deg: np.ndarray, h: np.ndarray, g: np.ndarray) -> np.ndarray:
+    ok = (lam > 0) & np.isfinite(h) | np.isinf(h)
+    ok &= (theta_deg >= 0) & (theta_deg < 89.0) & (lam > 0)
+    lam_s = np.where(ok, lam, 1.0)
+    h_s = np.where(ok & (np.isinf(h) | (h > 0)), h, 1.0)
+    c = np.asarray(phase_speed(2 * np.pi / lam_s, h_s, g=1.0)) * np.sqrt(g)
+    # phase_speed with g=1 then scaled by sqrt(g): c = sqrt(g/k tanh kh) exactly
+    u = c / np.cos(np.radians(np.where(ok, theta_deg, 0.0)))
+    return np.where(ok, u, np.nan)
+
+
+def speed_from_transverse_wavelength(wavelength_m: Uncertain, conditions: Conditions = Conditions(), *,
+                                     draws: int = DEFAULT_DRAWS, seed: int | np.random.Generator | None = 0) -> SpeedEstimate:
+    """Speed from the transverse wavelength along the track (deep: U = sqrt(g lambda / 2 pi))."""
+    if wavelength_m.value <= 0:
+        raise ParameterError(f"transverse wavelength must be > 0 m, got {wavelength_m.value!r}")
+    return speed_from_crest_wavelength(wavelength_m, Uncertain(0.0, 0.0), conditions, draws=draws, seed=seed,
+                                       method="transverse wavelength")
+
+
+def speed_from_crest_wavelength(wavelength_m: Uncertain, propagation_deg: Uncertain,
+                                conditions: Conditions = Conditions(), *, draws: int = DEFAULT_DRAWS,
+                                seed: int | np.random.Generator | None = 0,
+                                method: str = "crest wavelength") -> SpeedEstimate:
+    """Speed from the wavelength of a crest train propagating at angle theta to the track.
+
+    U = c(k, h) / cos(theta); deep water U = sqrt(g lambda / 2 pi) / cos(theta).
+    """
+    if wavelength_m.value <= 0:
+        raise ParameterError(f"wavelength_m must be > 0 m, got {wavelength_m.value!r}")
+    if not 0 <= propagation_deg.value < 85:
+        raise ParameterError(f"propagation angle must be within [0, 85) degrees, got {propagation_deg.value!r}")
+    _check_draws(draws)
+    rng = _rng(seed)
+    g, scale, h = _common(conditions, draws, rng)
+    lam = _draw(wavelength_m, draws, rng) * scale
+    th = np.abs(_draw(propagation_deg, draws, rng))
+    u = _speed_from_crest(lam, th, h, g)
+    extra = (f"crest propagation angle {propagation_deg.value:.1f} +/- {propagation_deg.std:.1f} deg to the track",) \
+        if propagation_deg.value > 0 or propagation_deg.std > 0 else ()
+    return _summarise(method, u, draws, conditions.assumptions() + extra)
+
+
+def speed_from_spectral_fit(speed_mps: Uncertain, conditions: Conditions = Conditions(), *,
+                            draws: int = DEFAULT_DRAWS, seed: int | np.random.Generator | None = 0) -> SpeedEstimate:
+    """Wrap a spectral-fit speed (Zilman et al. 2004) and add the pixel-size uncertainty (U ~ sqrt(scale))."""
+    if speed_mps.value <= 0:
+        raise ParameterError(f"spectral-fit speed must be > 0 m/s, got {speed_mps.value!r}")
+    _check_draws(draws)
+    rng = _rng(seed)
+    _, scale, _ = _common(conditions, draws, rng)
+    u = _draw(speed_mps, draws, rng) * np.sqrt(np.clip(scale, 1e-6, None))
+    return _summarise("spectral fit", u, draws, conditions.assumptions())
+
+
+def speed_from_radar_offset(offset_m: Uncertain, slant_range_m: Uncertain, platform_speed_mps: Uncertain, *,
+                            incidence_deg: float, heading_deg: Uncertain, look_bearing_deg: float,
+                            conditions: Conditions = Conditions(), draws: int = DEFAULT_DRAWS,
+                            seed: int | np.random.Generator | None = 0) -> SpeedEstimate:
+    """Speed from the hull-to-wake azimuth offset in a radar scene (Raney 1971)."""
+    if slant_range_m.value <= 0 or platform_speed_mps.value <= 0:
+        raise ParameterError("slant_range_m and platform_speed_mps must be > 0, got "
+                             f"{slant_range_m.value!r} and {platform_speed_mps.value!r}")
+    _check_draws(draws)
+    # fail early and clearly on an ill-posed geometry
+    radar.ground_speed_from_radial(1.0, incidence_deg=incidence_deg, heading_deg=heading_deg.value,
+                                   look_bearing_deg=look_bearing_deg)
+    rng = _rng(seed)
+    _, scale, _ = _common(conditions, draws, rng)
+    dx = _draw(offset_m, draws, rng) * scale
+    r = _draw(slant_range_m, draws, rng)
+    v = _draw(platform_speed_mps, draws, rng)
+    hd = _draw(heading_deg, draws, rng)
+    vr = -(v / r) * dx
+    proj = np.cos(np.radians(hd - look_bearing_deg)) * np.sin(np.radians(incidence_deg))
+    u = np.abs(vr / proj)
+    assumptions = conditions.assumptions()[2:3] + (
+        f"slant range {slant_range_m.value:.0f} m, platform speed {platform_speed_mps.value:.0f} m/s, "
+        f"incidence {incidence_deg:.1f} deg, look bearing {look_bearing_deg:.1f} deg",
+        "speed over ground (the radar sees motion relative to the Earth, not the water)")
+    return _summarise("radar azimuth offset", u, draws, assumptions)
+
+
+@dataclass(frozen=True)
+class DepthEstimate:
+    depth_m: float
+    ci95_low_m: float
+    ci95_high_m: float
+    froude_depth: float
+    froude_ci95: tuple[float, float]
+
+
+def speed_and_depth_from_transverse_wavelength_and_half_angle(
+        wavelength_m: Uncertain, half_angle_deg: Uncertain, conditions: Conditions = Conditions(), *,
+        draws: int = DEFAULT_DRAWS, seed: int | np.random.Generator | None = 0) -> tuple[SpeedEstimate, DepthEstimate]:
+    """Speed and depth together when the wedge is wider than Kelvin's and transverse waves exist.
+
+    The half-angle gives Fr_h (Havelock, subcritical branch); the transverse
+    waves satisfy Fr_h^2 = tanh(kh)/(kh), so kh, then h = kh / k and
+    U = Fr_h sqrt(g h).
+    """
+    if wavelength_m.value <= 0:
+        raise ParameterError(f"transverse wavelength must be > 0 m, got {wavelength_m.value!r}")
+    if not kelvin.KELVIN_HALF_ANGLE_DEG < half_angle_deg.value < 90:
+        raise ParameterError(
+            f"half_angle_deg must be within ({kelvin.KELVIN_HALF_ANGLE_DEG:.2f}, 90) for a depth estimate, "
+            f"got {half_angle_deg.value!r}")
+    _check_draws(draws)
+    rng = _rng(seed)
+    g, scale, _ = _common(conditions, draws, rng)
+    lam = _draw(wavelength_m, draws, rng) * scale
+    ang = _draw(half_angle_deg, draws, rng)
+    fr = np.asarray(havelock.subcritical_froude_from_half_angle(ang))
+    ok = np.isfinite(fr) & (lam > 0)
+    kh = np.asarray(havelock.kh_from_froude(np.where(ok, fr, 0.5)))
+    k = 2 * np.pi / np.where(lam > 0, lam, 1.0)
+    h = np.where(ok, kh / k, np.nan)
+    u = np.where(ok, fr * np.sqrt(g * h), np.nan)
+    assumptions = conditions.assumptions()[:1] + conditions.assumptions()[2:] + (
+        f"depth inferred from the half-angle {half_angle_deg.value:.1f} +/- {half_angle_deg.std:.1f} deg "
+        "(Havelock 1908, subcritical branch: transverse waves seen)",)
+    est = _summarise("transverse wavelength + half-angle (finite depth)", u, draws, assumptions)
+    hv = h[np.isfinite(h)]
+    fv = fr[np.isfinite(fr)]
+    lo, med, hi = np.percentile(hv, [2.5, 50, 97.5])
+    flo, fmed, fhi = np.percentile(fv, [2.5, 50, 97.5])
+    return est, DepthEstimate(float(med), float(lo), float(hi), float(fmed), (float(flo), float(fhi)))
+
+
+@dataclass(frozen=True)
+class CombinedSpeed:
+    """Inverse-variance weighted speed and the chi-square consistency test."""
+
+    speed_mps: float
+    std_mps: float
+    ci95_low_mps: float
+    ci95_high_mps: float
+    chi2: float
+    dof: int
+    p_value: float
+    consistent: bool
+    outlier: str | None  #: method standing out most when inconsistent
+    methods: tuple[str, ...]
+    verdict: str
+
+
+def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) -> CombinedSpeed:
+    """Combine independent speed estimates; test their consistency with chi-square.
+
+    When the test rejects at level ``alpha``, the method with the largest
+    normalised residual is named and the combined uncertainty is inflated by
+    the Birge ratio sqrt(chi2/dof) instead of pretending the estimates agree.
+    """
+    if not estimates:
+        raise ParameterError("combine_estimates needs at least one estimate, got none")
+    x = np.array([e.speed_mps for e in estimates])
+    s = np.array([e.std_mps for e in estimates])
+    if np.any(s <= 0):
+        raise ParameterError("every estimate needs a standard uncertainty > 0 to be weighted")
+    w = 1.0 / s ** 2
+    mean = float(np.sum(w * x) / np.sum(w))
+    std = float(np.sqrt(1.0 / np.sum(w)))
+    dof = len(estimates) - 1
+    chi2 = float(np.sum(w * (x - mean) ** 2))
+    p = float(stats.chi2.sf(chi2, dof)) if dof > 0 else 1.0
+    consistent = p >= alpha
+    outlier = None
+    methods = tuple(e.method for e in estimates)
+    if dof == 0:
+        verdict = "single method: no consistency check possible"
+    elif consistent:
+        verdict = f"methods agree (chi2 = {chi2:.2f} on {dof} dof, p = {p:.2f})"
+    else:
+        resid = np.abs(x - mean) / s
+        outlier = methods[int(np.argmax(resid))]
+        std *= float(np.sqrt(chi2 / dof))
+        verdict = (f"methods DISAGREE (chi2 = {chi2:.2f} on {dof} dof, p = {p:.3f}); "
+                   f"'{outlier}' stands out; uncertainty inflated by the Birge ratio")
+    return CombinedSpeed(mean, std, mean - 1.959964 * std, mean + 1.959964 * std, chi2, dof, p,
+                         consistent, outlier, methods, verdict)
+
+
+# Depth-regime bands of Fr_h.  The 0.6 limit follows Havelock's curve (half-angle
+# within ~0.3 deg of Kelvin's below it); 0.9 and 1.1 bound the near-critical band
+# where the pattern changes fast (common practice, no source).
+_REGIME_BANDS = ((0.6, "deep"), (0.9, "finite depth"), (1.1, "near-critical"), (np.inf, "supercritical"))
+
+
+@dataclass(frozen=True)
+class DepthRegime:
+    regime: str  #: deep, finite depth, near-critical, supercritical, unknown
+    froude_depth: float | None
+    froude_ci95: tuple[float, float] | None
+    depth_m: float | None
+    depth_ci95_m: tuple[float, float] | None
+    explanation: str
+
+
+def _band(fr: float) -> str:
+    return next(name for top, name in _REGIME_BANDS if fr < top)
+
+
+def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertain | None = None,
+                        half_angle_deg: Uncertain | None = None, transverse_seen: bool | None = None,
+                        g: float = STANDARD_GRAVITY, draws: int = 20_000, seed: int = 0) -> DepthRegime:
+    """Say whether shallow water shaped the wake, from what is known.
+
+    Known speed and depth give Fr_h directly.  Otherwise the half-angle tells:
+    at Kelvin's value the pattern is deep-water like (depth unknown); wider
+    means finite depth or supercritical (the presence of transverse waves
+    decides); narrower than Kelvin's is not explained by depth alone.
+    """
+    rng = np.random.default_rng(seed)
+    if speed is not None and depth_m is not None:
+        if depth_m.value <= 0:
+            raise ParameterError(f"depth_m must be > 0, got {depth_m.value!r}")
+        u = rng.normal(speed.speed_mps, speed.std_mps, draws)
+        h = np.abs(_draw(depth_m, draws, rng))
+        fr = u / np.sqrt(g * h)
+        lo, med, hi = np.percentile(fr, [2.5, 50, 97.5])
+        regime = _band(float(med))
+        expl = (f"depth Froude number {med:.2f} (95 %: {lo:.2f}-{hi:.2f}) from speed and the given depth "
+                f"{depth_m.value:.1f} m: {regime}")
+        return DepthRegime(regime, float(med), (float(lo), float(hi)), depth_m.value,
+                           (depth_m.value - 1.96 * depth_m.std, depth_m.value + 1.96 * depth_m.std), expl)
+    if half_angle_deg is not None:
+        a, sa = half_angle_deg.value, max(half_angle_deg.std, 0.1)
+        k = kelvin.KELVIN_HALF_ANGLE_DEG
+        if abs(a - k) <= 2 * sa:
+            return DepthRegime("deep", None, None, None, None,
+                               f"half-angle {a:.1f} +/- {half_angle_deg.std:.1f} deg agrees with Kelvin's {k:.2f} deg: "
+                               "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told")
+        if a < k:
+            return DepthRegime("unknown", None, None, None, None,
+                               f"half-angle {a:.1f} deg is narrower than Kelvin's: not a depth effect; "
+                               "a fast, short hull (high hull Froude number) or a supercritical vessel without "
+                               "transverse waves could explain it")
+        br = havelock.froude_from_half_angle(a)
+        if transverse_seen is True:
+            fr_lo = float(havelock.subcritical_froude_from_half_angle(max(a - 1.96 * sa, k + 1e-3)))
+            fr_hi = float(havelock.subcritical_froude_from_half_angle(min(a + 1.96 * sa, 89.9)))
+            sub = br.subcritical if br.subcritical is not None else fr_lo
+            depth = None
+            depth_ci = None
+            if speed is not None:
+                depth = speed.speed_mps ** 2 / (g * sub ** 2)
+                depth_ci = (speed.ci95_low_mps ** 2 / (g * fr_hi ** 2), speed.ci95_high_mps ** 2 / (g * fr_lo ** 2))
+            return DepthRegime(_band(sub), sub, (fr_lo, fr_hi), depth, depth_ci,
+                               f"half-angle {a:.1f} deg wider than Kelvin's with transverse waves: subcritical "
+                               f"Fr_h = {sub:.2f} (Havelock 1908)")
+        if transverse_seen is False:
+            return DepthRegime("supercritical", br.supercritical, None, None, None,
+                               f"half-angle {a:.1f} deg and no transverse waves: supercritical, "
+                               f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}")
+        return DepthRegime("unknown", None, None, None, None, br.note)
+    return DepthRegime("unknown", None, None, None, None,
+                       "neither depth nor half-angle known: the depth regime cannot be told")

@@ -1,0 +1,1 @@
+"""Rasters, georeferencing and geodesy (rasterio, pyproj). No Qt."""

@@ -1,0 +1,1 @@
+"""Linear-theory wake renderer for tests and demo scenes. No Qt."""
