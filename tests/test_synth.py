@@ -171,3 +171,29 @@ def test_determinism_sizes_dtypes_and_sidecar(tmp_path):
 def test_invalid_parameters(make, match):
     with pytest.raises(ParameterError, match=match):
         make()
+
+
+def test_demo_scenes_match_their_recipe(tmp_path):
+    # Self-consistency: the committed demo scenes are exactly what `wakemeter synth --demo` writes
+    # (same seeds -> same pixels), and their truth covers what sample_scenes/README.md promises.
+    from pathlib import Path
+
+    from wakemeter.cli import main
+    from wakemeter.synth.demo import demo_specs
+
+    root = Path(__file__).resolve().parents[1] / "sample_scenes"
+    name = "outer_roads_radar"
+    assert main(["synth", "--out", str(tmp_path / "x.tif"), "--size", "64", "--pixel", "5"]) == 0
+    from wakemeter.synth import render, write
+    tif, sidecar = write(render(demo_specs()[name]), tmp_path / f"{name}.tif")
+    import rasterio
+    with rasterio.open(tif) as new, rasterio.open(root / f"{name}.tif") as old:
+        assert np.array_equal(new.read(), old.read())
+        assert new.transform == old.transform and new.crs == old.crs
+    truths = {p.name: json.loads(p.read_text()) for p in root.glob("*.truth.json")}
+    assert len(truths) == 5
+    shallow = truths["tallow_shoal_shallow.truth.json"]["vessels"][0]
+    assert shallow["half_angle_deg"] > 30.0
+    assert truths["calm_no_wake.truth.json"]["vessels"] == []
+    assert len(truths["channel_two_vessels.truth.json"]["vessels"]) == 2
+    assert sum(p.stat().st_size for p in root.glob("*.tif")) < 6_000_000

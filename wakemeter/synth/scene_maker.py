@@ -173,6 +173,8 @@ def render(spec: SceneSpec) -> RenderedScene:
             "radar_azimuth_offset_m": offset_m, "hull_pixel_col": hull_col, "hull_pixel_row": hull_row,
         })
     wake_rms = float(np.sqrt(np.mean(sx ** 2 + sy ** 2))) or 1.0
+    if not spec.vessels and spec.sea is None:
+        wake_rms = 1.0
     sx, sy = sx / wake_rms, sy / wake_rms
     if spec.sea is not None:
         ax, ay = ambient_slopes(shape, dx_m=dx, dy_m=dy, sea=spec.sea,
@@ -194,6 +196,12 @@ def render(spec: SceneSpec) -> RenderedScene:
         "ambient_sea": asdict(spec.sea) if spec.sea else None, "vessels": vessels_truth,
     }
     return RenderedScene(pixels[None, ...], georef, truth)
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def _atomic_path(target: Path) -> tuple[int, str]:
@@ -226,6 +234,9 @@ def write(scene: RenderedScene, path: str | os.PathLike) -> tuple[Path, Path]:
         with os.fdopen(fd, "w") as fh:
             json.dump(scene.truth, fh, indent=2, sort_keys=True)
             fh.write("\n")
+        mode = 0o666 & ~_umask()
+        for f in (tmp_tif, tmp_json):
+            os.chmod(f, mode)
         os.replace(tmp_tif, tif)
         os.replace(tmp_json, sidecar)
         tmp_files.clear()
