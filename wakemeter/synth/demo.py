@@ -40,26 +40,29 @@ def demo_specs() -> dict[str, SceneSpec]:
     return {
         "harbour_approach_optical": vessel_scene(
             "harbour_approach_optical", VesselSpec("Saltmarsh Wren", LON, LAT, kn(14.0), 62.0, Hull(32.0, 7.0)),
-            1024, 2.0, imaging=OpticalModel(sun_azimuth_deg=150.0), seed=101,
+            1024, 2.0, imaging=OpticalModel(sun_azimuth_deg=150.0),
+            acquisition_time="2026-06-14T10:32:05Z", seed=101,
             description="Patrol launch Saltmarsh Wren in the deep outer approach, optical, 2 m pixels."),
         "outer_roads_radar": vessel_scene(
             "outer_roads_radar", VesselSpec("Orla Brandt", LON_S, LAT_S, kn(17.5), 205.0, Hull(70.0, 12.0)),
-            640, 5.0, imaging=RadarModel(look_bearing_deg=100.0, incidence_deg=33.0, looks=4), sea=AmbientSea(90.0, 20.0, 6.0, 0.6),
-            seed=202, description="Ferry Orla Brandt in the outer roads, radar (4 looks, speckle, swell)."),
+            640, 5.0, imaging=RadarModel(look_bearing_deg=100.0, incidence_deg=33.0, looks=4),
+            sea=AmbientSea(90.0, 20.0, 6.0, 0.6), acquisition_time="2026-06-14T19:05:41Z", seed=202,
+            description="Ferry Orla Brandt in the outer roads, radar (4 looks, speckle, swell)."),
         "tallow_shoal_shallow": vessel_scene(
             "tallow_shoal_shallow", VesselSpec("Kittiwake Spray", LON + 0.05, LAT + 0.03, kn(12.4), 318.0,
                                                Hull(24.0, 6.0)),
-            1024, 2.0, imaging=OpticalModel(sun_azimuth_deg=200.0), depth_m=5.0, seed=303,
+            1024, 2.0, imaging=OpticalModel(sun_azimuth_deg=200.0), depth_m=5.0,
+            acquisition_time="2026-06-15T11:02:17Z", seed=303,
             description="Workboat Kittiwake Spray over Tallow Shoal, 5 m depth, Fr_h = 0.91: wide wake."),
         "channel_two_vessels": SceneSpec(
             1024, 1024, 2.0, LON - 0.04, LAT - 0.02,
             (VesselSpec("Merrow Pilot 2", *_moved(lon_a, lat_a, 95.0, 450.0), kn(9.0), 95.0, Hull(18.0, 5.0)),
              VesselSpec("Brackenfield", *_moved(lon_b, lat_b, 250.0, 450.0), kn(16.0), 250.0, Hull(45.0, 9.0))),
-            OpticalModel(sun_azimuth_deg=120.0), seed=404,
+            OpticalModel(sun_azimuth_deg=120.0), acquisition_time="2026-06-16T09:48:30Z", seed=404,
             description="Pilot boat and coaster passing in the approach channel, optical."),
         "calm_no_wake": SceneSpec(
             768, 768, 2.0, LON + 0.1, LAT - 0.05, (), OpticalModel(sun_azimuth_deg=150.0),
-            sea=AmbientSea(45.0, 70.0, 10.0, 1.0), seed=505,
+            sea=AmbientSea(45.0, 70.0, 10.0, 1.0), acquisition_time="2026-06-16T09:49:02Z", seed=505,
             description="Swell only, no vessel and no wake (for false-alarm checks)."),
     }
 

@@ -70,6 +70,7 @@ class SceneSpec:
     crs: str = "utm"  #: "utm" or "EPSG:4326"
     seed: int = 0
     description: str = ""
+    acquisition_time: str = ""  #: ISO 8601 UTC, written to the GeoTIFF metadata when given
 
     def __post_init__(self) -> None:
         if not (isinstance(self.width, int) and isinstance(self.height, int)) or self.width < 32 or self.height < 32:
@@ -190,7 +191,7 @@ def render(spec: SceneSpec) -> RenderedScene:
         pixels = optical_pixels((sx * lx + sy * ly) * scale, wake, hulls, spec.imaging, rng)
     truth = {
         "schema": TRUTH_SCHEMA, "generator": f"wakemeter {__version__}", "seed": spec.seed,
-        "description": spec.description, "width": spec.width, "height": spec.height, "pixel_m": spec.pixel_m,
+        "description": spec.description, "acquisition_time": spec.acquisition_time or None, "width": spec.width, "height": spec.height, "pixel_m": spec.pixel_m,
         "crs": georef.crs, "transform": list(georef.transform)[:6], "depth_m": None if np.isinf(spec.depth_m) else spec.depth_m,
         "gravity_mps2": g, "imaging": {"kind": "radar" if is_radar else "optical", **asdict(spec.imaging)},
         "ambient_sea": asdict(spec.sea) if spec.sea else None, "vessels": vessels_truth,
@@ -227,6 +228,8 @@ def write(scene: RenderedScene, path: str | os.PathLike) -> tuple[Path, Path]:
         with rasterio.open(tmp_tif, "w", **profile) as dst:
             dst.write(data)
             dst.update_tags(WAKEMETER_SYNTHETIC="yes", WAKEMETER_TRUTH=sidecar.name)
+            if scene.truth.get("acquisition_time"):
+                dst.update_tags(ACQUISITION_START_TIME=scene.truth["acquisition_time"])
             if data.dtype.kind == "f":
                 dst.update_tags(1, UNITS="linear backscatter (sigma0, synthetic)")
         fd, tmp_json = _atomic_path(sidecar)

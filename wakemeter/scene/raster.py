@@ -1,0 +1,301 @@
+"""Scenes: open any raster, read windows at any zoom, know where it lies.
+
+:func:`open_scene` gives a :class:`Scene`: size, bands, dtype, nodata, CRS,
+affine transform (rotated or sheared ones too; an approximate one from ground
+control points when the file has only GCPs), acquisition time when the
+metadata has it, overviews, and a SHA-256 of the file on demand.  Reads go
+through :meth:`Scene.read`, which uses internal overviews (or wakemeter's
+cached pyramid) when zoomed out, and never loads a whole big scene.
+
+Every GDAL/rasterio failure is translated here into :class:`SceneReadError`
+naming the file and what is wrong.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import threading
+import warnings
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import rasterio
+from affine import Affine
+from rasterio.enums import Resampling
+from rasterio.errors import NotGeoreferencedWarning, RasterioError
+from rasterio.windows import Window
+
+from ..errors import GeoreferenceError, ParameterError, SceneReadError
+from . import geodesy
+
+#: A full read larger than this many bytes is refused (use windows or zoomed-out reads).
+MAX_FULL_READ_BYTES = 2 * 1024 ** 3
+
+_TIME_TAGS = ("ACQUISITION_START_TIME", "ACQUISITION_TIME", "FIRST_LINE_TIME", "DATE_TIME", "DATETIME",
+              "TIFFTAG_DATETIME", "acquisition_time", "datetime")
+
+
+def _gdal_error_types() -> tuple[type[BaseException], ...]:
+    try:
+        from rasterio._err import CPLE_BaseError
+        return (RasterioError, CPLE_BaseError)
+    except ImportError:  # pragma: no cover - older/newer rasterio layouts
+        return (RasterioError,)
+
+
+GDAL_ERRORS = _gdal_error_types()
+
+
+@dataclass(frozen=True)
+class SceneInfo:
+    """What a scene is, read once at open time (no pixels)."""
+
+    path: Path
+    width: int
+    height: int
+    count: int
+    dtype: str
+    nodata: float | None
+    crs: str | None  #: 'EPSG:n' when the CRS has a code, else WKT; None without georeference
+    transform: Affine
+    georeferenced: bool
+    georeference_note: str
+    acquisition_time: str | None
+    overview_factors: tuple[int, ...]
+    band_descriptions: tuple[str | None, ...]
+    driver: str
+    file_size: int
+    tags: dict = field(default_factory=dict, compare=False, repr=False)
+
+
+class Scene:
+    """An opened scene: metadata plus thread-safe windowed reading.
+
+    Use as a context manager or call :meth:`close`.  Each thread gets its own
+    GDAL handle, so tile readers may call :meth:`read` concurrently.
+    """
+
+    def __init__(self, info: SceneInfo):
+        self.info = info
+        self._local = threading.local()
+        self._handles: list = []
+        self._lock = threading.Lock()
+        self._sha256: str | None = None
+        self.pyramid: list[tuple[int, Path]] = []  #: (factor, path) of cached reduced levels, if built
+
+    # ---- life cycle -------------------------------------------------------
+    def __enter__(self) -> Scene:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
+
+    def close(self) -> None:
+        with self._lock:
+            for h in self._handles:
+                try:
+                    h.close()
+                except Exception:  # noqa: BLE001 - closing must never raise
+                    pass
+            self._handles.clear()
+        self._local = threading.local()
+
+    def _dataset(self, path: Path | None = None):
+        path = path or self.info.path
+        cache = getattr(self._local, "ds", None)
+        if cache is None:
+            cache = self._local.ds = {}
+        ds = cache.get(path)
+        if ds is None:
+            try:
+                with warnings.catch_warnings():
+                    warnings.simplefilter("ignore", NotGeoreferencedWarning)
+                    ds = rasterio.open(path)
+            except GDAL_ERRORS as err:
+                raise SceneReadError(f"{path}: cannot be opened any more ({err})") from err
+            cache[path] = ds
+            with self._lock:
+                self._handles.append(ds)
+        return ds
+
+    # ---- convenience ------------------------------------------------------
+    @property
+    def width(self) -> int:
+        return self.info.width
+
+    @property
+    def height(self) -> int:
+        return self.info.height
+
+    @property
+    def georef(self) -> geodesy.GeoRef:
+        if not self.info.georeferenced or self.info.crs is None:
+            raise GeoreferenceError(f"{self.info.path.name} has no georeference; calibrate it by pixel size "
+                                    "or by two points at a known distance")
+        return geodesy.GeoRef(self.info.transform, self.info.crs)
+
+    def local_frame(self, col: float | None = None, row: float | None = None) -> geodesy.LocalFrame:
+        """Metric frame at a pixel (default: the scene centre)."""
+        col = self.width / 2 if col is None else col
+        row = self.height / 2 if row is None else row
+        return geodesy.local_frame(self.georef, col, row)
+
+    def sha256(self, chunk: int = 4 * 1024 * 1024) -> str:
+        """SHA-256 of the file's bytes (computed once, on demand)."""
+        if self._sha256 is None:
+            h = hashlib.sha256()
+            try:
+                with open(self.info.path, "rb") as fh:
+                    for block in iter(lambda: fh.read(chunk), b""):
+                        h.update(block)
+            except OSError as err:
+                raise SceneReadError(f"{self.info.path}: cannot read the file to hash it ({err.strerror})") from err
+            self._sha256 = h.hexdigest()
+        return self._sha256
+
+    # ---- reading ----------------------------------------------------------
+    def read(self, *, window: tuple[int, int, int, int] | None = None, out_shape: tuple[int, int] | None = None,
+             bands: tuple[int, ...] | None = None, resampling: Resampling = Resampling.average
+             ) -> tuple[np.ndarray, np.ndarray]:
+        """Read pixels as float32 and a validity mask.
+
+        Parameters
+        ----------
+        window : (col, row, width, height), optional
+            Pixel window of the full-resolution scene (clipped to the scene); default all.
+        out_shape : (rows, cols), optional
+            Output size; smaller than the window reads zoomed out (overviews or the
+            cached pyramid are used when present).  Default: the window's size.
+        bands : tuple of int, optional
+            1-based band numbers; default all.
+
+        Returns
+        -------
+        data : ndarray, float32, shape (bands, rows, cols)
+        valid : ndarray, bool, same shape (False at nodata, NaN or masked pixels)
+        """
+        c0, r0, w, h = window if window is not None else (0, 0, self.width, self.height)
+        c1, r1 = min(c0 + w, self.width), min(r0 + h, self.height)
+        c0, r0 = max(int(c0), 0), max(int(r0), 0)
+        w, h = int(c1) - c0, int(r1) - r0
+        if w <= 0 or h <= 0:
+            raise ParameterError(f"the window {window!r} lies outside the scene ({self.width} x {self.height})")
+        bands = tuple(bands) if bands else tuple(range(1, self.info.count + 1))
+        if any(b < 1 or b > self.info.count for b in bands):
+            raise ParameterError(f"bands must be within 1..{self.info.count}, got {bands!r}")
+        oh, ow = out_shape if out_shape is not None else (h, w)
+        if oh < 1 or ow < 1:
+            raise ParameterError(f"out_shape must be at least 1 x 1, got {out_shape!r}")
+        nbytes = len(bands) * oh * ow * 4
+        if nbytes > MAX_FULL_READ_BYTES:
+            raise SceneReadError(f"{self.info.path.name}: reading {ow} x {oh} pixels x {len(bands)} bands "
+                                 f"({nbytes / 1e9:.1f} GB) is too large to hold; read a window or zoom out")
+        path, scale = self.info.path, 1
+        factor = min(w / ow, h / oh)
+        for f, p in sorted(self.pyramid, reverse=True):
+            if factor >= f:
+                path, scale = p, f
+                break
+        win = Window(c0 / scale, r0 / scale, w / scale, h / scale)
+        try:
+            ds = self._dataset(path)
+            arr = ds.read(list(bands), window=win, out_shape=(len(bands), oh, ow), resampling=resampling,
+                          masked=True, boundless=False)
+        except GDAL_ERRORS as err:
+            raise SceneReadError(f"{self.info.path.name}: the pixels cannot be read - the file may be "
+                                 f"truncated or corrupt ({err})") from err
+        except MemoryError as err:
+            raise SceneReadError(f"{self.info.path.name}: not enough memory to read {ow} x {oh} pixels") from err
+        data = np.asarray(arr.filled(np.nan) if arr.dtype.kind == "f" else arr.data, dtype=np.float32)
+        valid = ~np.ma.getmaskarray(arr) & np.isfinite(data)
+        return data, valid
+
+    def read_full(self, *, bands: tuple[int, ...] | None = None) -> tuple[np.ndarray, np.ndarray]:
+        """The whole scene at full resolution (refused, with a clear error, when too large)."""
+        return self.read(bands=bands)
+
+
+def _describe_crs(crs) -> str | None:
+    if crs is None:
+        return None
+    code = crs.to_epsg()
+    return f"EPSG:{code}" if code else crs.to_wkt()
+
+
+def open_scene(path: str | os.PathLike) -> Scene:
+    """Open a raster file as a :class:`Scene` (GeoTIFF, COG, PNG, JPEG, anything GDAL reads).
+
+    Raises
+    ------
+    SceneReadError
+        Missing file, a folder, no permission, not a raster, zero size, corrupt header.
+    """
+    p = Path(path).expanduser()
+    if not p.exists():
+        raise SceneReadError(f"{p}: no such file")
+    if p.is_dir():
+        raise SceneReadError(f"{p}: is a folder, not an image file")
+    if not os.access(p, os.R_OK):
+        raise SceneReadError(f"{p}: permission denied (the file cannot be read by this user)")
+    size = p.stat().st_size
+    if size == 0:
+        raise SceneReadError(f"{p}: the file is empty (0 bytes)")
+    try:
+        with warnings.catch_warnings(), rasterio.Env(GDAL_PAM_ENABLED="NO"):
+            warnings.simplefilter("ignore", NotGeoreferencedWarning)
+            with rasterio.open(p) as ds:
+                info = _read_info(p, ds, size)
+    except GDAL_ERRORS as err:
+        msg = str(err)
+        if "not recognized as" in msg or "not a supported" in msg.lower():
+            raise SceneReadError(f"{p}: not a raster image that can be read (unsupported or unknown format)") from err
+        raise SceneReadError(f"{p}: cannot be opened as a raster - the file may be truncated or corrupt ({msg})") from err
+    except (MemoryError, OverflowError, ValueError) as err:
+        raise SceneReadError(f"{p}: the file's header is not valid ({err})") from err
+    return Scene(info)
+
+
+def _read_info(p: Path, ds, size: int) -> SceneInfo:
+    if ds.width < 1 or ds.height < 1 or ds.count < 1:
+        raise SceneReadError(f"{p}: the image has no pixels ({ds.width} x {ds.height}, {ds.count} bands)")
+    crs = ds.crs
+    transform = ds.transform
+    note = ""
+    georef = crs is not None and transform != Affine.identity()
+    if not georef:
+        gcps, gcp_crs = ds.gcps
+        if gcps and gcp_crs is not None and len(gcps) >= 3:
+            transform = rasterio.transform.from_gcps(gcps)
+            crs = gcp_crs
+            georef = True
+            note = f"approximate affine fitted to {len(gcps)} ground control points"
+    if georef:
+        try:
+            crs_text = _describe_crs(crs)
+            lon, lat = geodesy.pixel_to_lonlat(geodesy.GeoRef(transform, crs_text), ds.width / 2, ds.height / 2)
+            if not (np.isfinite(lon) and np.isfinite(lat)):
+                raise GeoreferenceError("the scene centre does not map to a place on the Earth")
+        except (GeoreferenceError, ParameterError, Exception) as err:  # noqa: BLE001 - any CRS problem
+            crs_text, georef = None, False
+            note = f"georeference present but unusable ({err}); treated as not georeferenced"
+    else:
+        crs_text = None
+        note = note or "no georeference: calibrate by pixel size or two points at a known distance"
+    tags = {}
+    for ns in (None, "IMAGE_STRUCTURE"):
+        try:
+            tags.update(ds.tags(ns=ns) if ns else ds.tags())
+        except GDAL_ERRORS:
+            pass
+    acq = next((tags[k] for k in _TIME_TAGS if k in tags and tags[k].strip()), None)
+    try:
+        ovr = tuple(ds.overviews(1))
+    except GDAL_ERRORS:
+        ovr = ()
+    return SceneInfo(path=p.resolve(), width=ds.width, height=ds.height, count=ds.count, dtype=ds.dtypes[0],
+                     nodata=ds.nodata, crs=crs_text, transform=transform if georef else Affine.identity(),
+                     georeferenced=georef, georeference_note=note, acquisition_time=acq,
+                     overview_factors=ovr, band_descriptions=tuple(ds.descriptions), driver=ds.driver,
+                     file_size=size, tags=tags)

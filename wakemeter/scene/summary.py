@@ -1,0 +1,107 @@
+"""A plain summary of a scene (what ``wakemeter info`` prints) and quicklook images."""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import ParameterError, SceneWriteError
+from . import display, geodesy
+from .raster import Scene
+
+
+def lonlat_bounds(scene: Scene, samples: int = 21) -> tuple[float, float, float, float]:
+    """(west, south, east, north) in WGS 84 degrees, from points along the four edges."""
+    t = np.linspace(0, 1, samples)
+    w, h = scene.width, scene.height
+    cols = np.concatenate([t * w, np.full(samples, w), t * w, np.zeros(samples)])
+    rows = np.concatenate([np.zeros(samples), t * h, np.full(samples, h), t * h])
+    lon, lat = geodesy.pixel_to_lonlat(scene.georef, cols, rows)
+    return float(lon.min()), float(lat.min()), float(lon.max()), float(lat.max())
+
+
+def summarise(scene: Scene) -> dict:
+    """Everything ``wakemeter info`` reports, as plain data."""
+    i = scene.info
+    out = {
+        "file": str(i.path), "file_size_bytes": i.file_size, "driver": i.driver,
+        "width": i.width, "height": i.height, "bands": i.count, "dtype": i.dtype, "nodata": i.nodata,
+        "georeferenced": i.georeferenced, "georeference_note": i.georeference_note, "crs": i.crs,
+        "overviews": list(i.overview_factors), "acquisition_time": i.acquisition_time,
+        "pixel_size_m": None, "image_up_true_bearing_deg": None, "bounds_wgs84": None,
+    }
+    if i.georeferenced:
+        f = scene.local_frame()
+        out["pixel_size_m"] = {"along_rows": f.m_per_col, "along_columns": f.m_per_row_up}
+        out["image_up_true_bearing_deg"] = f.bearing_up_deg
+        west, south, east, north = lonlat_bounds(scene)
+        out["bounds_wgs84"] = {"west": west, "south": south, "east": east, "north": north}
+    return out
+
+
+def format_summary(s: dict) -> str:
+    lines = [f"file:           {s['file']} ({s['file_size_bytes']:,} bytes, {s['driver']})",
+             f"size:           {s['width']} x {s['height']} pixels, {s['bands']} band(s), {s['dtype']}"
+             + (f", nodata {s['nodata']}" if s["nodata"] is not None else ""),
+             f"georeferenced:  {'yes' if s['georeferenced'] else 'NO'}"
+             + (f" ({s['georeference_note']})" if s["georeference_note"] else "")]
+    if s["georeferenced"]:
+        crs = s["crs"] if s["crs"].startswith("EPSG:") else "WKT: " + s["crs"]
+        px = s["pixel_size_m"]
+        b = s["bounds_wgs84"]
+        lines += [f"CRS:            {crs}",
+                  f"pixel size:     {px['along_rows']:.3f} m along rows x {px['along_columns']:.3f} m along columns "
+                  "(scene centre, on the ground)",
+                  f"image up:       true bearing {s['image_up_true_bearing_deg']:.3f} deg",
+                  f"bounds (WGS 84): lon {b['west']:.6f} .. {b['east']:.6f}, lat {b['south']:.6f} .. {b['north']:.6f}"]
+    lines.append(f"overviews:      {', '.join(map(str, s['overviews'])) if s['overviews'] else 'none'}")
+    lines.append(f"acquired:       {s['acquisition_time'] or 'unknown (not in the metadata)'}")
+    return "\n".join(lines)
+
+
+def quicklook(scene: Scene, *, max_size: int = 1024) -> np.ndarray:
+    """Stretched uint8 preview, longest side ``max_size``; radar-like data shown in dB."""
+    if max_size < 8:
+        raise ParameterError(f"max_size must be >= 8 pixels, got {max_size!r}")
+    scale = min(1.0, max_size / max(scene.width, scene.height))
+    oh, ow = max(1, round(scene.height * scale)), max(1, round(scene.width * scale))
+    bands = (1, 2, 3) if scene.info.count >= 3 else (1,)
+    data, valid = scene.read(out_shape=(oh, ow), bands=bands)
+    db = display.looks_like_radar(scene.info.dtype, scene.info.count, data[0][valid[0]][:100_000])
+    if len(bands) == 3:
+        img = display.composite(data, valid, rgb=(0, 1, 2))
+    else:
+        img = display.composite(data, valid, db=db)
+    return display.to_uint8(img)
+
+
+def write_png(image: np.ndarray, path: str | os.PathLike) -> Path:
+    """Write a uint8 grey or RGB image as PNG atomically (temporary file, then rename)."""
+    import cv2
+
+    target = Path(path)
+    if not target.parent.is_dir():
+        raise SceneWriteError(f"cannot write {target}: folder {target.parent} does not exist")
+    arr = image if image.ndim == 2 else image[..., ::-1]  # OpenCV wants BGR
+    ok, buf = cv2.imencode(".png", np.ascontiguousarray(arr))
+    if not ok:
+        raise SceneWriteError(f"cannot encode {target} as PNG")
+    tmp = None
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(buf.tobytes())
+        mask = os.umask(0)
+        os.umask(mask)
+        os.chmod(tmp, 0o666 & ~mask)
+        os.replace(tmp, target)
+        tmp = None
+    except OSError as err:
+        raise SceneWriteError(f"cannot write {target}: {err.strerror or err}") from err
+    finally:
+        if tmp:
+            Path(tmp).unlink(missing_ok=True)
+    return target
