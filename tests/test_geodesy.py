@@ -50,6 +50,21 @@ def test_local_frame_convergence_and_scale_match_pyproj(lon, lat, epsg):
     assert f.m_per_col == pytest.approx(10.0 / fac.meridional_scale, rel=1e-6)
 
 
+@pytest.mark.parametrize("dlon, lat", [(2.0, 50.0), (-2.5, 50.0), (2.0, -35.0), (-1.5, -62.0), (0.5, 5.0)])
+def test_convergence_matches_snyder_first_order(dlon, lat):
+    # Source: Snyder 1987, USGS Professional Paper 1395, transverse Mercator: gamma ~ dlambda sin(phi)
+    # to first order; the neglected terms are O(dlambda^3) (here bounded by dlambda^3 in radians).
+    zone = 31
+    lon0 = -180 + 6 * zone - 3
+    epsg = (32600 if lat >= 0 else 32700) + zone
+    x, y = Transformer.from_crs(4326, epsg, always_xy=True).transform(lon0 + dlon, lat)
+    f = gd.local_frame(gd.GeoRef(Affine(10, 0, x - 50, 0, -10, y + 50), f"EPSG:{epsg}"), 5.0, 5.0)
+    gamma = ((f.bearing_up_deg + 180) % 360) - 180
+    approx = np.degrees(np.radians(dlon) * np.sin(np.radians(lat)))
+    assert gamma == pytest.approx(approx, abs=np.degrees(np.radians(abs(dlon)) ** 3) + 1e-4)
+    assert np.sign(gamma) == np.sign(dlon * lat)
+
+
 def test_frame_bearing_agrees_with_long_geodesic_on_rotated_and_flipped_grids():
     # Self-consistency with pyproj.Geod: the local frame's bearing of an image direction equals the
     # geodesic azimuth between the two pixels 200 px apart (rotation, shear and flips included).

@@ -120,6 +120,11 @@ def test_ungeoreferenced_png_opens_with_flag(tmp_path):
             sc.local_frame()
         d, _ = sc.read()
         assert np.array_equal(d[0], img)
+        from wakemeter.scene import geodesy
+        sc.calibrate(geodesy.calibrated_frame(pixel_size_m=geodesy.pixel_size_from_two_points((0, 0), (0, 40), 20.0)))
+        f = sc.local_frame(3, 3)
+        assert f.m_per_col == 0.5 and not f.north_known
+        assert f.length_of(10, 0) == pytest.approx(5.0)
 
 
 def test_engineering_crs_is_flagged_not_crashing(tmp_path):

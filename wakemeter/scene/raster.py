@@ -84,6 +84,7 @@ class Scene:
         self._lock = threading.Lock()
         self._sha256: str | None = None
         self.pyramid: list[tuple[int, Path]] = []  #: (factor, path) of cached reduced levels, if built
+        self.calibration: geodesy.LocalFrame | None = None  #: hand calibration of a plain image
 
     # ---- life cycle -------------------------------------------------------
     def __enter__(self) -> Scene:
@@ -136,8 +137,19 @@ class Scene:
                                     "or by two points at a known distance")
         return geodesy.GeoRef(self.info.transform, self.info.crs)
 
+    def calibrate(self, frame: geodesy.LocalFrame | None) -> None:
+        """Give an image without georeference a hand calibration (see :func:`geodesy.calibrated_frame`).
+
+        ``None`` removes it.  Georeferenced scenes keep their own georeference.
+        """
+        if self.info.georeferenced and frame is not None:
+            raise GeoreferenceError(f"{self.info.path.name} is georeferenced; a hand calibration is not used")
+        self.calibration = frame
+
     def local_frame(self, col: float | None = None, row: float | None = None) -> geodesy.LocalFrame:
-        """Metric frame at a pixel (default: the scene centre)."""
+        """Metric frame at a pixel (default: the scene centre); the calibration for plain images."""
+        if not self.info.georeferenced and getattr(self, "calibration", None) is not None:
+            return self.calibration
         col = self.width / 2 if col is None else col
         row = self.height / 2 if row is None else row
         return geodesy.local_frame(self.georef, col, row)
