@@ -1,0 +1,373 @@
+"""analyze(): from a scene and a vessel position to speed, heading and depth regime.
+
+Composes detection (chip, wake side, spectral fit, transverse crests, arms,
+turbulent wake) and the inversion core (Monte Carlo intervals, combination,
+depth regime).  A scene without a wake says so and gives no speed.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy import ndimage
+
+from ..errors import ParameterError
+from ..physics import inversion as inv
+from ..physics import kelvin
+from ..physics.gravity import normal_gravity
+from ..physics.hull import apparent_arm_angle, hull_froude
+from ..scene import geodesy
+from ..scene.raster import Scene
+from . import arms as arms_mod
+from .prepare import Chip, prepare_chip
+from .spectral import (CurveFit, crest_spacing, fit_curve, fit_depth, student_inflation, whitened_spectrum)
+from .trackframe import track_frame, wake_side
+
+#: Decision thresholds, calibrated on wake-free scenes (see tests/test_wake_decision.py and DEVELOPERS.md).
+SIGNIFICANCE_MIN = 7.0
+SIDE_CONTRAST_MIN = 3.0
+
+CHIP_PX = 640
+BOX_PX = 256
+GAP_PX = 12
+K_HI_FACTOR = 1.8  # wave-energy band for the arms: 0.5 to 1.8 x the transverse wavenumber
+
+
+@dataclass(frozen=True)
+class RadarGeometry:
+    """Radar acquisition geometry for the azimuth-offset method (Raney 1971)."""
+
+    slant_range_m: float
+    platform_speed_mps: float
+    look_bearing_deg: float  #: true bearing from the radar toward the scene
+    incidence_deg: float
+    slant_range_std_m: float = 1000.0
+    platform_speed_std_mps: float = 10.0
+
+    @property
+    def flight_bearing_deg(self) -> float:
+        return (self.look_bearing_deg - 90.0) % 360.0
+
+
+@dataclass(frozen=True)
+class WakeAnalysis:
+    """Everything the analysis found for one vessel (units in field names)."""
+
+    wake_found: bool
+    decision: str
+    significance: float
+    vessel_px: tuple[float, float]
+    vessel_lonlat: tuple[float, float] | None
+    heading_deg: float | None
+    heading_std_deg: float | None
+    speed: inv.CombinedSpeed | None
+    methods: tuple[inv.SpeedEstimate, ...]
+    half_angle_deg: float | None
+    half_angle_std_deg: float | None
+    transverse_wavelength_m: float | None
+    transverse_wavelength_std_m: float | None
+    regime: inv.DepthRegime
+    depth_m: float | None
+    depth_ci95_m: tuple[float, float] | None
+    gravity_mps2: float
+    pixel_m: float
+    cautions: tuple[str, ...]
+    geometry: dict = field(default_factory=dict, compare=False, repr=False)  #: lines for drawing, scene px
+    plots: dict = field(default_factory=dict, compare=False, repr=False)  #: arrays for plots
+
+    def to_json(self) -> dict:
+        """Plain data with the documented field names; unknown numbers are None."""
+        sp = self.speed
+        return {
+            "wake_found": self.wake_found, "decision": self.decision, "significance": _num(self.significance),
+            "speed_mps": _num(sp.speed_mps) if sp else None,
+            "speed_knots": _num(sp.speed_mps / kelvin_knot()) if sp else None,
+            "speed_ci95_mps": [_num(sp.ci95_low_mps), _num(sp.ci95_high_mps)] if sp else None,
+            "speed_ci95_knots": [_num(sp.ci95_low_mps / kelvin_knot()), _num(sp.ci95_high_mps / kelvin_knot())] if sp else None,
+            "consistency": sp.verdict if sp else None,
+            "heading_deg": _num(self.heading_deg), "heading_std_deg": _num(self.heading_std_deg),
+            "half_angle_deg": _num(self.half_angle_deg), "half_angle_std_deg": _num(self.half_angle_std_deg),
+            "transverse_wavelength_m": _num(self.transverse_wavelength_m),
+            "regime": self.regime.regime.replace(" ", "-"), "regime_explanation": self.regime.explanation,
+            "depth_froude": _num(self.regime.froude_depth),
+            "depth_m": _num(self.depth_m),
+            "depth_ci95_m": [_num(self.depth_ci95_m[0]), _num(self.depth_ci95_m[1])] if self.depth_ci95_m else None,
+            "methods": [{"name": m.method, "speed_mps": _num(m.speed_mps), "std_mps": _num(m.std_mps),
+                         "speed_ci95_mps": [_num(m.ci95_low_mps), _num(m.ci95_high_mps)],
+                         "assumptions": list(m.assumptions)} for m in self.methods],
+            "vessel_px": [_num(self.vessel_px[0]), _num(self.vessel_px[1])],
+            "vessel_lonlat": [_num(v) for v in self.vessel_lonlat] if self.vessel_lonlat else None,
+            "gravity_mps2": _num(self.gravity_mps2), "pixel_m": _num(self.pixel_m),
+            "cautions": list(self.cautions),
+        }
+
+
+def kelvin_knot() -> float:
+    from ..physics.units import KNOT_MPS
+    return KNOT_MPS
+
+
+def _num(x: float | None) -> float | None:
+    return None if x is None or not np.isfinite(x) else float(x)
+
+
+@dataclass(frozen=True)
+class _Pass:
+    chip: Chip
+    back_deg: float
+    side_contrast: float
+    fit: CurveFit
+    tf: np.ndarray  #: track-frame texture, (v, u) with u from -(GAP+BOX) to GAP+BOX
+    u_start: int
+
+
+def _one_pass(scene: Scene, px: tuple[float, float], step: int, g: float, depth: float,
+              radar: bool | None) -> _Pass:
+    """Prepare a chip, find which way the wake lies and fit the deep-water (or given-depth) curve.
+
+    Two candidate track directions are tried, the centre of the energetic wedge and the
+    turbulent wake line (localised Radon); the one whose spectrum fits better wins.
+    """
+    chip = prepare_chip(scene, px, size_px=CHIP_PX, step=step, radar=radar)
+    side = wake_side(chip)
+    candidates = [side.back_angle_deg]
+    tw = arms_mod.turbulent_wake(chip.data, chip.valid, chip.vessel_rc, side.back_angle_deg)
+    if tw is not None and tw.significance >= 8.0 and abs(((tw.angle_deg - side.back_angle_deg) + 180) % 360 - 180) > 2:
+        candidates.append(tw.angle_deg)
+    best: _Pass | None = None
+    u0 = -(GAP_PX + BOX_PX)
+    for back in candidates:
+        tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(u0, GAP_PX + BOX_PX), v_half=BOX_PX / 2)
+        sp = whitened_spectrum(tf[:, -BOX_PX:], tf[:, :BOX_PX][:, ::-1], chip.m_per_px)
+        fit = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=10.0, delta_step_deg=1.0)
+        cand = _Pass(chip, back, side.contrast, fit, tf, u0)
+        if best is None or (np.isfinite(fit.score) and not fit.score <= best.fit.score):
+            best = cand
+    assert best is not None
+    return best
+
+
+def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
+            vessel_lonlat: tuple[float, float] | None = None, depth_m: float | None = None,
+            depth_std_m: float = 0.0, hull_length_m: float | None = None,
+            radar_geometry: RadarGeometry | None = None, radar: bool | None = None,
+            pixel_rel_std: float = 0.005, seed: int = 0) -> WakeAnalysis:
+    """Analyse the wake of one vessel.
+
+    Parameters
+    ----------
+    scene : Scene
+        An opened scene (georeferenced, or calibrated with :meth:`Scene.calibrate`).
+    vessel_px, vessel_lonlat : (col, row) or (lon, lat)
+        Where the vessel is (one of the two); snapped to a hull nearby.
+    depth_m, depth_std_m : float, optional
+        Known water depth; otherwise deep water is assumed unless the wake's
+        half-angle shows a depth effect, and the depth is then estimated.
+    hull_length_m : float, optional
+        For the high-speed (narrow arms) caveat.
+    radar_geometry : RadarGeometry, optional
+        Enables the radar azimuth-offset method.
+    """
+    if (vessel_px is None) == (vessel_lonlat is None):
+        raise ParameterError("give the vessel position either as vessel_px or as vessel_lonlat (exactly one)")
+    if depth_m is not None and not (np.isfinite(depth_m) and depth_m > 0):
+        raise ParameterError(f"depth_m must be > 0 m, got {depth_m!r}")
+    if hull_length_m is not None and not (np.isfinite(hull_length_m) and hull_length_m > 0):
+        raise ParameterError(f"hull_length_m must be > 0 m, got {hull_length_m!r}")
+    if vessel_lonlat is not None:
+        c, r = geodesy.lonlat_to_pixel(scene.georef, vessel_lonlat[0], vessel_lonlat[1])
+        vessel_px = (float(c), float(r))
+    assert vessel_px is not None
+    lonlat = None
+    if scene.info.georeferenced:
+        lon, lat = geodesy.pixel_to_lonlat(scene.georef, vessel_px[0], vessel_px[1])
+        lonlat = (float(lon), float(lat))
+        g = float(normal_gravity(lonlat[1]))
+        g_u = inv.Uncertain(g, 0.0005)
+    else:
+        g, g_u = 9.80665, inv.Uncertain(9.80665, 0.015)
+    depth_fit = np.inf if depth_m is None else float(depth_m)
+
+    # scale selection: coarser when the waves are long for the box, finer when too short
+    step, p = 1, None
+    for _ in range(4):
+        p = _one_pass(scene, vessel_px, step, g, depth_fit, radar)
+        lam_px = 2 * np.pi * p.fit.speed_mps ** 2 / g / p.chip.m_per_px if np.isfinite(p.fit.speed_mps) else np.nan
+        if np.isfinite(lam_px) and lam_px > BOX_PX / 5 and max(scene.width, scene.height) / (2 * step) >= CHIP_PX / 2:
+            step *= 2
+            continue
+        break
+    assert p is not None
+    chip, fit = p.chip, p.fit
+    # snap to the hull when one was found close to the click
+    snapped = chip.to_scene(*chip.hull_rc) if chip.hull_rc is not None else vessel_px
+    back = (p.back_deg + fit.delta_deg) % 360.0
+    found = bool(np.isfinite(fit.speed_mps) and fit.significance >= SIGNIFICANCE_MIN
+                 and p.side_contrast >= SIDE_CONTRAST_MIN)
+    frame = scene.local_frame(snapped[0], snapped[1])
+    cautions = [CAUTION_ESTIMATE]
+    if not frame.georeferenced:
+        cautions.append("the image has no georeference: distances use the hand calibration"
+                        + ("" if frame.north_known else "; headings are relative to image up, not true bearings"))
+    regime_none = inv.DepthRegime("unknown", None, None, None, None, "no wake: nothing to judge")
+    if not found:
+        why = (f"no wake found: spectral significance {fit.significance:.1f} (needs {SIGNIFICANCE_MIN}) and "
+               f"wake-side contrast {p.side_contrast:.1f} (needs {SIDE_CONTRAST_MIN})")
+        return WakeAnalysis(False, why, float(fit.significance), snapped, lonlat, None, None, None, (), None, None,
+                            None, None, regime_none, None, None, g, chip.m_per_px, tuple(cautions),
+                            geometry={"chip": _chip_outline(chip)})
+    # bootstrap over four sub-boxes behind (with matching ones ahead)
+    sub_u, sub_d = _bootstrap(p, g, depth_fit)
+    infl = student_inflation(len(sub_u)) if len(sub_u) >= 3 else 2.0
+    u_std = float(np.std(sub_u, ddof=1) / np.sqrt(len(sub_u)) * infl) if len(sub_u) >= 3 else 0.05 * fit.speed_mps
+    u_std = max(u_std, 0.006 * fit.speed_mps)
+    d_std = float(np.std(sub_d, ddof=1) / np.sqrt(len(sub_d)) * infl) if len(sub_d) >= 3 else 2.0
+    d_std = max(d_std, 0.3)
+    dcol, drow = np.cos(np.radians(back + 180)), -np.sin(np.radians(back + 180))
+    heading = float(frame.bearing_of(dcol, drow))
+    m = chip.m_per_px
+    # transverse crest spacing along the track
+    lam_pred = kelvin.transverse_wavelength(fit.speed_mps, depth_fit, g=g)
+    tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(GAP_PX, GAP_PX + 2 * BOX_PX), v_half=BOX_PX / 2)
+    half_w = int(max(1, min(lam_pred / m / 6, 6)))
+    c = tf.shape[0] // 2
+    valid_u = np.nonzero(np.abs(tf[c]) > 0)[0]
+    prof = tf[c - half_w:c + half_w + 1, :valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
+    lam_t, lam_t_sd, snr = (np.nan, np.nan, 0.0)
+    if np.isfinite(lam_pred):
+        lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(0.75 * lam_pred, (1.35 if depth_m is not None else 2.2) * lam_pred))
+    transverse_seen = bool(np.isfinite(lam_t) and snr >= 12.0)
+    # arms and half-angle from the outer edge of the wave energy
+    reach = int(0.46 * chip.data.shape[0])
+    wide = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=reach)
+    wvalid = track_frame(chip.valid.astype(np.float32), chip.vessel_rc, back, u_range=(-reach, reach),
+                         v_half=reach, order=0) > 0
+    k_t = 2 * np.pi / lam_pred if np.isfinite(lam_pred) else 2 * np.pi / (20 * m)
+    energy = arms_mod.wave_energy(wide, m, k_lo=0.5 * k_t, k_hi=min(K_HI_FACTOR * k_t, 2 * np.pi / (2.6 * m)),
+                                  smooth_px=max(1.5, 0.3 * lam_pred / m if np.isfinite(lam_pred) else 3))
+    ahead_e = energy[:, :reach - GAP_PX][wvalid[:, :reach - GAP_PX]]
+    bg = float(np.median(ahead_e)) if ahead_e.size else 0.0
+    noise = float(1.4826 * np.median(np.abs(ahead_e - bg))) if ahead_e.size else 1e-9
+    energy = np.where(wvalid, energy, 0.0)
+    arms = arms_mod.half_angle_from_edges(energy[:, reach:], u_offset=0, background=bg, noise=max(noise, 1e-12))
+    half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
+    # speed estimates
+    cond_depth = inv.Uncertain(depth_m, depth_std_m) if depth_m is not None else None
+    cond = inv.Conditions(g_mps2=g_u, depth_m=cond_depth, pixel_scale_rel_std=pixel_rel_std)
+    rng = np.random.default_rng(seed)
+    methods: list[inv.SpeedEstimate] = []
+    depth_est, depth_ci = (depth_m, (depth_m - 1.96 * depth_std_m, depth_m + 1.96 * depth_std_m)) \
+        if depth_m is not None else (None, None)
+    shallow_sign = (depth_m is None and half is not None and half > kelvin.KELVIN_HALF_ANGLE_DEG + max(2 * half_sd, 2.0))
+    if shallow_sign:
+        u_h, h_fit, _ = fit_depth(whitened_spectrum(p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1], m),
+                                  fit.speed_mps, fit.delta_deg, g=g)
+        spec_speed = inv.Uncertain(u_h, max(u_std, 0.01 * u_h))
+    else:
+        spec_speed = inv.Uncertain(fit.speed_mps, u_std)
+    methods.append(inv.speed_from_spectral_fit(spec_speed, cond, seed=rng))
+    if transverse_seen:
+        lam_u = inv.Uncertain(lam_t, max(lam_t_sd, 0.004 * lam_t))
+        if shallow_sign and transverse_seen:
+            est, dep = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
+                lam_u, inv.Uncertain(half, half_sd), cond, seed=rng)
+            methods.append(est)
+            depth_est, depth_ci = dep.depth_m, (dep.ci95_low_m, dep.ci95_high_m)
+        else:
+            methods.append(inv.speed_from_transverse_wavelength(lam_u, cond, seed=rng))
+    if radar_geometry is not None:
+        est = _radar_offset_estimate(scene, chip, back, heading, frame, radar_geometry, cond, rng)
+        if est is not None:
+            methods.append(est)
+        else:
+            cautions.append("radar azimuth offset not measured: no bright hull found near the given position")
+    combined = inv.combine_estimates(methods)
+    spd = methods[0]
+    regime = inv.assess_depth_regime(
+        speed=spd, depth_m=cond_depth,
+        half_angle_deg=inv.Uncertain(half, half_sd) if half is not None else None,
+        transverse_seen=transverse_seen if half is not None else None, g=g)
+    if depth_est is None and regime.depth_m is not None:
+        depth_est, depth_ci = regime.depth_m, regime.depth_ci95_m
+    if half is not None and half < kelvin.KELVIN_HALF_ANGLE_DEG - max(2 * half_sd, 2.0):
+        msg = f"arms at {half:.1f} deg are narrower than Kelvin's 19.47 deg"
+        if hull_length_m:
+            fr = float(hull_froude(combined.speed_mps, hull_length_m, g=g))
+            msg += (f"; hull Froude number {fr:.2f} predicts brightest arms at "
+                    f"{float(apparent_arm_angle(fr)):.1f} deg (Rabaud & Moisy 2013)")
+        else:
+            msg += "; a fast, short hull can explain it (give the hull length to check)"
+        cautions.append(msg)
+    if not combined.consistent:
+        cautions.append(combined.verdict)
+    if depth_m is None and not shallow_sign:
+        cautions.append("water depth not given: deep water assumed (no widening of the wake seen)")
+    cautions.append("speed is through the water; a current adds to the speed over ground")
+    geometry = _geometry(chip, back, half, arms, m)
+    plots = {"whitened_spectrum": None, "profile": prof, "profile_m_per_px": m,
+             "speed_grid": fit.speed_grid, "score_profile": fit.profile}
+    decision = (f"wake found: spectral significance {fit.significance:.1f}, wake-side contrast {p.side_contrast:.1f}")
+    return WakeAnalysis(True, decision, float(fit.significance), snapped, lonlat, heading,
+                        float(np.degrees(np.arctan(d_std / max(1.0, 1.0))) if False else d_std), combined,
+                        tuple(methods), half, half_sd, lam_t if transverse_seen else None,
+                        lam_t_sd if transverse_seen else None, regime, depth_est, depth_ci, g, m,
+                        tuple(cautions), geometry, plots)
+
+
+CAUTION_ESTIMATE = ("estimates from imagery for analysis: local regulations, certified instruments and licensed "
+                    "practice decide any enforcement; verify scene timing and georeferencing independently")
+
+
+def _bootstrap(p: _Pass, g: float, depth: float) -> tuple[list[float], list[float]]:
+    half = BOX_PX // 2
+    behind, ahead = p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1]
+    us, ds = [], []
+    for rv in (slice(0, half), slice(half, BOX_PX)):
+        for ru in (slice(0, half), slice(half, BOX_PX)):
+            sp = whitened_spectrum(behind[rv, ru], ahead[rv, ru], p.chip.m_per_px)
+            f = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=6.0,
+                          speed_range=(0.75 * p.fit.speed_mps, 1.33 * p.fit.speed_mps))
+            if np.isfinite(f.speed_mps):
+                us.append(f.speed_mps)
+                ds.append(f.delta_deg)
+    return us, ds
+
+
+def _radar_offset_estimate(scene, chip, back, heading, frame, geo: RadarGeometry, cond, rng):
+    if chip.hull_rc is None:
+        return None
+    # perpendicular distance of the hull from the track line through the wake apex (the given position)
+    a = np.radians(back)
+    dr, dc = chip.hull_rc[0] - chip.vessel_rc[0], chip.hull_rc[1] - chip.vessel_rc[1]
+    lateral_px = -dc * np.sin(a) - dr * np.cos(a)
+    fdc, fdr = frame.image_direction(geo.flight_bearing_deg)
+    # offset along the flight direction that moves the hull onto the track line
+    proj = -fdc * np.sin(a) - fdr * np.cos(a)
+    if abs(proj) < 0.1:
+        return None
+    offset_m = float(lateral_px / proj * chip.m_per_px)
+    return inv.speed_from_radar_offset(
+        inv.Uncertain(offset_m, 2.0 * chip.m_per_px), inv.Uncertain(geo.slant_range_m, geo.slant_range_std_m),
+        inv.Uncertain(geo.platform_speed_mps, geo.platform_speed_std_mps), incidence_deg=geo.incidence_deg,
+        heading_deg=inv.Uncertain(heading, 1.0), look_bearing_deg=geo.look_bearing_deg, conditions=cond, seed=rng)
+
+
+def _chip_outline(chip: Chip) -> list[tuple[float, float]]:
+    n = chip.data.shape[0]
+    return [chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))]
+
+
+def _geometry(chip: Chip, back: float, half: float | None, arms, m: float) -> dict:
+    n = chip.data.shape[0]
+    length = 0.45 * n
+    r0, c0 = chip.vessel_rc
+
+    def ray(angle_deg: float) -> list[tuple[float, float]]:
+        a = np.radians(angle_deg)
+        return [chip.to_scene(r0, c0), chip.to_scene(r0 - length * np.sin(a), c0 + length * np.cos(a))]
+    out = {"chip": _chip_outline(chip), "track": ray(back)}
+    if half is not None and arms is not None:
+        out["arm_left"] = ray(back + (arms.left_deg if np.isfinite(arms.left_deg) else half))
+        out["arm_right"] = ray(back - (arms.right_deg if np.isfinite(arms.right_deg) else half))
+    return out
