@@ -32,7 +32,7 @@ def command(name: str, help_text: str):
 
 def _load_commands() -> None:
     from . import cli_physics  # noqa: F401  (registers 'speed')
-    for mod in ("cli_scene", "cli_synth"):
+    for mod in ("cli_scene", "cli_synth", "cli_analyze", "cli_report"):
         try:
             __import__(f"{__package__}.{mod}")
         except ModuleNotFoundError as err:  # a layer not yet built

@@ -7,30 +7,39 @@ depth regime).  A scene without a wake says so and gives no speed.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 from scipy import ndimage
 
 from ..errors import ParameterError
 from ..physics import inversion as inv
-from ..physics import kelvin
+from ..physics import havelock, kelvin
 from ..physics.gravity import normal_gravity
 from ..physics.hull import apparent_arm_angle, hull_froude
 from ..scene import geodesy
 from ..scene.raster import Scene
 from . import arms as arms_mod
 from .prepare import Chip, prepare_chip
-from .spectral import (CurveFit, crest_spacing, fit_curve, fit_depth, student_inflation, whitened_spectrum)
+from .spectral import (CurveFit, crest_spacing, fit_curve, fit_depth, refine_speed_depth, student_inflation,
+                       whitened_spectrum)
 from .trackframe import track_frame, wake_side
 
 #: Decision thresholds, calibrated on wake-free scenes (see tests/test_wake_decision.py and DEVELOPERS.md).
 SIGNIFICANCE_MIN = 7.0
-SIDE_CONTRAST_MIN = 3.0
+SIDE_CONTRAST_MIN = 8.0
 
 CHIP_PX = 640
 BOX_PX = 256
 GAP_PX = 12
+DEPTH_GAIN_MIN = 2.5  # z-score gain of the finite-depth curve over the deep one to call a depth effect
+TRANSVERSE_SNR_MIN = 12.0
+#: The spread of speeds refitted on four quarter-size sub-boxes overstates the error of the full box
+#: (each sub-box has half the spectral resolution).  Scale calibrated on synthetic scenes (seeds 0-59 of
+#: tests/wake_cases.py: 95 % of |error| / (scaled sigma) <= 1.96); checked on other seeds in the tests.
+SPECTRAL_SIGMA_SCALE = 0.5
+#: Below this depth Froude number depth changes the pattern too little to matter (Havelock: < 0.3 deg).
+FR_DEPTH_EFFECT = 0.6
 K_HI_FACTOR = 1.8  # wave-energy band for the arms: 0.5 to 1.8 x the transverse wavenumber
 
 
@@ -140,7 +149,7 @@ def _one_pass(scene: Scene, px: tuple[float, float], step: int, g: float, depth:
     for back in candidates:
         tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(u0, GAP_PX + BOX_PX), v_half=BOX_PX / 2)
         sp = whitened_spectrum(tf[:, -BOX_PX:], tf[:, :BOX_PX][:, ::-1], chip.m_per_px)
-        fit = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=10.0, delta_step_deg=1.0)
+        fit = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=20.0, delta_step_deg=1.5)
         cand = _Pass(chip, back, side.contrast, fit, tf, u0)
         if best is None or (np.isfinite(fit.score) and not fit.score <= best.fit.score):
             best = cand
@@ -190,18 +199,26 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     depth_fit = np.inf if depth_m is None else float(depth_m)
 
     # scale selection: coarser when the waves are long for the box, finer when too short
-    step, p = 1, None
-    for _ in range(4):
-        p = _one_pass(scene, vessel_px, step, g, depth_fit, radar)
+    step = 1
+    p = _one_pass(scene, vessel_px, step, g, depth_fit, radar)
+    for _ in range(3):
         lam_px = 2 * np.pi * p.fit.speed_mps ** 2 / g / p.chip.m_per_px if np.isfinite(p.fit.speed_mps) else np.nan
-        if np.isfinite(lam_px) and lam_px > BOX_PX / 5 and max(scene.width, scene.height) / (2 * step) >= CHIP_PX / 2:
-            step *= 2
-            continue
-        break
+        if not (np.isfinite(lam_px) and lam_px > BOX_PX / 5 and p.fit.significance >= SIGNIFICANCE_MIN):
+            break
+        if min(scene.width, scene.height) < 0.8 * CHIP_PX * 2 * step:
+            break  # no room for a coarser chip
+        try:
+            p_coarse = _one_pass(scene, vessel_px, 2 * step, g, depth_fit, radar)
+        except ParameterError:
+            break
+        p, step = p_coarse, 2 * step
     assert p is not None
     chip, fit = p.chip, p.fit
     # snap to the hull when one was found close to the click
     snapped = chip.to_scene(*chip.hull_rc) if chip.hull_rc is not None else vessel_px
+    if scene.info.georeferenced:
+        lon, lat = geodesy.pixel_to_lonlat(scene.georef, snapped[0], snapped[1])
+        lonlat = (float(lon), float(lat))
     back = (p.back_deg + fit.delta_deg) % 360.0
     found = bool(np.isfinite(fit.speed_mps) and fit.significance >= SIGNIFICANCE_MIN
                  and p.side_contrast >= SIDE_CONTRAST_MIN)
@@ -216,29 +233,181 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                f"wake-side contrast {p.side_contrast:.1f} (needs {SIDE_CONTRAST_MIN})")
         return WakeAnalysis(False, why, float(fit.significance), snapped, lonlat, None, None, None, (), None, None,
                             None, None, regime_none, None, None, g, chip.m_per_px, tuple(cautions),
-                            geometry={"chip": _chip_outline(chip)})
-    # bootstrap over four sub-boxes behind (with matching ones ahead)
-    sub_u, sub_d = _bootstrap(p, g, depth_fit)
-    infl = student_inflation(len(sub_u)) if len(sub_u) >= 3 else 2.0
-    u_std = float(np.std(sub_u, ddof=1) / np.sqrt(len(sub_u)) * infl) if len(sub_u) >= 3 else 0.05 * fit.speed_mps
-    u_std = max(u_std, 0.006 * fit.speed_mps)
-    d_std = float(np.std(sub_d, ddof=1) / np.sqrt(len(sub_d)) * infl) if len(sub_d) >= 3 else 2.0
-    d_std = max(d_std, 0.3)
+                            geometry={"chip": _chip_outline(chip)},
+                            plots={"side_contrast": p.side_contrast, "fit_speed": fit.speed_mps})
+    m = chip.m_per_px
+    sp = whitened_spectrum(p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1], m)
+    # transverse crest spacing along the track (a longer one than deep water allows is a depth sign)
+    lam_deep = float(kelvin.transverse_wavelength(fit.speed_mps, depth_fit, g=g))
+    prof = _track_profile(chip, back, lam_deep, m)
+    lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(0.8 * lam_deep, 1.25 * lam_deep))
+    transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
+    long_t = (np.nan, np.nan, 0.0)
+    if depth_m is None:  # a strong crest train longer than deep water allows is a depth sign
+        long_t = crest_spacing(prof, m, band_m=(1.25 * lam_deep, 2.0 * lam_deep))
+    arms = _arms(chip, back, lam_deep, m)
+    half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
+    # depth: given, or tested (Zilman et al. 2004: fit the finite-depth curve; Havelock 1908: wider arms;
+    # longer transverse waves than the short divergent waves imply in deep water)
+    u_fit, h_fit, finite = fit.speed_mps, depth_fit, depth_m is not None
+    depth_gain = np.nan
+    evidence: list[str] = []
+    if depth_m is None:
+        u_h, h_h, s_h, long_gain = fit_depth(sp, fit.speed_mps, fit.delta_deg, g=g)
+        depth_gain = s_h - fit.score
+        if np.isfinite(h_h) and depth_gain >= DEPTH_GAIN_MIN:
+            evidence.append(f"finite-depth curve fits the spectrum better (gain {depth_gain:.1f})")
+        if np.isfinite(long_t[0]) and long_t[2] >= 2 * TRANSVERSE_SNR_MIN and long_t[2] > 2 * snr:
+            evidence.append(f"transverse waves {long_t[0]:.1f} m long, {100 * (long_t[0] / lam_deep - 1):.0f} % "
+                            "longer than deep water allows")
+            if not np.isfinite(h_h):
+                h_h = float(havelock.depth_from_speed_and_transverse_wavelength(fit.speed_mps, long_t[0], g=g))
+        wide = half is not None and half > kelvin.KELVIN_HALF_ANGLE_DEG + max(2.5 * half_sd, 3.0)
+        if wide and depth_gain >= 1.0:
+            evidence.append(f"arms at {half:.1f} deg, wider than Kelvin's 19.47 deg")
+        if evidence and (depth_gain >= 1.0 or len(evidence) > 1):
+            if not np.isfinite(h_h):
+                fr0 = float(havelock.froude_from_half_angle(half).subcritical or 0.9)
+                h_h = fit.speed_mps ** 2 / (g * fr0 ** 2)
+            u_try, h_try, _ = refine_speed_depth(sp, u_h if np.isfinite(u_h) else fit.speed_mps, h_h,
+                                                 fit.delta_deg, g=g)
+            if abs(u_try / fit.speed_mps - 1) > 0.12:
+                evidence.append(f"but the finite-depth fit moves the speed to {u_try:.2f} m/s, far from the "
+                                f"{fit.speed_mps:.2f} m/s of the short waves: depth fit rejected")
+            elif u_try / np.sqrt(g * h_try) >= FR_DEPTH_EFFECT:
+                u_fit, h_fit, finite = u_try, h_try, True
+            else:
+                evidence.append(f"but the fitted depth {h_try:.1f} m gives Fr_h {u_try / np.sqrt(g * h_try):.2f}: "
+                                "no effect on the pattern")
+    if finite and depth_m is None:
+        lam_h = float(kelvin.transverse_wavelength(u_fit, h_fit, g=g))
+        lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(0.85 * lam_h, 1.18 * lam_h)) \
+            if np.isfinite(lam_h) else (np.nan, np.nan, 0.0)
+        transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
+    sub = _bootstrap(p, g, h_fit, u_fit, fitted_depth=finite and depth_m is None)
+    infl = student_inflation(len(sub)) if len(sub) >= 3 else 2.0
+
+    def boot_std(values: list[float], floor: float) -> float:
+        if len(values) < 3:
+            return max(floor, 0.05 * abs(np.mean(values)) if values else floor)
+        return max(float(np.std(values, ddof=1) / np.sqrt(len(values)) * infl), floor)
+    u_std = SPECTRAL_SIGMA_SCALE * boot_std([b[0] for b in sub], 0.006 * u_fit / SPECTRAL_SIGMA_SCALE)
+    d_std = boot_std([b[1] for b in sub], 0.3)
+    h_std = min(boot_std([b[2] for b in sub], 0.05 * h_fit), 0.5 * h_fit) if finite and depth_m is None else 0.0
     dcol, drow = np.cos(np.radians(back + 180)), -np.sin(np.radians(back + 180))
     heading = float(frame.bearing_of(dcol, drow))
-    m = chip.m_per_px
-    # transverse crest spacing along the track
-    lam_pred = kelvin.transverse_wavelength(fit.speed_mps, depth_fit, g=g)
+    # speed estimates with Monte Carlo intervals
+    if depth_m is not None:
+        cond_depth: inv.Uncertain | None = inv.Uncertain(depth_m, depth_std_m)
+    elif finite:
+        cond_depth = inv.Uncertain(h_fit, h_std)
+    else:
+        cond_depth = None
+    cond = inv.Conditions(g_mps2=g_u, depth_m=cond_depth, pixel_scale_rel_std=pixel_rel_std)
+    rng = np.random.default_rng(seed)
+    methods = [inv.speed_from_spectral_fit(inv.Uncertain(u_fit, u_std), cond, seed=rng)]
+    if finite and depth_m is None:
+        methods[0] = replace(methods[0], method="spectral fit (finite-depth curve, depth fitted)")
+    lam_u = inv.Uncertain(lam_t, max(1.25 * lam_t_sd, 0.006 * lam_t)) if transverse_seen else None
+    if lam_u is not None and not (finite and depth_m is None):
+        methods.append(inv.speed_from_transverse_wavelength(lam_u, cond, seed=rng))
+    elif lam_u is not None and half is not None and half > kelvin.KELVIN_HALF_ANGLE_DEG + 2 * half_sd \
+            and half_sd < 4.0:
+        # independent of the spectral fit: Havelock's angle gives Fr_h, the transverse waves give k
+        est, _dep = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
+            lam_u, inv.Uncertain(half, half_sd), inv.Conditions(g_mps2=g_u, pixel_scale_rel_std=pixel_rel_std),
+            seed=rng)
+        methods.append(est)
+    if radar_geometry is not None:
+        est = _radar_offset_estimate(chip, back, heading, frame, radar_geometry, cond, rng)
+        if est is not None:
+            methods.append(est)
+        else:
+            cautions.append("radar azimuth offset not measured: no bright hull found near the given position")
+    combined = inv.combine_estimates(methods)
+    half_u = inv.Uncertain(half, half_sd) if half is not None else None
+    if cond_depth is not None:
+        regime = inv.assess_depth_regime(speed=methods[0], depth_m=cond_depth, g=g)
+    else:
+        by_angle = inv.assess_depth_regime(half_angle_deg=half_u, transverse_seen=transverse_seen, g=g)
+        regime = inv.DepthRegime("deep", None, None, None, None,
+                                 "the wave spectrum fits the deep-water dispersion curve: no depth effect found"
+                                 + (f"; arms measured at {half:.1f} +/- {half_sd:.1f} deg" if half is not None else ""))
+        if by_angle.regime not in ("deep", "unknown") and half is not None:
+            cautions.append(f"the arms ({half:.1f} deg) look wider than Kelvin's but the wave spectrum shows no "
+                            "depth effect; treated as deep water")
+    depth_est = depth_ci = None
+    if cond_depth is not None:
+        depth_est = cond_depth.value
+        depth_ci = (max(cond_depth.value - 1.96 * cond_depth.std, 0.0), cond_depth.value + 1.96 * cond_depth.std)
+    if finite and depth_m is None:
+        fr = u_fit / np.sqrt(g * h_fit)
+        regime = replace(regime, explanation=regime.explanation.replace("the given depth", "the fitted depth")
+                         + f"; predicted half-angle {float(havelock.half_angle(fr)):.1f} deg; evidence: "
+                         + "; ".join(evidence)
+                         + (f", measured {half:.1f} +/- {half_sd:.1f} deg" if half is not None else ""))
+    if half is not None and half < kelvin.KELVIN_HALF_ANGLE_DEG - max(2 * half_sd, 2.0):
+        msg = f"arms at {half:.1f} deg are narrower than Kelvin's 19.47 deg"
+        if hull_length_m:
+            fr_l = float(hull_froude(combined.speed_mps, hull_length_m, g=g))
+            msg += (f"; hull Froude number {fr_l:.2f} predicts brightest arms at "
+                    f"{float(apparent_arm_angle(fr_l)):.1f} deg (Rabaud & Moisy 2013)")
+        else:
+            msg += "; a fast, short hull can explain it (give the hull length to check)"
+        cautions.append(msg)
+    if not combined.consistent:
+        cautions.append(combined.verdict)
+    if cond_depth is None:
+        cautions.append("water depth not given: deep water assumed (the wave spectrum shows no depth effect)")
+    cautions.append("speed is through the water; a current adds to the speed over ground")
+    geometry = _geometry(chip, back, half, arms)
+    plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,
+             "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": fit.delta_deg,
+             "spectrum_band": (sp.k_lo, sp.k_hi), "transverse_wavelength_m": lam_t if transverse_seen else None,
+             "profile_m_per_px": m, "depth_gain": depth_gain, "long_gain": long_gain if depth_m is None else np.nan, "side_contrast": p.side_contrast,
+             "boot_speeds": [b[0] for b in sub], "speed_grid": fit.speed_grid, "score_profile": fit.profile}
+    decision = f"wake found: spectral significance {fit.significance:.1f}, wake-side contrast {p.side_contrast:.1f}"
+    return WakeAnalysis(True, decision, float(fit.significance), snapped, lonlat, heading, d_std, combined,
+                        tuple(methods), half, half_sd, lam_t if transverse_seen else None,
+                        lam_t_sd if transverse_seen else None, regime, depth_est, depth_ci, g, m,
+                        tuple(cautions), geometry, plots)
+
+
+CAUTION_ESTIMATE = ("estimates from imagery for analysis: local regulations, certified instruments and licensed "
+                    "practice decide any enforcement; verify scene timing and georeferencing independently")
+
+
+def _bootstrap(p: _Pass, g: float, depth: float, speed: float, *, fitted_depth: bool) -> list[tuple[float, float, float]]:
+    """Refit on four sub-boxes behind (with the matching ones ahead): (speed, track correction, depth)."""
+    half = BOX_PX // 2
+    behind, ahead = p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1]
+    out = []
+    for rv in (slice(0, half), slice(half, BOX_PX)):
+        for ru in (slice(0, half), slice(half, BOX_PX)):
+            sp = whitened_spectrum(behind[rv, ru], ahead[rv, ru], p.chip.m_per_px)
+            f = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=6.0 + abs(p.fit.delta_deg),
+                          speed_range=(0.75 * speed, 1.33 * speed))
+            if not np.isfinite(f.speed_mps):
+                continue
+            if fitted_depth:
+                u, h, _ = refine_speed_depth(sp, f.speed_mps, depth, f.delta_deg, g=g)
+                out.append((u, f.delta_deg, h))
+            else:
+                out.append((f.speed_mps, f.delta_deg, depth))
+    return out
+
+
+def _track_profile(chip: Chip, back: float, lam_pred: float, m: float) -> np.ndarray:
+    """Mean of a narrow band along the track behind the vessel (for the transverse crest spacing)."""
     tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(GAP_PX, GAP_PX + 2 * BOX_PX), v_half=BOX_PX / 2)
-    half_w = int(max(1, min(lam_pred / m / 6, 6)))
     c = tf.shape[0] // 2
+    half_w = int(max(1, min(lam_pred / m / 6, 6))) if np.isfinite(lam_pred) else 2
     valid_u = np.nonzero(np.abs(tf[c]) > 0)[0]
-    prof = tf[c - half_w:c + half_w + 1, :valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
-    lam_t, lam_t_sd, snr = (np.nan, np.nan, 0.0)
-    if np.isfinite(lam_pred):
-        lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(0.75 * lam_pred, (1.35 if depth_m is not None else 2.2) * lam_pred))
-    transverse_seen = bool(np.isfinite(lam_t) and snr >= 12.0)
-    # arms and half-angle from the outer edge of the wave energy
+    return tf[c - half_w:c + half_w + 1, :valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
+
+
+def _arms(chip: Chip, back: float, lam_pred: float, m: float) -> arms_mod.Arms | None:
+    """Half-angle from the outer edge of the wave energy in a wide track frame."""
     reach = int(0.46 * chip.data.shape[0])
     wide = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=reach)
     wvalid = track_frame(chip.valid.astype(np.float32), chip.vessel_rc, back, u_range=(-reach, reach),
@@ -250,91 +419,10 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     bg = float(np.median(ahead_e)) if ahead_e.size else 0.0
     noise = float(1.4826 * np.median(np.abs(ahead_e - bg))) if ahead_e.size else 1e-9
     energy = np.where(wvalid, energy, 0.0)
-    arms = arms_mod.half_angle_from_edges(energy[:, reach:], u_offset=0, background=bg, noise=max(noise, 1e-12))
-    half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
-    # speed estimates
-    cond_depth = inv.Uncertain(depth_m, depth_std_m) if depth_m is not None else None
-    cond = inv.Conditions(g_mps2=g_u, depth_m=cond_depth, pixel_scale_rel_std=pixel_rel_std)
-    rng = np.random.default_rng(seed)
-    methods: list[inv.SpeedEstimate] = []
-    depth_est, depth_ci = (depth_m, (depth_m - 1.96 * depth_std_m, depth_m + 1.96 * depth_std_m)) \
-        if depth_m is not None else (None, None)
-    shallow_sign = (depth_m is None and half is not None and half > kelvin.KELVIN_HALF_ANGLE_DEG + max(2 * half_sd, 2.0))
-    if shallow_sign:
-        u_h, h_fit, _ = fit_depth(whitened_spectrum(p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1], m),
-                                  fit.speed_mps, fit.delta_deg, g=g)
-        spec_speed = inv.Uncertain(u_h, max(u_std, 0.01 * u_h))
-    else:
-        spec_speed = inv.Uncertain(fit.speed_mps, u_std)
-    methods.append(inv.speed_from_spectral_fit(spec_speed, cond, seed=rng))
-    if transverse_seen:
-        lam_u = inv.Uncertain(lam_t, max(lam_t_sd, 0.004 * lam_t))
-        if shallow_sign and transverse_seen:
-            est, dep = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
-                lam_u, inv.Uncertain(half, half_sd), cond, seed=rng)
-            methods.append(est)
-            depth_est, depth_ci = dep.depth_m, (dep.ci95_low_m, dep.ci95_high_m)
-        else:
-            methods.append(inv.speed_from_transverse_wavelength(lam_u, cond, seed=rng))
-    if radar_geometry is not None:
-        est = _radar_offset_estimate(scene, chip, back, heading, frame, radar_geometry, cond, rng)
-        if est is not None:
-            methods.append(est)
-        else:
-            cautions.append("radar azimuth offset not measured: no bright hull found near the given position")
-    combined = inv.combine_estimates(methods)
-    spd = methods[0]
-    regime = inv.assess_depth_regime(
-        speed=spd, depth_m=cond_depth,
-        half_angle_deg=inv.Uncertain(half, half_sd) if half is not None else None,
-        transverse_seen=transverse_seen if half is not None else None, g=g)
-    if depth_est is None and regime.depth_m is not None:
-        depth_est, depth_ci = regime.depth_m, regime.depth_ci95_m
-    if half is not None and half < kelvin.KELVIN_HALF_ANGLE_DEG - max(2 * half_sd, 2.0):
-        msg = f"arms at {half:.1f} deg are narrower than Kelvin's 19.47 deg"
-        if hull_length_m:
-            fr = float(hull_froude(combined.speed_mps, hull_length_m, g=g))
-            msg += (f"; hull Froude number {fr:.2f} predicts brightest arms at "
-                    f"{float(apparent_arm_angle(fr)):.1f} deg (Rabaud & Moisy 2013)")
-        else:
-            msg += "; a fast, short hull can explain it (give the hull length to check)"
-        cautions.append(msg)
-    if not combined.consistent:
-        cautions.append(combined.verdict)
-    if depth_m is None and not shallow_sign:
-        cautions.append("water depth not given: deep water assumed (no widening of the wake seen)")
-    cautions.append("speed is through the water; a current adds to the speed over ground")
-    geometry = _geometry(chip, back, half, arms, m)
-    plots = {"whitened_spectrum": None, "profile": prof, "profile_m_per_px": m,
-             "speed_grid": fit.speed_grid, "score_profile": fit.profile}
-    decision = (f"wake found: spectral significance {fit.significance:.1f}, wake-side contrast {p.side_contrast:.1f}")
-    return WakeAnalysis(True, decision, float(fit.significance), snapped, lonlat, heading,
-                        float(np.degrees(np.arctan(d_std / max(1.0, 1.0))) if False else d_std), combined,
-                        tuple(methods), half, half_sd, lam_t if transverse_seen else None,
-                        lam_t_sd if transverse_seen else None, regime, depth_est, depth_ci, g, m,
-                        tuple(cautions), geometry, plots)
+    return arms_mod.half_angle_from_edges(energy[:, reach:], u_offset=0, background=bg, noise=max(noise, 1e-12))
 
 
-CAUTION_ESTIMATE = ("estimates from imagery for analysis: local regulations, certified instruments and licensed "
-                    "practice decide any enforcement; verify scene timing and georeferencing independently")
-
-
-def _bootstrap(p: _Pass, g: float, depth: float) -> tuple[list[float], list[float]]:
-    half = BOX_PX // 2
-    behind, ahead = p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1]
-    us, ds = [], []
-    for rv in (slice(0, half), slice(half, BOX_PX)):
-        for ru in (slice(0, half), slice(half, BOX_PX)):
-            sp = whitened_spectrum(behind[rv, ru], ahead[rv, ru], p.chip.m_per_px)
-            f = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=6.0,
-                          speed_range=(0.75 * p.fit.speed_mps, 1.33 * p.fit.speed_mps))
-            if np.isfinite(f.speed_mps):
-                us.append(f.speed_mps)
-                ds.append(f.delta_deg)
-    return us, ds
-
-
-def _radar_offset_estimate(scene, chip, back, heading, frame, geo: RadarGeometry, cond, rng):
+def _radar_offset_estimate(chip, back, heading, frame, geo: RadarGeometry, cond, rng):
     if chip.hull_rc is None:
         return None
     # perpendicular distance of the hull from the track line through the wake apex (the given position)
@@ -358,7 +446,7 @@ def _chip_outline(chip: Chip) -> list[tuple[float, float]]:
     return [chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))]
 
 
-def _geometry(chip: Chip, back: float, half: float | None, arms, m: float) -> dict:
+def _geometry(chip: Chip, back: float, half: float | None, arms) -> dict:
     n = chip.data.shape[0]
     length = 0.45 * n
     r0, c0 = chip.vessel_rc

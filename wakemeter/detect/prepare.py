@@ -53,14 +53,23 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
         raise ParameterError(f"the vessel position ({col:.1f}, {row:.1f}) lies outside the scene "
                              f"({scene.width} x {scene.height} pixels)")
     frame = scene.local_frame(col, row)
-    half = size_px * step / 2
-    c0, r0 = col - half, row - half
-    # read the in-scene part, then place it in a full-size array (outside = invalid)
-    wc0, wr0 = int(np.floor(max(c0, 0))), int(np.floor(max(r0, 0)))
-    wc1, wr1 = int(np.ceil(min(c0 + size_px * step, scene.width))), int(np.ceil(min(r0 + size_px * step, scene.height)))
-    oc, orow = int(round((wc0 - c0) / step)), int(round((wr0 - r0) / step))
-    ow, oh = max(1, round((wc1 - wc0) / step)), max(1, round((wr1 - wr0) / step))
-    ow, oh = min(ow, size_px - oc), min(oh, size_px - orow)
+    # integer-aligned chip: starts on a scene pixel boundary, the vessel sits near its centre
+    c0 = int(np.floor(col)) - size_px * step // 2
+    r0 = int(np.floor(row)) - size_px * step // 2
+
+    def span(start: int, limit: int) -> tuple[int, int, int]:
+        """First and last scene pixel read along one axis and the chip offset (in chip pixels)."""
+        lead = max(0, -start)
+        lead = -(-lead // step) * step  # whole chip pixels
+        w0 = start + lead
+        w1 = min(start + size_px * step, limit)
+        w1 = w0 + max(0, (w1 - w0) // step) * step
+        return w0, w1, lead // step
+    wc0, wc1, oc = span(c0, scene.width)
+    wr0, wr1, orow = span(r0, scene.height)
+    ow, oh = (wc1 - wc0) // step, (wr1 - wr0) // step
+    if ow < 8 or oh < 8:
+        raise ParameterError("the vessel is too close to the edge of the scene to analyse its surroundings")
     bands = (1, 2, 3) if scene.info.count >= 3 else (1,)
     data, valid = scene.read(window=(wc0, wr0, wc1 - wc0, wr1 - wr0), out_shape=(oh, ow), bands=bands)
     if len(bands) == 3:
@@ -77,15 +86,18 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
     fvalid = np.zeros((size_px, size_px), bool)
     full[orow:orow + oh, oc:oc + ow] = img
     fvalid[orow:orow + oh, oc:oc + ow] = ok
-    if fvalid.sum() < 0.25 * size_px * size_px:
-        raise ParameterError("less than a quarter of the area around the vessel has valid pixels "
-                             "(edge of the scene, nodata or land)")
+    if fvalid.sum() < 0.3 * size_px * size_px:
+        raise ParameterError("less than 30 % of the area around the vessel has valid pixels: it is too close "
+                             "to the edge of the scene, or the area is nodata or land")
     # saturation (land, cloud): very bright connected areas
     vals = full[fvalid]
     med, sig = float(np.median(vals)), _mad_sigma(vals)
     if not radar and np.issubdtype(np.dtype(scene.info.dtype), np.integer):
         top = np.iinfo(np.dtype(scene.info.dtype)).max
-        fvalid &= full < 0.995 * top if vals.max() >= 0.995 * top else fvalid
+        if vals.max() >= 0.995 * top:
+            # saturated land or cloud: sizeable connected areas at the top of the range, not specks
+            sat = ndimage.binary_opening(fvalid & (full >= 0.995 * top), iterations=2)
+            fvalid &= ~ndimage.binary_dilation(sat, iterations=2)
     m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up)) * step
     centre = (row - r0) / step, (col - c0) / step
     # hull: brightest smoothed blob within the snap radius
@@ -93,14 +105,16 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
     rr, cc = np.mgrid[:size_px, :size_px]
     near = (rr - centre[0]) ** 2 + (cc - centre[1]) ** 2 <= max(snap_radius_m / m_px, 3.0) ** 2
     hull_rc = None
-    cand = np.where(near & fvalid, sm, -np.inf)
-    k = int(np.argmax(cand))
-    if np.isfinite(cand.flat[k]) and cand.flat[k] > 6 * sig:
-        hull_rc = (float(k // size_px), float(k % size_px))
+    # bright local maxima near the click; the nearest one is the hull (the brightest may be foam behind it)
+    peaks = (sm == ndimage.maximum_filter(sm, size=5)) & near & fvalid & (sm > 6 * sig)
+    if peaks.any():
+        pr, pc = np.nonzero(peaks)
+        k = int(np.argmin((pr - centre[0]) ** 2 + (pc - centre[1]) ** 2))
+        hull_rc = (float(pr[k]), float(pc[k]))
         blob = ndimage.binary_dilation(sm > 4 * sig, iterations=2)
         lab, _ = ndimage.label(blob)
-        if lab[int(hull_rc[0]), int(hull_rc[1])] > 0:
-            hull = lab == lab[int(hull_rc[0]), int(hull_rc[1])]
+        if lab[pr[k], pc[k]] > 0:
+            hull = lab == lab[pr[k], pc[k]]
             if hull.sum() * m_px ** 2 < (4 * hull_mask_m) ** 2:  # a hull, not a whole bright region
                 fvalid &= ~ndimage.binary_dilation(hull, iterations=2)
     # background removal and normalisation

@@ -29,6 +29,10 @@ from scipy import ndimage, optimize, stats
 
 from ..physics.dispersion import steady_wavenumber
 
+#: The reference (ahead) spectrum is an upper envelope (3x3 maximum, then smoothing), so a sharp swell
+#: peak present on both sides cancels instead of leaving an excess where plain smoothing would lower it.
+SMOOTH_BINS = 1.0
+Z_CLIP = 4.0
 _THETA = np.radians(np.arange(-84.0, 84.5, 1.0))
 
 
@@ -56,7 +60,7 @@ class SpectrumPair:
 
 def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) -> SpectrumPair:
     pb = power_spectrum(behind)
-    pa = ndimage.gaussian_filter(power_spectrum(ahead), 1.5)
+    pa = ndimage.gaussian_filter(ndimage.maximum_filter(power_spectrum(ahead), size=3), SMOOTH_BINS)
     eps = 1e-6 * float(np.mean(pa)) + 1e-30
     white = np.log((pb + eps) / (pa + eps))
     n_v, n_u = behind.shape
@@ -92,7 +96,10 @@ def curve_score(sp: SpectrumPair, speed: float, delta_deg: float, depth_m: float
     return float(_scores(sp, np.array([speed]), delta_deg, depth_m, g)[0])
 
 
-def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: float, g: float) -> np.ndarray:
+def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: float, g: float,
+            k_cap_factor: float | None = None) -> np.ndarray:
+    """Scores of the curves for several speeds; ``k_cap_factor`` keeps only k <= factor * g / U^2
+    (the long waves, where depth acts)."""
     th = _THETA[None, :]
     u = speeds[:, None]
     if np.isinf(depth_m):
@@ -104,10 +111,14 @@ def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: flo
     a = th + np.radians(delta_deg)
     ku, kv = k * np.cos(a), k * np.sin(a)
     ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
+    if k_cap_factor is not None:
+        ok &= k <= k_cap_factor * g / (u * u)
     n_v, n_u = sp.white.shape
     cu = n_u // 2 + np.where(ok, ku, 0) / sp.dk_u
     cv = n_v // 2 + np.where(ok, kv, 0) / sp.dk_v
     vals = ndimage.map_coordinates(sp.white, [cv.ravel(), cu.ravel()], order=1, mode="nearest").reshape(k.shape)
+    # winsorise: a wake raises the whole curve, a compact blob (swell, a slick) only a few points
+    vals = np.clip(vals, -Z_CLIP, Z_CLIP)
     cnt = ok.sum(axis=1)
     # mean standardised power along the curve, scaled to a z-like figure (about 3 correlated
     # samples per independent spectral estimate under the Hann window)
@@ -156,17 +167,27 @@ def fit_curve(sp: SpectrumPair, *, g: float, depth_m: float = np.inf, delta_max_
                                 x0, x0 + [0.01, 0], x0 + [0, 0.4]]})
     best = res.x if res.fun <= -np.nanmax(grid) else x0
     score = -neg(best)
-    return CurveFit(float(np.exp(best[0])), float(best[1]), depth_m, score, score, speeds,
-                    np.nanmax(grid, axis=0))
+    with np.errstate(all="ignore"):
+        prof = np.max(np.where(np.isfinite(grid), grid, -np.inf), axis=0)
+    prof = np.where(np.isfinite(prof), prof, np.nan)
+    return CurveFit(float(np.exp(best[0])), float(best[1]), depth_m, score, score, speeds, prof)
 
 
-def fit_depth(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float) -> tuple[float, float, float]:
-    """Best (speed, depth, score) on a speed x depth grid at a fixed track correction."""
-    depths = np.concatenate([np.geomspace(1.0, 200.0, 40), [np.inf]])
+def fit_depth(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float) -> tuple[float, float, float, float]:
+    """Best (speed, depth, score) on a speed x depth grid at a fixed track correction, and the
+    gain of that depth over deep water on the long-wave part of the curve (k <= 3 g / U^2)."""
+    # subcritical only (Fr_h < 0.98): the transverse part of the pattern is what reveals depth
+    h_min = max((0.7 * speed) ** 2 / (g * 0.98 ** 2), 0.5)
+    depths = np.concatenate([np.geomspace(h_min, max(200.0, 4 * h_min), 40), [np.inf]])
     speeds = np.geomspace(speed * 0.7, speed * 1.5, 41)
     grid = np.stack([_scores(sp, speeds, delta_deg, h, g) for h in depths])
+    fr = speeds[None, :] / np.sqrt(g * depths[:, None])
+    grid = np.where(fr < 0.98, grid, np.nan)
     i, j = np.unravel_index(np.nanargmax(grid), grid.shape)
-    return float(speeds[j]), float(depths[i]), float(grid[i, j])
+    lw_h = _scores(sp, speeds[j:j + 1], delta_deg, depths[i], g, k_cap_factor=3.0)[0]
+    lw_d = _scores(sp, np.array([speed]), delta_deg, np.inf, g, k_cap_factor=3.0)[0]
+    gain = float(lw_h - lw_d) if np.isfinite(lw_h) and np.isfinite(lw_d) else 0.0
+    return float(speeds[j]), float(depths[i]), float(grid[i, j]), gain
 
 
 def crest_spacing(profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, float] | None = None
@@ -212,3 +233,19 @@ def crest_spacing(profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, 
 def student_inflation(n: int) -> float:
     """Ratio t_{0.975, n-1} / z_{0.975}: widens a standard deviation from n samples to a fair 95 % interval."""
     return float(stats.t.ppf(0.975, max(n - 1, 1)) / stats.norm.ppf(0.975))
+
+
+def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg: float, *, g: float
+                       ) -> tuple[float, float, float]:
+    """Nelder-Mead refinement of (speed, depth) on the finite-depth curve at a fixed track correction."""
+    def neg(x: np.ndarray) -> float:
+        u, h = float(np.exp(x[0])), float(np.exp(x[1]))
+        if not 0.2 <= h <= 500 or u * u / (g * h) >= 0.98 ** 2:
+            return 1e9
+        s = curve_score(sp, u, delta_deg, h, g)
+        return -s if np.isfinite(s) else 1e9
+    x0 = np.array([np.log(speed), np.log(depth_m)])
+    res = optimize.minimize(neg, x0, method="Nelder-Mead", options={
+        "xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.05]]})
+    x = res.x if res.fun <= neg(x0) else x0
+    return float(np.exp(x[0])), float(np.exp(x[1])), -neg(x)

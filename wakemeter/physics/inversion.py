@@ -363,7 +363,8 @@ def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertai
         if depth_m.value <= 0:
             raise ParameterError(f"depth_m must be > 0, got {depth_m.value!r}")
         u = rng.normal(speed.speed_mps, speed.std_mps, draws)
-        h = np.abs(_draw(depth_m, draws, rng))
+        # depth is positive and its uncertainty often large: log-normal with the given median
+        h = depth_m.value * np.exp(rng.normal(0.0, depth_m.std / depth_m.value, draws))
         fr = u / np.sqrt(g * h)
         lo, med, hi = np.percentile(fr, [2.5, 50, 97.5])
         regime = _band(float(med))

@@ -105,7 +105,7 @@ def ambient_slopes(shape: tuple[int, int], *, dx_m: float, dy_m: float, sea: Amb
     k = np.hypot(kx, ky)
     kp = 2 * np.pi / sea.peak_wavelength_m
     ang = np.arctan2(ky, kx) - np.arctan2(direction_xy[1], direction_xy[0])
-    spread = np.where(np.cos(ang) > 0, np.cos(ang) ** (2 * sea.spreading_s), 0.0)
+    spread = np.clip(np.cos(ang), 0.0, None) ** (2 * sea.spreading_s)
     amp = np.exp(-0.5 * ((k - kp) / (0.25 * kp)) ** 2) * spread
     phase = np.exp(2j * np.pi * rng.random((ny, nx)))
     z = amp * phase

@@ -1,0 +1,134 @@
+"""Wake analysis on synthetic scenes of known truth (wakemeter's own renderer, seeds different
+from the demo scenes and from the calibration seeds 0-59 used to set the uncertainty scale).
+
+Goals from the issue: speed within 3 %, heading within 2 deg, 95 % intervals covering the truth
+about 95 % of the time, the right depth regime, no wake on wake-free scenes.
+"""
+
+import json
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from wake_cases import make_case, write_case  # noqa: E402
+
+from wakemeter.cli import main  # noqa: E402
+from wakemeter.detect.analysis import RadarGeometry, analyze  # noqa: E402
+from wakemeter.errors import ParameterError  # noqa: E402
+from wakemeter.scene.raster import open_scene  # noqa: E402
+
+ROOT = Path(__file__).resolve().parents[1]
+SEEDS = range(300, 316)
+
+
+@pytest.fixture(scope="module")
+def sweep(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("cases")
+    rows = []
+    for seed in SEEDS:
+        case = make_case(seed)
+        tif, sidecar = write_case(case, folder)
+        truth = json.loads(sidecar.read_text())["vessels"][0]
+        with open_scene(tif) as sc:
+            a = analyze(sc, vessel_px=(truth["pixel_col"] + 1.5, truth["pixel_row"] - 1.0))
+        rows.append((case, a))
+    return rows
+
+
+def test_speed_heading_and_intervals_on_random_scenes(sweep):
+    # Synthetic truth.  Speeds 2-15 m/s, pixels 0.5-10 m, optical and radar, with and without swell.
+    found = [(c, a) for c, a in sweep if a.wake_found]
+    assert len(found) >= 12  # weak radar wakes may stay undetected: "no wake" is allowed, a wrong speed is not
+    for case, a in found:
+        assert a.speed.speed_mps == pytest.approx(case.speed_mps, rel=0.03), case.seed
+        dh = (a.heading_deg - case.heading_deg + 180) % 360 - 180
+        assert abs(dh) <= 2.0, (case.seed, dh)
+        assert a.regime.regime == "deep"
+    covered = sum(a.speed.ci95_low_mps <= c.speed_mps <= a.speed.ci95_high_mps for c, a in found)
+    # binomial: with p = 0.95 and n ~ 13-16, fewer than n - 3 covered has probability < 1 %
+    assert covered >= len(found) - 3
+
+
+def test_json_fields(sweep):
+    case, a = next((c, a) for c, a in sweep if a.wake_found)
+    j = a.to_json()
+    for key in ("wake_found", "speed_mps", "speed_knots", "speed_ci95_mps", "heading_deg", "half_angle_deg",
+                "transverse_wavelength_m", "regime", "depth_m", "depth_ci95_m", "methods", "vessel_px", "cautions"):
+        assert key in j
+    assert j["regime"] in ("deep", "finite-depth", "near-critical", "supercritical", "unknown")
+    assert 0 <= j["heading_deg"] < 360
+    assert j["speed_knots"] == pytest.approx(j["speed_mps"] / 0.5144444, rel=1e-5)
+    assert all({"name", "speed_mps", "speed_ci95_mps"} <= set(m) for m in j["methods"])
+    assert any("licensed" in c for c in j["cautions"])
+    json.dumps(j)  # plain data
+
+
+def test_shallow_demo_scene_regime_and_depth():
+    # Synthetic truth (sample_scenes/tallow_shoal_shallow.truth.json): 6.379 m/s, 318 deg, depth 5 m,
+    # Fr_h = 0.91, half-angle 36.6 deg (Havelock 1908).
+    with open_scene(ROOT / "sample_scenes" / "tallow_shoal_shallow.tif") as sc:
+        a = analyze(sc, vessel_lonlat=(-34.95, 36.03))
+    assert a.wake_found
+    assert a.speed.speed_mps == pytest.approx(6.379, rel=0.03)
+    assert a.regime.regime in ("finite depth", "near-critical")
+    assert a.depth_m == pytest.approx(5.0, rel=0.15)
+    assert a.depth_ci95_m[0] <= 5.0 <= a.depth_ci95_m[1]
+    assert a.half_angle_deg == pytest.approx(36.6, abs=3.0)
+
+
+def test_given_depth_is_used():
+    # Synthetic truth as above; with the depth given the speed must still be right and the regime
+    # follows Fr_h = U / sqrt(g h) = 0.91.
+    with open_scene(ROOT / "sample_scenes" / "tallow_shoal_shallow.tif") as sc:
+        a = analyze(sc, vessel_lonlat=(-34.95, 36.03), depth_m=5.0, depth_std_m=0.2)
+    assert a.speed.speed_mps == pytest.approx(6.379, rel=0.03)
+    assert a.regime.regime == "near-critical" and a.regime.froude_depth == pytest.approx(0.91, abs=0.04)
+
+
+def test_radar_offset_method_on_demo():
+    # Synthetic truth (outer_roads_radar.truth.json): 9.003 m/s, hull displaced 143.8 m in azimuth
+    # (Raney 1971: dx = -(R/V) v_r).  The user clicks the displaced hull; the wake apex is the truth pixel.
+    truth = json.loads((ROOT / "sample_scenes" / "outer_roads_radar.truth.json").read_text())["vessels"][0]
+    with open_scene(ROOT / "sample_scenes" / "outer_roads_radar.tif") as sc:
+        a = analyze(sc, vessel_px=(truth["pixel_col"], truth["pixel_row"]),
+                    radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0))
+    assert a.wake_found and a.speed.speed_mps == pytest.approx(9.003, rel=0.03)
+    names = [m.method for m in a.methods]
+    assert "spectral fit" in names
+
+
+def test_no_wake_on_calm_demo_scene():
+    with open_scene(ROOT / "sample_scenes" / "calm_no_wake.tif") as sc:
+        for pos in ((384, 384), (150, 600)):
+            a = analyze(sc, vessel_px=pos)
+            assert not a.wake_found and a.speed is None and a.methods == ()
+            assert a.to_json()["speed_mps"] is None
+
+
+def test_analyze_command(capsys):
+    scene = str(ROOT / "sample_scenes" / "harbour_approach_optical.tif")
+    assert main(["analyze", scene, "--vessel=-35.0,36.0", "--json"]) == 0
+    j = json.loads(capsys.readouterr().out)
+    assert j["wake_found"] and j["speed_mps"] == pytest.approx(7.202, rel=0.03)
+    assert j["heading_deg"] == pytest.approx(62.0, abs=2.0)
+    assert main(["analyze", scene, "--vessel=-35.0,36.0"]) == 0
+    out = capsys.readouterr().out
+    assert "kn" in out and "95 % interval" in out and "licensed" in out
+    assert main(["analyze", scene]) == 2
+    assert "--vessel" in capsys.readouterr().err
+    assert main(["analyze", scene, "--vessel", "12"]) == 2
+    assert main(["analyze", scene, "--vessel=-35.0,36.0", "--depth", "-3"]) == 2
+    assert "depth_m" in capsys.readouterr().err
+
+
+def test_bad_positions():
+    with open_scene(ROOT / "sample_scenes" / "harbour_approach_optical.tif") as sc:
+        with pytest.raises(ParameterError, match="outside the scene"):
+            analyze(sc, vessel_px=(5000.0, 10.0))
+        with pytest.raises(ParameterError, match="exactly one"):
+            analyze(sc)
+        with pytest.raises(ParameterError, match="edge"):
+            analyze(sc, vessel_px=(0.5, 0.5))

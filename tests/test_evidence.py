@@ -1,0 +1,125 @@
+"""Evidence export: PNG, PDF and JSON from the demo scene (synthetic truth), checked with general-purpose
+libraries (pypdf for the PDF text, jsonschema for the record, hashlib for the scene digest)."""
+
+import hashlib
+import json
+import os
+from pathlib import Path
+
+import cv2
+import numpy as np
+import pytest
+from pypdf import PdfReader
+
+from wakemeter.cli import main
+from wakemeter.detect.analysis import analyze
+from wakemeter.errors import SceneWriteError
+from wakemeter.evidence.annotate import COLOURS
+from wakemeter.evidence.export import export_evidence
+from wakemeter.evidence.record import CAUTION_TEXT, validate
+from wakemeter.scene.raster import open_scene
+
+ROOT = Path(__file__).resolve().parents[1]
+SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
+
+
+@pytest.fixture(scope="module")
+def exported(tmp_path_factory):
+    out = tmp_path_factory.mktemp("evidence")
+    with open_scene(SCENE) as sc:
+        a = analyze(sc, vessel_lonlat=(-35.0, 36.0))
+        files = export_evidence(sc, a, out, analyst="R. Fenwick", parameters={"vessel": "-35.0,36.0"},
+                                exported_at="2026-06-20T09:00:00+00:00")
+    return a, files, out
+
+
+def test_three_files_and_json_schema(exported):
+    a, files, _ = exported
+    record = json.loads(files.data.read_text())
+    validate(record)
+    assert record["provenance"]["scene_sha256"] == hashlib.sha256(SCENE.read_bytes()).hexdigest()
+    assert record["provenance"]["analyst"] == "R. Fenwick"
+    assert record["result"]["speed_mps"] == pytest.approx(a.speed.speed_mps)
+    assert record["caution"] == CAUTION_TEXT
+    assert record["files"]["image"] == files.image.name
+
+
+def test_pdf_pages_and_text(exported):
+    _, files, _ = exported
+    reader = PdfReader(str(files.report))
+    assert len(reader.pages) >= 2
+    text = " ".join(p.extract_text() for p in reader.pages)
+    flat = " ".join(text.split())
+    for needle in ("Wake speed estimate", "95 % interval", "Heading", "Methods", "Provenance", "SHA-256",
+                   "R. Fenwick", "licensed professionals", "not certified"):
+        assert needle in flat, needle
+
+
+def test_png_size_and_arm_colour_where_the_arms_are(exported):
+    a, files, _ = exported
+    img = cv2.imread(str(files.image))[..., ::-1]
+    c0 = min(p[0] for p in a.geometry["chip"])
+    r0 = min(p[1] for p in a.geometry["chip"])
+    c0, r0 = max(int(np.floor(c0)), 0), max(int(np.floor(r0)), 0)
+    assert img.shape[2] == 3 and img.shape[0] > 300 and img.shape[1] > 300
+    arm = np.array(COLOURS["arm"])
+    (x0, y0), (x1, y1) = a.geometry["arm_left"]
+    hits = 0
+    for t in np.linspace(0.2, 0.9, 8):  # along the drawn arm
+        x, y = int(x0 + t * (x1 - x0)) - c0, int(y0 + t * (y1 - y0)) - r0
+        if 0 <= y < img.shape[0] and 0 <= x < img.shape[1]:
+            patch = img[max(y - 2, 0):y + 3, max(x - 2, 0):x + 3].reshape(-1, 3).astype(int)
+            hits += bool(np.any(np.abs(patch - arm).sum(axis=1) < 60))
+    assert hits >= 5
+    far = img[-40:, img.shape[1] // 2:].reshape(-1, 3).astype(int)  # a corner away from the arms
+    assert not np.any(np.abs(far - arm).sum(axis=1) < 30)
+
+
+def test_second_export_is_identical_and_overwrite_needs_force(exported, tmp_path):
+    a, files, out = exported
+    with open_scene(SCENE) as sc:
+        with pytest.raises(SceneWriteError, match="already exist"):
+            export_evidence(sc, a, out)
+        again = export_evidence(sc, analyze(sc, vessel_lonlat=(-35.0, 36.0)), tmp_path, analyst="R. Fenwick",
+                                parameters={"vessel": "-35.0,36.0"}, exported_at="2026-06-20T09:00:00+00:00")
+    assert again.image.read_bytes() == files.image.read_bytes()
+    assert json.loads(again.data.read_text())["result"] == json.loads(files.data.read_text())["result"]
+
+
+def test_read_only_folder_fails_cleanly(tmp_path, monkeypatch):
+    ro = tmp_path / "ro"
+    ro.mkdir()
+    with open_scene(SCENE) as sc:
+        a = analyze(sc, vessel_lonlat=(-35.0, 36.0))
+        real_access = os.access
+        monkeypatch.setattr(os, "access", lambda p, m: False if Path(p) == ro else real_access(p, m))
+        with pytest.raises(SceneWriteError, match="not writable"):
+            export_evidence(sc, a, ro)
+        monkeypatch.undo()
+        # a failure half-way (the PDF writer breaks) leaves nothing behind
+        import wakemeter.evidence.export as ex
+        monkeypatch.setattr(ex, "write_pdf", lambda *a_, **k: (_ for _ in ()).throw(OSError(28, "No space left")))
+        with pytest.raises(SceneWriteError, match="No space"):
+            export_evidence(sc, a, ro)
+    assert list(ro.iterdir()) == []
+
+
+def test_no_wake_report_says_so(tmp_path):
+    with open_scene(ROOT / "sample_scenes" / "calm_no_wake.tif") as sc:
+        a = analyze(sc, vessel_px=(384, 384))
+        files = export_evidence(sc, a, tmp_path)
+    record = json.loads(files.data.read_text())
+    validate(record)
+    assert record["result"]["wake_found"] is False and record["result"]["speed_mps"] is None
+    text = " ".join(p.extract_text() for p in PdfReader(str(files.report)).pages)
+    assert "No wake found" in " ".join(text.split())
+
+
+def test_report_command(tmp_path, capsys):
+    args = ["report", str(SCENE), "--vessel=-35.0,36.0", "--out", str(tmp_path), "--analyst", "R. Fenwick"]
+    assert main(args) == 0
+    assert len(list(tmp_path.iterdir())) == 3
+    assert main(args) == 2  # exists: needs --force
+    assert "already exist" in capsys.readouterr().err
+    assert main(args + ["--force"]) == 0
+    assert main(["report", str(SCENE), "--vessel=-35.0,36.0", "--out", str(tmp_path / "missing")]) == 2

@@ -1,0 +1,179 @@
+"""The annotated evidence image: the vessel's surroundings with what was found, drawn in pixels.
+
+Pure numpy + OpenCV (Hershey fonts, so the same analysis always gives the same pixels).
+Everything drawn comes from the analysis and the scene's geodesy: a scale bar in
+ground metres, a true-north arrow (grid convergence and image rotation included),
+lat/lon of the corners, and a result box with the speed, its 95 % interval,
+heading and method.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import cv2
+import numpy as np
+
+from ..detect.analysis import WakeAnalysis
+from ..physics.units import KNOT_MPS
+from ..scene import display, geodesy
+from ..scene.raster import Scene
+
+#: Our colours (RGB).  The arms colour is used for nothing else, so tests can find it.
+COLOURS = {
+    "track": (255, 200, 0),
+    "arm": (255, 60, 170),
+    "vessel": (60, 230, 90),
+    "chip": (120, 170, 255),
+    "text": (255, 255, 255),
+    "box": (20, 24, 32),
+    "north": (255, 255, 255),
+}
+FONT = cv2.FONT_HERSHEY_SIMPLEX
+
+
+@dataclass(frozen=True)
+class Crop:
+    """Where the evidence image lies in the scene (full-resolution pixels)."""
+
+    col0: int
+    row0: int
+    width: int
+    height: int
+
+
+def crop_for(scene: Scene, analysis: WakeAnalysis, *, max_side: int = 2400) -> tuple[Crop, int]:
+    """The chip area around the vessel, clipped to the scene, and the decimation to keep it <= max_side."""
+    pts = np.array(analysis.geometry.get("chip") or [analysis.vessel_px])
+    c0, r0 = np.floor(pts.min(axis=0)).astype(int)
+    c1, r1 = np.ceil(pts.max(axis=0)).astype(int)
+    c0, r0 = max(c0, 0), max(r0, 0)
+    c1, r1 = min(c1, scene.width), min(r1, scene.height)
+    step = max(1, int(np.ceil(max(c1 - c0, r1 - r0) / max_side)))
+    return Crop(int(c0), int(r0), int(c1 - c0), int(r1 - r0)), step
+
+
+def _nice_length(target_m: float) -> float:
+    e = 10 ** np.floor(np.log10(target_m))
+    for f in (5, 2, 1):
+        if f * e <= target_m:
+            return float(f * e)
+    return float(e)
+
+
+def _text(img: np.ndarray, txt: str, org: tuple[int, int], scale: float, colour=COLOURS["text"], thick: int = 1):
+    """Text with a dark outline (the same glyphs shifted, since OpenCV spaces thicker text wider)."""
+    for dx, dy in ((-1, -1), (-1, 1), (1, -1), (1, 1), (0, 2), (2, 0), (0, -2), (-2, 0)):
+        cv2.putText(img, txt, (org[0] + dx, org[1] + dy), FONT, scale, (0, 0, 0), thick, cv2.LINE_AA)
+    cv2.putText(img, txt, org, FONT, scale, colour, thick, cv2.LINE_AA)
+
+
+def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = "", max_side: int = 2400) -> np.ndarray:
+    """RGB uint8 image of the crop around the vessel with every annotation drawn."""
+    crop, step = crop_for(scene, analysis, max_side=max_side)
+    oh, ow = crop.height // step, crop.width // step
+    bands = (1, 2, 3) if scene.info.count >= 3 else (1,)
+    data, valid = scene.read(window=(crop.col0, crop.row0, crop.width, crop.height), out_shape=(oh, ow), bands=bands)
+    radar = display.looks_like_radar(scene.info.dtype, scene.info.count, data[0][valid[0]][:100_000])
+    if len(bands) == 3:
+        grey = display.composite(data, valid, rgb=(0, 1, 2))
+        img = display.to_uint8(grey)
+    else:
+        g = display.composite(data, valid, db=radar, low=1.0, high=99.5)
+        img = np.repeat(display.to_uint8(g)[..., None], 3, axis=2)
+    img = np.ascontiguousarray(img)
+    h, w = img.shape[:2]
+    s = max(0.45, min(w, h) / 1400)  # text scale
+    lw = max(1, int(round(min(w, h) / 500)))
+
+    def px(pt: tuple[float, float]) -> tuple[int, int]:
+        return int(round((pt[0] - crop.col0) / step)), int(round((pt[1] - crop.row0) / step))
+
+    geo = analysis.geometry
+    if "chip" in geo:
+        cv2.polylines(img, [np.array([px(p) for p in geo["chip"]], np.int32)], True, COLOURS["chip"], lw, cv2.LINE_AA)
+    if "track" in geo:
+        cv2.line(img, px(geo["track"][0]), px(geo["track"][1]), COLOURS["track"], 2 * lw, cv2.LINE_AA)
+    for key in ("arm_left", "arm_right"):
+        if key in geo:
+            cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["arm"], 2 * lw, cv2.LINE_AA)
+    vx, vy = px(analysis.vessel_px)
+    cv2.circle(img, (vx, vy), int(10 * s + 4), COLOURS["vessel"], 2 * lw, cv2.LINE_AA)
+    _decorations(img, scene, analysis, crop, step, s, lw, scene_label)
+    return img
+
+
+def _decorations(img, scene, analysis, crop, step, s, lw, scene_label) -> None:
+    h, w = img.shape[:2]
+    try:
+        frame = scene.local_frame(*analysis.vessel_px)
+    except Exception:  # noqa: BLE001 - an unreferenced, uncalibrated image has no scale to draw
+        frame = None
+    margin = int(20 * s)
+    if frame is not None:
+        # scale bar along image rows, in ground metres
+        m_per_px = frame.length_of(step, 0)
+        length_m = _nice_length(0.22 * w * m_per_px)
+        n = int(round(length_m / m_per_px))
+        x0, y0 = margin, h - margin
+        cv2.rectangle(img, (x0 - 6, y0 - int(34 * s) - 6), (x0 + n + 6, y0 + 6), COLOURS["box"], -1)
+        cv2.line(img, (x0, y0), (x0 + n, y0), COLOURS["text"], 3 * lw)
+        for xx in (x0, x0 + n):
+            cv2.line(img, (xx, y0 - int(8 * s)), (xx, y0), COLOURS["text"], 2 * lw)
+        label = f"{length_m:g} m" if length_m < 1000 else f"{length_m / 1000:g} km"
+        _text(img, label, (x0, y0 - int(14 * s)), 0.9 * s)
+        # true-north arrow (or image-up arrow when north is unknown)
+        dc, dr = frame.image_direction(0.0) if frame.north_known else (0.0, -1.0)
+        cx, cy = w - margin - int(40 * s), margin + int(110 * s)
+        ln = int(45 * s)
+        tip = (int(cx + dc * ln), int(cy + dr * ln))
+        tail = (int(cx - dc * ln * 0.6), int(cy - dr * ln * 0.6))
+        cv2.arrowedLine(img, tail, tip, COLOURS["north"], 3 * lw, cv2.LINE_AA, tipLength=0.35)
+        _text(img, "N" if frame.north_known else "up", (tip[0] - int(8 * s), tip[1] - int(10 * s)), 1.0 * s,
+              thick=2)
+    if scene.info.georeferenced:
+        gr = scene.georef
+        corners = [(crop.col0, crop.row0), (crop.col0 + crop.width, crop.row0),
+                   (crop.col0, crop.row0 + crop.height), (crop.col0 + crop.width, crop.row0 + crop.height)]
+        lon, lat = geodesy.pixel_to_lonlat(gr, [c[0] for c in corners], [c[1] for c in corners])
+        labels = [f"{la:.5f}, {lo:.5f}" for lo, la in zip(lon, lat)]
+        size = cv2.getTextSize(labels[1], FONT, 0.7 * s, 1)[0]
+        _text(img, labels[0], (4, int(18 * s) + 4), 0.7 * s)
+        _text(img, labels[1], (w - size[0] - 4, int(18 * s) + 4), 0.7 * s)
+        _text(img, labels[2], (4, h - int(50 * s) - 40), 0.7 * s)
+        size3 = cv2.getTextSize(labels[3], FONT, 0.7 * s, 1)[0]
+        _text(img, labels[3], (w - size3[0] - 4, h - 6), 0.7 * s)
+    _result_box(img, analysis, s, scene_label, scene.info.acquisition_time)
+
+
+def result_lines(analysis: WakeAnalysis) -> list[str]:
+    """The lines of the result box (also used in the report)."""
+    if not analysis.wake_found or analysis.speed is None:
+        return ["NO WAKE FOUND - no speed estimate", analysis.decision]
+    sp = analysis.speed
+    lines = [f"Speed {sp.speed_mps / KNOT_MPS:.1f} kn = {sp.speed_mps:.2f} m/s",
+             f"95% interval {sp.ci95_low_mps / KNOT_MPS:.1f}-{sp.ci95_high_mps / KNOT_MPS:.1f} kn "
+             f"({sp.ci95_low_mps:.2f}-{sp.ci95_high_mps:.2f} m/s)",
+             f"Heading {analysis.heading_deg:.1f} deg true (+/- {analysis.heading_std_deg:.1f})",
+             f"Depth regime: {analysis.regime.regime}"
+             + (f", depth {analysis.depth_m:.1f} m" if analysis.depth_m is not None else ""),
+             "Method: " + " + ".join(m.method.split(" (")[0] for m in analysis.methods)]
+    return lines
+
+
+def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquired: str | None) -> None:
+    lines = result_lines(analysis)
+    lines += [f"Scene: {scene_label}" if scene_label else "", f"Acquired: {acquired}" if acquired else "",
+              "Estimate from imagery - not a certified measurement"]
+    lines = [ln for ln in lines if ln]
+    scale = 0.75 * s
+    sizes = [cv2.getTextSize(ln, FONT, scale, 1)[0] for ln in lines]
+    lh = int(max(sz[1] for sz in sizes) * 1.8)
+    bw = max(sz[0] for sz in sizes) + int(24 * s)
+    bh = lh * len(lines) + int(16 * s)
+    x0, y0 = int(20 * s), int(40 * s)
+    roi = img[y0:y0 + bh, x0:x0 + bw]
+    roi[:] = (0.25 * roi + 0.75 * np.array(COLOURS["box"])).astype(np.uint8)
+    for i, ln in enumerate(lines):
+        _text(img, ln, (x0 + int(12 * s), y0 + int(8 * s) + lh * (i + 1) - int(lh * 0.3)), scale,
+              thick=2 if i == 0 else 1)

@@ -1,0 +1,71 @@
+"""The evidence record: everything in the report as data, with a schema version and provenance.
+
+The JSON schema is ``wakemeter/evidence/evidence.schema.json`` (JSON Schema draft 2020-12).
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import json
+import platform
+from importlib import resources
+from pathlib import Path
+
+from .. import __version__
+from ..detect.analysis import WakeAnalysis
+from ..scene.raster import Scene
+
+SCHEMA_VERSION = "wakemeter.evidence/1"
+
+CAUTION_TEXT = ("These figures are estimates derived from imagery, for analysis. They are not certified "
+                "measurements. Local regulations, certified measuring instruments and licensed professionals "
+                "decide any enforcement. Scene timing and georeferencing must be verified independently.")
+
+
+def schema() -> dict:
+    return json.loads(resources.files(__package__).joinpath("evidence.schema.json").read_text())
+
+
+def provenance(scene: Scene, *, analyst: str | None, parameters: dict, exported_at: str | None = None) -> dict:
+    i = scene.info
+    return {
+        "scene_file": i.path.name,
+        "scene_path": str(i.path),
+        "scene_size_bytes": i.file_size,
+        "scene_sha256": scene.sha256(),
+        "scene_driver": i.driver,
+        "acquisition_time": i.acquisition_time,
+        "georeference": {"georeferenced": i.georeferenced, "crs": i.crs,
+                         "transform": list(i.transform)[:6] if i.georeferenced else None,
+                         "note": i.georeference_note},
+        "software": f"wakemeter {__version__}",
+        "python": platform.python_version(),
+        "analysis_parameters": parameters,
+        "exported_at": exported_at or _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat(),
+        "analyst": analyst or None,
+    }
+
+
+def build_record(scene: Scene, analysis: WakeAnalysis, *, analyst: str | None, parameters: dict,
+                 files: dict[str, str], exported_at: str | None = None) -> dict:
+    """The full evidence record (plain data)."""
+    result = analysis.to_json()
+    return {
+        "schema": SCHEMA_VERSION,
+        "caution": CAUTION_TEXT,
+        "result": result,
+        "assumptions": sorted({a for m in result["methods"] for a in m["assumptions"]}),
+        "provenance": provenance(scene, analyst=analyst, parameters=parameters, exported_at=exported_at),
+        "files": files,
+    }
+
+
+def validate(record: dict) -> None:
+    """Raise ``jsonschema.ValidationError`` when the record does not follow the schema."""
+    import jsonschema
+
+    jsonschema.validate(record, schema())
+
+
+def schema_path() -> Path:
+    return Path(str(resources.files(__package__).joinpath("evidence.schema.json")))
