@@ -220,6 +220,7 @@ def crest_spacing(profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, 
         return np.nan, np.nan, 0.0
     a, b, c = np.log(spec[i - 1:i + 2] + 1e-300)
     d = 0.5 * (a - c) / (a - 2 * b + c) if (a - 2 * b + c) < 0 else 0.0
+    d = float(np.clip(d, -0.5, 0.5))
     fpk = (i + d) * (f[1] - f[0])
     # SNR: peak power against the median of the band (noise), with Hann coherent gain
     noise = float(np.median(spec[band]))
