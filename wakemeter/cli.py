@@ -54,7 +54,7 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv: Sequence[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     _load_commands()
-    if not argv or (argv[0] not in _COMMANDS and not argv[0].startswith("-")):
+    if not argv or (argv[0] not in _COMMANDS and argv[0] not in ("-h", "--help", "--version")):
         return _open_program(argv)
     parser = build_parser()
     args = parser.parse_args(argv)

@@ -1,0 +1,140 @@
+"""The desktop program, part 1 (pytest-qt, offscreen): viewer and hand measurements on the demo scenes.
+
+Check values: the demo scenes' synthetic truth (truth JSON) and 2 pi U^2 / g (Lamb 1932 sec. 256).
+"""
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+pytest.importorskip("PySide6")
+from PySide6.QtCore import QPointF, Qt  # noqa: E402
+
+from wakemeter.app.window import MainWindow, wait_for_tiles  # noqa: E402
+from wakemeter.physics import kelvin  # noqa: E402
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+@pytest.fixture
+def win(qtbot, tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    w = MainWindow()
+    qtbot.addWidget(w)
+    w.resize(1200, 800)
+    w.show()
+    return w
+
+
+def _truth(name):
+    return json.loads((ROOT / "sample_scenes" / f"{name}.truth.json").read_text())
+
+
+def test_open_zoom_pan_and_track_bearing(win, qtbot):
+    from PySide6.QtWidgets import QApplication
+    assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
+    wait_for_tiles(win, QApplication.instance())
+    c = win.canvas
+    z0 = c.zoom
+    qtbot.keyClick(c, Qt.Key_Plus)
+    assert c.zoom == pytest.approx(z0 * 1.25)
+    o = QPointF(c.origin)
+    qtbot.keyClick(c, Qt.Key_Right)
+    assert c.origin.x() > o.x()
+    c.fit()
+    v = _truth("harbour_approach_optical")["vessels"][0]
+    # mark the vessel with a real click
+    win.set_tool("vessel")
+    qtbot.mouseClick(c, Qt.LeftButton, pos=c.to_screen((v["pixel_col"], v["pixel_row"])).toPoint())
+    assert len(win.doc.vessels) == 1
+    # draw the track with the mouse: from the vessel back along the wake
+    f = win.doc.scene.local_frame(v["pixel_col"], v["pixel_row"])
+    dc, dr = f.image_direction(v["heading_deg"])
+    vessel = (v["pixel_col"], v["pixel_row"])
+    end = (vessel[0] - 300 * dc, vessel[1] - 300 * dr)
+    win.set_tool("track")
+    a, b = c.to_screen(vessel).toPoint(), c.to_screen(end).toPoint()
+    qtbot.mousePress(c, Qt.LeftButton, pos=a)
+    qtbot.mouseMove(c, pos=b)
+    qtbot.mouseRelease(c, Qt.LeftButton, pos=b)
+    tracks = [m for m in win.doc.measurements.values() if m.kind == "track"]
+    assert len(tracks) == 1
+    # one screen pixel at fit zoom is ~1.4 scene px over a 300 px line: well within 1 deg
+    assert tracks[0].values["heading_deg"] == pytest.approx(62.0, abs=1.0)
+    assert "heading" in tracks[0].text
+    # undo, redo
+    win.doc.undo.undo()
+    assert not [m for m in win.doc.measurements.values() if m.kind == "track"]
+    win.doc.undo.redo()
+    assert [m for m in win.doc.measurements.values() if m.kind == "track"]
+    win.doc.undo.undo()
+    win.doc.undo.undo()
+    assert not win.doc.vessels
+    win.doc.undo.redo()
+    assert len(win.doc.vessels) == 1
+
+
+def test_crest_ruler_across_transverse_crests(win):
+    # Synthetic truth: transverse crests 2 pi U^2 / g apart with the scene's normal gravity; within 3 %.
+    assert win.open_path(str(ROOT / "sample_scenes" / "channel_two_vessels.tif"))
+    t = _truth("channel_two_vessels")
+    v = t["vessels"][1]
+    f = win.doc.scene.local_frame(v["pixel_col"], v["pixel_row"])
+    dc, dr = f.image_direction(v["heading_deg"])
+    p0 = (v["pixel_col"] - 10 * dc + 3 * dr, v["pixel_row"] - 10 * dr - 3 * dc)
+    p1 = (p0[0] - 260 * dc, p0[1] - 260 * dr)
+    win.canvas.finish_line("crest", p0, p1)
+    m = [m for m in win.doc.measurements.values() if m.kind == "crest"][0]
+    lam = kelvin.transverse_wavelength(v["speed_mps"], g=t["gravity_mps2"])
+    assert m.values["spacing_m"] == pytest.approx(lam, rel=0.03)
+    assert "±" in m.text
+    win.canvas.finish_line("ruler", (10, 10), (110, 10))
+    r = [m for m in win.doc.measurements.values() if m.kind == "ruler"][0]
+    assert r.values["length_m"] == pytest.approx(200.0, rel=1e-3)
+    win.doc.select(r.id)
+    win.delete_selected()
+    assert r.id not in win.doc.measurements
+
+
+def test_calibrate_plain_image_with_two_points(win, tmp_path):
+    import cv2
+    img = (np.random.default_rng(0).random((200, 300)) * 255).astype(np.uint8)
+    p = tmp_path / "plain.png"
+    cv2.imwrite(str(p), img)
+    assert win.open_path(str(p))
+    win.canvas.finish_line("ruler", (10, 10), (110, 10))
+    r = [m for m in win.doc.measurements.values() if m.kind == "ruler"][0]
+    assert "calibrate" in r.error
+    assert win.calibrate_two_points((0, 0), (0, 50), 25.0, north_up_deg=None)
+    r = win.doc.measurements[r.id]
+    assert r.values["length_m"] == pytest.approx(50.0, rel=1e-3)
+    win.doc.undo.undo()  # calibration is undoable
+    assert "calibrate" in win.doc.measurements[r.id].error
+
+
+def test_corrupt_file_gives_message_and_window_keeps_working(win, tmp_path):
+    good = ROOT / "sample_scenes" / "calm_no_wake.tif"
+    assert win.open_path(str(good))
+    bad = tmp_path / "broken.tif"
+    bad.write_bytes(good.read_bytes()[:300])
+    assert not win.open_path(str(bad))
+    assert "broken.tif" in win.last_error
+    assert win.doc.scene is not None and win.doc.scene.info.path.name == "calm_no_wake.tif"
+    win.canvas.finish_line("ruler", (10, 10), (60, 10))
+    assert any(m.kind == "ruler" for m in win.doc.measurements.values())
+
+
+def test_screenshot_command(tmp_path):
+    import subprocess
+    import sys
+    out = tmp_path / "shot.png"
+    r = subprocess.run([sys.executable, "-m", "wakemeter", str(ROOT / "sample_scenes" / "outer_roads_radar.tif"),
+                        "--screenshot", str(out), "--size", "900x600"], capture_output=True, text=True,
+                       env={**__import__("os").environ, "QT_QPA_PLATFORM": "offscreen"}, timeout=120)
+    assert r.returncode == 0, r.stderr
+    import cv2
+    img = cv2.imread(str(out))
+    assert img.shape[:2] == (600, 900)
+    assert img[100:500, 200:700].std() > 10  # the scene is drawn, not an empty canvas

@@ -1,0 +1,411 @@
+"""The scene canvas: tiled image, pan and zoom, overlays, and the hand-measurement tools.
+
+Coordinates: scene pixels (continuous, GDAL convention) map to widget pixels by
+``screen = (scene - origin) * zoom``.  The canvas draws the document; edits go through
+undoable commands on the document.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from PySide6.QtCore import QPointF, QRectF, Qt, Signal
+from PySide6.QtGui import QBrush, QColor, QFont, QPainter, QPainterPath, QPen, QPolygonF
+from PySide6.QtWidgets import QWidget
+
+from ..errors import WakemeterError
+from .document import AddItem, ChangeItem, Document, Measurement, Vessel
+from .tiles import TILE, TileLoader, estimate_contrast
+
+# Our own palette (not borrowed from any program): calm blue-greys for chrome, clear hues for items.
+ITEM_COLOURS = {
+    "vessel": QColor(70, 230, 110), "track": QColor(255, 200, 0), "arm": QColor(255, 60, 170),
+    "crest": QColor(80, 200, 255), "ruler": QColor(240, 240, 240), "calibration": QColor(255, 140, 40),
+    "finding_track": QColor(255, 200, 0, 170), "finding_arm": QColor(255, 60, 170, 170),
+    "chip": QColor(120, 170, 255, 150), "crest_fit": QColor(80, 200, 255, 150),
+}
+TOOLS = ("look", "vessel", "track", "arm", "crest", "ruler", "calibrate")
+HANDLE_PX = 7
+
+
+class Canvas(QWidget):
+    cursor_moved = Signal(float, float)  # scene col, row
+    zoom_changed = Signal(float)
+    calibration_line = Signal(object, object)  # two scene points drawn with the calibrate tool
+    message = Signal(str)
+
+    def __init__(self, doc: Document, parent=None):
+        super().__init__(parent)
+        self.doc = doc
+        self.loader = TileLoader()
+        self.loader.tile_ready.connect(self.update)
+        self.loader.read_failed.connect(lambda m: self.message.emit(f"could not read part of the scene: {m}"))
+        self.zoom = 1.0
+        self.origin = QPointF(0, 0)
+        self.tool = "look"
+        self._drag = None  # ("pan", start_screen, start_origin) | ("new", kind, p0, p1) | ("handle", id, idx, before)
+        self.setMouseTracking(True)
+        self.setFocusPolicy(Qt.StrongFocus)
+        self.setMinimumSize(320, 240)
+        self.setAutoFillBackground(False)
+        doc.scene_changed.connect(self._on_scene)
+        doc.changed.connect(self.update)
+
+    # ---- view ---------------------------------------------------------------
+    def _on_scene(self) -> None:
+        sc = self.doc.scene
+        self.loader.reset(sc, estimate_contrast(sc) if sc else None)
+        self.fit()
+
+    def set_contrast(self, **kw) -> None:
+        if self.doc.scene is None:
+            return
+        self.loader.reset(self.doc.scene, estimate_contrast(self.doc.scene, **kw))
+        self.update()
+
+    def fit(self) -> None:
+        sc = self.doc.scene
+        if sc is None:
+            return
+        self.zoom = min(self.width() / sc.width, self.height() / sc.height) * 0.98
+        self.origin = QPointF(sc.width / 2 - self.width() / 2 / self.zoom, sc.height / 2 - self.height() / 2 / self.zoom)
+        self.zoom_changed.emit(self.zoom)
+        self.update()
+
+    def set_zoom(self, zoom: float, anchor: QPointF | None = None) -> None:
+        zoom = float(np.clip(zoom, 1 / 512, 32.0))
+        anchor = anchor or QPointF(self.width() / 2, self.height() / 2)
+        p = self.to_scene(anchor)
+        self.zoom = zoom
+        self.origin = QPointF(p.x() - anchor.x() / zoom, p.y() - anchor.y() / zoom)
+        self.zoom_changed.emit(self.zoom)
+        self.update()
+
+    def centre_on(self, col: float, row: float) -> None:
+        self.origin = QPointF(col - self.width() / 2 / self.zoom, row - self.height() / 2 / self.zoom)
+        self.update()
+
+    def to_scene(self, p: QPointF) -> QPointF:
+        return QPointF(self.origin.x() + p.x() / self.zoom, self.origin.y() + p.y() / self.zoom)
+
+    def to_screen(self, p) -> QPointF:
+        x, y = (p.x(), p.y()) if isinstance(p, QPointF) else p
+        return QPointF((x - self.origin.x()) * self.zoom, (y - self.origin.y()) * self.zoom)
+
+    def level(self) -> int:
+        return max(0, int(math.floor(math.log2(max(1.0, 1.0 / self.zoom)))))
+
+    def visible_tiles(self, level: int):
+        f = 2 ** level
+        span = TILE * f
+        sc = self.doc.scene
+        c0 = max(0, int(self.origin.x() // span))
+        r0 = max(0, int(self.origin.y() // span))
+        c1 = min(int((self.origin.x() + self.width() / self.zoom) // span) + 1, int(math.ceil(sc.width / span)))
+        r1 = min(int((self.origin.y() + self.height() / self.zoom) // span) + 1, int(math.ceil(sc.height / span)))
+        return [(level, tx, ty) for ty in range(r0, r1) for tx in range(c0, c1)]
+
+    # ---- painting ---------------------------------------------------------
+    def paintEvent(self, _event) -> None:
+        qp = QPainter(self)
+        qp.fillRect(self.rect(), QColor(28, 32, 40))
+        sc = self.doc.scene
+        if sc is None:
+            qp.setPen(QColor(200, 205, 215))
+            qp.drawText(self.rect(), Qt.AlignCenter, "Open a scene (Ctrl+O) or drop an image here")
+            return
+        qp.setRenderHint(QPainter.SmoothPixmapTransform, self.zoom < 1)
+        lvl = self.level()
+        for key in self.visible_tiles(lvl):
+            img = self.loader.get(key)
+            if img is None:  # show a coarser cached tile meanwhile
+                for up in range(1, 6):
+                    k2 = (lvl + up, key[1] >> up, key[2] >> up)
+                    img2 = self.loader.cached(k2)
+                    if img2 is not None:
+                        f2 = 2 ** (lvl + up)
+                        src_span = TILE / 2 ** up
+                        sx = (key[1] - (k2[1] << up)) * src_span
+                        sy = (key[2] - (k2[2] << up)) * src_span
+                        self._draw_tile(qp, img2, k2, QRectF(sx, sy, src_span, src_span), key, f2)
+                        break
+                continue
+            self._draw_tile(qp, img, key)
+        qp.setRenderHint(QPainter.Antialiasing, True)
+        self._draw_findings(qp)
+        self._draw_items(qp)
+        self._draw_drag(qp)
+        self._draw_scale_and_north(qp)
+        qp.end()
+
+    def _draw_tile(self, qp, img, key, src: QRectF | None = None, target_key=None, f_src=None) -> None:
+        lvl, tx, ty = target_key or key
+        f = 2 ** lvl
+        c0, r0 = tx * TILE * f, ty * TILE * f
+        if src is None:
+            w, h = img.width() * f, img.height() * f
+            src = QRectF(0, 0, img.width(), img.height())
+        else:
+            w, h = src.width() * f_src, src.height() * f_src
+            w = min(w, img.width() * f_src - src.x() * f_src)
+            h = min(h, img.height() * f_src - src.y() * f_src)
+            src = QRectF(src.x(), src.y(), w / f_src, h / f_src)
+        tl = self.to_screen((c0, r0))
+        qp.drawImage(QRectF(tl.x(), tl.y(), w * self.zoom, h * self.zoom), img, src)
+
+    def _pen(self, colour: QColor, width: float = 2.0, dash: bool = False) -> QPen:
+        pen = QPen(colour, width)
+        pen.setCosmetic(True)
+        if dash:
+            pen.setStyle(Qt.DashLine)
+        return pen
+
+    def _label(self, qp: QPainter, at: QPointF, text: str, colour: QColor) -> None:
+        if not text:
+            return
+        qp.setFont(QFont("Sans", 9))
+        fm = qp.fontMetrics()
+        r = fm.boundingRect(text)
+        box = QRectF(at.x() + 8, at.y() - r.height() - 6, r.width() + 10, r.height() + 6)
+        qp.fillRect(box, QColor(15, 18, 24, 200))
+        qp.setPen(colour)
+        qp.drawText(box, Qt.AlignCenter, text)
+
+    def _draw_items(self, qp: QPainter) -> None:
+        for m in self.doc.measurements.values():
+            col = ITEM_COLOURS.get(m.kind, QColor(255, 255, 255))
+            a, b = self.to_screen(m.points[0]), self.to_screen(m.points[1])
+            sel = m.id == self.doc.selected
+            qp.setPen(self._pen(col, 3 if sel else 2, dash=m.kind == "crest"))
+            qp.drawLine(a, b)
+            for p in (a, b):
+                qp.setBrush(QBrush(col if sel else QColor(20, 20, 20)))
+                qp.drawEllipse(p, HANDLE_PX / 2 + 1, HANDLE_PX / 2 + 1)
+            if m.kind == "track":  # arrow at the vessel end: direction of travel
+                self._arrow(qp, b, a, col)
+            self._label(qp, QPointF((a.x() + b.x()) / 2, (a.y() + b.y()) / 2), m.error or m.text,
+                        QColor(255, 120, 120) if m.error else col)
+        for v in self.doc.vessels.values():
+            p = self.to_screen(v.position)
+            sel = v.id == self.doc.selected
+            qp.setPen(self._pen(ITEM_COLOURS["vessel"], 3 if sel else 2))
+            qp.setBrush(Qt.NoBrush)
+            qp.drawEllipse(p, 9, 9)
+            qp.drawLine(QPointF(p.x() - 14, p.y()), QPointF(p.x() - 5, p.y()))
+            qp.drawLine(QPointF(p.x() + 5, p.y()), QPointF(p.x() + 14, p.y()))
+            self._label(qp, QPointF(p.x() + 6, p.y() - 8), v.name, ITEM_COLOURS["vessel"])
+
+    def _arrow(self, qp: QPainter, tail: QPointF, tip: QPointF, col: QColor) -> None:
+        d = tip - tail
+        n = math.hypot(d.x(), d.y())
+        if n < 1:
+            return
+        ux, uy = d.x() / n, d.y() / n
+        s = 12
+        poly = QPolygonF([tip, QPointF(tip.x() - s * ux + 0.5 * s * uy, tip.y() - s * uy - 0.5 * s * ux),
+                          QPointF(tip.x() - s * ux - 0.5 * s * uy, tip.y() - s * uy + 0.5 * s * ux)])
+        qp.setBrush(QBrush(col))
+        qp.drawPolygon(poly)
+
+    def _draw_findings(self, qp: QPainter) -> None:
+        for vid, a in self.doc.findings.items():
+            if a is None:
+                continue
+            g = a.geometry
+            if "chip" in g:
+                qp.setPen(self._pen(ITEM_COLOURS["chip"], 1, dash=True))
+                qp.setBrush(Qt.NoBrush)
+                qp.drawPolygon(QPolygonF([self.to_screen(p) for p in g["chip"]]))
+            if not a.wake_found:
+                continue
+            if "track" in g:
+                qp.setPen(self._pen(ITEM_COLOURS["finding_track"], 2))
+                qp.drawLine(self.to_screen(g["track"][0]), self.to_screen(g["track"][1]))
+            for k in ("arm_left", "arm_right"):
+                if k in g:
+                    qp.setPen(self._pen(ITEM_COLOURS["finding_arm"], 2))
+                    qp.drawLine(self.to_screen(g[k][0]), self.to_screen(g[k][1]))
+            for line in g.get("crests", []):
+                qp.setPen(self._pen(ITEM_COLOURS["crest_fit"], 1))
+                path = QPainterPath(self.to_screen(line[0]))
+                for p in line[1:]:
+                    path.lineTo(self.to_screen(p))
+                qp.drawPath(path)
+
+    def _draw_drag(self, qp: QPainter) -> None:
+        if self._drag and self._drag[0] == "new":
+            _, kind, p0, p1 = self._drag
+            col = ITEM_COLOURS.get("calibration" if kind == "calibrate" else kind, QColor(255, 255, 255))
+            qp.setPen(self._pen(col, 2, dash=True))
+            qp.drawLine(self.to_screen(p0), self.to_screen(p1))
+
+    def _draw_scale_and_north(self, qp: QPainter) -> None:
+        sc = self.doc.scene
+        centre = self.to_scene(QPointF(self.width() / 2, self.height() / 2))
+        try:
+            col = float(np.clip(centre.x(), 0, sc.width - 1))
+            row = float(np.clip(centre.y(), 0, sc.height - 1))
+            frame = sc.local_frame(col, row)
+        except WakemeterError:
+            qp.setPen(QColor(255, 200, 120))
+            qp.drawText(QRectF(10, self.height() - 28, 420, 20), Qt.AlignLeft,
+                        "no georeference: calibrate to measure in metres")
+            return
+        m_per_screen_px = frame.length_of(1.0 / self.zoom, 0.0)
+        target = 140 * m_per_screen_px
+        e = 10 ** math.floor(math.log10(target))
+        length = next(f * e for f in (5, 2, 1) if f * e <= target)
+        px = length / m_per_screen_px
+        x0, y0 = 16, self.height() - 18
+        qp.fillRect(QRectF(x0 - 8, y0 - 26, px + 16, 34), QColor(15, 18, 24, 190))
+        qp.setPen(self._pen(QColor(240, 240, 240), 3))
+        qp.drawLine(QPointF(x0, y0), QPointF(x0 + px, y0))
+        qp.drawLine(QPointF(x0, y0 - 6), QPointF(x0, y0))
+        qp.drawLine(QPointF(x0 + px, y0 - 6), QPointF(x0 + px, y0))
+        qp.setFont(QFont("Sans", 9))
+        qp.drawText(QRectF(x0, y0 - 24, px, 16), Qt.AlignCenter, f"{length:g} m" if length < 1000 else f"{length / 1000:g} km")
+        # true north (grid convergence and image rotation included), or image up when unknown
+        dc, dr = frame.image_direction(0.0) if frame.north_known else (0.0, -1.0)
+        cx, cy = self.width() - 34, 44
+        tip = QPointF(cx + dc * 22, cy + dr * 22)
+        tail = QPointF(cx - dc * 16, cy - dr * 16)
+        qp.setBrush(QBrush(QColor(15, 18, 24, 190)))
+        qp.setPen(Qt.NoPen)
+        qp.drawEllipse(QPointF(cx, cy), 28, 28)
+        qp.setPen(self._pen(QColor(240, 240, 240), 2))
+        qp.drawLine(tail, tip)
+        self._arrow(qp, tail, tip, QColor(240, 240, 240))
+        qp.setPen(QColor(240, 240, 240))
+        qp.drawText(QRectF(cx - 20, cy + 10, 40, 16), Qt.AlignCenter, "N" if frame.north_known else "up")
+
+    # ---- interaction ------------------------------------------------------
+    def set_tool(self, tool: str) -> None:
+        if tool not in TOOLS:
+            raise ValueError(tool)
+        self.tool = tool
+        self.setCursor(Qt.OpenHandCursor if tool == "look" else Qt.CrossCursor)
+
+    def _hit_handle(self, pos: QPointF):
+        best = None
+        for m in self.doc.measurements.values():
+            for i, p in enumerate(m.points):
+                d = (self.to_screen(p) - pos).manhattanLength()
+                if d <= HANDLE_PX + 3 and (best is None or d < best[0]):
+                    best = (d, m.id, i)
+        for v in self.doc.vessels.values():
+            d = (self.to_screen(v.position) - pos).manhattanLength()
+            if d <= 12 and (best is None or d < best[0]):
+                best = (d, v.id, -1)
+        return best
+
+    def mousePressEvent(self, ev) -> None:
+        if self.doc.scene is None:
+            return
+        pos = ev.position()
+        sp = self.to_scene(pos)
+        if ev.button() == Qt.MiddleButton or (ev.button() == Qt.LeftButton and self.tool == "look"):
+            hit = self._hit_handle(pos) if self.tool == "look" else None
+            if hit is not None:
+                _, item_id, idx = hit
+                self.doc.select(item_id)
+                self._drag = ("handle", item_id, idx, self.doc.item(item_id))
+                return
+            self._drag = ("pan", pos, QPointF(self.origin))
+            self.setCursor(Qt.ClosedHandCursor)
+            return
+        if ev.button() != Qt.LeftButton:
+            return
+        p = (sp.x(), sp.y())
+        if self.tool == "vessel":
+            n = len(self.doc.vessels) + 1
+            v = Vessel(self.doc.new_id(), f"Vessel {n}", p)
+            self.doc.undo.push(AddItem(self.doc, v, "mark vessel"))
+            return
+        self._drag = ("new", self.tool, p, p)
+
+    def mouseMoveEvent(self, ev) -> None:
+        pos = ev.position()
+        sp = self.to_scene(pos)
+        self.cursor_moved.emit(sp.x(), sp.y())
+        if not self._drag:
+            return
+        if self._drag[0] == "pan":
+            _, start, orig = self._drag
+            d = (pos - start) / self.zoom
+            self.origin = QPointF(orig.x() - d.x(), orig.y() - d.y())
+            self.update()
+        elif self._drag[0] == "new":
+            self._drag = ("new", self._drag[1], self._drag[2], (sp.x(), sp.y()))
+            self.update()
+        elif self._drag[0] == "handle":
+            _, item_id, idx, before = self._drag
+            cur = self.doc.item(item_id)
+            if isinstance(cur, Vessel):
+                moved = Vessel(cur.id, cur.name, (sp.x(), sp.y()))
+                self.doc.vessels[cur.id] = moved
+            else:
+                pts = list(cur.points)
+                pts[idx] = (sp.x(), sp.y())
+                self.doc.measurements[cur.id] = Measurement(cur.id, cur.kind, tuple(pts), cur.vessel_id, cur.text,
+                                                            cur.values, cur.error)
+            self.update()
+
+    def mouseReleaseEvent(self, ev) -> None:
+        drag, self._drag = self._drag, None
+        if self.tool == "look":
+            self.setCursor(Qt.OpenHandCursor)
+        if not drag:
+            return
+        if drag[0] == "handle":
+            _, item_id, _idx, before = drag
+            after = self.doc.item(item_id)
+            if after != before:
+                self.doc.undo.push(ChangeItem(self.doc, before, after, "move point"))
+        elif drag[0] == "new":
+            _, kind, p0, p1 = drag
+            if math.hypot(p1[0] - p0[0], p1[1] - p0[1]) * self.zoom < 4:
+                self.message.emit("drag to draw a line")
+                return
+            self.finish_line(kind, p0, p1)
+
+    def finish_line(self, kind: str, p0, p1) -> None:
+        """Add a drawn line as a measurement (used by the mouse and by tests)."""
+        if kind == "calibrate":
+            self.calibration_line.emit(p0, p1)
+            return
+        vid = self.doc.nearest_vessel(p0)
+        if kind == "track" and vid is not None:  # from the vessel back along the wake: store (vessel, wake end)
+            v = self.doc.vessels[vid]
+            if math.dist(v.position, p1) < math.dist(v.position, p0):
+                p0, p1 = p1, p0
+        m = Measurement(self.doc.new_id(), kind, (p0, p1), vid)
+        self.doc.undo.push(AddItem(self.doc, m, f"draw {kind}"))
+
+    def wheelEvent(self, ev) -> None:
+        steps = ev.angleDelta().y() / 120.0
+        self.set_zoom(self.zoom * (1.25 ** steps), ev.position())
+
+    def keyPressEvent(self, ev) -> None:
+        k = ev.key()
+        step = 80 / self.zoom
+        moves = {Qt.Key_Left: (-step, 0), Qt.Key_Right: (step, 0), Qt.Key_Up: (0, -step), Qt.Key_Down: (0, step)}
+        if k in moves:
+            dx, dy = moves[k]
+            self.origin = QPointF(self.origin.x() + dx, self.origin.y() + dy)
+            self.update()
+        elif k in (Qt.Key_Plus, Qt.Key_Equal):
+            self.set_zoom(self.zoom * 1.25)
+        elif k == Qt.Key_Minus:
+            self.set_zoom(self.zoom / 1.25)
+        elif k == Qt.Key_F:
+            self.fit()
+        elif k == Qt.Key_1:
+            self.set_zoom(1.0)
+        else:
+            super().keyPressEvent(ev)
+
+    def resizeEvent(self, ev) -> None:
+        super().resizeEvent(ev)
+        if self.doc.scene is not None and ev.oldSize().width() <= 0:
+            self.fit()

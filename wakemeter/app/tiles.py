@@ -1,0 +1,173 @@
+"""Background tile reading for the canvas: a level-of-detail tile cache fed by a thread pool.
+
+A tile is TILE x TILE display pixels covering TILE * 2**level scene pixels.  Tiles are read
+off the GUI thread (``Scene.read`` uses the file's overviews or the cached pyramid), reduced
+with ``cv2.resize(INTER_AREA)``, stretched with the scene-wide contrast and handed back to
+the GUI thread as QImages.
+"""
+
+from __future__ import annotations
+
+from collections import OrderedDict
+from dataclasses import dataclass
+
+import cv2
+import numpy as np
+from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
+from PySide6.QtGui import QImage
+
+from ..errors import WakemeterError
+from ..scene import display
+from ..scene.raster import Scene
+from rasterio.enums import Resampling
+
+TILE = 256
+
+
+@dataclass(frozen=True)
+class Contrast:
+    """Scene-wide display stretch."""
+
+    lo: tuple[float, ...]
+    hi: tuple[float, ...]
+    gamma: float = 1.0
+    db: bool = False
+    rgb: bool = False
+
+
+def estimate_contrast(scene: Scene, *, db: bool | None = None, gamma: float = 1.0, low: float = 1.0,
+                      high: float = 99.5) -> Contrast:
+    """Percentile stretch from a small whole-scene read (uses overviews when present)."""
+    s = min(1.0, 512 / max(scene.width, scene.height))
+    oh, ow = max(1, int(scene.height * s)), max(1, int(scene.width * s))
+    rgb = scene.info.count >= 3
+    bands = (1, 2, 3) if rgb else (1,)
+    data, valid = scene.read(out_shape=(oh, ow), bands=bands)
+    if db is None:
+        db = display.looks_like_radar(scene.info.dtype, scene.info.count, data[0][valid[0]][:100_000])
+    if db:
+        data = display.to_db(np.where(valid, data, 1.0))
+    los, his = [], []
+    for b in range(len(bands)):
+        v = data[b][valid[b]]
+        lo, hi = (np.percentile(v, [low, high]) if v.size else (0.0, 1.0))
+        los.append(float(lo))
+        his.append(float(hi if hi > lo else lo + 1))
+    return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb)
+
+
+def to_rgb8(data: np.ndarray, valid: np.ndarray, c: Contrast) -> np.ndarray:
+    if c.db:
+        data = display.to_db(np.where(valid, data, 1.0))
+    out = []
+    for b in range(data.shape[0]):
+        x = np.clip((data[b] - c.lo[b]) / (c.hi[b] - c.lo[b]), 0, 1)
+        if c.gamma != 1.0:
+            x = x ** (1.0 / c.gamma)
+        out.append(np.where(valid[b], x * 255, 0).astype(np.uint8))
+    if len(out) == 1:
+        out = out * 3
+    return np.ascontiguousarray(np.stack(out, axis=-1))
+
+
+def read_tile(scene: Scene, level: int, tx: int, ty: int, contrast: Contrast) -> np.ndarray | None:
+    """RGB uint8 tile (may be smaller than TILE at the scene's edges); None when outside."""
+    f = 2 ** level
+    c0, r0 = tx * TILE * f, ty * TILE * f
+    if c0 >= scene.width or r0 >= scene.height:
+        return None
+    w, h = min(TILE * f, scene.width - c0), min(TILE * f, scene.height - r0)
+    ow, oh = max(1, int(np.ceil(w / f))), max(1, int(np.ceil(h / f)))
+    bands = (1, 2, 3) if contrast.rgb else (1,)
+    # read at up to twice the display resolution (fast nearest sampling from overviews/pyramid),
+    # then reduce with area averaging
+    rw, rh = min(w, 2 * ow), min(h, 2 * oh)
+    data, valid = scene.read(window=(c0, r0, w, h), out_shape=(rh, rw), bands=bands, resampling=Resampling.nearest)
+    rgb = to_rgb8(data, valid, contrast)
+    if (rh, rw) != (oh, ow):
+        rgb = cv2.resize(rgb, (ow, oh), interpolation=cv2.INTER_AREA)
+    return rgb
+
+
+class _Signals(QObject):
+    ready = Signal(object, object)  # key, QImage
+    failed = Signal(object, str)
+
+
+class _TileJob(QRunnable):
+    def __init__(self, loader: TileLoader, key, generation: int):
+        super().__init__()
+        self.loader, self.key, self.generation = loader, key, generation
+
+    def run(self) -> None:
+        if self.generation != self.loader.generation:
+            return
+        scene, contrast = self.loader.scene, self.loader.contrast
+        if scene is None or contrast is None:
+            return
+        try:
+            rgb = read_tile(scene, *self.key, contrast)
+        except WakemeterError as err:
+            self.loader.signals.failed.emit(self.key, str(err))
+            return
+        if rgb is None:
+            return
+        img = QImage(rgb.data, rgb.shape[1], rgb.shape[0], 3 * rgb.shape[1], QImage.Format_RGB888).copy()
+        self.loader.signals.ready.emit((self.generation, self.key), img)
+
+
+class TileLoader(QObject):
+    """LRU tile cache + background reads; ``tile_ready`` fires on the GUI thread."""
+
+    tile_ready = Signal()
+    read_failed = Signal(str)
+
+    def __init__(self, capacity: int = 600):
+        super().__init__()
+        self.scene: Scene | None = None
+        self.contrast: Contrast | None = None
+        self.cache: OrderedDict = OrderedDict()
+        self.pending: set = set()
+        self.capacity = capacity
+        self.generation = 0
+        self.pool = QThreadPool()
+        self.pool.setMaxThreadCount(2)
+        self.signals = _Signals()
+        self.signals.ready.connect(self._on_ready)
+        self.signals.failed.connect(self._on_failed)
+
+    def reset(self, scene: Scene | None, contrast: Contrast | None) -> None:
+        self.generation += 1
+        self.scene, self.contrast = scene, contrast
+        self.cache.clear()
+        self.pending.clear()
+
+    def get(self, key):
+        img = self.cache.get(key)
+        if img is not None:
+            self.cache.move_to_end(key)
+            return img
+        if key not in self.pending and self.scene is not None:
+            self.pending.add(key)
+            self.pool.start(_TileJob(self, key, self.generation))
+        return None
+
+    def cached(self, key):
+        return self.cache.get(key)
+
+    def _on_ready(self, gk, img) -> None:
+        gen, key = gk
+        if gen != self.generation:
+            return
+        self.pending.discard(key)
+        self.cache[key] = img
+        while len(self.cache) > self.capacity:
+            self.cache.popitem(last=False)
+        self.tile_ready.emit()
+
+    def _on_failed(self, key, msg: str) -> None:
+        self.pending.discard(key)
+        self.read_failed.emit(msg)
+
+    def wait(self, msecs: int = 10_000) -> bool:
+        return self.pool.waitForDone(msecs)

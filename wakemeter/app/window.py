@@ -1,0 +1,397 @@
+"""The main window: canvas in the middle, tools on top, measurement and result panels at the side."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+from PySide6.QtCore import QSettings, Qt, QTimer
+from PySide6.QtGui import QAction, QActionGroup, QIcon, QKeySequence
+from PySide6.QtWidgets import (QDockWidget, QFileDialog, QHBoxLayout, QInputDialog, QLabel, QListWidget,
+                               QListWidgetItem, QMainWindow, QMessageBox, QProgressBar, QPushButton, QWidget)
+
+from ..errors import WakemeterError
+from ..scene import geodesy
+from .canvas import Canvas
+from .document import Document, Measurement, RemoveItem, SetCalibration, Vessel, ChangeItem
+from .workers import Job
+
+ICONS = Path(__file__).resolve().parents[2] / "icons"
+TOOL_INFO = {
+    "look": ("Look", "Pan by dragging, zoom with the wheel; drag a point of a drawing to adjust it"),
+    "vessel": ("Vessel", "Click on a vessel to mark it"),
+    "track": ("Track", "Drag from the vessel back along its wake: gives the heading (true bearing)"),
+    "arm": ("Arm", "Drag along a wake arm from the vessel: gives its half-angle to the track"),
+    "crest": ("Crest ruler", "Drag across a train of crests: gives the crest spacing and its angle to the track"),
+    "ruler": ("Ruler", "Drag to measure a ground distance and true bearing"),
+    "calibrate": ("Calibrate", "For images without georeference: drag between two points a known distance apart"),
+}
+
+
+class MainWindow(QMainWindow):
+    def __init__(self) -> None:
+        super().__init__()
+        self.setWindowTitle("wakemeter")
+        self.resize(1320, 860)
+        self.doc = Document()
+        self.canvas = Canvas(self.doc)
+        self.setCentralWidget(self.canvas)
+        self.settings = QSettings("wakemeter", "wakemeter")
+        self.last_error = ""
+        self.job: Job | None = None
+        self._build_actions()
+        self._build_panels()
+        self._build_status()
+        self.setAcceptDrops(True)
+        self.canvas.cursor_moved.connect(self._readout)
+        self.canvas.message.connect(self.say)
+        self.canvas.calibration_line.connect(self._ask_calibration)
+        self.doc.changed.connect(self._refresh_list)
+        self.doc.scene_changed.connect(self._on_scene)
+        self.setStyleSheet("QMainWindow { background: #1c2028; } QDockWidget { color: #dfe6ee; } "
+                           "QToolBar { background: #232935; border: none; spacing: 4px; } "
+                           "QToolButton { color: #dfe6ee; padding: 4px 8px; } "
+                           "QToolButton:checked { background: #3a4a63; border-radius: 4px; } "
+                           "QListWidget { background: #232935; color: #dfe6ee; border: none; } "
+                           "QListWidget::item:selected { background: #3a4a63; } "
+                           "QStatusBar { background: #232935; color: #dfe6ee; } QStatusBar QLabel { color: #dfe6ee; }")
+
+    # ---- construction -----------------------------------------------------
+    def _icon(self, name: str) -> QIcon:
+        p = ICONS / f"{name}.svg"
+        return QIcon(str(p)) if p.exists() else QIcon()
+
+    def _build_actions(self) -> None:
+        mb = self.menuBar()
+        fm = mb.addMenu("&File")
+        a = fm.addAction("&Open scene…", self.open_dialog)
+        a.setShortcut(QKeySequence.Open)
+        self.recent_menu = fm.addMenu("Open &recent")
+        self._fill_recent()
+        self.file_menu = fm
+        fm.addSeparator()
+        fm.addAction("&Quit", self.close).setShortcut(QKeySequence.Quit)
+        em = mb.addMenu("&Edit")
+        undo = self.doc.undo.createUndoAction(self, "&Undo")
+        undo.setShortcut(QKeySequence.Undo)
+        redo = self.doc.undo.createRedoAction(self, "&Redo")
+        redo.setShortcuts([QKeySequence("Ctrl+Shift+Z"), QKeySequence.Redo])
+        em.addAction(undo)
+        em.addAction(redo)
+        self.addAction(undo)
+        self.addAction(redo)
+        d = em.addAction("&Delete selected", self.delete_selected)
+        d.setShortcut(QKeySequence.Delete)
+        em.addAction("Re&name vessel…", self.rename_selected)
+        vm = mb.addMenu("&View")
+        for text, key, fn in (("Zoom &in", "+", lambda: self.canvas.set_zoom(self.canvas.zoom * 1.25)),
+                              ("Zoom &out", "-", lambda: self.canvas.set_zoom(self.canvas.zoom / 1.25)),
+                              ("&Fit to window", "F", self.canvas.fit), ("&1:1", "1", lambda: self.canvas.set_zoom(1.0))):
+            act = vm.addAction(text, fn)
+            act.setShortcut(QKeySequence(key))
+        vm.addSeparator()
+        vm.addAction("Brighter (gamma up)", lambda: self._contrast(1.25))
+        vm.addAction("Darker (gamma down)", lambda: self._contrast(0.8))
+        self.db_action = vm.addAction("Radar intensity in dB", self._toggle_db)
+        self.db_action.setCheckable(True)
+        tb = self.addToolBar("Tools")
+        tb.setObjectName("tools")
+        tb.setToolButtonStyle(Qt.ToolButtonTextUnderIcon)
+        self.tool_actions: dict[str, QAction] = {}
+        group = QActionGroup(self)
+        for i, tool in enumerate(TOOL_INFO):
+            label, tip = TOOL_INFO[tool]
+            act = QAction(self._icon(tool), label, self)
+            act.setCheckable(True)
+            act.setToolTip(f"{label} ({i + 2 if i else 'Esc'}): {tip}")
+            act.setShortcut(QKeySequence(str(i + 2)) if i else QKeySequence("Esc"))
+            act.triggered.connect(lambda _=False, t=tool: self.set_tool(t))
+            group.addAction(act)
+            tb.addAction(act)
+            self.tool_actions[tool] = act
+        self.tool_actions["look"].setChecked(True)
+        self.toolbar = tb
+
+    def _build_panels(self) -> None:
+        self.items = QListWidget()
+        self.items.setToolTip("Vessels and measurements; select one to highlight it, Delete removes it")
+        self.items.itemSelectionChanged.connect(self._list_selected)
+        self.items.itemDoubleClicked.connect(self._list_go)
+        dock = QDockWidget("Measurements", self)
+        dock.setObjectName("measurements")
+        dock.setWidget(self.items)
+        self.addDockWidget(Qt.RightDockWidgetArea, dock)
+        self.hand_summary = QLabel("")
+        self.hand_summary.setWordWrap(True)
+        self.items_dock = dock
+
+    def _build_status(self) -> None:
+        sb = self.statusBar()
+        self.message = QLabel("Ready")
+        self.readout = QLabel("")
+        self.readout.setToolTip("Cursor: pixel, map coordinates (CRS), latitude/longitude, pixel value")
+        self.progress = QProgressBar()
+        self.progress.setMaximumWidth(180)
+        self.progress.setRange(0, 1000)
+        self.progress.hide()
+        self.cancel_button = QPushButton("Cancel")
+        self.cancel_button.setToolTip("Stop the work in progress")
+        self.cancel_button.hide()
+        self.cancel_button.clicked.connect(self.cancel_job)
+        box = QWidget()
+        lay = QHBoxLayout(box)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.addWidget(self.progress)
+        lay.addWidget(self.cancel_button)
+        sb.addWidget(self.message, 1)
+        sb.addPermanentWidget(self.readout)
+        sb.addPermanentWidget(box)
+
+    # ---- scene ------------------------------------------------------------
+    def open_dialog(self) -> None:
+        path, _ = QFileDialog.getOpenFileName(self, "Open scene", str(Path.cwd()),
+                                              "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;All files (*)")
+        if path:
+            self.open_path(path)
+
+    def open_path(self, path: str) -> bool:
+        """Open a scene; a bad file gives a clear message and the program keeps what it had."""
+        try:
+            self.doc.open(path)
+        except WakemeterError as err:
+            self.error(f"Could not open {Path(path).name}", str(err))
+            return False
+        self._remember(path)
+        self.setWindowTitle(f"wakemeter — {Path(path).name}")
+        return True
+
+    def _on_scene(self) -> None:
+        sc = self.doc.scene
+        if sc is None:
+            return
+        note = "" if sc.info.georeferenced else " — no georeference: use Calibrate before measuring"
+        self.say(f"{sc.info.path.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"
+                 + (f", {sc.info.crs}" if sc.info.crs and sc.info.crs.startswith("EPSG") else "") + note)
+        from ..scene.pyramid import ensure_pyramid, needs_pyramid
+        if needs_pyramid(sc):
+            def work(progress, cancelled):
+                return ensure_pyramid(sc, progress=lambda f: progress(f, "building overview levels"),
+                                      cancelled=cancelled)
+            self.run_job(Job(work, "building overview levels (once)"), lambda _r: self.canvas.set_contrast())
+
+    def _remember(self, path: str) -> None:
+        recent = [p for p in (self.settings.value("recent", []) or []) if p != path]
+        self.settings.setValue("recent", [path] + recent[:7])
+        self._fill_recent()
+
+    def _fill_recent(self) -> None:
+        self.recent_menu.clear()
+        for p in self.settings.value("recent", []) or []:
+            self.recent_menu.addAction(p, lambda p=p: self.open_path(p))
+
+    def dragEnterEvent(self, ev) -> None:
+        if ev.mimeData().hasUrls():
+            ev.acceptProposedAction()
+
+    def dropEvent(self, ev) -> None:
+        urls = ev.mimeData().urls()
+        if urls:
+            self.open_path(urls[0].toLocalFile())
+
+    # ---- tools, list, edits ----------------------------------------------
+    def set_tool(self, tool: str) -> None:
+        self.canvas.set_tool(tool)
+        self.tool_actions[tool].setChecked(True)
+        self.say(TOOL_INFO[tool][1])
+
+    def delete_selected(self) -> None:
+        if self.doc.selected and self.doc.item(self.doc.selected) is not None:
+            self.doc.undo.push(RemoveItem(self.doc, self.doc.selected))
+
+    def rename_selected(self, name: str | None = None) -> None:
+        v = self.doc.vessels.get(self.doc.selected)
+        if v is None:
+            self.say("select a vessel to rename it")
+            return
+        if name is None:
+            name, ok = QInputDialog.getText(self, "Rename vessel", "Name:", text=v.name)
+            if not ok or not name.strip():
+                return
+        self.doc.undo.push(ChangeItem(self.doc, v, Vessel(v.id, name.strip(), v.position), "rename vessel"))
+
+    def _refresh_list(self) -> None:
+        self.items.blockSignals(True)
+        self.items.clear()
+        for v in self.doc.vessels.values():
+            it = QListWidgetItem(f"⛴ {v.name}")
+            it.setData(Qt.UserRole, v.id)
+            self.items.addItem(it)
+            for m in self.doc.measurements.values():
+                if m.vessel_id == v.id:
+                    self._add_row(m, indent=True)
+            hand = self.doc.speed_from_hand(v.id)
+            if hand:
+                it2 = QListWidgetItem("    → " + hand)
+                it2.setData(Qt.UserRole, v.id)
+                self.items.addItem(it2)
+        for m in self.doc.measurements.values():
+            if m.vessel_id is None:
+                self._add_row(m, indent=False)
+        for i in range(self.items.count()):
+            if self.items.item(i).data(Qt.UserRole) == self.doc.selected:
+                self.items.setCurrentRow(i)
+                break
+        self.items.blockSignals(False)
+
+    def _add_row(self, m: Measurement, indent: bool) -> None:
+        names = {"track": "track", "arm": "arm", "crest": "crest ruler", "ruler": "ruler", "calibration": "calibration"}
+        text = f"{'    ' if indent else ''}{names[m.kind]}: {m.error or m.text}"
+        it = QListWidgetItem(text)
+        it.setData(Qt.UserRole, m.id)
+        self.items.addItem(it)
+
+    def _list_selected(self) -> None:
+        it = self.items.currentItem()
+        if it is not None:
+            self.doc.select(int(it.data(Qt.UserRole)))
+
+    def _list_go(self, it: QListWidgetItem) -> None:
+        item = self.doc.item(int(it.data(Qt.UserRole)))
+        if isinstance(item, Vessel):
+            self.canvas.centre_on(*item.position)
+        elif item is not None:
+            self.canvas.centre_on(*np.mean(item.points, axis=0))
+
+    # ---- calibration ------------------------------------------------------
+    def _ask_calibration(self, p0, p1) -> None:
+        dist, ok = QInputDialog.getDouble(self, "Calibrate", "Ground distance between the two points (m):", 100.0,
+                                          0.01, 1e7, 2)
+        if not ok:
+            return
+        north, ok2 = QInputDialog.getDouble(self, "Calibrate", "True bearing of image up (deg; cancel if unknown):",
+                                            0.0, 0.0, 359.99, 1)
+        self.calibrate_two_points(p0, p1, dist, north if ok2 else None)
+
+    def calibrate_two_points(self, p0, p1, distance_m: float, north_up_deg: float | None = None) -> bool:
+        sc = self.doc.scene
+        if sc is None:
+            return False
+        if sc.info.georeferenced:
+            self.error("Calibration not needed", "This scene is georeferenced; distances already use its geodesy.")
+            return False
+        try:
+            px = geodesy.pixel_size_from_two_points(p0, p1, distance_m)
+            frame = geodesy.calibrated_frame(pixel_size_m=px, north_up_deg=north_up_deg)
+        except WakemeterError as err:
+            self.error("Calibration not possible", str(err))
+            return False
+        marker = Measurement(self.doc.new_id(), "calibration", (p0, p1), None, values={"distance_m": distance_m})
+        self.doc.undo.push(SetCalibration(self.doc, frame, marker))
+        self.say(f"calibrated: {px:.3f} m per pixel" + ("" if north_up_deg is not None else
+                                                           "; headings relative to image up"))
+        return True
+
+    # ---- status, jobs, errors --------------------------------------------
+    def say(self, text: str) -> None:
+        self.message.setText(text)
+
+    def error(self, title: str, text: str) -> None:
+        self.last_error = f"{title}: {text}"
+        self.say(self.last_error)
+        box = QMessageBox(QMessageBox.Warning, title, text, QMessageBox.Ok, self)
+        box.setModal(False)
+        box.open()
+        self._error_box = box
+
+    def _readout(self, col: float, row: float) -> None:
+        sc = self.doc.scene
+        if sc is None or not (0 <= col < sc.width and 0 <= row < sc.height):
+            self.readout.setText("")
+            return
+        parts = [f"px {col:.1f}, {row:.1f}"]
+        if sc.info.georeferenced:
+            gr = sc.georef
+            x, y = geodesy.pixel_to_map(gr, col, row)
+            lon, lat = geodesy.pixel_to_lonlat(gr, col, row)
+            code = sc.info.crs if sc.info.crs.startswith("EPSG") else "CRS"
+            parts.append(f"{code} {float(x):.1f}, {float(y):.1f}")
+            parts.append(f"lat {float(lat):.6f}° lon {float(lon):.6f}°")
+        try:
+            v, ok = sc.read(window=(int(col), int(row), 1, 1))
+            parts.append(f"value {v[:, 0, 0].tolist() if v.shape[0] > 1 else float(v[0, 0, 0]):.4g}"
+                         if v.shape[0] == 1 and ok.all() else f"value {np.round(v[:, 0, 0], 3).tolist()}")
+        except WakemeterError:
+            pass
+        self.readout.setText("   ".join(parts))
+
+    def run_job(self, job: Job, on_done, on_fail=None) -> None:
+        if self.job is not None:
+            self.say("busy: wait for the current work or cancel it")
+            return
+        self.job = job
+        self.progress.setValue(0)
+        self.progress.show()
+        self.cancel_button.show()
+        self.say(job.label + " …")
+        job.progress.connect(lambda f, msg: (self.progress.setValue(int(1000 * f)), msg and self.say(msg)))
+
+        def finish(*_):
+            self.progress.hide()
+            self.cancel_button.hide()
+            self.job = None
+
+        def done(result):
+            finish()
+            self.say(job.label + ": done")
+            on_done(result)
+
+        def failed(msg):
+            finish()
+            self.error(job.label, msg)
+            if on_fail:
+                on_fail(msg)
+
+        def cancelled():
+            finish()
+            self.say(job.label + ": cancelled")
+            if on_fail:
+                on_fail("cancelled")
+        job.finished.connect(done)
+        job.failed.connect(failed)
+        job.cancelled.connect(cancelled)
+        job.start()
+
+    def cancel_job(self) -> None:
+        if self.job is not None:
+            self.job.cancel()
+
+    def _contrast(self, factor: float) -> None:
+        c = self.canvas.loader.contrast
+        if c is not None:
+            self.canvas.set_contrast(gamma=c.gamma * factor, db=c.db)
+
+    def _toggle_db(self) -> None:
+        self.canvas.set_contrast(db=self.db_action.isChecked())
+
+    def closeEvent(self, ev) -> None:
+        if self.job is not None:
+            self.job.cancel()
+            self.job.thread.wait(5000)
+        self.canvas.loader.wait(5000)
+        super().closeEvent(ev)
+
+
+def wait_for_tiles(win: MainWindow, app, timeout_ms: int = 10_000) -> None:
+    """Process events until the visible tiles are loaded (for screenshots and tests)."""
+    import time
+    t0 = time.time()
+    while (time.time() - t0) * 1000 < timeout_ms:
+        app.processEvents()
+        win.canvas.loader.wait(50)
+        app.processEvents()
+        if win.doc.scene is None:
+            return
+        keys = win.canvas.visible_tiles(win.canvas.level())
+        if all(win.canvas.loader.cached(k) is not None for k in keys) and not win.canvas.loader.pending:
+            return
+    QTimer.singleShot(0, lambda: None)
