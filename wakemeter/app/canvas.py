@@ -114,6 +114,7 @@ class Canvas(QWidget):
         if sc is None:
             qp.setPen(QColor(200, 205, 215))
             qp.drawText(self.rect(), Qt.AlignCenter, "Open a scene (Ctrl+O) or drop an image here")
+            qp.end()
             return
         qp.setRenderHint(QPainter.SmoothPixmapTransform, self.zoom < 1)
         lvl = self.level()
@@ -251,7 +252,7 @@ class Canvas(QWidget):
             qp.setPen(QColor(255, 200, 120))
             qp.drawText(QRectF(10, self.height() - 28, 420, 20), Qt.AlignLeft,
                         "no georeference: calibrate to measure in metres")
-            return
+            return  # the caller ends the painter
         m_per_screen_px = frame.length_of(1.0 / self.zoom, 0.0)
         target = 140 * m_per_screen_px
         e = 10 ** math.floor(math.log10(target))

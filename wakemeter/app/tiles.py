@@ -8,6 +8,7 @@ the GUI thread as QImages.
 
 from __future__ import annotations
 
+import queue
 from collections import OrderedDict
 from dataclasses import dataclass
 
@@ -90,8 +91,9 @@ def read_tile(scene: Scene, level: int, tx: int, ty: int, contrast: Contrast) ->
 
 
 class _Signals(QObject):
-    ready = Signal(object, object)  # key, QImage
-    failed = Signal(object, str)
+    # Results travel through a queue, not as signal arguments: Python objects in queued
+    # cross-thread signals proved fragile (a refcount crash at exit with PySide6 6.12).
+    arrived = Signal()
 
 
 class _TileJob(QRunnable):
@@ -108,12 +110,15 @@ class _TileJob(QRunnable):
         try:
             rgb = read_tile(scene, *self.key, contrast)
         except WakemeterError as err:
-            self.loader.signals.failed.emit(self.key, str(err))
+            self.loader.results.put(("failed", self.generation, self.key, str(err)))
+            self.loader.signals.arrived.emit()
             return
         if rgb is None:
-            return
-        img = QImage(rgb.data, rgb.shape[1], rgb.shape[0], 3 * rgb.shape[1], QImage.Format_RGB888).copy()
-        self.loader.signals.ready.emit((self.generation, self.key), img)
+            self.loader.results.put(("empty", self.generation, self.key, None))
+        else:
+            img = QImage(rgb.data, rgb.shape[1], rgb.shape[0], 3 * rgb.shape[1], QImage.Format_RGB888).copy()
+            self.loader.results.put(("ready", self.generation, self.key, img))
+        self.loader.signals.arrived.emit()
 
 
 class TileLoader(QObject):
@@ -132,9 +137,9 @@ class TileLoader(QObject):
         self.generation = 0
         self.pool = QThreadPool()
         self.pool.setMaxThreadCount(2)
+        self.results: queue.SimpleQueue = queue.SimpleQueue()
         self.signals = _Signals()
-        self.signals.ready.connect(self._on_ready)
-        self.signals.failed.connect(self._on_failed)
+        self.signals.arrived.connect(self._drain)
 
     def reset(self, scene: Scene | None, contrast: Contrast | None) -> None:
         self.generation += 1
@@ -155,19 +160,31 @@ class TileLoader(QObject):
     def cached(self, key):
         return self.cache.get(key)
 
-    def _on_ready(self, gk, img) -> None:
-        gen, key = gk
-        if gen != self.generation:
-            return
-        self.pending.discard(key)
-        self.cache[key] = img
+    def _drain(self) -> None:
+        got = False
+        while True:
+            try:
+                kind, gen, key, payload = self.results.get_nowait()
+            except queue.Empty:
+                break
+            if gen != self.generation:
+                continue
+            self.pending.discard(key)
+            if kind == "ready":
+                self.cache[key] = payload
+                got = True
+            elif kind == "failed":
+                self.read_failed.emit(payload)
         while len(self.cache) > self.capacity:
             self.cache.popitem(last=False)
-        self.tile_ready.emit()
-
-    def _on_failed(self, key, msg: str) -> None:
-        self.pending.discard(key)
-        self.read_failed.emit(msg)
+        if got:
+            self.tile_ready.emit()
 
     def wait(self, msecs: int = 10_000) -> bool:
         return self.pool.waitForDone(msecs)
+
+    def shutdown(self) -> None:
+        """Drop queued reads and wait for running ones (before the window closes)."""
+        self.generation += 1
+        self.pool.clear()
+        self.pool.waitForDone(10_000)

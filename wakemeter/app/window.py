@@ -340,10 +340,10 @@ class MainWindow(QMainWindow):
             self.cancel_button.hide()
             self.job = None
 
-        def done(result):
+        def done():
             finish()
             self.say(job.label + ": done")
-            on_done(result)
+            on_done(job.result)
 
         def failed(msg):
             finish()
@@ -356,7 +356,7 @@ class MainWindow(QMainWindow):
             self.say(job.label + ": cancelled")
             if on_fail:
                 on_fail("cancelled")
-        job.finished.connect(done)
+        job.done.connect(done)
         job.failed.connect(failed)
         job.cancelled.connect(cancelled)
         job.start()
@@ -377,7 +377,7 @@ class MainWindow(QMainWindow):
         if self.job is not None:
             self.job.cancel()
             self.job.thread.wait(5000)
-        self.canvas.loader.wait(5000)
+        self.canvas.loader.shutdown()
         super().closeEvent(ev)
 
 

@@ -13,8 +13,10 @@ from ..errors import CancelledError, WakemeterError
 
 
 class Job(QObject):
+    """The result travels in ``self.result`` (set before ``done`` fires), not as a signal argument."""
+
     progress = Signal(float, str)
-    finished = Signal(object)
+    done = Signal()
     failed = Signal(str)
     cancelled = Signal()
 
@@ -23,6 +25,7 @@ class Job(QObject):
         super().__init__()
         self.fn, self.label = fn, label
         self._cancel = threading.Event()
+        self.result = None
         self.thread = QThread()
         self.moveToThread(self.thread)
         self.thread.started.connect(self._run)
@@ -42,7 +45,8 @@ class Job(QObject):
             if self._cancel.is_set():
                 self.cancelled.emit()
             else:
-                self.finished.emit(result)
+                self.result = result
+                self.done.emit()
         except CancelledError:
             self.cancelled.emit()
         except WakemeterError as err:
