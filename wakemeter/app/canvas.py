@@ -210,8 +210,9 @@ class Canvas(QWidget):
         qp.drawPolygon(poly)
 
     def _draw_findings(self, qp: QPainter) -> None:
-        for vid, a in self.doc.findings.items():
-            if a is None:
+        for vid in list(self.doc.findings):
+            a = self.doc.effective_finding(vid)
+            if a is None or vid in self.doc.rejected:
                 continue
             g = a.geometry
             if "chip" in g:

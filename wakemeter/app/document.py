@@ -56,6 +56,8 @@ class Document(QObject):
         self.measurements: dict[int, Measurement] = {}
         self.findings: dict[int, object] = {}  #: vessel id -> WakeAnalysis
         self.inputs: dict[int, dict] = {}  #: vessel id -> analysis inputs the user gave
+        self.rejected: set[int] = set()  #: vessels whose finding the analyst rejected
+        self._effective: dict[int, tuple] = {}
         self.selected = 0
         self.undo = QUndoStack(self)
         self._ids = itertools.count(1)
@@ -71,6 +73,7 @@ class Document(QObject):
         self.measurements.clear()
         self.findings.clear()
         self.inputs.clear()
+        self.rejected.clear()
         self.selected = 0
         self.undo.clear()
         self.scene_changed.emit()
@@ -171,6 +174,46 @@ class Document(QObject):
     def item(self, item_id: int):
         return self.vessels.get(item_id) or self.measurements.get(item_id)
 
+    def vessel_of_selection(self) -> int | None:
+        item = self.item(self.selected)
+        if isinstance(item, Vessel):
+            return item.id
+        if isinstance(item, Measurement) and item.vessel_id in self.vessels:
+            return item.vessel_id
+        return next(iter(self.vessels), None) if len(self.vessels) == 1 else None
+
+    def effective_finding(self, vessel_id: int):
+        """The finding as it stands after the analyst's hand corrections (crest ruler, arm)."""
+        from ..detect.analysis import WakeAnalysis
+        from ..detect.revise import kelvin_crest_lines, revise
+
+        raw = self.findings.get(vessel_id)
+        if not isinstance(raw, WakeAnalysis):
+            return raw
+        crest = [m for m in self.measurements.values() if m.kind == "crest" and m.vessel_id == vessel_id
+                 and "spacing_m" in m.values]
+        arm = [m for m in self.measurements.values() if m.kind == "arm" and m.vessel_id == vessel_id
+               and "half_angle_deg" in m.values]
+        hand_crest = None
+        if crest:
+            v = crest[-1].values
+            hand_crest = (v["spacing_m"], v["spacing_std_m"], min(v.get("angle_to_track_deg", 0.0), 80.0))
+        hand_arm = (arm[-1].values["half_angle_deg"], max(arm[-1].values["half_angle_std_deg"], 0.5)) if arm else None
+        key = (vessel_id, id(raw), hand_crest, hand_arm)
+        cached = self._effective.get(vessel_id)
+        if cached is not None and cached[0] == key:
+            return cached[1]
+        try:
+            eff = revise(raw, hand_crest=hand_crest, hand_half_angle=hand_arm)
+        except WakemeterError:
+            eff = raw
+        if eff.wake_found and self.scene is not None and "crests" not in eff.geometry:
+            geo = dict(eff.geometry)
+            geo["crests"] = kelvin_crest_lines(self.scene, eff)
+            eff = replace(eff, geometry=geo)
+        self._effective[vessel_id] = (key, eff)
+        return eff
+
     def speed_from_hand(self, vessel_id: int) -> str:
         """Plain text of what the hand measurements imply (through the core inversion)."""
         from ..physics import inversion as inv
@@ -180,12 +223,11 @@ class Document(QObject):
         if not crest:
             return ""
         m = crest[-1]
-        ang = m.values.get("angle_to_track_deg", 90.0)
-        prop = max(0.0, 90.0 - ang) if ang <= 90 else 0.0  # the ruler runs across the crests
+        # the ruler runs along the crests' propagation direction: its angle to the track is theta
+        theta = min(m.values.get("angle_to_track_deg", 0.0), 80.0)
         try:
             est = inv.speed_from_crest_wavelength(inv.Uncertain(m.values["spacing_m"], m.values["spacing_std_m"]),
-                                                  inv.Uncertain(abs(90.0 - ang), 1.0) if prop else
-                                                  inv.Uncertain(0.0, 0.0), draws=20_000)
+                                                  inv.Uncertain(theta, 2.0), draws=20_000)
         except WakemeterError as err:
             return str(err)
         return (f"from the crest ruler: {est.speed_mps:.2f} m/s ({units.mps_to_knots(est.speed_mps):.1f} kn), "
@@ -258,3 +300,56 @@ class SetCalibration(QUndoCommand):
 
     def undo(self) -> None:
         self._apply(self.old, self.old_markers)
+
+
+@dataclass(frozen=True)
+class StoredFinding:
+    """A finding read back from a session: its numbers and drawing, without the arrays for plots."""
+
+    result: dict
+    geometry: dict
+
+    @property
+    def wake_found(self) -> bool:
+        return bool(self.result.get("wake_found"))
+
+    def to_json(self) -> dict:
+        return self.result
+
+
+class SetFinding(QUndoCommand):
+    def __init__(self, doc: Document, vessel_id: int, new, text: str = "analysis"):
+        super().__init__(text)
+        self.doc, self.vid, self.new = doc, vessel_id, new
+        self.old = doc.findings.get(vessel_id)
+
+    def _set(self, value) -> None:
+        if value is None:
+            self.doc.findings.pop(self.vid, None)
+        else:
+            self.doc.findings[self.vid] = value
+        self.doc.findings_changed.emit(self.vid)
+        self.doc.changed.emit()
+
+    def redo(self) -> None:
+        self._set(self.new)
+
+    def undo(self) -> None:
+        self._set(self.old)
+
+
+class SetRejected(QUndoCommand):
+    def __init__(self, doc: Document, vessel_id: int, rejected: bool):
+        super().__init__("reject finding" if rejected else "accept finding")
+        self.doc, self.vid, self.value = doc, vessel_id, rejected
+
+    def _set(self, value: bool) -> None:
+        (self.doc.rejected.add if value else self.doc.rejected.discard)(self.vid)
+        self.doc.findings_changed.emit(self.vid)
+        self.doc.changed.emit()
+
+    def redo(self) -> None:
+        self._set(self.value)
+
+    def undo(self) -> None:
+        self._set(not self.value)

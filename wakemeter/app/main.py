@@ -24,6 +24,8 @@ def run_program(argv: list[str]) -> int:
         w, h = (int(x) for x in args.size.lower().split("x"))
         win.resize(w, h)
     win.show()
+    if not args.screenshot and not args.scene:
+        win.controller.offer_restore()
     if args.scene:
         app.processEvents()
         win.open_path(args.scene)

@@ -14,7 +14,7 @@ from ..errors import WakemeterError
 from ..scene import geodesy
 from .canvas import Canvas
 from .document import Document, Measurement, RemoveItem, SetCalibration, Vessel, ChangeItem
-from .workers import Job
+from .workers import Job, Relay
 
 ICONS = Path(__file__).resolve().parents[2] / "icons"
 TOOL_INFO = {
@@ -42,6 +42,8 @@ class MainWindow(QMainWindow):
         self._build_actions()
         self._build_panels()
         self._build_status()
+        from .controller import Controller
+        self.controller = Controller(self)
         self.setAcceptDrops(True)
         self.canvas.cursor_moved.connect(self._readout)
         self.canvas.message.connect(self.say)
@@ -97,6 +99,7 @@ class MainWindow(QMainWindow):
         tb = self.addToolBar("Tools")
         tb.setObjectName("tools")
         tb.setToolButtonStyle(Qt.ToolButtonTextUnderIcon)
+        tb.setMovable(False)
         self.tool_actions: dict[str, QAction] = {}
         group = QActionGroup(self)
         for i, tool in enumerate(TOOL_INFO):
@@ -110,6 +113,12 @@ class MainWindow(QMainWindow):
             tb.addAction(act)
             self.tool_actions[tool] = act
         self.tool_actions["look"].setChecked(True)
+        tb.addSeparator()
+        run = QAction(self._icon("analyse"), "Analyse", self)
+        run.setToolTip("Analyse (Ctrl+R): find the selected vessel's wake and estimate speed, heading and depth regime")
+        run.setShortcut(QKeySequence("Ctrl+R"))
+        run.triggered.connect(lambda: self.controller.analyse_selected())
+        tb.addAction(run)
         self.toolbar = tb
 
     def _build_panels(self) -> None:
@@ -223,7 +232,7 @@ class MainWindow(QMainWindow):
         self.items.blockSignals(True)
         self.items.clear()
         for v in self.doc.vessels.values():
-            it = QListWidgetItem(f"⛴ {v.name}")
+            it = QListWidgetItem(f"Vessel: {v.name}")
             it.setData(Qt.UserRole, v.id)
             self.items.addItem(it)
             for m in self.doc.measurements.values():
@@ -333,12 +342,17 @@ class MainWindow(QMainWindow):
         self.progress.show()
         self.cancel_button.show()
         self.say(job.label + " …")
-        job.progress.connect(lambda f, msg: (self.progress.setValue(int(1000 * f)), msg and self.say(msg)))
 
-        def finish(*_):
+        def progress(f, msg):
+            self.progress.setValue(int(1000 * f))
+            if msg:
+                self.say(msg)
+
+        def finish():
             self.progress.hide()
             self.cancel_button.hide()
             self.job = None
+            self._relay = None
 
         def done():
             finish()
@@ -356,9 +370,8 @@ class MainWindow(QMainWindow):
             self.say(job.label + ": cancelled")
             if on_fail:
                 on_fail("cancelled")
-        job.done.connect(done)
-        job.failed.connect(failed)
-        job.cancelled.connect(cancelled)
+        self._relay = Relay(job, on_progress=progress, on_done=done, on_failed=failed, on_cancelled=cancelled,
+                            parent=self)
         job.start()
 
     def cancel_job(self) -> None:
@@ -378,6 +391,7 @@ class MainWindow(QMainWindow):
             self.job.cancel()
             self.job.thread.wait(5000)
         self.canvas.loader.shutdown()
+        self.controller.closing()
         super().closeEvent(ev)
 
 

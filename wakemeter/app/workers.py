@@ -7,7 +7,7 @@ import threading
 import traceback
 from collections.abc import Callable
 
-from PySide6.QtCore import QObject, QThread, Signal
+from PySide6.QtCore import QObject, QThread, Signal, Slot
 
 from ..errors import CancelledError, WakemeterError
 
@@ -55,3 +55,35 @@ class Job(QObject):
             self.failed.emit(f"unexpected problem: {err!r}\n{traceback.format_exc(limit=3)}")
         finally:
             self.thread.quit()
+
+
+class Relay(QObject):
+    """Lives on the GUI thread; its slots run the given callbacks there (queued from the job's thread).
+
+    Plain Python callables connected to a signal emitted in another thread would run in that
+    thread; a QObject's bound methods run in the thread the object lives in.
+    """
+
+    def __init__(self, job: Job, *, on_progress, on_done, on_failed, on_cancelled, parent=None):
+        super().__init__(parent)
+        self._p, self._d, self._f, self._c = on_progress, on_done, on_failed, on_cancelled
+        job.progress.connect(self.progress)
+        job.done.connect(self.done)
+        job.failed.connect(self.failed)
+        job.cancelled.connect(self.cancelled)
+
+    @Slot(float, str)
+    def progress(self, f: float, msg: str) -> None:
+        self._p(f, msg)
+
+    @Slot()
+    def done(self) -> None:
+        self._d()
+
+    @Slot(str)
+    def failed(self, msg: str) -> None:
+        self._f(msg)
+
+    @Slot()
+    def cancelled(self) -> None:
+        self._c()

@@ -7,12 +7,13 @@ depth regime).  A scene without a wake says so and gives no speed.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field, replace
 
 import numpy as np
 from scipy import ndimage
 
-from ..errors import ParameterError
+from ..errors import CancelledError, ParameterError
 from ..physics import inversion as inv
 from ..physics import havelock, kelvin
 from ..physics.gravity import normal_gravity
@@ -161,7 +162,9 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             vessel_lonlat: tuple[float, float] | None = None, depth_m: float | None = None,
             depth_std_m: float = 0.0, hull_length_m: float | None = None,
             radar_geometry: RadarGeometry | None = None, radar: bool | None = None,
-            pixel_rel_std: float = 0.005, seed: int = 0) -> WakeAnalysis:
+            pixel_rel_std: float = 0.005, seed: int = 0,
+            progress: Callable[[float, str], None] | None = None,
+            cancelled: Callable[[], bool] | None = None) -> WakeAnalysis:
     """Analyse the wake of one vessel.
 
     Parameters
@@ -177,7 +180,16 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         For the high-speed (narrow arms) caveat.
     radar_geometry : RadarGeometry, optional
         Enables the radar azimuth-offset method.
+    progress, cancelled : callables, optional
+        ``progress(fraction, what)`` is called between stages; when ``cancelled()`` returns
+        True the analysis stops with :class:`~wakemeter.errors.CancelledError`.
     """
+    def stage(fraction: float, what: str) -> None:
+        if cancelled is not None and cancelled():
+            raise CancelledError("the analysis was cancelled")
+        if progress is not None:
+            progress(fraction, what)
+
     if (vessel_px is None) == (vessel_lonlat is None):
         raise ParameterError("give the vessel position either as vessel_px or as vessel_lonlat (exactly one)")
     if depth_m is not None and not (np.isfinite(depth_m) and depth_m > 0):
@@ -199,6 +211,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     depth_fit = np.inf if depth_m is None else float(depth_m)
 
     # scale selection: coarser when the waves are long for the box, finer when too short
+    stage(0.05, "reading the vessel's surroundings")
     step = 1
     p = _one_pass(scene, vessel_px, step, g, depth_fit, radar)
     for _ in range(3):
@@ -213,6 +226,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             break
         p, step = p_coarse, 2 * step
     assert p is not None
+    stage(0.45, "measuring crests and arms")
     chip, fit = p.chip, p.fit
     # snap to the hull when one was found close to the click
     snapped = chip.to_scene(*chip.hull_rc) if chip.hull_rc is not None else vessel_px
@@ -284,6 +298,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(0.85 * lam_h, 1.18 * lam_h)) \
             if np.isfinite(lam_h) else (np.nan, np.nan, 0.0)
         transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
+    stage(0.65, "estimating uncertainty")
     sub = _bootstrap(p, g, h_fit, u_fit, fitted_depth=finite and depth_m is None)
     infl = student_inflation(len(sub)) if len(sub) >= 3 else 2.0
 
@@ -324,6 +339,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             methods.append(est)
         else:
             cautions.append("radar azimuth offset not measured: no bright hull found near the given position")
+    stage(0.9, "combining methods")
     combined = inv.combine_estimates(methods)
     half_u = inv.Uncertain(half, half_sd) if half is not None else None
     if cond_depth is not None:

@@ -186,6 +186,15 @@ class LocalFrame:
         d = np.hypot(e, n)
         return float(d) if np.ndim(d) == 0 else d
 
+    def pixel_vector(self, east_m: ArrayLike, north_m: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
+        """Image displacement (dcol, drow) in pixels of a ground displacement (east, north) in metres."""
+        inv = np.linalg.inv(self._matrix())
+        e = np.asarray(east_m, dtype=float)
+        n = np.asarray(north_m, dtype=float)
+        dc = inv[0, 0] * e + inv[0, 1] * n
+        du = inv[1, 0] * e + inv[1, 1] * n
+        return dc, -du
+
     def image_direction(self, bearing_deg: float) -> tuple[float, float]:
         """Unit-length (in pixels) image direction (dcol, drow) of a true bearing."""
         b = np.radians(bearing_deg)

@@ -1,0 +1,152 @@
+"""The desktop program, part 2 (pytest-qt, offscreen): analysis in the background, findings,
+hand corrections, sessions.  Check values: the demo scenes' synthetic truth (truth JSON)."""
+
+import json
+import time
+from pathlib import Path
+
+import pytest
+
+pytest.importorskip("PySide6")
+
+from wakemeter.app.document import AddItem, Vessel  # noqa: E402
+from wakemeter.app.window import MainWindow  # noqa: E402
+
+ROOT = Path(__file__).resolve().parents[1]
+SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
+TRUTH = json.loads((ROOT / "sample_scenes" / "harbour_approach_optical.truth.json").read_text())["vessels"][0]
+
+
+@pytest.fixture
+def win(qtbot, tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    w = MainWindow()
+    qtbot.addWidget(w)
+    w.resize(1200, 800)
+    w.show()
+    assert w.open_path(str(SCENE))
+    v = Vessel(w.doc.new_id(), "Saltmarsh Wren", (TRUTH["pixel_col"] + 2, TRUTH["pixel_row"] - 2))
+    w.doc.undo.push(AddItem(w.doc, v, "mark vessel"))
+    yield w
+    w.close()
+
+
+def _analyse(win, qtbot):
+    win.controller.analyse_selected()
+    qtbot.waitUntil(lambda: win.job is None, timeout=60_000)
+
+
+def test_analysis_shows_speed_interval_and_keeps_gui_responsive(win, qtbot):
+    from PySide6.QtCore import QTimer
+    ticks = []
+    timer = QTimer()
+    timer.timeout.connect(lambda: ticks.append(time.perf_counter()))
+    timer.start(10)
+    _analyse(win, qtbot)
+    timer.stop()
+    vid = next(iter(win.doc.vessels))
+    result = win.doc.effective_finding(vid).to_json()
+    assert result["speed_mps"] == pytest.approx(TRUTH["speed_mps"], rel=0.05)
+    html = win.controller.panel.text.toHtml()
+    assert "95 % interval" in html and f"{result['speed_knots']:.1f} kn" in html
+    assert "licensed" in html  # the caution is shown with the numbers
+    gaps = [b - a for a, b in zip(ticks, ticks[1:])]
+    assert len(ticks) > 5 and max(gaps) < 0.5  # goal 0.1 s; generous margin for a loaded test machine
+
+
+def test_cancel_mid_way(win, qtbot):
+    win.controller.analyse_selected()
+    assert win.job is not None
+    win.cancel_job()
+    qtbot.waitUntil(lambda: win.job is None, timeout=60_000)
+    assert not win.doc.findings
+    assert "cancelled" in win.message.text()
+
+
+def test_reject_and_correct_arm_by_hand(win, qtbot):
+    _analyse(win, qtbot)
+    vid = next(iter(win.doc.vessels))
+    before = win.doc.effective_finding(vid)
+    win.controller.panel.reject.setChecked(True)
+    assert vid in win.doc.rejected and not win.controller.panel.export_button.isEnabled()
+    win.doc.undo.undo()
+    assert vid not in win.doc.rejected
+    # correct the arm: a hand-drawn arm at 34 deg (needs a track first)
+    vx, vy = win.doc.vessels[vid].position
+    f = win.doc.scene.local_frame(vx, vy)
+    dc, dr = f.image_direction(TRUTH["heading_deg"])
+    win.canvas.finish_line("track", (vx, vy), (vx - 200 * dc, vy - 200 * dr))
+    import numpy as np
+    a = np.radians(34.0)
+    end = (vx - 200 * (np.cos(a) * dc - np.sin(a) * dr), vy - 200 * (np.cos(a) * dr + np.sin(a) * dc))
+    win.canvas.finish_line("arm", (vx, vy), end)
+    after = win.doc.effective_finding(vid)
+    assert after.half_angle_deg == pytest.approx(34.0, abs=0.5)
+    assert after.half_angle_deg != before.half_angle_deg
+    assert any("corrected by hand" in c for c in after.cautions)
+    assert "revised" in win.controller.panel.text.toHtml()
+
+
+def test_session_round_trip_and_damaged_file(win, qtbot, tmp_path):
+    _analyse(win, qtbot)
+    vid = next(iter(win.doc.vessels))
+    numbers = win.doc.effective_finding(vid).to_json()
+    path = tmp_path / "case.wakemeter.json"
+    assert win.controller.save_session(str(path))
+    saved = path.read_text()
+    w2 = MainWindow()
+    qtbot.addWidget(w2)
+    assert w2.controller.open_session(str(path))
+    vid2 = next(iter(w2.doc.vessels))
+    assert w2.doc.vessels[vid2].name == "Saltmarsh Wren"
+    again = w2.doc.effective_finding(vid2).to_json()
+    for key in ("speed_mps", "speed_ci95_mps", "heading_deg", "regime", "half_angle_deg"):
+        assert again[key] == numbers[key]
+    # a truncated session: clear error, the file untouched, the open scene kept
+    bad = tmp_path / "bad.json"
+    bad.write_text(saved[: len(saved) // 2])
+    assert not w2.controller.open_session(str(bad))
+    assert "damaged or truncated" in w2.last_error
+    assert bad.read_text() == saved[: len(saved) // 2]
+    assert w2.doc.scene is not None
+    future = json.loads(saved)
+    future["schema"] = "wakemeter.session/9"
+    fut = tmp_path / "future.json"
+    fut.write_text(json.dumps(future))
+    assert not w2.controller.open_session(str(fut))
+    assert "newer" in w2.last_error
+    # moved scene: the session asks where it is
+    moved = json.loads(saved)
+    moved["scene"]["path"] = "nowhere/scene.tif"
+    moved["scene"]["absolute_path"] = "/nowhere/scene.tif"
+    mv = tmp_path / "moved.json"
+    mv.write_text(json.dumps(moved))
+    asked = []
+    assert w2.controller.open_session(str(mv), locate=lambda old, why: asked.append(why) or str(SCENE))
+    assert asked and "not where" in asked[0]
+    w2.close()
+
+
+def test_export_from_the_program(win, qtbot, tmp_path):
+    _analyse(win, qtbot)
+    vid = next(iter(win.doc.vessels))
+    files = win.controller.export(vid, str(tmp_path), analyst="R. Fenwick")
+    assert files is not None and files.image.exists() and files.report.exists() and files.data.exists()
+    assert win.controller.export(vid, str(tmp_path)) is None  # exists: not replaced without asking
+    assert "already exist" in win.last_error
+
+
+def test_autosave_and_restore_after_a_crash(win, qtbot, tmp_path):
+    _analyse(win, qtbot)
+    win.controller.autosave_now()
+    from wakemeter.session import autosave_path
+    assert autosave_path().exists()
+    # a new program start finds it (the first window "crashed": it never closed cleanly)
+    w2 = MainWindow()
+    qtbot.addWidget(w2)
+    asked = []
+    assert w2.controller.offer_restore(ask=lambda text: asked.append(text) or True)
+    assert asked and len(w2.doc.vessels) == 1
+    w2.close()  # a clean exit removes the autosave
+    assert not autosave_path().exists()

@@ -1,0 +1,56 @@
+"""Hand corrections of findings and the fitted crest lines (synthetic truth of the demo scenes;
+crest geometry from Lamb 1932 sec. 256)."""
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from wakemeter.detect.analysis import analyze
+from wakemeter.detect.revise import kelvin_crest_lines, revise
+from wakemeter.physics import kelvin
+from wakemeter.scene.raster import open_scene
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+@pytest.fixture(scope="module")
+def demo():
+    sc = open_scene(ROOT / "sample_scenes" / "harbour_approach_optical.tif")
+    return sc, analyze(sc, vessel_lonlat=(-35.0, 36.0))
+
+
+def test_hand_crest_joins_the_combination(demo):
+    sc, a = demo
+    lam = kelvin.transverse_wavelength(7.202, g=a.gravity_mps2)
+    r = revise(a, hand_crest=(lam, 0.3, 0.0))
+    assert len(r.methods) == len(a.methods) + 1
+    assert r.methods[-1].method == "crest ruler (by hand)"
+    assert r.methods[-1].speed_mps == pytest.approx(7.202, rel=0.01)
+    assert r.speed.speed_mps == pytest.approx(7.202, rel=0.03)
+    bad = revise(a, hand_crest=(1.5 * lam, 0.3, 0.0))  # a wrong reading must show as disagreement
+    assert not bad.speed.consistent and bad.speed.outlier == "crest ruler (by hand)"
+    assert revise(r).methods == a.methods  # re-revising without hand input drops the hand estimate
+
+
+def test_hand_arm_changes_regime(demo):
+    sc, a = demo
+    r = revise(a, hand_half_angle=(19.6, 0.5))
+    assert r.regime.regime == "deep"
+    wide = revise(a, hand_half_angle=(34.6, 0.5))
+    assert wide.regime.regime in ("finite depth", "near-critical")
+    assert any("corrected by hand" in c for c in wide.cautions)
+
+
+def test_crest_lines_follow_the_kelvin_shape(demo):
+    # The transverse crest n crosses the track n * lambda_t behind the vessel (Lamb 1932).
+    sc, a = demo
+    lines = kelvin_crest_lines(sc, a, n_crests=3)
+    assert len(lines) == 3
+    mid = lines[0][len(lines[0]) // 2]
+    f = sc.local_frame(*a.vessel_px)
+    d = f.length_of(mid[0] - a.vessel_px[0], mid[1] - a.vessel_px[1])
+    assert d == pytest.approx(2 * kelvin.transverse_wavelength(a.speed.speed_mps, g=a.gravity_mps2), rel=1e-6)
+    b = f.bearing_of(mid[0] - a.vessel_px[0], mid[1] - a.vessel_px[1])
+    assert abs(((b - a.heading_deg) % 360) - 180) < 0.01

@@ -1,0 +1,217 @@
+"""The results panel: inputs for the analysis, the numbers with their intervals and reasons, and plots."""
+
+from __future__ import annotations
+
+import html
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import Qt, Signal
+from PySide6.QtWidgets import (QCheckBox, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QPushButton,
+                               QTabWidget, QTextBrowser, QVBoxLayout, QWidget)
+
+from ..physics.dispersion import steady_wavenumber
+from ..physics.units import KNOT_MPS
+
+
+def _spin(lo: float, hi: float, dec: int, suffix: str, tip: str, special: str = "unknown") -> QDoubleSpinBox:
+    s = QDoubleSpinBox()
+    s.setRange(lo, hi)
+    s.setDecimals(dec)
+    s.setSuffix(f" {suffix}")
+    s.setSpecialValueText(special)  # the minimum means "not given"
+    s.setValue(lo)
+    s.setToolTip(tip)
+    return s
+
+
+class ResultsPanel(QWidget):
+    analyse_one = Signal()
+    analyse_all = Signal()
+    reject_toggled = Signal(bool)
+    export_requested = Signal()
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        lay = QVBoxLayout(self)
+        self.setStyleSheet("QLabel, QGroupBox, QCheckBox { color: #dfe6ee; } "
+                           "QGroupBox { border: 1px solid #3a4458; border-radius: 4px; margin-top: 14px; "
+                           "padding-top: 6px; } QGroupBox::title { subcontrol-origin: margin; left: 8px; }")
+        self.title = QLabel("Select a vessel")
+        self.title.setStyleSheet("font-weight: bold; font-size: 13px;")
+        lay.addWidget(self.title)
+        box = QGroupBox("What you know (optional)")
+        form = QFormLayout(box)
+        self.depth = _spin(0.0, 5000.0, 1, "m", "Known water depth; leave at 'unknown' to let the wake tell")
+        self.hull = _spin(0.0, 500.0, 1, "m", "Hull length, for the check of narrow arms of fast hulls")
+        form.addRow("Water depth", self.depth)
+        form.addRow("Hull length", self.hull)
+        self.use_radar = QCheckBox("Radar geometry (hull offset from its wake)")
+        self.use_radar.setToolTip("Enables the azimuth-offset method for radar scenes (Raney 1971)")
+        form.addRow(self.use_radar)
+        self.slant = _spin(0.0, 2e6, 0, "m", "Slant range from the radar to the vessel", special="-")
+        self.vplat = _spin(0.0, 10000.0, 0, "m/s", "Platform (satellite or aircraft) speed", special="-")
+        self.look = _spin(-1.0, 360.0, 1, "°", "True bearing from the radar toward the scene", special="-")
+        self.inc = _spin(0.0, 89.0, 1, "°", "Incidence angle at the vessel", special="-")
+        self.radar_box = QWidget()
+        rform = QFormLayout(self.radar_box)
+        rform.setContentsMargins(12, 0, 0, 0)
+        for lab, w in (("Slant range", self.slant), ("Platform speed", self.vplat), ("Look bearing", self.look),
+                       ("Incidence", self.inc)):
+            rform.addRow(lab, w)
+        form.addRow(self.radar_box)
+        self.radar_box.setVisible(False)
+        self.use_radar.toggled.connect(self.radar_box.setVisible)
+        lay.addWidget(box)
+        row = QHBoxLayout()
+        self.run_button = QPushButton("Analyse vessel")
+        self.run_button.setToolTip("Find the wake of the selected vessel and estimate its speed (runs in the background)")
+        self.run_button.clicked.connect(self.analyse_one.emit)
+        self.run_all_button = QPushButton("Analyse all")
+        self.run_all_button.setToolTip("Analyse every marked vessel, one after the other")
+        self.run_all_button.clicked.connect(self.analyse_all.emit)
+        row.addWidget(self.run_button)
+        row.addWidget(self.run_all_button)
+        lay.addLayout(row)
+        row2 = QHBoxLayout()
+        self.reject = QCheckBox("Reject this finding")
+        self.reject.setToolTip("Keep the finding on record but do not use it (it is not exported)")
+        self.reject.toggled.connect(self.reject_toggled.emit)
+        self.export_button = QPushButton("Export evidence…")
+        self.export_button.setToolTip("Write the annotated image, the PDF report and the JSON record")
+        self.export_button.clicked.connect(self.export_requested.emit)
+        row2.addWidget(self.reject)
+        row2.addWidget(self.export_button)
+        lay.addLayout(row2)
+        self.tabs = QTabWidget()
+        self.text = QTextBrowser()
+        self.text.setOpenExternalLinks(False)
+        self.tabs.addTab(self.text, "Numbers")
+        pg.setConfigOptions(antialias=True, imageAxisOrder="row-major")
+        self.spec_plot = pg.PlotWidget(title="Wave spectrum behind the vessel, fitted curve")
+        self.spec_plot.setLabel("bottom", "wavenumber along the track", units="rad/m")
+        self.spec_plot.setLabel("left", "across", units="rad/m")
+        self.spec_img = pg.ImageItem()
+        self.spec_plot.addItem(self.spec_img)
+        self.spec_curve = [self.spec_plot.plot(pen=pg.mkPen((255, 80, 80), width=2)) for _ in range(2)]
+        self.prof_plot = pg.PlotWidget(title="Intensity along the track, crest spacing")
+        self.prof_plot.setLabel("bottom", "distance behind the vessel", units="m")
+        self.prof_line = self.prof_plot.plot(pen=pg.mkPen((220, 220, 220)))
+        self.prof_marks = self.prof_plot.plot(pen=None, symbol="t", symbolBrush=(255, 60, 170), symbolSize=9)
+        plots = QWidget()
+        pl = QVBoxLayout(plots)
+        pl.setContentsMargins(0, 0, 0, 0)
+        pl.addWidget(self.spec_plot, 3)
+        pl.addWidget(self.prof_plot, 2)
+        self.tabs.addTab(plots, "Plots")
+        lay.addWidget(self.tabs, 1)
+        self.show_result(None, None)
+
+    # ---- inputs -----------------------------------------------------------
+    def inputs(self) -> dict:
+        out = {"depth_m": self.depth.value() or None, "hull_length_m": self.hull.value() or None,
+               "radar_geometry": None}
+        if self.use_radar.isChecked() and self.slant.value() > 0 and self.vplat.value() > 0 and self.inc.value() > 0:
+            out["radar_geometry"] = [self.slant.value(), self.vplat.value(), max(self.look.value(), 0.0),
+                                     self.inc.value()]
+        return out
+
+    def set_inputs(self, d: dict | None) -> None:
+        d = d or {}
+        self.depth.setValue(d.get("depth_m") or 0.0)
+        self.hull.setValue(d.get("hull_length_m") or 0.0)
+        rg = d.get("radar_geometry")
+        self.use_radar.setChecked(bool(rg))
+        for w, v in zip((self.slant, self.vplat, self.look, self.inc), rg or (0, 0, -1, 0)):
+            w.setValue(v)
+
+    # ---- display ----------------------------------------------------------
+    def show_result(self, name: str | None, result, *, rejected: bool = False, analysis=None) -> None:
+        """``result`` is the analysis JSON (``WakeAnalysis.to_json()``), ``analysis`` the object when at hand."""
+        self.title.setText(f"Vessel: {name}" if name else "Select a vessel, then Analyse")
+        self.reject.blockSignals(True)
+        self.reject.setChecked(rejected)
+        self.reject.blockSignals(False)
+        self.reject.setEnabled(result is not None)
+        self.export_button.setEnabled(result is not None and not rejected)
+        if result is None:
+            self.text.setHtml("<p>No analysis yet. Mark a vessel with the <b>Vessel</b> tool, select it, give "
+                              "what you know, and press <b>Analyse vessel</b>.</p><p>Every figure comes with its "
+                              "95 % interval, method and assumptions.</p>")
+            self._clear_plots()
+            return
+        self.text.setHtml(result_html(result, rejected))
+        self._plots(analysis)
+
+    def _clear_plots(self) -> None:
+        self.spec_img.clear()
+        for c in self.spec_curve:
+            c.setData([], [])
+        self.prof_line.setData([], [])
+        self.prof_marks.setData([], [])
+
+    def _plots(self, a) -> None:
+        if a is None or not a.plots.get("whitened_spectrum") is not None:
+            self._clear_plots()
+            return
+        p = a.plots
+        white = p["whitened_spectrum"]
+        dk_u, dk_v = p["spectrum_dk"]
+        n_v, n_u = white.shape
+        self.spec_img.setImage(np.clip(white, -2, 6), levels=(-2, 6))
+        self.spec_img.setColorMap(pg.colormap.get("viridis"))
+        from PySide6.QtCore import QRectF
+        self.spec_img.setRect(QRectF(-n_u / 2 * dk_u, -n_v / 2 * dk_v, n_u * dk_u, n_v * dk_v))
+        u, h, d = p["fit_speed_mps"], p["fit_depth_m"], p["fit_delta_deg"]
+        th = np.radians(np.arange(-84.0, 84.5, 0.5))
+        k = (a.gravity_mps2 / (u * u * np.cos(th) ** 2) if np.isinf(h) else
+             np.asarray(steady_wavenumber(u, np.abs(np.degrees(th)), h, g=a.gravity_mps2)))
+        k = np.where(k <= p["spectrum_band"][1] * 1.05, k, np.nan)
+        ang = th + np.radians(d)
+        for c, sgn in zip(self.spec_curve, (1, -1)):
+            c.setData(sgn * k * np.cos(ang), sgn * k * np.sin(ang), connect="finite")
+        prof = np.asarray(p["profile"], float)
+        x = np.arange(prof.size) * p["profile_m_per_px"]
+        self.prof_line.setData(x, prof)
+        lam = p.get("transverse_wavelength_m")
+        if lam:
+            xs = np.arange(0, x[-1], lam)
+            self.prof_marks.setData(xs, np.full(xs.size, np.nanmax(prof)))
+        else:
+            self.prof_marks.setData([], [])
+
+
+def result_html(r: dict, rejected: bool = False) -> str:
+    esc = html.escape
+    if not r.get("wake_found"):
+        return (f"<h3>No wake found</h3><p>{esc(r.get('decision', ''))}</p><p>No speed is given for a vessel "
+                "without a detectable wake. You can still measure by hand (crest ruler, track, arm).</p>")
+    lo, hi = r["speed_ci95_mps"]
+    rows = "".join(f"<tr><td>{esc(m['name'])}</td><td align=right>{m['speed_mps']:.2f}</td>"
+                   f"<td align=right>{m['speed_ci95_mps'][0]:.2f} – {m['speed_ci95_mps'][1]:.2f}</td>"
+                   f"<td align=right>{m['speed_mps'] / KNOT_MPS:.1f}</td></tr>" for m in r["methods"])
+    assumptions = sorted({a for m in r["methods"] for a in m.get("assumptions", [])})
+    depth = ("not estimated" if r["depth_m"] is None else
+             f"{r['depth_m']:.1f} m (95 %: {r['depth_ci95_m'][0]:.1f} – {r['depth_ci95_m'][1]:.1f} m)")
+    half = ("not measured" if r["half_angle_deg"] is None else
+            f"{r['half_angle_deg']:.1f} ± {r['half_angle_std_deg']:.1f}°")
+    lam = "not seen" if r["transverse_wavelength_m"] is None else f"{r['transverse_wavelength_m']:.1f} m"
+    return (
+        ("<p style='color:#c33'><b>Rejected:</b> kept on record, not used or exported.</p>" if rejected else "")
+        + f"<h2 style='margin-bottom:2px'>{r['speed_knots']:.1f} kn &nbsp; <small>({r['speed_mps']:.2f} m/s)</small></h2>"
+        f"<p style='margin-top:0'>95 % interval <b>{lo / KNOT_MPS:.1f} – {hi / KNOT_MPS:.1f} kn</b> "
+        f"({lo:.2f} – {hi:.2f} m/s)</p>"
+        f"<table cellspacing=4>"
+        f"<tr><td>Heading (true)</td><td><b>{r['heading_deg']:.1f}°</b> ± {r['heading_std_deg']:.1f}°</td></tr>"
+        f"<tr><td>Half-angle</td><td>{half}</td></tr>"
+        f"<tr><td>Transverse crests</td><td>{lam}</td></tr>"
+        f"<tr><td>Depth regime</td><td><b>{esc(r['regime'])}</b></td></tr>"
+        f"<tr><td>Depth</td><td>{depth}</td></tr></table>"
+        f"<p><small>{esc(r['regime_explanation'])}</small></p>"
+        f"<h4>Methods</h4><table border=0 cellspacing=4><tr><th align=left>method</th><th>m/s</th>"
+        f"<th>95 % (m/s)</th><th>kn</th></tr>{rows}</table>"
+        f"<p>{esc(r['consistency'] or '')}</p>"
+        "<h4>Assumptions</h4><ul>" + "".join(f"<li>{esc(a)}</li>" for a in assumptions)
+        + f"<li>gravity {r['gravity_mps2']:.4f} m/s²; analysis pixel {r['pixel_m']:.2f} m</li></ul>"
+        "<h4>Cautions</h4><ul>" + "".join(f"<li>{esc(c)}</li>" for c in r["cautions"]) + "</ul>"
+        f"<p><small>{esc(r['decision'])}</small></p>")
