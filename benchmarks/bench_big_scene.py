@@ -16,7 +16,6 @@ A plain rasterio read of the same requests is printed beside each as the referen
 from __future__ import annotations
 
 import json
-import os
 import subprocess
 import sys
 import tempfile

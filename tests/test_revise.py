@@ -1,10 +1,8 @@
 """Hand corrections of findings and the fitted crest lines (synthetic truth of the demo scenes;
 crest geometry from Lamb 1932 sec. 256)."""
 
-import json
 from pathlib import Path
 
-import numpy as np
 import pytest
 
 from wakemeter.detect.analysis import analyze

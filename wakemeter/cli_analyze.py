@@ -30,21 +30,28 @@ def _add(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=0, help="seed of the Monte Carlo draws")
 
 
-@command("analyze", "Find a vessel's wake and estimate speed (95 % interval), heading and depth regime.")(_add)
-def run(args: argparse.Namespace) -> int:
-    from .detect.analysis import RadarGeometry, analyze
-    from .scene.raster import open_scene
+def check_position_and_radar(args: argparse.Namespace):
+    """Validate the vessel position options; the radar geometry when given."""
+    from .detect.analysis import RadarGeometry
 
     if (args.vessel is None) == (args.vessel_px is None):
         raise ParameterError("give the vessel position with --vessel LON,LAT or --vessel-px COL,ROW (one of them)")
-    radar_geo = None
-    if args.radar_geometry:
-        try:
-            r, v, look, inc = (float(x) for x in args.radar_geometry.split(","))
-        except ValueError as err:
-            raise ParameterError("--radar-geometry needs four numbers: slant range m, platform speed m/s, "
-                                 f"look bearing deg, incidence deg; got {args.radar_geometry!r}") from err
-        radar_geo = RadarGeometry(r, v, look, inc)
+    if not args.radar_geometry:
+        return None
+    try:
+        r, v, look, inc = (float(x) for x in args.radar_geometry.split(","))
+    except ValueError as err:
+        raise ParameterError("--radar-geometry needs four numbers: slant range m, platform speed m/s, "
+                             f"look bearing deg, incidence deg; got {args.radar_geometry!r}") from err
+    return RadarGeometry(r, v, look, inc)
+
+
+@command("analyze", "Find a vessel's wake and estimate speed (95 % interval), heading and depth regime.")(_add)
+def run(args: argparse.Namespace) -> int:
+    from .detect.analysis import analyze
+    from .scene.raster import open_scene
+
+    radar_geo = check_position_and_radar(args)
     with open_scene(args.scene) as scene:
         a = analyze(scene, vessel_lonlat=_pair(args.vessel, "--vessel") if args.vessel else None,
                     vessel_px=_pair(args.vessel_px, "--vessel-px") if args.vessel_px else None,
@@ -72,9 +79,9 @@ def format_analysis(a) -> str:
         f"speed through water: {j['speed_mps']:.2f} m/s = {mps_to_knots(j['speed_mps']):.1f} kn "
         f"(95 % interval {lo:.2f}-{hi:.2f} m/s = {mps_to_knots(lo):.1f}-{mps_to_knots(hi):.1f} kn)",
         f"heading (true):      {j['heading_deg']:.1f} deg +/- {j['heading_std_deg']:.1f}",
-        f"wake half-angle:     " + (f"{j['half_angle_deg']:.1f} +/- {j['half_angle_std_deg']:.1f} deg"
+        "wake half-angle:     " + (f"{j['half_angle_deg']:.1f} +/- {j['half_angle_std_deg']:.1f} deg"
                                     if j["half_angle_deg"] is not None else "not measured"),
-        f"transverse waves:    " + (f"{j['transverse_wavelength_m']:.1f} m apart" if j["transverse_wavelength_m"]
+        "transverse waves:    " + (f"{j['transverse_wavelength_m']:.1f} m apart" if j["transverse_wavelength_m"]
                                     else "not seen"),
         f"depth regime:        {j['regime']} - {j['regime_explanation']}",
     ]

@@ -6,8 +6,7 @@ import argparse
 
 from .cli import CAUTION, command
 from .cli_analyze import _add as _add_analysis
-from .cli_analyze import _pair
-from .errors import ParameterError
+from .cli_analyze import _pair, check_position_and_radar
 
 
 def _add(p: argparse.ArgumentParser) -> None:
@@ -20,16 +19,11 @@ def _add(p: argparse.ArgumentParser) -> None:
 
 @command("report", "Analyse a vessel's wake and write an annotated PNG, a PDF report and a JSON record.")(_add)
 def run(args: argparse.Namespace) -> int:
-    from .detect.analysis import RadarGeometry, analyze
+    from .detect.analysis import analyze
     from .evidence.export import export_evidence
     from .scene.raster import open_scene
 
-    if (args.vessel is None) == (args.vessel_px is None):
-        raise ParameterError("give the vessel position with --vessel LON,LAT or --vessel-px COL,ROW (one of them)")
-    radar_geo = None
-    if args.radar_geometry:
-        vals = _pair_n(args.radar_geometry, 4, "--radar-geometry")
-        radar_geo = RadarGeometry(*vals)
+    radar_geo = check_position_and_radar(args)
     params = {k: v for k, v in {"vessel": args.vessel, "vessel_px": args.vessel_px, "depth_m": args.depth,
                                 "depth_std_m": args.depth_std or None, "hull_length_m": args.hull_length,
                                 "radar_geometry": args.radar_geometry, "seed": args.seed}.items() if v is not None}
@@ -49,12 +43,3 @@ def run(args: argparse.Namespace) -> int:
     print(CAUTION)
     return 0
 
-
-def _pair_n(text: str, n: int, what: str) -> list[float]:
-    try:
-        vals = [float(x) for x in text.split(",")]
-    except ValueError as err:
-        raise ParameterError(f"{what} needs {n} numbers separated by commas, got {text!r}") from err
-    if len(vals) != n:
-        raise ParameterError(f"{what} needs {n} numbers separated by commas, got {text!r}")
-    return vals

@@ -39,7 +39,7 @@ def _add(p: argparse.ArgumentParser) -> None:
 
 @command("synth", "Make a synthetic wake scene of known truth (GeoTIFF plus <name>.truth.json).")(_add)
 def run(args: argparse.Namespace) -> int:
-    from .synth import AmbientSea, Hull, OpticalModel, RadarModel, SceneSpec, VesselSpec, render, write
+    from .synth import AmbientSea, Hull, OpticalModel, RadarModel, VesselSpec, render, write
     from .synth.demo import vessel_scene, write_demo_scenes
 
     if args.demo:

@@ -16,10 +16,10 @@ from __future__ import annotations
 import datetime as _dt
 import json
 import os
-import tempfile
 from pathlib import Path
 
 from .errors import WakemeterError
+from .fileio import atomic_write_bytes
 
 SCHEMA = "wakemeter.session/1"
 
@@ -42,18 +42,10 @@ def save(path: str | os.PathLike, data: dict) -> Path:
             scene["path"] = scene["absolute_path"]
     data["scene"] = scene
     text = json.dumps(data, indent=2, default=_plain)
-    tmp = None
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
-        with os.fdopen(fd, "w") as fh:
-            fh.write(text + "\n")
-        os.replace(tmp, target)
-        tmp = None
+        atomic_write_bytes(target, (text + "\n").encode())
     except OSError as err:
         raise SessionError(f"cannot save the session to {target}: {err.strerror or err}") from err
-    finally:
-        if tmp:
-            Path(tmp).unlink(missing_ok=True)
     return target
 
 

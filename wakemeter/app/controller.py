@@ -12,7 +12,7 @@ from PySide6.QtWidgets import QDockWidget, QFileDialog, QMessageBox
 
 from .. import session as session_mod
 from ..errors import WakemeterError
-from .document import AddItem, Measurement, SetFinding, SetRejected, StoredFinding, Vessel
+from .document import Measurement, SetFinding, SetRejected, StoredFinding, Vessel
 from .results import ResultsPanel
 from .workers import Job
 

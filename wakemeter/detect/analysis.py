@@ -11,7 +11,6 @@ from collections.abc import Callable
 from dataclasses import dataclass, field, replace
 
 import numpy as np
-from scipy import ndimage
 
 from ..errors import CancelledError, ParameterError
 from ..physics import inversion as inv

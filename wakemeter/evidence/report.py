@@ -41,7 +41,7 @@ def write_pdf(path: str, record: dict, evidence_img: np.ndarray, plots: list[np.
                             bottomMargin=14 * mm, title="wakemeter evidence report", author=record["provenance"]["analyst"] or "",
                             creator=record["provenance"]["software"], invariant=1)
     st = getSampleStyleSheet()
-    body, small = st["BodyText"], st["BodyText"].clone("small", fontSize=8, leading=10)
+    small = st["BodyText"].clone("small", fontSize=8, leading=10)
     warn = st["BodyText"].clone("warn", textColor=colors.HexColor("#8a1c1c"), fontSize=9.5, leading=12)
     r, prov = record["result"], record["provenance"]
     width = size[0] - 32 * mm

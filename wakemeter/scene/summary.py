@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import os
-import tempfile
 from pathlib import Path
 
 import numpy as np
 
 from ..errors import ParameterError, SceneWriteError
+from ..fileio import atomic_write_bytes
 from . import display, geodesy
 from .raster import Scene
 
@@ -89,19 +89,8 @@ def write_png(image: np.ndarray, path: str | os.PathLike) -> Path:
     ok, buf = cv2.imencode(".png", np.ascontiguousarray(arr))
     if not ok:
         raise SceneWriteError(f"cannot encode {target} as PNG")
-    tmp = None
     try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(buf.tobytes())
-        mask = os.umask(0)
-        os.umask(mask)
-        os.chmod(tmp, 0o666 & ~mask)
-        os.replace(tmp, target)
-        tmp = None
+        atomic_write_bytes(target, buf.tobytes())
     except OSError as err:
         raise SceneWriteError(f"cannot write {target}: {err.strerror or err}") from err
-    finally:
-        if tmp:
-            Path(tmp).unlink(missing_ok=True)
     return target
