@@ -150,3 +150,18 @@ def test_autosave_and_restore_after_a_crash(win, qtbot, tmp_path):
     assert asked and len(w2.doc.vessels) == 1
     w2.close()  # a clean exit removes the autosave
     assert not autosave_path().exists()
+
+
+def test_report_command_accepts_a_session(win, qtbot, tmp_path):
+    from wakemeter.cli import main
+    _analyse(win, qtbot)
+    path = tmp_path / "s.json"
+    assert win.controller.save_session(str(path))
+    out = tmp_path / "out"
+    out.mkdir()
+    assert main(["report", str(path), "--out", str(out)]) == 0
+    names = sorted(p.suffix for p in out.iterdir())
+    assert names == [".json", ".pdf", ".png"]
+    rec = json.loads(next(out.glob("*.json")).read_text())
+    vid = next(iter(win.doc.vessels))
+    assert rec["result"]["speed_mps"] == pytest.approx(win.doc.effective_finding(vid).speed.speed_mps, rel=1e-9)

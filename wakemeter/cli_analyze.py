@@ -18,7 +18,7 @@ def _pair(text: str, what: str) -> tuple[float, float]:
 
 
 def _add(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scene", help="raster file")
+    p.add_argument("scene", help="raster file (for 'report': or a saved session, .json)")
     p.add_argument("--vessel", metavar="LON,LAT", help="vessel position in WGS 84 degrees")
     p.add_argument("--vessel-px", metavar="COL,ROW", help="vessel position in scene pixels (instead of --vessel)")
     p.add_argument("--depth", type=float, metavar="M", help="known water depth, m")

@@ -21,7 +21,14 @@ def _add(p: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     from .detect.analysis import analyze
     from .evidence.export import export_evidence
+    from .evidence.from_session import is_session, report_from_session
     from .scene.raster import open_scene
+
+    if is_session(args.scene):  # a saved session instead of a scene: every vessel not rejected
+        for files in report_from_session(args.scene, args.out, analyst=args.analyst, force=args.force):
+            print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
+        print(CAUTION)
+        return 0
 
     radar_geo = check_position_and_radar(args)
     params = {k: v for k, v in {"vessel": args.vessel, "vessel_px": args.vessel_px, "depth_m": args.depth,

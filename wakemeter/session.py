@@ -31,9 +31,8 @@ class SessionError(WakemeterError, ValueError):
 def save(path: str | os.PathLike, data: dict) -> Path:
     """Write a session dict atomically; relative scene path computed here."""
     target = Path(path)
-    data = dict(data)
-    data["schema"] = SCHEMA
-    data["saved_at"] = _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat()
+    data = {"schema": SCHEMA, "saved_at": _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat(),
+            **{k: v for k, v in data.items() if k not in ("schema", "saved_at")}}
     scene = dict(data.get("scene") or {})
     if scene.get("absolute_path"):
         try:
