@@ -21,8 +21,8 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from . import arms as arms_mod
 from .prepare import Chip, prepare_chip
-from .spectral import (CurveFit, crest_spacing, fit_curve, fit_depth, refine_speed_depth, student_inflation,
-                       whitened_spectrum)
+from .spectral import (CurveFit, crest_spacing, fit_curve, fit_depth, fit_depth_at_speed, fit_short_waves,
+                       refine_speed_depth, student_inflation, whitened_spectrum)
 from .trackframe import track_frame, wake_side
 
 #: Decision thresholds, calibrated on wake-free scenes (see tests/test_wake_decision.py and DEVELOPERS.md).
@@ -40,6 +40,11 @@ TRANSVERSE_SNR_MIN = 12.0
 SPECTRAL_SIGMA_SCALE = 0.5
 #: Below this depth Froude number depth changes the pattern too little to matter (Havelock: < 0.3 deg).
 FR_DEPTH_EFFECT = 0.6
+#: The short divergent waves (k >= 3 g/U^2) follow the deep curve at any depth with Fr_h < 1; when they are
+#: clearly seen (score >= SHORT_SCORE_MIN) and give a speed more than SHORT_LONG_MISMATCH away from the whole
+#: pattern's, depth is slowing the long waves.  Set on synthetic seeds 400-409 (deep and Fr_h 0.8-0.95).
+SHORT_SCORE_MIN = 7.0
+SHORT_LONG_MISMATCH = 0.015
 K_HI_FACTOR = 1.8  # wave-energy band for the arms: 0.5 to 1.8 x the transverse wavenumber
 
 
@@ -264,6 +269,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     # longer transverse waves than the short divergent waves imply in deep water)
     u_fit, h_fit, finite = fit.speed_mps, depth_fit, depth_m is not None
     depth_gain = np.nan
+    short_ok = True
     evidence: list[str] = []
     if depth_m is None:
         u_h, h_h, s_h, long_gain = fit_depth(sp, fit.speed_mps, fit.delta_deg, g=g)
@@ -275,10 +281,20 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                             "longer than deep water allows")
             if not np.isfinite(h_h):
                 h_h = float(havelock.depth_from_speed_and_transverse_wavelength(fit.speed_mps, long_t[0], g=g))
+        u_short, s_short = fit_short_waves(sp, fit.speed_mps, fit.delta_deg, g=g)
+        short_ok = bool(np.isfinite(u_short) and s_short >= SHORT_SCORE_MIN)
+        if short_ok and abs(u_short / fit.speed_mps - 1) > SHORT_LONG_MISMATCH:
+            h_s, _ = fit_depth_at_speed(sp, u_short, fit.delta_deg, g=g)
+            if np.isfinite(h_s) and u_short / np.sqrt(g * h_s) >= FR_DEPTH_EFFECT:
+                evidence.append(f"the short divergent waves give {u_short:.2f} m/s, the whole pattern "
+                                f"{fit.speed_mps:.2f} m/s: depth slows the long waves")
+                u_h, h_h = u_short, h_s
         wide = half is not None and half > kelvin.KELVIN_HALF_ANGLE_DEG + max(2.5 * half_sd, 3.0)
         if wide and depth_gain >= 1.0:
             evidence.append(f"arms at {half:.1f} deg, wider than Kelvin's 19.47 deg")
-        if evidence and (depth_gain >= 1.0 or len(evidence) > 1):
+        if any("short divergent" in e for e in evidence):
+            u_fit, h_fit, finite = u_h, h_h, True
+        elif evidence and (depth_gain >= 1.0 or len(evidence) > 1):
             if not np.isfinite(h_h):
                 fr0 = float(havelock.froude_from_half_angle(half).subcritical or 0.9)
                 h_h = fit.speed_mps ** 2 / (g * fr0 ** 2)
@@ -374,6 +390,10 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         cautions.append(combined.verdict)
     if cond_depth is None:
         cautions.append("water depth not given: deep water assumed (the wave spectrum shows no depth effect)")
+        if not short_ok:
+            h_crit = u_fit ** 2 / (g * FR_DEPTH_EFFECT ** 2)
+            cautions.append(f"short waves are not resolved, so shallow water cannot be ruled out: if the depth may be "
+                            f"less than about {h_crit:.0f} m, give it - the speed could otherwise be too high")
     cautions.append("speed is through the water; a current adds to the speed over ground")
     geometry = _geometry(chip, back, half, arms)
     plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,

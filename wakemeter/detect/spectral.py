@@ -91,13 +91,34 @@ def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) ->
     return SpectrumPair(white, dk_u, dk_v, k_lo, k_hi, m_per_px)
 
 
-def curve_score(sp: SpectrumPair, speed: float, delta_deg: float, depth_m: float, g: float) -> float:
+def curve_score(sp: SpectrumPair, speed: float, delta_deg: float, depth_m: float, g: float,
+                k_floor_factor: float | None = None) -> float:
     """Mean whitened log-power along the steady-wave curve (NaN if too little of it is in band)."""
-    return float(_scores(sp, np.array([speed]), delta_deg, depth_m, g)[0])
+    return float(_scores(sp, np.array([speed]), delta_deg, depth_m, g, k_floor_factor=k_floor_factor)[0])
+
+
+def fit_short_waves(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float, k_floor_factor: float = 3.0
+                    ) -> tuple[float, float]:
+    """Speed from the short divergent waves only (k >= 3 g / U^2, propagation beyond ~55 deg).
+
+    For any depth Froude number below ~1 these waves have k h > 3, where tanh(k h) ~ 1: the deep-water
+    curve holds for them whatever the depth, so this speed is free of the depth bias of the full fit.
+    Returns (speed, score).
+    """
+    speeds = np.geomspace(0.6 * speed, 1.4 * speed, 121)
+    sc = _scores(sp, speeds, delta_deg, np.inf, g, k_floor_factor=k_floor_factor)
+    if not np.any(np.isfinite(sc)):
+        return np.nan, np.nan
+    j = int(np.nanargmax(sc))
+    res = optimize.minimize_scalar(lambda lu: -np.nan_to_num(curve_score(sp, float(np.exp(lu)), delta_deg, np.inf, g,
+                                                                        k_floor_factor), nan=-1e9),
+                                   bounds=(np.log(speeds[max(j - 1, 0)]), np.log(speeds[min(j + 1, speeds.size - 1)])),
+                                   method="bounded", options={"xatol": 1e-5})
+    return float(np.exp(res.x)), float(-res.fun)
 
 
 def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: float, g: float,
-            k_cap_factor: float | None = None) -> np.ndarray:
+            k_cap_factor: float | None = None, k_floor_factor: float | None = None) -> np.ndarray:
     """Scores of the curves for several speeds; ``k_cap_factor`` keeps only k <= factor * g / U^2
     (the long waves, where depth acts)."""
     th = _THETA[None, :]
@@ -113,6 +134,8 @@ def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: flo
     ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
     if k_cap_factor is not None:
         ok &= k <= k_cap_factor * g / (u * u)
+    if k_floor_factor is not None:  # short waves only: k h >= factor / Fr_h^2, depth-independent
+        ok &= k >= k_floor_factor * g / (u * u)
     n_v, n_u = sp.white.shape
     cu = n_u // 2 + np.where(ok, ku, 0) / sp.dk_u
     cv = n_v // 2 + np.where(ok, kv, 0) / sp.dk_v
@@ -250,3 +273,14 @@ def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg
         "xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.05]]})
     x = res.x if res.fun <= neg(x0) else x0
     return float(np.exp(x[0])), float(np.exp(x[1])), -neg(x)
+
+
+def fit_depth_at_speed(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float) -> tuple[float, float]:
+    """Depth (m) whose finite-depth curve fits best at a known speed (1-D search), and its score."""
+    h_min = max(speed ** 2 / (g * 0.98 ** 2), 0.3)
+    depths = np.geomspace(h_min, max(300.0, 10 * h_min), 80)
+    sc = np.array([curve_score(sp, speed, delta_deg, h, g) for h in depths])
+    if not np.any(np.isfinite(sc)):
+        return np.inf, np.nan
+    i = int(np.nanargmax(sc))
+    return float(depths[i]), float(sc[i])
