@@ -138,3 +138,18 @@ def test_screenshot_command(tmp_path):
     img = cv2.imread(str(out))
     assert img.shape[:2] == (600, 900)
     assert img[100:500, 200:700].std() > 10  # the scene is drawn, not an empty canvas
+
+
+def test_band_choice_on_a_multiband_scene(win, tmp_path):
+    import rasterio
+    from affine import Affine
+    p = tmp_path / "four.tif"
+    data = (np.random.default_rng(1).random((4, 64, 80)) * 1000).astype(np.uint16)
+    with rasterio.open(p, "w", driver="GTiff", width=80, height=64, count=4, dtype="uint16", crs="EPSG:32631",
+                       transform=Affine(2, 0, 500000, 0, -2, 6000000)) as dst:
+        dst.write(data)
+    assert win.open_path(str(p))
+    assert win.canvas.loader.contrast.bands == (1, 2, 3)
+    assert win.choose_bands("4,3,2") and win.canvas.loader.contrast.bands == (4, 3, 2)
+    assert win.choose_bands("4") and not win.canvas.loader.contrast.rgb
+    assert not win.choose_bands("1,2") and "three" in win.last_error

@@ -8,7 +8,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QObject, Qt, QTimer
 from PySide6.QtGui import QKeySequence
-from PySide6.QtWidgets import QDockWidget, QFileDialog, QMessageBox
+from PySide6.QtWidgets import QDockWidget, QFileDialog, QMessageBox, QScrollArea
 
 from .. import session as session_mod
 from ..errors import WakemeterError
@@ -25,7 +25,13 @@ class Controller(QObject):
         self.panel = ResultsPanel()
         dock = QDockWidget("Results", win)
         dock.setObjectName("results")
-        dock.setWidget(self.panel)
+        scroll = QScrollArea()
+        scroll.setWidgetResizable(True)
+        scroll.setFrameShape(QScrollArea.NoFrame)
+        scroll.setStyleSheet("QScrollArea { background: #1c2028; } QScrollArea > QWidget > QWidget { background: #1c2028; }")
+        scroll.setWidget(self.panel)
+        self.panel.setMinimumHeight(520)
+        dock.setWidget(scroll)
         win.addDockWidget(Qt.RightDockWidgetArea, dock)
         win.resizeDocks([win.items_dock, dock], [400, 400], Qt.Horizontal)
         win.resizeDocks([win.items_dock, dock], [160, 600], Qt.Vertical)

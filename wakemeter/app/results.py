@@ -98,11 +98,21 @@ class ResultsPanel(QWidget):
         self.prof_plot.setLabel("bottom", "distance behind the vessel", units="m")
         self.prof_line = self.prof_plot.plot(pen=pg.mkPen((220, 220, 220)))
         self.prof_marks = self.prof_plot.plot(pen=None, symbol="t", symbolBrush=(255, 60, 170), symbolSize=9)
+        self.radon_plot = pg.PlotWidget(title="Radon transform around the vessel (behind it), picked wake line")
+        self.radon_plot.setLabel("bottom", "line normal angle", units="°")
+        self.radon_plot.setLabel("left", "offset from the vessel", units="px")
+        self.radon_img = pg.ImageItem()
+        self.radon_plot.addItem(self.radon_img)
+        self.radon_pick = self.radon_plot.plot(pen=None, symbol="o", symbolPen=pg.mkPen((255, 200, 0), width=2),
+                                               symbolBrush=None, symbolSize=14)
         plots = QWidget()
         pl = QVBoxLayout(plots)
         pl.setContentsMargins(0, 0, 0, 0)
+        for w in (self.spec_plot, self.prof_plot, self.radon_plot):
+            w.setMinimumHeight(60)
         pl.addWidget(self.spec_plot, 3)
         pl.addWidget(self.prof_plot, 2)
+        pl.addWidget(self.radon_plot, 2)
         self.tabs.addTab(plots, "Plots")
         lay.addWidget(self.tabs, 1)
         self.show_result(None, None)
@@ -149,6 +159,8 @@ class ResultsPanel(QWidget):
             c.setData([], [])
         self.prof_line.setData([], [])
         self.prof_marks.setData([], [])
+        self.radon_img.clear()
+        self.radon_pick.setData([], [])
 
     def _plots(self, a) -> None:
         if a is None or not a.plots.get("whitened_spectrum") is not None:
@@ -179,6 +191,16 @@ class ResultsPanel(QWidget):
             self.prof_marks.setData(xs, np.full(xs.size, np.nanmax(prof)))
         else:
             self.prof_marks.setData([], [])
+        sino = p.get("radon")
+        if sino is not None:
+            from PySide6.QtCore import QRectF
+            n = sino.shape[0]
+            lo, hi = np.percentile(sino, [1, 99.5])
+            self.radon_img.setImage(sino, levels=(lo, hi))
+            self.radon_img.setColorMap(pg.colormap.get("viridis"))
+            self.radon_img.setRect(QRectF(0, -n / 2, 180, n))
+            ang, off, _sig = p["radon_pick"]
+            self.radon_pick.setData([ang % 180], [off])
 
 
 def result_html(r: dict, rejected: bool = False) -> str:

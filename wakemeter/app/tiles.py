@@ -17,7 +17,7 @@ import numpy as np
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
 from PySide6.QtGui import QImage
 
-from ..errors import WakemeterError
+from ..errors import ParameterError, WakemeterError
 from ..scene import display
 from ..scene.raster import Scene
 from rasterio.enums import Resampling
@@ -34,15 +34,21 @@ class Contrast:
     gamma: float = 1.0
     db: bool = False
     rgb: bool = False
+    bands: tuple[int, ...] = (1,)  #: 1-based bands shown: one (grey) or three (red, green, blue)
 
 
 def estimate_contrast(scene: Scene, *, db: bool | None = None, gamma: float = 1.0, low: float = 1.0,
-                      high: float = 99.5) -> Contrast:
+                      high: float = 99.5, bands: tuple[int, ...] | None = None) -> Contrast:
     """Percentile stretch from a small whole-scene read (uses overviews when present)."""
     s = min(1.0, 512 / max(scene.width, scene.height))
     oh, ow = max(1, int(scene.height * s)), max(1, int(scene.width * s))
-    rgb = scene.info.count >= 3
-    bands = (1, 2, 3) if rgb else (1,)
+    if bands is None:
+        bands = (1, 2, 3) if scene.info.count >= 3 else (1,)
+    bands = tuple(int(b) for b in bands)
+    if len(bands) not in (1, 3) or any(b < 1 or b > scene.info.count for b in bands):
+        raise ParameterError(f"choose one band (grey) or three (red, green, blue) within 1..{scene.info.count}, "
+                             f"got {bands}")
+    rgb = len(bands) == 3
     data, valid = scene.read(out_shape=(oh, ow), bands=bands)
     if db is None:
         db = display.looks_like_radar(scene.info.dtype, scene.info.count, data[0][valid[0]][:100_000])
@@ -54,7 +60,7 @@ def estimate_contrast(scene: Scene, *, db: bool | None = None, gamma: float = 1.
         lo, hi = (np.percentile(v, [low, high]) if v.size else (0.0, 1.0))
         los.append(float(lo))
         his.append(float(hi if hi > lo else lo + 1))
-    return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb)
+    return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb, bands)
 
 
 def to_rgb8(data: np.ndarray, valid: np.ndarray, c: Contrast) -> np.ndarray:
@@ -79,7 +85,7 @@ def read_tile(scene: Scene, level: int, tx: int, ty: int, contrast: Contrast) ->
         return None
     w, h = min(TILE * f, scene.width - c0), min(TILE * f, scene.height - r0)
     ow, oh = max(1, int(np.ceil(w / f))), max(1, int(np.ceil(h / f)))
-    bands = (1, 2, 3) if contrast.rgb else (1,)
+    bands = contrast.bands
     # read at up to twice the display resolution (fast nearest sampling from overviews/pyramid),
     # then reduce with area averaging
     rw, rh = min(w, 2 * ow), min(h, 2 * oh)

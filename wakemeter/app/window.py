@@ -94,6 +94,7 @@ class MainWindow(QMainWindow):
         vm.addSeparator()
         vm.addAction("Brighter (gamma up)", lambda: self._contrast(1.25))
         vm.addAction("Darker (gamma down)", lambda: self._contrast(0.8))
+        vm.addAction("Choose &bands…", self.choose_bands)
         self.db_action = vm.addAction("Radar intensity in dB", self._toggle_db)
         self.db_action.setCheckable(True)
         tb = self.addToolBar("Tools")
@@ -381,10 +382,32 @@ class MainWindow(QMainWindow):
     def _contrast(self, factor: float) -> None:
         c = self.canvas.loader.contrast
         if c is not None:
-            self.canvas.set_contrast(gamma=c.gamma * factor, db=c.db)
+            self.canvas.set_contrast(gamma=c.gamma * factor, db=c.db, bands=c.bands)
+
+    def choose_bands(self, text: str | None = None) -> bool:
+        """Show one band as grey or three as red, green, blue (1-based numbers)."""
+        sc = self.doc.scene
+        if sc is None:
+            return False
+        if text is None:
+            cur = self.canvas.loader.contrast
+            text, ok = QInputDialog.getText(self, "Bands", f"Band numbers to show, 1..{sc.info.count} "
+                                            "(one for grey, three for red, green, blue):",
+                                            text=",".join(map(str, cur.bands if cur else (1,))))
+            if not ok:
+                return False
+        try:
+            bands = tuple(int(x) for x in text.replace(" ", "").split(",") if x)
+            c = self.canvas.loader.contrast
+            self.canvas.set_contrast(bands=bands, gamma=c.gamma if c else 1.0)
+        except (ValueError, WakemeterError) as err:
+            self.error("Bands not changed", str(err))
+            return False
+        return True
 
     def _toggle_db(self) -> None:
-        self.canvas.set_contrast(db=self.db_action.isChecked())
+        c = self.canvas.loader.contrast
+        self.canvas.set_contrast(db=self.db_action.isChecked(), bands=c.bands if c else None)
 
     def closeEvent(self, ev) -> None:
         if self.job is not None:

@@ -134,6 +134,7 @@ class _Pass:
     fit: CurveFit
     tf: np.ndarray  #: track-frame texture, (v, u) with u from -(GAP+BOX) to GAP+BOX
     u_start: int
+    turbulent: object = None  #: arms.TurbulentWake (localised Radon) or None
 
 
 def _one_pass(scene: Scene, px: tuple[float, float], step: int, g: float, depth: float,
@@ -155,7 +156,7 @@ def _one_pass(scene: Scene, px: tuple[float, float], step: int, g: float, depth:
         tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(u0, GAP_PX + BOX_PX), v_half=BOX_PX / 2)
         sp = whitened_spectrum(tf[:, -BOX_PX:], tf[:, :BOX_PX][:, ::-1], chip.m_per_px)
         fit = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=20.0, delta_step_deg=1.5)
-        cand = _Pass(chip, back, side.contrast, fit, tf, u0)
+        cand = _Pass(chip, back, side.contrast, fit, tf, u0, tw)
         if best is None or (np.isfinite(fit.score) and not fit.score <= best.fit.score):
             best = cand
     assert best is not None
@@ -400,7 +401,12 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
              "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": fit.delta_deg,
              "spectrum_band": (sp.k_lo, sp.k_hi), "transverse_wavelength_m": lam_t if transverse_seen else None,
              "profile_m_per_px": m, "depth_gain": depth_gain, "long_gain": long_gain if depth_m is None else np.nan, "side_contrast": p.side_contrast,
-             "boot_speeds": [b[0] for b in sub], "speed_grid": fit.speed_grid, "score_profile": fit.profile}
+             "boot_speeds": [b[0] for b in sub],
+             "radon": None if p.turbulent is None else p.turbulent.sinogram,
+             "radon_angles_deg": None if p.turbulent is None else p.turbulent.angles_deg,
+             "radon_pick": None if p.turbulent is None else (p.turbulent.radon_angle_deg, p.turbulent.offset_px,
+                                                            p.turbulent.significance),
+             "speed_grid": fit.speed_grid, "score_profile": fit.profile}
     decision = f"wake found: spectral significance {fit.significance:.1f}, wake-side contrast {p.side_contrast:.1f}"
     return WakeAnalysis(True, decision, float(fit.significance), snapped, lonlat, heading, d_std, combined,
                         tuple(methods), half, half_sd, lam_t if transverse_seen else None,

@@ -99,6 +99,9 @@ class TurbulentWake:
     offset_px: float  #: perpendicular distance of the line from the vessel, chip px
     significance: float
     dark: bool
+    sinogram: np.ndarray | None = None  #: localised Radon transform (rows: offset px, columns: angles)
+    angles_deg: np.ndarray | None = None  #: Radon angles of the sinogram columns
+    radon_angle_deg: float = float("nan")  #: Radon angle of the picked line
 
 
 def wave_energy(frame_img: np.ndarray, m_per_px: float, *, k_lo: float, k_hi: float, smooth_px: float) -> np.ndarray:
@@ -155,4 +158,4 @@ def turbulent_wake(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[fl
     if np.cos(np.radians(ang - back_angle_deg)) < 0:
         ang = (ang + 180.0) % 360.0
     s = float(np.nonzero(band)[0][k[0]] - n // 2)
-    return TurbulentWake(float(ang), s, float(abs(val - med) / mad), bool(val < med))
+    return TurbulentWake(float(ang), s, float(abs(val - med) / mad), bool(val < med), sino, _RADON_ANGLES, float(th))
