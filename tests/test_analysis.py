@@ -45,7 +45,7 @@ def test_speed_heading_and_intervals_on_random_scenes(sweep):
         assert a.speed.speed_mps == pytest.approx(case.speed_mps, rel=0.03), case.seed
         dh = (a.heading_deg - case.heading_deg + 180) % 360 - 180
         assert abs(dh) <= 2.0, (case.seed, dh)
-        assert a.regime.regime == "deep"
+        assert a.regime.regime in ("deep", "unknown")  # never a depth effect that is not there
     covered = sum(a.speed.ci95_low_mps <= c.speed_mps <= a.speed.ci95_high_mps for c, a in found)
     # binomial: with p = 0.95 and n ~ 13-16, fewer than n - 3 covered has probability < 1 %
     assert covered >= len(found) - 3

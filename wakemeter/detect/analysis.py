@@ -368,6 +368,13 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         if by_angle.regime not in ("deep", "unknown") and half is not None:
             cautions.append(f"the arms ({half:.1f} deg) look wider than Kelvin's but the wave spectrum shows no "
                             "depth effect; treated as deep water")
+        if not short_ok:
+            h_crit = u_fit ** 2 / (g * FR_DEPTH_EFFECT ** 2)
+            regime = inv.DepthRegime(
+                "unknown", None, None, None, None,
+                "the spectrum fits the deep-water curve, but the short waves that would reveal a depth effect are "
+                f"not resolved: deep water and water shallower than about {h_crit:.0f} m cannot be told apart; "
+                "the speed assumes deep water")
     depth_est = depth_ci = None
     if cond_depth is not None:
         depth_est = cond_depth.value
