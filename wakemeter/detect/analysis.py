@@ -21,7 +21,7 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from . import arms as arms_mod
 from .prepare import Chip, prepare_chip
-from .spectral import (CurveFit, crest_spacing, fit_curve, fit_depth, fit_depth_at_speed, fit_short_waves,
+from .spectral import (CurveFit, crest_spacing, curve_score, fit_curve, fit_depth, fit_depth_at_speed, fit_short_waves,
                        refine_speed_depth, student_inflation, whitened_spectrum)
 from .trackframe import track_frame, wake_side
 
@@ -284,6 +284,16 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                 h_h = float(havelock.depth_from_speed_and_transverse_wavelength(fit.speed_mps, long_t[0], g=g))
         u_short, s_short = fit_short_waves(sp, fit.speed_mps, fit.delta_deg, g=g)
         short_ok = bool(np.isfinite(u_short) and s_short >= SHORT_SCORE_MIN)
+        if transverse_seen and short_ok:
+            lam_ref = float(kelvin.transverse_wavelength(u_short, g=g))
+            ratio = lam_t / lam_ref
+            ratio_sd = max(1.25 * lam_t_sd, 0.006 * lam_t) / lam_ref + 0.01
+            if ratio > 1.03 + 2.5 * ratio_sd:
+                evidence.append(f"transverse waves {lam_t:.1f} m long, {100 * (ratio - 1):.0f} % longer than the "
+                                f"short waves' speed {u_short:.2f} m/s allows in deep water")
+                h_t = float(havelock.depth_from_speed_and_transverse_wavelength(u_short, lam_t, g=g))
+                if np.isfinite(h_t):
+                    u_h, h_h = u_short, h_t
         if short_ok and abs(u_short / fit.speed_mps - 1) > SHORT_LONG_MISMATCH:
             h_s, _ = fit_depth_at_speed(sp, u_short, fit.delta_deg, g=g)
             if np.isfinite(h_s) and u_short / np.sqrt(g * h_s) >= FR_DEPTH_EFFECT:
@@ -293,7 +303,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         wide = half is not None and half > kelvin.KELVIN_HALF_ANGLE_DEG + max(2.5 * half_sd, 3.0)
         if wide and depth_gain >= 1.0:
             evidence.append(f"arms at {half:.1f} deg, wider than Kelvin's 19.47 deg")
-        if any("short divergent" in e for e in evidence):
+        if any("short divergent" in e or "short waves' speed" in e for e in evidence):
             u_fit, h_fit, finite = u_h, h_h, True
         elif evidence and (depth_gain >= 1.0 or len(evidence) > 1):
             if not np.isfinite(h_h):
@@ -375,6 +385,14 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                 "the spectrum fits the deep-water curve, but the short waves that would reveal a depth effect are "
                 f"not resolved: deep water and water shallower than about {h_crit:.0f} m cannot be told apart; "
                 "the speed assumes deep water")
+    if regime.regime == "unknown" and cond_depth is None and not short_ok:
+        u_alt = _shallow_alternative(sp, u_fit, fit.delta_deg, g)
+        if np.isfinite(u_alt) and u_alt < combined.ci95_low_mps:
+            low = max(u_alt - 1.96 * u_std, 0.0)
+            combined = replace(combined, ci95_low_mps=low, verdict=combined.verdict + (
+                f"; interval extended down to {low:.2f} m/s because water as shallow as Fr_h 0.9 cannot be ruled "
+                "out (short waves not resolved)"))
+            cautions.append(f"the 95 % interval was extended down to {low:.2f} m/s: shallow water cannot be ruled out")
     depth_est = depth_ci = None
     if cond_depth is not None:
         depth_est = cond_depth.value
@@ -443,6 +461,15 @@ def _bootstrap(p: _Pass, g: float, depth: float, speed: float, *, fitted_depth: 
             else:
                 out.append((f.speed_mps, f.delta_deg, depth))
     return out
+
+
+def _shallow_alternative(sp, speed: float, delta_deg: float, g: float, fr: float = 0.9) -> float:
+    """Speed whose finite-depth curve at depth Froude number ``fr`` fits the spectrum best (1-D search)."""
+    speeds = np.geomspace(0.6 * speed, 1.1 * speed, 61)
+    scores = np.array([curve_score(sp, u, delta_deg, u * u / (g * fr * fr), g) for u in speeds])
+    if not np.any(np.isfinite(scores)):
+        return np.nan
+    return float(speeds[int(np.nanargmax(scores))])
 
 
 def _track_profile(chip: Chip, back: float, lam_pred: float, m: float) -> np.ndarray:
