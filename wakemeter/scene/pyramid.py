@@ -16,7 +16,6 @@ from pathlib import Path
 
 import numpy as np
 import rasterio
-from rasterio.enums import Resampling
 from rasterio.windows import Window
 
 from ..errors import CancelledError, SceneReadError, SceneWriteError
@@ -112,4 +111,4 @@ def read_level_factor(scene: Scene) -> int:
     return max(facs) if facs else 1
 
 
-__all__ = ["cache_dir", "ensure_pyramid", "needs_pyramid", "pyramid_levels", "Resampling"]
+__all__ = ["cache_dir", "ensure_pyramid", "needs_pyramid", "pyramid_levels"]
