@@ -121,7 +121,7 @@ def wave_energy(frame_img: np.ndarray, m_per_px: float, *, k_lo: float, k_hi: fl
     return ndimage.gaussian_filter(band * band, smooth_px)
 
 
-_RADON_ANGLES = np.arange(0.0, 180.0, 0.5)
+_RADON_ANGLES = np.arange(0.0, 180.0, 1.0)  # 1-deg steps: the spectral fit refines the direction
 
 
 def turbulent_wake(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[float, float], back_angle_deg: float,
@@ -129,7 +129,7 @@ def turbulent_wake(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[fl
     """Strongest bright or dark line through the vessel near the wake direction (localised Radon).
 
     The chip is masked to the half behind the vessel, centred on the vessel, and
-    transformed once on a fixed 0.5-deg angle set (its interpolation matrix is cached).
+    transformed once on a fixed 1-deg angle set (its interpolation matrix is cached).
     Significance: the line's Radon value against the robust spread of all lines through
     the centre region.
     """
