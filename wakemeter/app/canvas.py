@@ -185,7 +185,8 @@ class Canvas(QWidget):
                 qp.drawEllipse(p, HANDLE_PX / 2 + 1, HANDLE_PX / 2 + 1)
             if m.kind == "track":  # arrow at the vessel end: direction of travel
                 self._arrow(qp, b, a, col)
-            self._label(qp, QPointF((a.x() + b.x()) / 2, (a.y() + b.y()) / 2), m.error or m.text,
+            t = {"track": 0.35, "arm": 0.8, "crest": 0.65}.get(m.kind, 0.5)  # labels of a vessel's lines apart
+            self._label(qp, QPointF(a.x() + t * (b.x() - a.x()), a.y() + t * (b.y() - a.y())), m.error or m.text,
                         QColor(255, 120, 120) if m.error else col)
         for v in self.doc.vessels.values():
             p = self.to_screen(v.position)
@@ -376,7 +377,7 @@ class Canvas(QWidget):
         if kind == "calibrate":
             self.calibration_line.emit(p0, p1)
             return
-        vid = self.doc.nearest_vessel(p0)
+        vid = self.doc.nearest_vessel(p0) if kind in ("track", "arm", "crest") else None
         if kind == "track" and vid is not None:  # from the vessel back along the wake: store (vessel, wake end)
             v = self.doc.vessels[vid]
             if math.dist(v.position, p1) < math.dist(v.position, p0):

@@ -125,6 +125,7 @@ class MainWindow(QMainWindow):
     def _build_panels(self) -> None:
         self.items = QListWidget()
         self.items.setToolTip("Vessels and measurements; select one to highlight it, Delete removes it")
+        self.items.setWordWrap(True)
         self.items.itemSelectionChanged.connect(self._list_selected)
         self.items.itemDoubleClicked.connect(self._list_go)
         dock = QDockWidget("Measurements", self)
