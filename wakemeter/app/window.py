@@ -107,8 +107,8 @@ class MainWindow(QMainWindow):
             label, tip = TOOL_INFO[tool]
             act = QAction(self._icon(tool), label, self)
             act.setCheckable(True)
-            act.setToolTip(f"{label} ({i + 2 if i else 'Esc'}): {tip}")
-            act.setShortcut(QKeySequence(str(i + 2)) if i else QKeySequence("Esc"))
+            act.setToolTip(f"{label} ({i + 1 if i else 'Esc'}): {tip}")
+            act.setShortcut(QKeySequence(str(i + 1)) if i else QKeySequence("Esc"))
             act.triggered.connect(lambda _=False, t=tool: self.set_tool(t))
             group.addAction(act)
             tb.addAction(act)
