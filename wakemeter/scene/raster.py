@@ -30,6 +30,10 @@ from rasterio.windows import Window
 from ..errors import GeoreferenceError, ParameterError, SceneReadError
 from . import geodesy
 
+# Scenes without georeference are reported by SceneInfo.georeferenced; rasterio's warning adds nothing
+# (and catching it per call is not thread-safe, so it is filtered once here).
+warnings.filterwarnings("ignore", category=NotGeoreferencedWarning)
+
 #: A full read larger than this many bytes is refused (use windows or zoomed-out reads).
 MAX_FULL_READ_BYTES = 2 * 1024 ** 3
 
