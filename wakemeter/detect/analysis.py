@@ -46,6 +46,7 @@ FR_DEPTH_EFFECT = 0.6
 #: pattern's, depth is slowing the long waves.  Set on synthetic seeds 400-409 (deep and Fr_h 0.8-0.95).
 SHORT_SCORE_MIN = 7.0
 SHORT_LONG_MISMATCH = 0.015
+ARMS_DRAW_MAX_STD = 6.0  # deg
 K_HI_FACTOR = 1.8  # wave-energy band for the arms: 0.5 to 1.8 x the transverse wavenumber
 
 
@@ -344,7 +345,8 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             cautions.append(f"short waves are not resolved, so shallow water cannot be ruled out: if the depth may be "
                             f"less than about {h_crit:.0f} m, give it - the speed could otherwise be too high")
     cautions.append("speed is through the water; a current adds to the speed over ground")
-    geometry = _geometry(chip, back, half, arms)
+    # draw the arms only when they were measured well enough to be worth showing as evidence
+    geometry = _geometry(chip, back, half, arms if (arms is not None and half_sd <= ARMS_DRAW_MAX_STD) else None)
     plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,
              "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": fit.delta_deg,
              "spectrum_band": (sp.k_lo, sp.k_hi), "transverse_wavelength_m": lam_t if transverse_seen else None,
