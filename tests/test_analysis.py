@@ -88,15 +88,18 @@ def test_given_depth_is_used():
 
 
 def test_radar_offset_method_on_demo():
-    # Synthetic truth (outer_roads_radar.truth.json): 9.003 m/s, hull displaced 143.8 m in azimuth
-    # (Raney 1971: dx = -(R/V) v_r).  The user clicks the displaced hull; the wake apex is the truth pixel.
+    # Synthetic truth (outer_roads_radar.truth.json): 9.003 m/s, hull displaced 143.8 m in azimuth off its
+    # wake (Raney 1971: dx = -(R/V) v_r, R = 850 km, V = 7.5 km/s).  The user clicks the bright hull.
     truth = json.loads((ROOT / "sample_scenes" / "outer_roads_radar.truth.json").read_text())["vessels"][0]
     with open_scene(ROOT / "sample_scenes" / "outer_roads_radar.tif") as sc:
-        a = analyze(sc, vessel_px=(truth["pixel_col"], truth["pixel_row"]),
+        a = analyze(sc, vessel_px=(truth["hull_pixel_col"] + 1, truth["hull_pixel_row"] - 1),
                     radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0))
     assert a.wake_found and a.speed.speed_mps == pytest.approx(9.003, rel=0.03)
-    names = [m.method for m in a.methods]
-    assert "spectral fit" in names
+    radar = [m for m in a.methods if m.method == "radar azimuth offset"]
+    assert radar, a.cautions
+    assert radar[0].ci95_low_mps <= 9.003 <= radar[0].ci95_high_mps
+    assert radar[0].speed_mps == pytest.approx(9.003, rel=0.1)
+    assert a.speed.consistent
 
 
 def test_no_wake_on_calm_demo_scene():

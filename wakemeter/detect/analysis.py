@@ -423,15 +423,25 @@ def _arms(chip: Chip, back: float, lam_pred: float, m: float) -> arms_mod.Arms |
 
 
 def _radar_offset_estimate(chip, back, heading, frame, geo: RadarGeometry, cond, rng):
+    """Speed from the hull's azimuth displacement off its own turbulent wake (Raney 1971).
+
+    The wake line is found anywhere within the largest plausible displacement (20 m/s radial
+    speed); the hull is the bright blob nearest the given position.
+    """
     if chip.hull_rc is None:
         return None
-    # perpendicular distance of the hull from the track line through the wake apex (the given position)
-    a = np.radians(back)
-    dr, dc = chip.hull_rc[0] - chip.vessel_rc[0], chip.hull_rc[1] - chip.vessel_rc[1]
-    lateral_px = -dc * np.sin(a) - dr * np.cos(a)
+    max_off_m = geo.slant_range_m / geo.platform_speed_mps * 20.0
+    found = arms_mod.wake_line_offset(chip.data, chip.valid, back, max_offset_px=max_off_m / chip.m_per_px)
+    if found is None or found[2] < 5.0:
+        return None
+    s_wake, theta_deg, _sig = found
+    n = chip.data.shape[0]
+    t = np.radians(theta_deg)
+    # Radon detector coordinate of the hull: s = x cos(theta) + y sin(theta), x right, y up, about the centre
+    x_h, y_h = chip.hull_rc[1] - n // 2, n // 2 - chip.hull_rc[0]
+    lateral_px = x_h * np.cos(t) + y_h * np.sin(t) - s_wake
     fdc, fdr = frame.image_direction(geo.flight_bearing_deg)
-    # offset along the flight direction that moves the hull onto the track line
-    proj = -fdc * np.sin(a) - fdr * np.cos(a)
+    proj = fdc * np.cos(t) - fdr * np.sin(t)  # the flight direction's component along the line normal
     if abs(proj) < 0.1:
         return None
     offset_m = float(lateral_px / proj * chip.m_per_px)

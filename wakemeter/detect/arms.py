@@ -159,3 +159,31 @@ def turbulent_wake(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[fl
         ang = (ang + 180.0) % 360.0
     s = float(np.nonzero(band)[0][k[0]] - n // 2)
     return TurbulentWake(float(ang), s, float(abs(val - med) / mad), bool(val < med), sino, _RADON_ANGLES, float(th))
+
+
+def wake_line_offset(chip_data: np.ndarray, valid: np.ndarray, back_angle_deg: float, *, max_offset_px: float,
+                     smooth_px: float = 2.0) -> tuple[float, float, float] | None:
+    """The turbulent wake as a straight line of the track direction anywhere near the chip centre.
+
+    For the radar azimuth-offset method the hull is displaced from its own wake, so the wake line
+    need not pass through the clicked hull.  The whole chip is Radon-transformed (fixed 1-deg angle
+    set) and the strongest line within +/- 2 deg of the track direction and ``max_offset_px`` of
+    the centre is taken.  Returns (offset s in px along the line's normal, Radon angle in deg,
+    significance) or None.
+    """
+    n = chip_data.shape[0]
+    img = ndimage.gaussian_filter(np.where(valid, chip_data, 0.0), smooth_px)
+    rr, cc = np.mgrid[:n, :n]
+    img = np.where((rr - n // 2) ** 2 + (cc - n // 2) ** 2 > (n // 2 - 1) ** 2, 0.0, img)
+    sino = radon(img, _RADON_ANGLES)
+    normal = (back_angle_deg + 90.0) % 180.0
+    dang = np.abs((_RADON_ANGLES - normal + 90.0) % 180.0 - 90.0)
+    cols = dang <= 2.0
+    offs = np.arange(n) - n // 2
+    band = np.abs(offs) <= max_offset_px
+    sub = sino[np.ix_(band, cols)]
+    ref = sino[band]
+    med = float(np.median(ref))
+    mad = float(1.4826 * np.median(np.abs(ref - med))) or 1e-9
+    k = np.unravel_index(np.argmax(np.abs(sub - med)), sub.shape)
+    return float(offs[band][k[0]]), float(_RADON_ANGLES[cols][k[1]]), float(abs(sub[k] - med) / mad)

@@ -106,12 +106,15 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
     near = (rr - centre[0]) ** 2 + (cc - centre[1]) ** 2 <= max(snap_radius_m / m_px, 3.0) ** 2
     hull_rc = None
     # bright local maxima near the click; the nearest one is the hull (the brightest may be foam behind it)
-    peaks = (sm == ndimage.maximum_filter(sm, size=5)) & near & fvalid & (sm > 6 * sig)
+    # threshold on the smoothed map's own robust spread (smoothing narrows speckle and noise)
+    sm_vals = sm[fvalid]
+    sm_sig = _mad_sigma(sm_vals) if sm_vals.size else sig
+    peaks = (sm == ndimage.maximum_filter(sm, size=5)) & near & fvalid & (sm > float(np.median(sm_vals)) + 8 * sm_sig)
     if peaks.any():
         pr, pc = np.nonzero(peaks)
         k = int(np.argmin((pr - centre[0]) ** 2 + (pc - centre[1]) ** 2))
         hull_rc = (float(pr[k]), float(pc[k]))
-        blob = ndimage.binary_dilation(sm > 4 * sig, iterations=2)
+        blob = ndimage.binary_dilation(sm > float(np.median(sm_vals)) + 5 * sm_sig, iterations=2)
         lab, _ = ndimage.label(blob)
         if lab[pr[k], pc[k]] > 0:
             hull = lab == lab[pr[k], pc[k]]
