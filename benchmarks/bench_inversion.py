@@ -8,20 +8,15 @@ Run: python3 tasks.py bench   (or python benchmarks/bench_inversion.py)
 
 from __future__ import annotations
 
-import time
 
 import numpy as np
 
+try:
+    from timing import best_time
+except ImportError:  # run as a package module
+    from benchmarks.timing import best_time
+
 from wakemeter.physics.inversion import Conditions, Uncertain, speed_from_transverse_wavelength
-
-
-def _best(fn, repeat: int = 7) -> float:
-    best = np.inf
-    for _ in range(repeat):
-        t = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t)
-    return best
 
 
 def reference() -> None:
@@ -47,7 +42,7 @@ def test_bench_inversion_finite_depth(benchmark):
 
 
 if __name__ == "__main__":
-    ref = _best(reference)
+    ref = best_time(reference)
     for name, fn in (("deep water", deep), ("finite depth", finite)):
-        t = _best(fn)
+        t = best_time(fn)
         print(f"{name:>13}: {t * 1e3:7.1f} ms for 1e5 draws | reference numpy {ref * 1e3:6.1f} ms | ratio {t / ref:5.1f}")
