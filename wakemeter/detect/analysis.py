@@ -22,8 +22,8 @@ from ..scene.raster import Scene
 from . import arms as arms_mod
 from .prepare import Chip, prepare_chip
 from .result import RadarGeometry, WakeAnalysis
-from .spectral import (CurveFit, crest_spacing, curve_score, fit_curve, fit_depth, fit_depth_at_speed, fit_short_waves,
-                       refine_speed_depth, student_inflation, whitened_spectrum)
+from .spectral import (CurveFit, crest_spacing, fit_at_froude, fit_curve, fit_speed_depth, refine_speed_depth,
+                       student_inflation, whitened_spectrum)
 from .trackframe import track_frame, wake_side
 
 #: Decision thresholds, calibrated on wake-free scenes (see tests/test_wake_decision.py and DEVELOPERS.md).
@@ -33,7 +33,7 @@ SIDE_CONTRAST_MIN = 8.0
 CHIP_PX = 640
 BOX_PX = 256
 GAP_PX = 12
-DEPTH_GAIN_MIN = 2.5  # z-score gain of the finite-depth curve over the deep one to call a depth effect
+DEPTH_GAIN_MIN = 1.0  # score gain of the joint (speed, depth, track) fit over the deep one to call a depth effect
 TRANSVERSE_SNR_MIN = 12.0
 #: The spread of speeds refitted on four quarter-size sub-boxes overstates the error of the full box
 #: (each sub-box has half the spectral resolution).  Scale calibrated on synthetic scenes (seeds 0-59 of
@@ -41,11 +41,16 @@ TRANSVERSE_SNR_MIN = 12.0
 SPECTRAL_SIGMA_SCALE = 0.5
 #: Below this depth Froude number depth changes the pattern too little to matter (Havelock: < 0.3 deg).
 FR_DEPTH_EFFECT = 0.6
-#: The short divergent waves (k >= 3 g/U^2) follow the deep curve at any depth with Fr_h < 1; when they are
-#: clearly seen (score >= SHORT_SCORE_MIN) and give a speed more than SHORT_LONG_MISMATCH away from the whole
-#: pattern's, depth is slowing the long waves.  Set on synthetic seeds 400-409 (deep and Fr_h 0.8-0.95).
-SHORT_SCORE_MIN = 7.0
-SHORT_LONG_MISMATCH = 0.015
+#: Without a depth effect, shallow water is ruled out when the curve for Fr_h FR_RULE_OUT (speed and track
+#: refitted) scores at least RULE_OUT_MIN below the best fit; otherwise the regime is "unknown" and the interval
+#: covers both.  Both gates set on synthetic seeds 0-59 (deep) and 420-431 (Fr_h 0.85 and 0.92), see DEVELOPERS.md.
+FR_RULE_OUT = 0.9
+RULE_OUT_MIN = 1.5
+#: Depth Froude numbers tried against the best fit; the interval covers the speeds of those not ruled out.
+FR_OPEN_CHECK = (0.75, FR_RULE_OUT)
+#: Smallest relative standard uncertainty of a speed fitted together with the depth: on seeds 420-431 at
+#: Fr_h 0.85 and 0.92 the joint fit's errors were within 2 % in 19 of 20 found cases.
+FITTED_DEPTH_REL_STD = 0.01
 ARMS_DRAW_MAX_STD = 6.0  # deg
 K_HI_FACTOR = 1.8  # wave-energy band for the arms: 0.5 to 1.8 x the transverse wavenumber
 
@@ -162,7 +167,6 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     if scene.info.georeferenced:
         lon, lat = geodesy.pixel_to_lonlat(scene.georef, snapped[0], snapped[1])
         lonlat = (float(lon), float(lat))
-    back = (p.back_deg + fit.delta_deg) % 360.0
     found = bool(np.isfinite(fit.speed_mps) and fit.significance >= SIGNIFICANCE_MIN
                  and p.side_contrast >= SIDE_CONTRAST_MIN)
     frame = scene.local_frame(snapped[0], snapped[1])
@@ -180,83 +184,51 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                             plots={"side_contrast": p.side_contrast, "fit_speed": fit.speed_mps})
     m = chip.m_per_px
     sp = whitened_spectrum(p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1], m)
-    # transverse crest spacing along the track (a longer one than deep water allows is a depth sign)
-    lam_deep = float(kelvin.transverse_wavelength(fit.speed_mps, depth_fit, g=g))
-    prof = _track_profile(chip, back, lam_deep, m)
-    lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(0.8 * lam_deep, 1.25 * lam_deep))
-    transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
-    long_t = (np.nan, np.nan, 0.0)
-    if depth_m is None:  # a strong crest train longer than deep water allows is a depth sign
-        long_t = crest_spacing(prof, m, band_m=(1.25 * lam_deep, 2.0 * lam_deep))
-    arms = _arms(chip, back, lam_deep, m)
-    half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
-    # depth: given, or tested (Zilman et al. 2004: fit the finite-depth curve; Havelock 1908: wider arms;
-    # longer transverse waves than the short divergent waves imply in deep water)
-    u_fit, h_fit, finite = fit.speed_mps, depth_fit, depth_m is not None
-    depth_gain = np.nan
-    short_ok = True
-    evidence: list[str] = []
+    # depth: given, or tested by fitting speed, depth and track together on the finite-depth curve
+    # (Zilman et al. 2004); the deep-water fit is kept unless depth clearly improves the fit
+    u_fit, h_fit, delta_fit, finite = fit.speed_mps, depth_fit, fit.delta_deg, depth_m is not None
+    depth_gain = rule_out = np.nan
+    shallow_alt = None
+    open_alts: list = []  #: shallower-water fits (Fr_h FR_OPEN_CHECK) that cannot be ruled out
+    evidence = ""
     if depth_m is None:
-        u_h, h_h, s_h, long_gain = fit_depth(sp, fit.speed_mps, fit.delta_deg, g=g)
-        depth_gain = s_h - fit.score
-        if np.isfinite(h_h) and depth_gain >= DEPTH_GAIN_MIN:
-            evidence.append(f"finite-depth curve fits the spectrum better (gain {depth_gain:.1f})")
-        if np.isfinite(long_t[0]) and long_t[2] >= 2 * TRANSVERSE_SNR_MIN and long_t[2] > 2 * snr:
-            evidence.append(f"transverse waves {long_t[0]:.1f} m long, {100 * (long_t[0] / lam_deep - 1):.0f} % "
-                            "longer than deep water allows")
-            if not np.isfinite(h_h):
-                h_h = float(havelock.depth_from_speed_and_transverse_wavelength(fit.speed_mps, long_t[0], g=g))
-        u_short, s_short = fit_short_waves(sp, fit.speed_mps, fit.delta_deg, g=g)
-        short_ok = bool(np.isfinite(u_short) and s_short >= SHORT_SCORE_MIN)
-        if transverse_seen and short_ok:
-            lam_ref = float(kelvin.transverse_wavelength(u_short, g=g))
-            ratio = lam_t / lam_ref
-            ratio_sd = max(1.25 * lam_t_sd, 0.006 * lam_t) / lam_ref + 0.01
-            if ratio > 1.03 + 2.5 * ratio_sd:
-                evidence.append(f"transverse waves {lam_t:.1f} m long, {100 * (ratio - 1):.0f} % longer than the "
-                                f"short waves' speed {u_short:.2f} m/s allows in deep water")
-                h_t = float(havelock.depth_from_speed_and_transverse_wavelength(u_short, lam_t, g=g))
-                if np.isfinite(h_t):
-                    u_h, h_h = u_short, h_t
-        if short_ok and abs(u_short / fit.speed_mps - 1) > SHORT_LONG_MISMATCH:
-            h_s, _ = fit_depth_at_speed(sp, u_short, fit.delta_deg, g=g)
-            if np.isfinite(h_s) and u_short / np.sqrt(g * h_s) >= FR_DEPTH_EFFECT:
-                evidence.append(f"the short divergent waves give {u_short:.2f} m/s, the whole pattern "
-                                f"{fit.speed_mps:.2f} m/s: depth slows the long waves")
-                u_h, h_h = u_short, h_s
-        wide = half is not None and half > kelvin.KELVIN_HALF_ANGLE_DEG + max(2.5 * half_sd, 3.0)
-        if wide and depth_gain >= 1.0:
-            evidence.append(f"arms at {half:.1f} deg, wider than Kelvin's 19.47 deg")
-        if any("short divergent" in e or "short waves' speed" in e for e in evidence):
-            u_fit, h_fit, finite = u_h, h_h, True
-        elif evidence and (depth_gain >= 1.0 or len(evidence) > 1):
-            if not np.isfinite(h_h):
-                fr0 = float(havelock.froude_from_half_angle(half).subcritical or 0.9)
-                h_h = fit.speed_mps ** 2 / (g * fr0 ** 2)
-            u_try, h_try, _ = refine_speed_depth(sp, u_h if np.isfinite(u_h) else fit.speed_mps, h_h,
-                                                 fit.delta_deg, g=g)
-            if abs(u_try / fit.speed_mps - 1) > 0.12:
-                evidence.append(f"but the finite-depth fit moves the speed to {u_try:.2f} m/s, far from the "
-                                f"{fit.speed_mps:.2f} m/s of the short waves: depth fit rejected")
-            elif u_try / np.sqrt(g * h_try) >= FR_DEPTH_EFFECT:
-                u_fit, h_fit, finite = u_try, h_try, True
-            else:
-                evidence.append(f"but the fitted depth {h_try:.1f} m gives Fr_h {u_try / np.sqrt(g * h_try):.2f}: "
-                                "no effect on the pattern")
-    if finite and depth_m is None:
-        lam_h = float(kelvin.transverse_wavelength(u_fit, h_fit, g=g))
-        lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(0.85 * lam_h, 1.18 * lam_h)) \
-            if np.isfinite(lam_h) else (np.nan, np.nan, 0.0)
-        transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
+        joint = fit_speed_depth(sp, fit.speed_mps, fit.delta_deg, g=g)
+        depth_gain = joint.score - fit.score if np.isfinite(joint.score) else np.nan
+        if depth_gain >= DEPTH_GAIN_MIN and joint.depth_froude(g) >= FR_DEPTH_EFFECT:
+            u_fit, h_fit, delta_fit, finite = joint.speed_mps, joint.depth_m, joint.delta_deg, True
+            evidence = (f"the finite-depth curve fits the wave spectrum better than the deep-water curve "
+                        f"(score {joint.score:.1f} against {fit.score:.1f}); the deep-water fit would read "
+                        f"{fit.speed_mps:.2f} m/s")
+        else:
+            best = max(fit.score, joint.score)
+            for fr_try in FR_OPEN_CHECK:
+                alt = fit_at_froude(sp, fit.speed_mps, fit.delta_deg, fr_try, g=g)
+                drop = best - alt.score if np.isfinite(alt.score) else np.inf
+                if not drop >= RULE_OUT_MIN:
+                    open_alts.append((fr_try, alt))
+                if fr_try == FR_RULE_OUT:
+                    shallow_alt, rule_out = alt, drop
+    back = (p.back_deg + delta_fit) % 360.0
+    lam_pred = float(kelvin.transverse_wavelength(u_fit, h_fit, g=g))
+    prof = _track_profile(chip, back, lam_pred, m)
+    band = (0.85 * lam_pred, 1.18 * lam_pred) if finite else (0.8 * lam_pred, 1.25 * lam_pred)
+    lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=band) if np.isfinite(lam_pred) else (np.nan, np.nan, 0.0)
+    transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
+    arms = _arms(chip, back, lam_pred, m)
+    half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
     stage(0.65, "estimating uncertainty")
-    sub = _bootstrap(p, g, h_fit, u_fit, fitted_depth=finite and depth_m is None)
+    sub = _bootstrap(p, g, h_fit, u_fit, delta_fit, fitted_depth=finite and depth_m is None)
     infl = student_inflation(len(sub)) if len(sub) >= 3 else 2.0
 
     def boot_std(values: list[float], floor: float) -> float:
         if len(values) < 3:
             return max(floor, 0.05 * abs(np.mean(values)) if values else floor)
         return max(float(np.std(values, ddof=1) / np.sqrt(len(values)) * infl), floor)
-    u_std = SPECTRAL_SIGMA_SCALE * boot_std([b[0] for b in sub], 0.006 * u_fit / SPECTRAL_SIGMA_SCALE)
+    # a fitted depth adds a nearly degenerate direction (speed against depth): no shrinking of the spread,
+    # and a larger floor (FITTED_DEPTH_REL_STD)
+    fitted = finite and depth_m is None
+    scale = 1.0 if fitted else SPECTRAL_SIGMA_SCALE
+    u_std = scale * boot_std([b[0] for b in sub], (FITTED_DEPTH_REL_STD if fitted else 0.006) * u_fit / scale)
     d_std = boot_std([b[1] for b in sub], 0.3)
     h_std = min(boot_std([b[2] for b in sub], 0.05 * h_fit), 0.5 * h_fit) if finite and depth_m is None else 0.0
     dcol, drow = np.cos(np.radians(back + 180)), -np.sin(np.radians(back + 180))
@@ -291,32 +263,41 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             cautions.append("radar azimuth offset not measured: no bright hull found near the given position")
     stage(0.9, "combining methods")
     combined = inv.combine_estimates(methods)
-    half_u = inv.Uncertain(half, half_sd) if half is not None else None
+    shallow_open = shallow_alt is not None and not rule_out >= RULE_OUT_MIN
+    h_alt = u_fit ** 2 / (g * FR_RULE_OUT ** 2)
     if cond_depth is not None:
         regime = inv.assess_depth_regime(speed=methods[0], depth_m=cond_depth, g=g)
+    elif shallow_open:
+        regime = inv.DepthRegime(
+            "unknown", None, None, None, None,
+            f"the wave spectrum cannot tell deep water from water about {h_alt:.0f} m deep (Fr_h {FR_RULE_OUT}): "
+            f"the shallow-water curve fits almost as well (score {shallow_alt.score:.1f} against "
+            f"{fit.score:.1f}, at {shallow_alt.speed_mps:.2f} m/s); the 95 % interval covers both")
     else:
-        by_angle = inv.assess_depth_regime(half_angle_deg=half_u, transverse_seen=transverse_seen, g=g)
-        regime = inv.DepthRegime("deep", None, None, None, None,
-                                 "the wave spectrum fits the deep-water dispersion curve: no depth effect found"
-                                 + (f"; arms measured at {half:.1f} +/- {half_sd:.1f} deg" if half is not None else ""))
-        if by_angle.regime not in ("deep", "unknown") and half is not None:
-            cautions.append(f"the arms ({half:.1f} deg) look wider than Kelvin's but the wave spectrum shows no "
-                            "depth effect; treated as deep water")
-        if not short_ok:
-            h_crit = u_fit ** 2 / (g * FR_DEPTH_EFFECT ** 2)
-            regime = inv.DepthRegime(
-                "unknown", None, None, None, None,
-                "the spectrum fits the deep-water curve, but the short waves that would reveal a depth effect are "
-                f"not resolved: deep water and water shallower than about {h_crit:.0f} m cannot be told apart; "
-                "the speed assumes deep water")
-    if regime.regime == "unknown" and cond_depth is None and not short_ok:
-        u_alt = _shallow_alternative(sp, u_fit, fit.delta_deg, g)
-        if np.isfinite(u_alt) and u_alt < combined.ci95_low_mps:
-            low = max(u_alt - 1.96 * u_std, 0.0)
-            combined = replace(combined, ci95_low_mps=low, verdict=combined.verdict + (
-                f"; interval extended down to {low:.2f} m/s because water as shallow as Fr_h 0.9 cannot be ruled "
-                "out (short waves not resolved)"))
-            cautions.append(f"the 95 % interval was extended down to {low:.2f} m/s: shallow water cannot be ruled out")
+        regime = inv.DepthRegime(
+            "deep", None, None, None, None,
+            "the wave spectrum fits the deep-water dispersion curve: no depth effect found; water shallow enough "
+            f"for Fr_h {FR_RULE_OUT} (about {h_alt:.0f} m) fits clearly worse (score {shallow_alt.score:.1f} "
+            f"against {fit.score:.1f})"
+            + "".join(f"; water with Fr_h {f:.2f} (about {u_fit ** 2 / (g * f * f):.0f} m) fits almost as well, "
+                      "the 95 % interval covers it" for f, _ in open_alts))
+    if half is not None and cond_depth is None:
+        regime = replace(regime, explanation=regime.explanation + f"; arms measured at {half:.1f} +/- {half_sd:.1f} deg")
+    if open_alts:  # the interval covers the speeds of shallower water that fits almost as well
+        alts = [a for _, a in open_alts if np.isfinite(a.speed_mps)]
+        half_w = 0.5 * (combined.ci95_high_mps - combined.ci95_low_mps)  # the same precision at the other depth
+        lo_alt = max(min(a.speed_mps for a in alts) - half_w, 0.0) if alts else combined.ci95_low_mps
+        hi_alt = max(a.speed_mps for a in alts) + half_w if alts else combined.ci95_high_mps
+        if lo_alt < combined.ci95_low_mps or hi_alt > combined.ci95_high_mps:
+            frs = ", ".join(f"{f:.1f}" for f, _ in open_alts)
+            combined = replace(combined, ci95_low_mps=min(lo_alt, combined.ci95_low_mps),
+                               ci95_high_mps=max(hi_alt, combined.ci95_high_mps),
+                               verdict=combined.verdict + f"; interval widened to cover shallower water that fits "
+                               f"almost as well (Fr_h {frs})")
+            if not shallow_open:
+                cautions.append(f"the 95 % interval was widened to {combined.ci95_low_mps:.2f}-"
+                                f"{combined.ci95_high_mps:.2f} m/s because water with Fr_h {frs} fits the waves "
+                                "almost as well; give the depth to narrow it")
     depth_est = depth_ci = None
     if cond_depth is not None:
         depth_est = cond_depth.value
@@ -324,8 +305,8 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     if finite and depth_m is None:
         fr = u_fit / np.sqrt(g * h_fit)
         regime = replace(regime, explanation=regime.explanation.replace("the given depth", "the fitted depth")
-                         + f"; predicted half-angle {float(havelock.half_angle(fr)):.1f} deg; evidence: "
-                         + "; ".join(evidence)
+                         + f"; evidence: {evidence}; Havelock's half-angle for Fr_h {fr:.2f} is "
+                         f"{float(havelock.half_angle(fr)):.1f} deg"
                          + (f", measured {half:.1f} +/- {half_sd:.1f} deg" if half is not None else ""))
     if half is not None and half < kelvin.KELVIN_HALF_ANGLE_DEG - max(2 * half_sd, 2.0):
         msg = f"arms at {half:.1f} deg are narrower than Kelvin's 19.47 deg"
@@ -338,19 +319,21 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         cautions.append(msg)
     if not combined.consistent:
         cautions.append(combined.verdict)
-    if cond_depth is None:
+    if finite and depth_m is None:
+        cautions.append(f"water depth not given: the wave pattern shows a depth effect and the depth was fitted "
+                        f"({h_fit:.1f} m); give a charted depth to check it")
+    elif shallow_open:
+        cautions.append(f"water depth not given and the waves cannot tell deep water from water about {h_alt:.0f} m "
+                        "deep: the interval covers both; give the depth to narrow it")
+    elif cond_depth is None:
         cautions.append("water depth not given: deep water assumed (the wave spectrum shows no depth effect)")
-        if not short_ok:
-            h_crit = u_fit ** 2 / (g * FR_DEPTH_EFFECT ** 2)
-            cautions.append(f"short waves are not resolved, so shallow water cannot be ruled out: if the depth may be "
-                            f"less than about {h_crit:.0f} m, give it - the speed could otherwise be too high")
     cautions.append("speed is through the water; a current adds to the speed over ground")
     # draw the arms only when they were measured well enough to be worth showing as evidence
     geometry = _geometry(chip, back, half, arms if (arms is not None and half_sd <= ARMS_DRAW_MAX_STD) else None)
     plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,
-             "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": fit.delta_deg,
+             "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": delta_fit,
              "spectrum_band": (sp.k_lo, sp.k_hi), "transverse_wavelength_m": lam_t if transverse_seen else None,
-             "profile_m_per_px": m, "depth_gain": depth_gain, "long_gain": long_gain if depth_m is None else np.nan, "side_contrast": p.side_contrast,
+             "profile_m_per_px": m, "depth_gain": depth_gain, "shallow_rule_out": rule_out, "side_contrast": p.side_contrast,
              "boot_speeds": [b[0] for b in sub],
              "radon": None if p.turbulent is None else p.turbulent.sinogram,
              "radon_angles_deg": None if p.turbulent is None else p.turbulent.angles_deg,
@@ -368,7 +351,7 @@ CAUTION_ESTIMATE = ("estimates from imagery for analysis: local regulations, cer
                     "practice decide any enforcement; verify scene timing and georeferencing independently")
 
 
-def _bootstrap(p: _Pass, g: float, depth: float, speed: float, *, fitted_depth: bool) -> list[tuple[float, float, float]]:
+def _bootstrap(p: _Pass, g: float, depth: float, speed: float, delta: float, *, fitted_depth: bool) -> list[tuple[float, float, float]]:
     """Refit on four sub-boxes behind (with the matching ones ahead): (speed, track correction, depth)."""
     half = BOX_PX // 2
     behind, ahead = p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1]
@@ -376,25 +359,16 @@ def _bootstrap(p: _Pass, g: float, depth: float, speed: float, *, fitted_depth: 
     for rv in (slice(0, half), slice(half, BOX_PX)):
         for ru in (slice(0, half), slice(half, BOX_PX)):
             sp = whitened_spectrum(behind[rv, ru], ahead[rv, ru], p.chip.m_per_px)
-            f = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=6.0 + abs(p.fit.delta_deg),
+            f = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=6.0 + abs(delta),
                           speed_range=(0.75 * speed, 1.33 * speed))
             if not np.isfinite(f.speed_mps):
                 continue
             if fitted_depth:
-                u, h, _ = refine_speed_depth(sp, f.speed_mps, depth, f.delta_deg, g=g)
-                out.append((u, f.delta_deg, h))
+                r = refine_speed_depth(sp, f.speed_mps, depth, f.delta_deg, g=g)
+                out.append((r.speed_mps, r.delta_deg, r.depth_m))
             else:
                 out.append((f.speed_mps, f.delta_deg, depth))
     return out
-
-
-def _shallow_alternative(sp, speed: float, delta_deg: float, g: float, fr: float = 0.9) -> float:
-    """Speed whose finite-depth curve at depth Froude number ``fr`` fits the spectrum best (1-D search)."""
-    speeds = np.geomspace(0.6 * speed, 1.1 * speed, 61)
-    scores = np.array([curve_score(sp, u, delta_deg, u * u / (g * fr * fr), g) for u in speeds])
-    if not np.any(np.isfinite(scores)):
-        return np.nan
-    return float(speeds[int(np.nanargmax(scores))])
 
 
 def _track_profile(chip: Chip, back: float, lam_pred: float, m: float) -> np.ndarray:

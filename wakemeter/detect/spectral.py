@@ -97,26 +97,6 @@ def curve_score(sp: SpectrumPair, speed: float, delta_deg: float, depth_m: float
     return float(_scores(sp, np.array([speed]), delta_deg, depth_m, g, k_floor_factor=k_floor_factor)[0])
 
 
-def fit_short_waves(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float, k_floor_factor: float = 3.0
-                    ) -> tuple[float, float]:
-    """Speed from the short divergent waves only (k >= 3 g / U^2, propagation beyond ~55 deg).
-
-    For any depth Froude number below ~1 these waves have k h > 3, where tanh(k h) ~ 1: the deep-water
-    curve holds for them whatever the depth, so this speed is free of the depth bias of the full fit.
-    Returns (speed, score).
-    """
-    speeds = np.geomspace(0.6 * speed, 1.4 * speed, 121)
-    sc = _scores(sp, speeds, delta_deg, np.inf, g, k_floor_factor=k_floor_factor)
-    if not np.any(np.isfinite(sc)):
-        return np.nan, np.nan
-    j = int(np.nanargmax(sc))
-    res = optimize.minimize_scalar(lambda lu: -np.nan_to_num(curve_score(sp, float(np.exp(lu)), delta_deg, np.inf, g,
-                                                                        k_floor_factor), nan=-1e9),
-                                   bounds=(np.log(speeds[max(j - 1, 0)]), np.log(speeds[min(j + 1, speeds.size - 1)])),
-                                   method="bounded", options={"xatol": 1e-5})
-    return float(np.exp(res.x)), float(-res.fun)
-
-
 def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: float, g: float,
             k_cap_factor: float | None = None, k_floor_factor: float | None = None) -> np.ndarray:
     """Scores of the curves for several speeds; ``k_cap_factor`` keeps only k <= factor * g / U^2
@@ -129,24 +109,27 @@ def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: flo
         k = np.asarray(steady_wavenumber(np.broadcast_to(u, (u.shape[0], th.shape[1])),
                                          np.abs(np.degrees(np.broadcast_to(th, (u.shape[0], th.shape[1])))),
                                          depth_m, g=g))
-    a = th + np.radians(delta_deg)
-    ku, kv = k * np.cos(a), k * np.sin(a)
     ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
     if k_cap_factor is not None:
         ok &= k <= k_cap_factor * g / (u * u)
     if k_floor_factor is not None:  # short waves only: k h >= factor / Fr_h^2, depth-independent
         ok &= k >= k_floor_factor * g / (u * u)
+    return _sum_along(sp, k, th + np.radians(delta_deg), ok)
+
+
+def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray) -> np.ndarray:
+    """z-like score of curves given as wavenumbers ``k`` at image angles ``angle`` (last axis: points)."""
+    ku, kv = k * np.cos(angle), k * np.sin(angle)
     n_v, n_u = sp.white.shape
     cu = n_u // 2 + np.where(ok, ku, 0) / sp.dk_u
     cv = n_v // 2 + np.where(ok, kv, 0) / sp.dk_v
     vals = ndimage.map_coordinates(sp.white, [cv.ravel(), cu.ravel()], order=1, mode="nearest").reshape(k.shape)
     # winsorise: a wake raises the whole curve, a compact blob (swell, a slick) only a few points
     vals = np.clip(vals, -Z_CLIP, Z_CLIP)
-    cnt = ok.sum(axis=1)
+    cnt = ok.sum(axis=-1)
     # mean standardised power along the curve, scaled to a z-like figure (about 3 correlated
     # samples per independent spectral estimate under the Hann window)
-    s = np.where(cnt >= 12, np.sum(np.where(ok, vals, 0), axis=1) / np.sqrt(np.maximum(cnt, 1) * 3.0), np.nan)
-    return s
+    return np.where(cnt >= 12, np.sum(np.where(ok, vals, 0), axis=-1) / np.sqrt(np.maximum(cnt, 1) * 3.0), np.nan)
 
 
 @dataclass(frozen=True)
@@ -196,23 +179,6 @@ def fit_curve(sp: SpectrumPair, *, g: float, depth_m: float = np.inf, delta_max_
     return CurveFit(float(np.exp(best[0])), float(best[1]), depth_m, score, score, speeds, prof)
 
 
-def fit_depth(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float) -> tuple[float, float, float, float]:
-    """Best (speed, depth, score) on a speed x depth grid at a fixed track correction, and the
-    gain of that depth over deep water on the long-wave part of the curve (k <= 3 g / U^2)."""
-    # subcritical only (Fr_h < 0.98): the transverse part of the pattern is what reveals depth
-    h_min = max((0.7 * speed) ** 2 / (g * 0.98 ** 2), 0.5)
-    depths = np.concatenate([np.geomspace(h_min, max(200.0, 4 * h_min), 40), [np.inf]])
-    speeds = np.geomspace(speed * 0.7, speed * 1.5, 41)
-    grid = np.stack([_scores(sp, speeds, delta_deg, h, g) for h in depths])
-    fr = speeds[None, :] / np.sqrt(g * depths[:, None])
-    grid = np.where(fr < 0.98, grid, np.nan)
-    i, j = np.unravel_index(np.nanargmax(grid), grid.shape)
-    lw_h = _scores(sp, speeds[j:j + 1], delta_deg, depths[i], g, k_cap_factor=3.0)[0]
-    lw_d = _scores(sp, np.array([speed]), delta_deg, np.inf, g, k_cap_factor=3.0)[0]
-    gain = float(lw_h - lw_d) if np.isfinite(lw_h) and np.isfinite(lw_d) else 0.0
-    return float(speeds[j]), float(depths[i]), float(grid[i, j]), gain
-
-
 def crest_spacing(profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, float] | None = None
                   ) -> tuple[float, float, float]:
     """Dominant crest spacing (m) of a 1-D profile, its standard uncertainty (m) and peak SNR.
@@ -259,28 +225,99 @@ def student_inflation(n: int) -> float:
     return float(stats.t.ppf(0.975, max(n - 1, 1)) / stats.norm.ppf(0.975))
 
 
-def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg: float, *, g: float
-                       ) -> tuple[float, float, float]:
-    """Nelder-Mead refinement of (speed, depth) on the finite-depth curve at a fixed track correction."""
+@dataclass(frozen=True)
+class DepthFit:
+    """Joint fit of the finite-depth curve: speed, depth and track correction."""
+
+    speed_mps: float
+    depth_m: float
+    delta_deg: float
+    score: float  #: same z-like figure as :attr:`CurveFit.score`
+
+    def depth_froude(self, g: float) -> float:
+        return float(self.speed_mps / np.sqrt(g * self.depth_m))
+
+
+#: depth Froude numbers of the coarse grid: 0.3 is deep water for every steady wave (k h > 11)
+_FR_GRID = np.concatenate([[0.3, 0.5], np.linspace(0.6, 0.97, 16)])
+FR_MAX = 0.98  #: subcritical fits only
+
+
+def _steady_q(frs: np.ndarray, g: float) -> np.ndarray:
+    """k U^2 / g of the steady waves, (len(frs), len(_THETA)): depends on Fr_h and theta only."""
+    th = np.degrees(np.abs(_THETA))
+    return np.stack([np.asarray(steady_wavenumber(1.0, th, 1.0 / (g * f * f), g=g)) for f in frs]) / g
+
+
+def fit_speed_depth(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float,
+                    delta_max_deg: float = 20.0) -> DepthFit:
+    """Fit speed, depth and the track correction together on the finite-depth steady-wave curve.
+
+    A grid over speed (0.65-1.08 x the deep-water fit's ``speed``: depth makes the long waves
+    longer, so the deep fit reads high), depth Froude number (0.3-0.97) and track correction
+    (within +/- ``delta_max_deg`` of the first guess, and at least 8 deg either side of the deep fit's
+    ``delta_deg``), then a Nelder-Mead refinement of all three.  The track correction must be free:
+    the curves for deep and shallow water differ most off the track axis, so the deep fit's track can
+    be several degrees off when the water is shallow, and a track held there hides the difference.
+    """
+    speeds = np.geomspace(0.65 * speed, 1.08 * speed, 25)
+    d_lo, d_hi = min(-delta_max_deg, delta_deg - 8.0), max(delta_max_deg, delta_deg + 8.0)
+    deltas = np.arange(d_lo, d_hi + 1e-9, 2.0)
+    q = _steady_q(_FR_GRID, g)
+    k = g * q[None, :, :] / (speeds[:, None, None] ** 2)  # (speeds, frs, theta)
+    ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
+    grid = np.stack([_sum_along(sp, k, np.broadcast_to(_THETA + np.radians(d), k.shape), ok) for d in deltas])
+    if not np.any(np.isfinite(grid)):
+        return DepthFit(np.nan, np.nan, delta_deg, np.nan)
+    i, j, f = np.unravel_index(np.nanargmax(grid), grid.shape)
+    return refine_speed_depth(sp, float(speeds[j]), float(speeds[j] ** 2 / (g * _FR_GRID[f] ** 2)),
+                              float(deltas[i]), g=g, delta_range=(d_lo - 2.0, d_hi + 2.0))
+
+
+def fit_at_froude(sp: SpectrumPair, speed: float, delta_deg: float, froude: float, *, g: float,
+                  delta_half_deg: float = 8.0) -> DepthFit:
+    """Best speed and track correction with the depth Froude number held at ``froude``.
+
+    The profile of the joint fit: comparing its score with the free fit's tells whether water that
+    shallow can be ruled out."""
+    speeds = np.geomspace(0.65 * speed, 1.08 * speed, 49)
+    deltas = delta_deg + np.arange(-delta_half_deg, delta_half_deg + 1e-9, 1.0)
+    k = g * _steady_q(np.array([froude]), g)[0][None, :] / (speeds[:, None] ** 2)
+    ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
+    grid = np.stack([_sum_along(sp, k, np.broadcast_to(_THETA + np.radians(d), k.shape), ok) for d in deltas])
+    if not np.any(np.isfinite(grid)):
+        return DepthFit(np.nan, np.nan, delta_deg, np.nan)
+    i, j = np.unravel_index(np.nanargmax(grid), grid.shape)
+
     def neg(x: np.ndarray) -> float:
-        u, h = float(np.exp(x[0])), float(np.exp(x[1]))
-        if not 0.2 <= h <= 500 or u * u / (g * h) >= 0.98 ** 2:
-            return 1e9
-        s = curve_score(sp, u, delta_deg, h, g)
+        u = float(np.exp(x[0]))
+        s = curve_score(sp, u, float(x[1]), u * u / (g * froude * froude), g)
         return -s if np.isfinite(s) else 1e9
-    x0 = np.array([np.log(speed), np.log(depth_m)])
+    x0 = np.array([np.log(speeds[j]), deltas[i]])
     res = optimize.minimize(neg, x0, method="Nelder-Mead", options={
-        "xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.05]]})
+        "xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.5]]})
     x = res.x if res.fun <= neg(x0) else x0
-    return float(np.exp(x[0])), float(np.exp(x[1])), -neg(x)
+    u = float(np.exp(x[0]))
+    return DepthFit(u, u * u / (g * froude * froude), float(x[1]), -neg(x))
 
 
-def fit_depth_at_speed(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float) -> tuple[float, float]:
-    """Depth (m) whose finite-depth curve fits best at a known speed (1-D search), and its score."""
-    h_min = max(speed ** 2 / (g * 0.98 ** 2), 0.3)
-    depths = np.geomspace(h_min, max(300.0, 10 * h_min), 80)
-    sc = np.array([curve_score(sp, speed, delta_deg, h, g) for h in depths])
-    if not np.any(np.isfinite(sc)):
-        return np.inf, np.nan
-    i = int(np.nanargmax(sc))
-    return float(depths[i]), float(sc[i])
+def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg: float, *, g: float,
+                       delta_range: tuple[float, float] | None = None) -> DepthFit:
+    """Nelder-Mead refinement of speed, depth Froude number and track correction on the finite-depth curve.
+
+    ``delta_range`` bounds the track correction (default: the start +/- 4 deg)."""
+    lo_d, hi_d = delta_range or (delta_deg - 4.0, delta_deg + 4.0)
+    fr0 = min(speed / np.sqrt(g * depth_m), FR_MAX - 0.01)
+
+    def neg(x: np.ndarray) -> float:
+        u, fr, d = float(np.exp(x[0])), float(x[1]), float(x[2])
+        if not (0.2 <= fr <= FR_MAX and lo_d <= d <= hi_d):
+            return 1e9
+        s = curve_score(sp, u, d, u * u / (g * fr * fr), g)
+        return -s if np.isfinite(s) else 1e9
+    x0 = np.array([np.log(speed), fr0, delta_deg])
+    res = optimize.minimize(neg, x0, method="Nelder-Mead", options={
+        "xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0, 0], x0 + [0, 0.02, 0], x0 + [0, 0, 0.5]]})
+    x = res.x if res.fun <= neg(x0) else x0
+    u, fr = float(np.exp(x[0])), float(x[1])
+    return DepthFit(u, u * u / (g * fr * fr), float(x[2]), -neg(x))
