@@ -1,8 +1,10 @@
 """Accuracy sweep (script): analyse random synthetic scenes of known truth and print the errors.
 
-Run: ``.venv/bin/python benchmarks/accuracy_sweep.py [N] [first_seed]``.  Prints per case the
-truth, the estimate, its 95 % interval and the heading error, then the summary: share of
-speeds within 3 %, headings within 2 deg, and the coverage of the 95 % intervals.
+Run: ``.venv/bin/python benchmarks/accuracy_sweep.py [N] [first_seed] [depth_froude]``.  Prints per
+case the truth, the estimate, its 95 % interval and the heading error, then the summary: share of
+speeds within 3 %, headings within 2 deg, the coverage of the 95 % intervals and the depth regimes.
+With ``depth_froude`` the scenes are rendered at that depth Froude number and analysed *without*
+the depth (the program must find the depth effect itself).
 """
 
 from __future__ import annotations
@@ -56,7 +58,8 @@ def run(n: int, first: int, **kw) -> list[dict]:
 if __name__ == "__main__":
     n = int(sys.argv[1]) if len(sys.argv) > 1 else 40
     first = int(sys.argv[2]) if len(sys.argv) > 2 else 0
-    rows = run(n, first)
+    fr = float(sys.argv[3]) if len(sys.argv) > 3 else None
+    rows = run(n, first, depth_froude=fr)
     found = [r for r in rows if r["found"]]
     print(f"\nfound {len(found)}/{len(rows)}")
     if found:
@@ -66,6 +69,9 @@ if __name__ == "__main__":
         print(f"speed within 3 %: {np.mean(err <= 0.03):.0%} (median |error| {np.median(err):.2%}, max {err.max():.2%})")
         print(f"heading within 2 deg: {np.mean(hd <= 2):.0%} (median {np.median(hd):.2f} deg, max {hd.max():.1f})")
         print(f"95 % interval coverage: {cov:.0%}; median time {np.median([r['time_s'] for r in rows]):.2f} s")
+        width = np.median([(r["hi"] - r["lo"]) / r["u"] for r in found])
+        regimes = {k: sum(r["regime"] == k for r in found) for k in sorted({r["regime"] for r in found})}
+        print(f"median interval width {width:.1%} of the speed; regimes {regimes}")
         for name in sorted({k for r in found for k in r["z"]}):
             z = np.array([r["z"][name] for r in found if name in r["z"]])
             print(f"method {name!r}: n={z.size}, rms z {np.sqrt(np.mean(z ** 2)):.2f}, "

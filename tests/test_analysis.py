@@ -152,3 +152,45 @@ def test_finite_depth_scenes_with_known_depth(tmp_path, seed):
     assert a.speed.speed_mps == pytest.approx(case.speed_mps, rel=0.03)
     assert a.speed.ci95_low_mps <= case.speed_mps <= a.speed.ci95_high_mps
     assert a.regime.regime in ("finite depth", "near-critical")
+
+
+@pytest.fixture(scope="module")
+def shallow_sweep(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("shallow")
+    rows = []
+    for seed in range(440, 448):
+        case = make_case(seed, depth_froude=0.88)
+        tif, sidecar = write_case(case, folder)
+        truth = json.loads(sidecar.read_text())["vessels"][0]
+        with open_scene(tif) as sc:
+            rows.append((case, analyze(sc, vessel_px=(truth["pixel_col"], truth["pixel_row"]))))
+    return rows
+
+
+def test_finite_depth_found_without_the_depth(shallow_sweep):
+    # Synthetic truth at Fr_h 0.88 (Havelock 1908: half-angle 31 deg, transverse waves ~35 % longer than in
+    # deep water, so a deep-water fit would read ~15 % high).  No depth given: the program must see the depth
+    # effect (regime finite depth / near-critical, speed within 3 %, depth within 25 %) or say it cannot tell
+    # (regime unknown, with an interval wide enough to hold the truth).  Seeds differ from the calibration
+    # seeds 420-431.
+    found = [(c, a) for c, a in shallow_sweep if a.wake_found]
+    assert len(found) >= 6
+    depth_seen = [(c, a) for c, a in found if a.regime.regime in ("finite depth", "near-critical")]
+    assert len(depth_seen) >= len(found) - 2
+    for case, a in found:
+        assert a.regime.regime != "deep", case.seed  # never deep water when the pattern is shaped by depth
+    for case, a in depth_seen:
+        assert a.speed.speed_mps == pytest.approx(case.speed_mps, rel=0.03), case.seed
+        assert a.depth_m == pytest.approx(case.depth_m, rel=0.25), case.seed
+        assert any("depth was fitted" in c for c in a.cautions)
+    covered = sum(a.speed.ci95_low_mps <= c.speed_mps <= a.speed.ci95_high_mps for c, a in found)
+    assert covered >= len(found) - 1
+
+
+def test_deep_regime_rules_out_shallow_water_explicitly(sweep):
+    # A "deep" verdict without a given depth must say what was ruled out; "unknown" must say what was not.
+    for case, a in sweep:
+        if a.wake_found and a.regime.regime == "deep":
+            assert "fits clearly worse" in a.regime.explanation
+        elif a.wake_found and a.regime.regime == "unknown":
+            assert "cannot tell deep water" in a.regime.explanation
