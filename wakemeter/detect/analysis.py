@@ -22,8 +22,8 @@ from ..scene.raster import Scene
 from . import arms as arms_mod
 from .prepare import Chip, prepare_chip
 from .result import RadarGeometry, WakeAnalysis
-from .spectral import (CurveFit, crest_spacing, fit_at_froude, fit_curve, fit_speed_depth, refine_speed_depth,
-                       student_inflation, whitened_spectrum)
+from .spectral import (FR_MAX, FR_SUPER_RANGE, CurveFit, DepthFit, crest_spacing, fit_at_froude, fit_curve,
+                       fit_speed_depth, fit_supercritical, refine_speed_depth, student_inflation, whitened_spectrum)
 from .trackframe import track_frame, wake_side
 
 #: Decision thresholds, calibrated on wake-free scenes (see tests/test_wake_decision.py and DEVELOPERS.md).
@@ -46,6 +46,12 @@ FR_DEPTH_EFFECT = 0.6
 #: covers both.  Both gates set on synthetic seeds 0-59 (deep) and 420-431 (Fr_h 0.85 and 0.92), see DEVELOPERS.md.
 FR_RULE_OUT = 0.9
 RULE_OUT_MIN = 1.5
+#: The supercritical curve replaces the others only when it scores this much higher (a different pattern: no
+#: transverse waves, half-angle arcsin(1/Fr_h)).  Set on synthetic seeds 470-477 at Fr_h 1.3 against the deep and
+#: Fr_h 0.85/0.92 sets.
+SUPER_GAIN_MIN = 2.0
+#: A wake seen only through the supercritical curve (more free parameters) needs a higher significance.
+SUPER_SIGNIFICANCE_MIN = 9.0
 #: Depth Froude numbers tried against the best fit; the interval covers the speeds of those not ruled out.
 FR_OPEN_CHECK = (0.75, FR_RULE_OUT)
 #: Smallest relative standard uncertainty of a speed fitted together with the depth: on seeds 420-431 at
@@ -167,8 +173,22 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     if scene.info.georeferenced:
         lon, lat = geodesy.pixel_to_lonlat(scene.georef, snapped[0], snapped[1])
         lonlat = (float(lon), float(lat))
-    found = bool(np.isfinite(fit.speed_mps) and fit.significance >= SIGNIFICANCE_MIN
-                 and p.side_contrast >= SIDE_CONTRAST_MIN)
+    m = chip.m_per_px
+    sp = whitened_spectrum(p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1], m)
+    # a supercritical vessel (Fr_h > 1) has no transverse waves and the deep-water curve may lock onto
+    # anything: when the wake side is clear, the supercritical curve is tried too (speed unrestricted), and
+    # the subcritical finite-depth curve (speed, depth and track together)
+    sup = joint = DepthFit(np.nan, np.nan, 0.0, np.nan)
+    if depth_m is None and p.side_contrast >= SIDE_CONTRAST_MIN:
+        sup = fit_supercritical(sp, g=g)
+        if np.isfinite(fit.speed_mps):
+            joint = fit_speed_depth(sp, fit.speed_mps, fit.delta_deg, g=g)
+    best_sub = np.nanmax([fit.score, joint.score, -np.inf])
+    supercritical = bool(np.isfinite(sup.score) and sup.score >= best_sub + SUPER_GAIN_MIN)
+    significance = float(sup.score if supercritical else fit.significance)
+    found = bool(p.side_contrast >= SIDE_CONTRAST_MIN and (
+        (np.isfinite(fit.speed_mps) and fit.significance >= SIGNIFICANCE_MIN)
+        or (supercritical and sup.score >= SUPER_SIGNIFICANCE_MIN)))
     frame = scene.local_frame(snapped[0], snapped[1])
     cautions = [CAUTION_ESTIMATE]
     if not frame.georeferenced:
@@ -176,14 +196,12 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                         + ("" if frame.north_known else "; headings are relative to image up, not true bearings"))
     regime_none = inv.DepthRegime("unknown", None, None, None, None, "no wake: nothing to judge")
     if not found:
-        why = (f"no wake found: spectral significance {fit.significance:.1f} (needs {SIGNIFICANCE_MIN}) and "
+        why = (f"no wake found: spectral significance {significance:.1f} (needs {SIGNIFICANCE_MIN}) and "
                f"wake-side contrast {p.side_contrast:.1f} (needs {SIDE_CONTRAST_MIN})")
-        return WakeAnalysis(False, why, float(fit.significance), snapped, lonlat, None, None, None, (), None, None,
+        return WakeAnalysis(False, why, significance, snapped, lonlat, None, None, None, (), None, None,
                             None, None, regime_none, None, None, g, chip.m_per_px, tuple(cautions),
                             geometry={"chip": _chip_outline(chip)},
                             plots={"side_contrast": p.side_contrast, "fit_speed": fit.speed_mps})
-    m = chip.m_per_px
-    sp = whitened_spectrum(p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1], m)
     # depth: given, or tested by fitting speed, depth and track together on the finite-depth curve
     # (Zilman et al. 2004); the deep-water fit is kept unless depth clearly improves the fit
     u_fit, h_fit, delta_fit, finite = fit.speed_mps, depth_fit, fit.delta_deg, depth_m is not None
@@ -192,9 +210,13 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     open_alts: list = []  #: shallower-water fits (Fr_h FR_OPEN_CHECK) that cannot be ruled out
     evidence = ""
     if depth_m is None:
-        joint = fit_speed_depth(sp, fit.speed_mps, fit.delta_deg, g=g)
         depth_gain = joint.score - fit.score if np.isfinite(joint.score) else np.nan
-        if depth_gain >= DEPTH_GAIN_MIN and joint.depth_froude(g) >= FR_DEPTH_EFFECT:
+        if supercritical:
+            u_fit, h_fit, delta_fit, finite, supercritical = sup.speed_mps, sup.depth_m, sup.delta_deg, True, True
+            evidence = (f"no transverse waves: the supercritical curve fits the wave spectrum far better (score "
+                        f"{sup.score:.1f}) than the deep-water ({fit.score:.1f}) or subcritical ({joint.score:.1f}) "
+                        "curves")
+        elif depth_gain >= DEPTH_GAIN_MIN and joint.depth_froude(g) >= FR_DEPTH_EFFECT:
             u_fit, h_fit, delta_fit, finite = joint.speed_mps, joint.depth_m, joint.delta_deg, True
             evidence = (f"the finite-depth curve fits the wave spectrum better than the deep-water curve "
                         f"(score {joint.score:.1f} against {fit.score:.1f}); the deep-water fit would read "
@@ -214,10 +236,11 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     band = (0.85 * lam_pred, 1.18 * lam_pred) if finite else (0.8 * lam_pred, 1.25 * lam_pred)
     lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=band) if np.isfinite(lam_pred) else (np.nan, np.nan, 0.0)
     transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
-    arms = _arms(chip, back, lam_pred, m)
+    arms = _arms(chip, back, lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u_fit, g=g)), m)
     half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
     stage(0.65, "estimating uncertainty")
-    sub = _bootstrap(p, g, h_fit, u_fit, delta_fit, fitted_depth=finite and depth_m is None)
+    sub = _bootstrap(p, g, h_fit, u_fit, delta_fit, fitted_depth=finite and depth_m is None,
+                     fr_bounds=FR_SUPER_RANGE if supercritical else (0.2, FR_MAX))
     infl = student_inflation(len(sub)) if len(sub) >= 3 else 2.0
 
     def boot_std(values: list[float], floor: float) -> float:
@@ -244,7 +267,8 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     rng = np.random.default_rng(seed)
     methods = [inv.speed_from_spectral_fit(inv.Uncertain(u_fit, u_std), cond, seed=rng)]
     if finite and depth_m is None:
-        methods[0] = replace(methods[0], method="spectral fit (finite-depth curve, depth fitted)")
+        methods[0] = replace(methods[0], method="spectral fit (supercritical curve, depth fitted)" if supercritical
+                             else "spectral fit (finite-depth curve, depth fitted)")
     lam_u = inv.Uncertain(lam_t, max(1.25 * lam_t_sd, 0.006 * lam_t)) if transverse_seen else None
     if lam_u is not None and not (finite and depth_m is None):
         methods.append(inv.speed_from_transverse_wavelength(lam_u, cond, seed=rng))
@@ -340,8 +364,8 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
              "radon_pick": None if p.turbulent is None else (p.turbulent.radon_angle_deg, p.turbulent.offset_px,
                                                             p.turbulent.significance),
              "speed_grid": fit.speed_grid, "score_profile": fit.profile}
-    decision = f"wake found: spectral significance {fit.significance:.1f}, wake-side contrast {p.side_contrast:.1f}"
-    return WakeAnalysis(True, decision, float(fit.significance), snapped, lonlat, heading, d_std, combined,
+    decision = f"wake found: spectral significance {significance:.1f}, wake-side contrast {p.side_contrast:.1f}"
+    return WakeAnalysis(True, decision, significance, snapped, lonlat, heading, d_std, combined,
                         tuple(methods), half, half_sd, lam_t if transverse_seen else None,
                         lam_t_sd if transverse_seen else None, regime, depth_est, depth_ci, g, m,
                         tuple(cautions), geometry, plots)
@@ -351,7 +375,8 @@ CAUTION_ESTIMATE = ("estimates from imagery for analysis: local regulations, cer
                     "practice decide any enforcement; verify scene timing and georeferencing independently")
 
 
-def _bootstrap(p: _Pass, g: float, depth: float, speed: float, delta: float, *, fitted_depth: bool) -> list[tuple[float, float, float]]:
+def _bootstrap(p: _Pass, g: float, depth: float, speed: float, delta: float, *, fitted_depth: bool,
+               fr_bounds: tuple[float, float] = (0.2, FR_MAX)) -> list[tuple[float, float, float]]:
     """Refit on four sub-boxes behind (with the matching ones ahead): (speed, track correction, depth)."""
     half = BOX_PX // 2
     behind, ahead = p.tf[:, -BOX_PX:], p.tf[:, :BOX_PX][:, ::-1]
@@ -364,7 +389,7 @@ def _bootstrap(p: _Pass, g: float, depth: float, speed: float, delta: float, *, 
             if not np.isfinite(f.speed_mps):
                 continue
             if fitted_depth:
-                r = refine_speed_depth(sp, f.speed_mps, depth, f.delta_deg, g=g)
+                r = refine_speed_depth(sp, f.speed_mps, depth, f.delta_deg, g=g, fr_bounds=fr_bounds)
                 out.append((r.speed_mps, r.delta_deg, r.depth_m))
             else:
                 out.append((f.speed_mps, f.delta_deg, depth))

@@ -117,7 +117,8 @@ def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: flo
     return _sum_along(sp, k, th + np.radians(delta_deg), ok)
 
 
-def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray) -> np.ndarray:
+def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray, min_points: int = 12
+               ) -> np.ndarray:
     """z-like score of curves given as wavenumbers ``k`` at image angles ``angle`` (last axis: points)."""
     ku, kv = k * np.cos(angle), k * np.sin(angle)
     n_v, n_u = sp.white.shape
@@ -129,7 +130,7 @@ def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarra
     cnt = ok.sum(axis=-1)
     # mean standardised power along the curve, scaled to a z-like figure (about 3 correlated
     # samples per independent spectral estimate under the Hann window)
-    return np.where(cnt >= 12, np.sum(np.where(ok, vals, 0), axis=-1) / np.sqrt(np.maximum(cnt, 1) * 3.0), np.nan)
+    return np.where(cnt >= min_points, np.sum(np.where(ok, vals, 0), axis=-1) / np.sqrt(np.maximum(cnt, 1) * 3.0), np.nan)
 
 
 @dataclass(frozen=True)
@@ -243,10 +244,25 @@ _FR_GRID = np.concatenate([[0.3, 0.5], np.linspace(0.6, 0.97, 16)])
 FR_MAX = 0.98  #: subcritical fits only
 
 
-def _steady_q(frs: np.ndarray, g: float) -> np.ndarray:
-    """k U^2 / g of the steady waves, (len(frs), len(_THETA)): depends on Fr_h and theta only."""
-    th = np.degrees(np.abs(_THETA))
+def _steady_q(frs: np.ndarray, g: float, theta: np.ndarray = _THETA) -> np.ndarray:
+    """k U^2 / g of the steady waves, (len(frs), len(theta)): depends on Fr_h and theta only."""
+    th = np.degrees(np.abs(theta))
     return np.stack([np.asarray(steady_wavenumber(1.0, th, 1.0 / (g * f * f), g=g)) for f in frs]) / g
+
+
+def _grid_best(sp: SpectrumPair, speeds: np.ndarray, frs: np.ndarray, deltas: np.ndarray, g: float
+               ) -> tuple[float, float, float] | None:
+    """(speed, Fr_h, track correction) of the best curve on a grid, or None when no curve is in band."""
+    theta = _THETA[::2]  # 2 deg steps are enough to find the peak; the refinement uses all of _THETA
+    q = _steady_q(frs, g, theta)
+    k = g * q[None, :, :] / (speeds[:, None, None] ** 2)  # (speeds, frs, theta)
+    ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
+    grid = np.stack([_sum_along(sp, k, np.broadcast_to(theta + np.radians(d), k.shape), ok, min_points=6)
+                     for d in deltas])
+    if not np.any(np.isfinite(grid)):
+        return None
+    i, j, f = np.unravel_index(np.nanargmax(grid), grid.shape)
+    return float(speeds[j]), float(frs[f]), float(deltas[i])
 
 
 def fit_speed_depth(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float,
@@ -262,16 +278,33 @@ def fit_speed_depth(sp: SpectrumPair, speed: float, delta_deg: float, *, g: floa
     """
     speeds = np.geomspace(0.65 * speed, 1.08 * speed, 25)
     d_lo, d_hi = min(-delta_max_deg, delta_deg - 8.0), max(delta_max_deg, delta_deg + 8.0)
-    deltas = np.arange(d_lo, d_hi + 1e-9, 2.0)
-    q = _steady_q(_FR_GRID, g)
-    k = g * q[None, :, :] / (speeds[:, None, None] ** 2)  # (speeds, frs, theta)
-    ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
-    grid = np.stack([_sum_along(sp, k, np.broadcast_to(_THETA + np.radians(d), k.shape), ok) for d in deltas])
-    if not np.any(np.isfinite(grid)):
+    best = _grid_best(sp, speeds, _FR_GRID, np.arange(d_lo, d_hi + 1e-9, 2.0), g)
+    if best is None:
         return DepthFit(np.nan, np.nan, delta_deg, np.nan)
-    i, j, f = np.unravel_index(np.nanargmax(grid), grid.shape)
-    return refine_speed_depth(sp, float(speeds[j]), float(speeds[j] ** 2 / (g * _FR_GRID[f] ** 2)),
-                              float(deltas[i]), g=g, delta_range=(d_lo - 2.0, d_hi + 2.0))
+    u, fr, d = best
+    return refine_speed_depth(sp, u, u * u / (g * fr * fr), d, g=g, delta_range=(d_lo - 2.0, d_hi + 2.0))
+
+
+#: supercritical grid: Fr_h 1.05 (half-angle 72 deg) to 2.5 (24 deg)
+_FR_SUPER = np.array([1.05, 1.1, 1.17, 1.25, 1.35, 1.5, 1.7, 2.0, 2.5])
+FR_SUPER_RANGE = (1.02, 3.0)
+
+
+def fit_supercritical(sp: SpectrumPair, *, g: float, delta_max_deg: float = 20.0) -> DepthFit:
+    """Fit speed, depth and track on the supercritical curve (Fr_h > 1: no transverse waves; only
+    waves propagating beyond arccos(1/Fr_h) from the track stand still behind the vessel; Havelock 1908).
+
+    The speed range is the whole band the spectrum allows, since the deep-water fit can lock onto
+    anything when the pattern has no transverse part.
+    """
+    lo, hi = speed_bounds(sp, g)
+    speeds = np.geomspace(lo, min(1.5 * hi, 60.0), 48)
+    best = _grid_best(sp, speeds, _FR_SUPER, np.arange(-delta_max_deg, delta_max_deg + 1e-9, 2.0), g)
+    if best is None:
+        return DepthFit(np.nan, np.nan, 0.0, np.nan)
+    u, fr, d = best
+    return refine_speed_depth(sp, u, u * u / (g * fr * fr), d, g=g, fr_bounds=FR_SUPER_RANGE,
+                              delta_range=(-delta_max_deg - 2.0, delta_max_deg + 2.0))
 
 
 def fit_at_froude(sp: SpectrumPair, speed: float, delta_deg: float, froude: float, *, g: float,
@@ -280,44 +313,44 @@ def fit_at_froude(sp: SpectrumPair, speed: float, delta_deg: float, froude: floa
 
     The profile of the joint fit: comparing its score with the free fit's tells whether water that
     shallow can be ruled out."""
-    speeds = np.geomspace(0.65 * speed, 1.08 * speed, 49)
-    deltas = delta_deg + np.arange(-delta_half_deg, delta_half_deg + 1e-9, 1.0)
-    k = g * _steady_q(np.array([froude]), g)[0][None, :] / (speeds[:, None] ** 2)
-    ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
-    grid = np.stack([_sum_along(sp, k, np.broadcast_to(_THETA + np.radians(d), k.shape), ok) for d in deltas])
-    if not np.any(np.isfinite(grid)):
+    speeds = np.geomspace(0.65 * speed, 1.08 * speed, 41)
+    best = _grid_best(sp, speeds, np.array([froude]), delta_deg + np.arange(-delta_half_deg, delta_half_deg + 1e-9,
+                                                                            1.0), g)
+    if best is None:
         return DepthFit(np.nan, np.nan, delta_deg, np.nan)
-    i, j = np.unravel_index(np.nanargmax(grid), grid.shape)
 
     def neg(x: np.ndarray) -> float:
         u = float(np.exp(x[0]))
         s = curve_score(sp, u, float(x[1]), u * u / (g * froude * froude), g)
         return -s if np.isfinite(s) else 1e9
-    x0 = np.array([np.log(speeds[j]), deltas[i]])
+    x0 = np.array([np.log(best[0]), best[2]])
     res = optimize.minimize(neg, x0, method="Nelder-Mead", options={
-        "xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.5]]})
+        "xatol": 1e-3, "fatol": 1e-4, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.5]]})
     x = res.x if res.fun <= neg(x0) else x0
     u = float(np.exp(x[0]))
     return DepthFit(u, u * u / (g * froude * froude), float(x[1]), -neg(x))
 
 
 def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg: float, *, g: float,
-                       delta_range: tuple[float, float] | None = None) -> DepthFit:
+                       delta_range: tuple[float, float] | None = None,
+                       fr_bounds: tuple[float, float] = (0.2, FR_MAX)) -> DepthFit:
     """Nelder-Mead refinement of speed, depth Froude number and track correction on the finite-depth curve.
 
-    ``delta_range`` bounds the track correction (default: the start +/- 4 deg)."""
+    ``delta_range`` bounds the track correction (default: the start +/- 4 deg); ``fr_bounds`` the depth
+    Froude number (subcritical by default; the critical point Fr_h = 1 is never crossed)."""
     lo_d, hi_d = delta_range or (delta_deg - 4.0, delta_deg + 4.0)
-    fr0 = min(speed / np.sqrt(g * depth_m), FR_MAX - 0.01)
+    fr_lo, fr_hi = fr_bounds
+    fr0 = float(np.clip(speed / np.sqrt(g * depth_m), fr_lo + 0.01, fr_hi - 0.01))
 
     def neg(x: np.ndarray) -> float:
         u, fr, d = float(np.exp(x[0])), float(x[1]), float(x[2])
-        if not (0.2 <= fr <= FR_MAX and lo_d <= d <= hi_d):
+        if not (fr_lo <= fr <= fr_hi and lo_d <= d <= hi_d):
             return 1e9
         s = curve_score(sp, u, d, u * u / (g * fr * fr), g)
         return -s if np.isfinite(s) else 1e9
     x0 = np.array([np.log(speed), fr0, delta_deg])
     res = optimize.minimize(neg, x0, method="Nelder-Mead", options={
-        "xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0, 0], x0 + [0, 0.02, 0], x0 + [0, 0, 0.5]]})
+        "xatol": 1e-3, "fatol": 1e-4, "initial_simplex": [x0, x0 + [0.01, 0, 0], x0 + [0, 0.02, 0], x0 + [0, 0, 0.5]]})
     x = res.x if res.fun <= neg(x0) else x0
     u, fr = float(np.exp(x[0])), float(x[1])
     return DepthFit(u, u * u / (g * fr * fr), float(x[2]), -neg(x))
