@@ -24,6 +24,7 @@ ITEM_COLOURS = {
     "crest": QColor(80, 200, 255), "ruler": QColor(240, 240, 240), "calibration": QColor(255, 140, 40),
     "finding_track": QColor(255, 200, 0, 170), "finding_arm": QColor(255, 60, 170, 170),
     "chip": QColor(120, 170, 255, 150), "crest_fit": QColor(80, 200, 255, 150),
+    "finding_narrow_v": QColor(170, 255, 240, 190),
 }
 TOOLS = ("look", "vessel", "track", "arm", "crest", "ruler", "calibrate")
 HANDLE_PX = 7
@@ -228,6 +229,10 @@ class Canvas(QWidget):
             for k in ("arm_left", "arm_right"):
                 if k in g:
                     qp.setPen(self._pen(ITEM_COLOURS["finding_arm"], 2))
+                    qp.drawLine(self.to_screen(g[k][0]), self.to_screen(g[k][1]))
+            for k in ("narrow_v_left", "narrow_v_right"):
+                if k in g:
+                    qp.setPen(self._pen(ITEM_COLOURS["finding_narrow_v"], 1, dash=True))
                     qp.drawLine(self.to_screen(g[k][0]), self.to_screen(g[k][1]))
             for line in g.get("crests", []):
                 qp.setPen(self._pen(ITEM_COLOURS["crest_fit"], 1))

@@ -11,6 +11,7 @@ from PySide6.QtWidgets import (QCheckBox, QDoubleSpinBox, QFormLayout, QGroupBox
                                QTabWidget, QTextBrowser, QVBoxLayout, QWidget)
 
 from ..physics.dispersion import steady_wavenumber
+from ..evidence.record import describe_lines
 from ..physics.units import KNOT_MPS
 
 
@@ -227,6 +228,7 @@ def result_html(r: dict, rejected: bool = False) -> str:
         f"<tr><td>Heading (true)</td><td><b>{r['heading_deg']:.1f}°</b> ± {r['heading_std_deg']:.1f}°</td></tr>"
         f"<tr><td>Half-angle</td><td>{half}</td></tr>"
         f"<tr><td>Transverse crests</td><td>{lam}</td></tr>"
+        f"<tr><td>Wake lines</td><td>{esc(describe_lines(r))}</td></tr>"
         f"<tr><td>Depth regime</td><td><b>{esc(r['regime'])}</b></td></tr>"
         f"<tr><td>Depth</td><td>{depth}</td></tr></table>"
         f"<p><small>{esc(r['regime_explanation'])}</small></p>"

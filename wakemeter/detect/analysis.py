@@ -20,6 +20,7 @@ from ..physics.hull import apparent_arm_angle, hull_froude
 from ..scene import geodesy
 from ..scene.raster import Scene
 from . import arms as arms_mod
+from . import lines as lines_mod
 from .prepare import Chip, prepare_chip
 from .result import RadarGeometry, WakeAnalysis
 from .spectral import (FR_MAX, FR_SUPER_RANGE, CurveFit, DepthFit, crest_spacing, fit_at_froude, fit_curve,
@@ -236,8 +237,16 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     band = (0.85 * lam_pred, 1.18 * lam_pred) if finite else (0.8 * lam_pred, 1.25 * lam_pred)
     lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=band) if np.isfinite(lam_pred) else (np.nan, np.nan, 0.0)
     transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
-    arms = _arms(chip, back, lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u_fit, g=g)), m)
+    arms, energy, evalid, reach = _arms(
+        chip, back, lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u_fit, g=g)), m)
     half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
+    # straight lines through the vessel with their significance: Kelvin arms (wave-energy ridges; the track
+    # frame's +v is the image's counter-clockwise side, so its fan angles change sign) and the radar narrow V
+    lines = [replace(ln, angle_from_track_deg=-ln.angle_from_track_deg)
+             for ln in lines_mod.kelvin_arm_lines(energy, evalid, u0=reach, near_deg=half if (
+                 half is not None and half_sd <= ARMS_DRAW_MAX_STD) else None)]
+    if chip.radar:
+        lines += lines_mod.narrow_v_lines(chip.data, chip.valid, chip.vessel_rc, back)
     stage(0.65, "estimating uncertainty")
     sub = _bootstrap(p, g, h_fit, u_fit, delta_fit, fitted_depth=finite and depth_m is None,
                      fr_bounds=FR_SUPER_RANGE if supercritical else (0.2, FR_MAX))
@@ -353,7 +362,8 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         cautions.append("water depth not given: deep water assumed (the wave spectrum shows no depth effect)")
     cautions.append("speed is through the water; a current adds to the speed over ground")
     # draw the arms only when they were measured well enough to be worth showing as evidence
-    geometry = _geometry(chip, back, half, arms if (arms is not None and half_sd <= ARMS_DRAW_MAX_STD) else None)
+    geometry = _geometry(chip, back, half, arms if (arms is not None and half_sd <= ARMS_DRAW_MAX_STD) else None,
+                         [ln for ln in lines if ln.kind == "narrow-V arm"])
     plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,
              "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": delta_fit,
              "spectrum_band": (sp.k_lo, sp.k_hi), "transverse_wavelength_m": lam_t if transverse_seen else None,
@@ -368,7 +378,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     return WakeAnalysis(True, decision, significance, snapped, lonlat, heading, d_std, combined,
                         tuple(methods), half, half_sd, lam_t if transverse_seen else None,
                         lam_t_sd if transverse_seen else None, regime, depth_est, depth_ci, g, m,
-                        tuple(cautions), geometry, plots)
+                        tuple(cautions), geometry, plots, tuple(lines))
 
 
 CAUTION_ESTIMATE = ("estimates from imagery for analysis: local regulations, certified instruments and licensed "
@@ -405,8 +415,10 @@ def _track_profile(chip: Chip, back: float, lam_pred: float, m: float) -> np.nda
     return tf[c - half_w:c + half_w + 1, :valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
 
 
-def _arms(chip: Chip, back: float, lam_pred: float, m: float) -> arms_mod.Arms | None:
-    """Half-angle from the outer edge of the wave energy in a wide track frame."""
+def _arms(chip: Chip, back: float, lam_pred: float, m: float
+          ) -> tuple[arms_mod.Arms | None, np.ndarray, np.ndarray, int]:
+    """Half-angle from the outer edge of the wave energy in a wide track frame; also returns the energy
+    map, its valid mask and the vessel's column in it."""
     reach = int(0.46 * chip.data.shape[0])
     wide = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=reach)
     wvalid = track_frame(chip.valid.astype(np.float32), chip.vessel_rc, back, u_range=(-reach, reach),
@@ -418,7 +430,8 @@ def _arms(chip: Chip, back: float, lam_pred: float, m: float) -> arms_mod.Arms |
     bg = float(np.median(ahead_e)) if ahead_e.size else 0.0
     noise = float(1.4826 * np.median(np.abs(ahead_e - bg))) if ahead_e.size else 1e-9
     energy = np.where(wvalid, energy, 0.0)
-    return arms_mod.half_angle_from_edges(energy[:, reach:], u_offset=0, background=bg, noise=max(noise, 1e-12))
+    found = arms_mod.half_angle_from_edges(energy[:, reach:], u_offset=0, background=bg, noise=max(noise, 1e-12))
+    return found, energy, wvalid, reach
 
 
 def _radar_offset_estimate(chip, back, heading, frame, geo: RadarGeometry, cond, rng):
@@ -455,7 +468,7 @@ def _chip_outline(chip: Chip) -> list[tuple[float, float]]:
     return [chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))]
 
 
-def _geometry(chip: Chip, back: float, half: float | None, arms) -> dict:
+def _geometry(chip: Chip, back: float, half: float | None, arms, narrow: list | None = None) -> dict:
     n = chip.data.shape[0]
     length = 0.45 * n
     r0, c0 = chip.vessel_rc
@@ -467,4 +480,6 @@ def _geometry(chip: Chip, back: float, half: float | None, arms) -> dict:
     if half is not None and arms is not None:
         out["arm_left"] = ray(back + (arms.left_deg if np.isfinite(arms.left_deg) else half))
         out["arm_right"] = ray(back - (arms.right_deg if np.isfinite(arms.right_deg) else half))
+    for ln in narrow or []:
+        out["narrow_v_left" if ln.angle_from_track_deg > 0 else "narrow_v_right"] = ray(back + ln.angle_from_track_deg)
     return out

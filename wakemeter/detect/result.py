@@ -51,6 +51,7 @@ class WakeAnalysis:
     cautions: tuple[str, ...]
     geometry: dict = field(default_factory=dict, compare=False, repr=False)  #: lines for drawing, scene px
     plots: dict = field(default_factory=dict, compare=False, repr=False)  #: arrays for plots
+    lines: tuple = ()  #: lines.WakeLine found through the vessel (Kelvin arms, radar narrow V)
 
     def to_json(self) -> dict:
         """Plain data with the documented field names; unknown numbers are None."""
@@ -77,7 +78,16 @@ class WakeAnalysis:
             "vessel_lonlat": [_num(v) for v in self.vessel_lonlat] if self.vessel_lonlat else None,
             "gravity_mps2": _num(self.gravity_mps2), "pixel_m": _num(self.pixel_m),
             "cautions": list(self.cautions),
+            "lines": [{"kind": ln.kind, "angle_from_track_deg": _num(ln.angle_from_track_deg),
+                       "significance": _num(ln.significance)} for ln in self.lines],
+            "narrow_v_half_angle_deg": _num(self.narrow_v_half_angle_deg),
         }
+
+    @property
+    def narrow_v_half_angle_deg(self) -> float | None:
+        """Mean half-angle of the radar narrow-V arms found (None when none was)."""
+        nv = [abs(ln.angle_from_track_deg) for ln in self.lines if ln.kind == "narrow-V arm"]
+        return float(np.mean(nv)) if nv else None
 
 
 def _num(x: float | None) -> float | None:

@@ -25,6 +25,7 @@ COLOURS = {
     "arm": (255, 60, 170),
     "vessel": (60, 230, 90),
     "chip": (120, 170, 255),
+    "narrow_v": (170, 255, 240),
     "text": (255, 255, 255),
     "box": (20, 24, 32),
     "north": (255, 255, 255),
@@ -97,6 +98,9 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     for key in ("arm_left", "arm_right"):
         if key in geo:
             cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["arm"], 2 * lw, cv2.LINE_AA)
+    for key in ("narrow_v_left", "narrow_v_right"):
+        if key in geo:
+            cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["narrow_v"], lw, cv2.LINE_AA)
     vx, vy = px(analysis.vessel_px)
     cv2.circle(img, (vx, vy), int(10 * s + 4), COLOURS["vessel"], 2 * lw, cv2.LINE_AA)
     _decorations(img, scene, analysis, crop, step, s, lw, scene_label)

@@ -69,3 +69,14 @@ def validate(record: dict) -> None:
 
 def schema_path() -> Path:
     return Path(str(resources.files(__package__).joinpath("evidence.schema.json")))
+
+
+def describe_lines(result: dict) -> str:
+    """One line of text for the wake lines of a result (JSON form): angle from the track, significance."""
+    parts = []
+    for kind, label in (("Kelvin arm", "Kelvin arms"), ("narrow-V arm", "narrow V")):
+        found = [ln for ln in result.get("lines") or [] if ln["kind"] == kind and ln["angle_from_track_deg"] is not None]
+        if found:
+            parts.append(label + " at " + ", ".join(
+                f"{ln['angle_from_track_deg']:+.1f} deg (significance {ln['significance']:.0f})" for ln in found))
+    return "; ".join(parts) if parts else "none stands out"

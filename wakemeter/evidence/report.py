@@ -17,7 +17,7 @@ from reportlab.lib.units import mm
 from reportlab.platypus import Image, PageBreak, Paragraph, SimpleDocTemplate, Spacer, Table, TableStyle
 
 from ..physics.units import KNOT_MPS
-from .record import CAUTION_TEXT
+from .record import CAUTION_TEXT, describe_lines
 
 
 def page_size_for_locale() -> str:
@@ -56,6 +56,7 @@ def write_pdf(path: str, record: dict, evidence_img: np.ndarray, plots: list[np.
                  f"{r['half_angle_deg']:.1f} +/- {r['half_angle_std_deg']:.1f} deg"],
                 ["Transverse crest spacing", "not seen" if r["transverse_wavelength_m"] is None else
                  f"{r['transverse_wavelength_m']:.1f} m"],
+                ["Wake lines through the vessel", describe_lines(r)],
                 ["Depth regime", f"{r['regime']}"],
                 ["Depth", "not estimated" if r["depth_m"] is None else
                  f"{r['depth_m']:.1f} m (95 %: {r['depth_ci95_m'][0]:.1f} - {r['depth_ci95_m'][1]:.1f} m)"],

@@ -65,6 +65,10 @@ class RadarModel:
     slant_range_m: float = 850_000.0
     platform_speed_mps: float = 7_500.0
     hull_displacement: bool = True
+    #: narrow bright V behind the vessel (Bragg-scattering waves along two lines a few degrees off the
+    #: track; seen in radar only).  0 = none.  Brightness is relative to the calm backscatter.
+    narrow_v_half_angle_deg: float = 0.0
+    narrow_v_brightness: float = 1.0
 
     def __post_init__(self) -> None:
         if not 0 < self.incidence_deg < 90:
@@ -75,6 +79,9 @@ class RadarModel:
             raise ParameterError(f"wake_darkening must be within [0, 1), got {self.wake_darkening!r}")
         if self.slant_range_m <= 0 or self.platform_speed_mps <= 0:
             raise ParameterError("slant_range_m and platform_speed_mps must be > 0")
+        if not 0 <= self.narrow_v_half_angle_deg < 15 or self.narrow_v_brightness < 0:
+            raise ParameterError("narrow_v_half_angle_deg must be within [0, 15) deg and narrow_v_brightness >= 0, "
+                                 f"got {self.narrow_v_half_angle_deg!r} and {self.narrow_v_brightness!r}")
 
     @property
     def flight_bearing_deg(self) -> float:
@@ -126,6 +133,19 @@ def track_profile(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float],
     return np.where(behind > -length_m / 2, prof, 0.0) * np.clip((behind + length_m / 2) / length_m, 0, 1)
 
 
+def narrow_v_profile(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float], *, half_angle_deg: float,
+                     width_m: float, length_m: float, decay_m: float) -> np.ndarray:
+    """Strength (0..1) of a narrow V: two thin lines from the stern at +/- ``half_angle_deg``, fading."""
+    ux, uy = heading_xy
+    behind = -(x * ux + y * uy) - length_m / 2
+    lateral = -x * uy + y * ux
+    t = np.tan(np.radians(half_angle_deg))
+    b = np.clip(behind, 0, None)
+    lines = np.maximum(np.exp(-0.5 * ((lateral - b * t) / width_m) ** 2),
+                       np.exp(-0.5 * ((lateral + b * t) / width_m) ** 2))
+    return np.where(behind > 0, lines * np.exp(-b / decay_m) * np.clip(b / length_m, 0, 1), 0.0)
+
+
 def optical_pixels(slope_sun: np.ndarray, foam: np.ndarray, hull: np.ndarray, model: OpticalModel,
                    rng: np.random.Generator) -> np.ndarray:
     """Quantised optical brightness from the slope along the sun direction (unit rms), foam and hull masks."""
@@ -136,11 +156,13 @@ def optical_pixels(slope_sun: np.ndarray, foam: np.ndarray, hull: np.ndarray, mo
 
 
 def radar_pixels(slope_look: np.ndarray, wake: np.ndarray, hull: np.ndarray, model: RadarModel,
-                 rng: np.random.Generator) -> np.ndarray:
+                 rng: np.random.Generator, narrow_v: np.ndarray | None = None) -> np.ndarray:
     """Float32 linear backscatter with speckle from the slope along the look direction (unit rms)."""
     sigma0 = 0.05
     s = sigma0 * np.clip(1.0 + 0.5 * model.tilt_gain * slope_look, 0.05, None)
     s = s * (1.0 - model.wake_darkening * wake) + sigma0 * model.hull_brightness * hull
+    if narrow_v is not None:
+        s = s + sigma0 * model.narrow_v_brightness * narrow_v
     speckle = rng.gamma(model.looks, 1.0 / model.looks, s.shape)
     out = (s * speckle).astype(np.float32)
     # keep 10 mantissa bits (0.1 % precision, far below speckle) so scenes compress well

@@ -26,8 +26,8 @@ from ..physics import havelock, kelvin, radar as radar_phys
 from ..physics.gravity import normal_gravity
 from ..physics.units import KNOT_MPS
 from ..scene import geodesy
-from .imaging import (AmbientSea, OpticalModel, RadarModel, ambient_slopes, optical_pixels, radar_pixels,
-                      track_profile)
+from .imaging import (AmbientSea, OpticalModel, RadarModel, ambient_slopes, narrow_v_profile, optical_pixels,
+                      radar_pixels, track_profile)
 from .wavefield import Hull, hull_pressure, kelvin_elevation
 
 TRUTH_SCHEMA = "wakemeter.synth-truth/1"
@@ -135,6 +135,7 @@ def render(spec: SceneSpec) -> RenderedScene:
     sy = np.zeros(shape)
     wake = np.zeros(shape)
     hulls = np.zeros(shape)
+    narrow = np.zeros(shape)
     vessels_truth = []
     is_radar = isinstance(spec.imaging, RadarModel)
     for v in spec.vessels:
@@ -151,6 +152,11 @@ def render(spec: SceneSpec) -> RenderedScene:
         rel_x, rel_y = xm - col * dx, ym_up + row * dy
         wake = np.maximum(wake, track_profile(rel_x, rel_y, (ux, uy), beam_m=v.hull.beam_m,
                                               length_m=v.hull.length_m, decay_m=40 * v.hull.length_m))
+        if is_radar and spec.imaging.narrow_v_half_angle_deg > 0:
+            narrow = np.maximum(narrow, narrow_v_profile(
+                rel_x, rel_y, (ux, uy), half_angle_deg=spec.imaging.narrow_v_half_angle_deg,
+                width_m=max(0.7 * spec.pixel_m, v.hull.beam_m / 3), length_m=v.hull.length_m,
+                decay_m=25 * v.hull.length_m))
         offset_m = 0.0
         hull_col, hull_row = col, row
         if is_radar and spec.imaging.hull_displacement:
@@ -185,7 +191,8 @@ def render(spec: SceneSpec) -> RenderedScene:
     scale = 1.0 / max(np.percentile(np.hypot(sx, sy), 99.5), 1e-9) * 3.0
     if is_radar:
         lx, ly = _grid_direction(centre, spec.imaging.look_bearing_deg)
-        pixels = radar_pixels((sx * lx + sy * ly) * scale, wake, hulls, spec.imaging, rng)
+        pixels = radar_pixels((sx * lx + sy * ly) * scale, wake, hulls, spec.imaging, rng,
+                              narrow if spec.imaging.narrow_v_half_angle_deg > 0 else None)
     else:
         lx, ly = _grid_direction(centre, spec.imaging.sun_azimuth_deg)
         pixels = optical_pixels((sx * lx + sy * ly) * scale, wake, hulls, spec.imaging, rng)
