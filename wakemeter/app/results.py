@@ -10,7 +10,6 @@ from PySide6.QtCore import Signal
 from PySide6.QtWidgets import (QCheckBox, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QPushButton,
                                QTabWidget, QTextBrowser, QVBoxLayout, QWidget)
 
-from ..physics.dispersion import steady_wavenumber
 from ..evidence.record import describe_lines
 from ..physics.units import KNOT_MPS
 
@@ -175,14 +174,9 @@ class ResultsPanel(QWidget):
         self.spec_img.setColorMap(pg.colormap.get("viridis"))
         from PySide6.QtCore import QRectF
         self.spec_img.setRect(QRectF(-n_u / 2 * dk_u, -n_v / 2 * dk_v, n_u * dk_u, n_v * dk_v))
-        u, h, d = p["fit_speed_mps"], p["fit_depth_m"], p["fit_delta_deg"]
-        th = np.radians(np.arange(-84.0, 84.5, 0.5))
-        k = (a.gravity_mps2 / (u * u * np.cos(th) ** 2) if np.isinf(h) else
-             np.asarray(steady_wavenumber(u, np.abs(np.degrees(th)), h, g=a.gravity_mps2)))
-        k = np.where(k <= p["spectrum_band"][1] * 1.05, k, np.nan)
-        ang = th + np.radians(d)
+        ku, kv = p["fitted_curve"]  # computed by the analysis; the panel only draws
         for c, sgn in zip(self.spec_curve, (1, -1)):
-            c.setData(sgn * k * np.cos(ang), sgn * k * np.sin(ang), connect="finite")
+            c.setData(sgn * ku, sgn * kv, connect="finite")
         prof = np.asarray(p["profile"], float)
         x = np.arange(prof.size) * p["profile_m_per_px"]
         self.prof_line.setData(x, prof)

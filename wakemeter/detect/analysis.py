@@ -23,7 +23,8 @@ from . import arms as arms_mod
 from . import lines as lines_mod
 from .prepare import Chip, prepare_chip
 from .result import RadarGeometry, WakeAnalysis
-from .spectral import (FR_MAX, FR_SUPER_RANGE, CurveFit, DepthFit, crest_spacing, fit_at_froude, fit_curve,
+from .spectral import (FR_MAX, FR_SUPER_RANGE, CurveFit, DepthFit, crest_spacing, curve_points, fit_at_froude,
+                       fit_curve,
                        fit_speed_depth, fit_supercritical, refine_speed_depth, student_inflation, whitened_spectrum)
 from .trackframe import track_frame, wake_side
 
@@ -366,6 +367,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                          [ln for ln in lines if ln.kind == "narrow-V arm"])
     plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,
              "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": delta_fit,
+             "fitted_curve": curve_points(u_fit, h_fit, delta_fit, g=g, k_max=1.05 * sp.k_hi),
              "spectrum_band": (sp.k_lo, sp.k_hi), "transverse_wavelength_m": lam_t if transverse_seen else None,
              "profile_m_per_px": m, "depth_gain": depth_gain, "shallow_rule_out": rule_out, "side_contrast": p.side_contrast,
              "boot_speeds": [b[0] for b in sub],

@@ -354,3 +354,14 @@ def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg
     x = res.x if res.fun <= neg(x0) else x0
     u, fr = float(np.exp(x[0])), float(x[1])
     return DepthFit(u, u * u / (g * fr * fr), float(x[2]), -neg(x))
+
+
+def curve_points(speed: float, depth_m: float, delta_deg: float, *, g: float, k_max: float,
+                 step_deg: float = 0.5) -> tuple[np.ndarray, np.ndarray]:
+    """(k_u, k_v) of the steady-wave curve for drawing (rad/m; one half, mirror for the other); NaN beyond k_max."""
+    th = np.arange(-84.0, 84.0 + 1e-9, step_deg)
+    k = np.asarray(steady_wavenumber(speed, np.abs(th), depth_m, g=g), float)
+    k = np.where(k <= k_max, k, np.nan)
+    a = np.radians(th + delta_deg)
+    return k * np.cos(a), k * np.sin(a)
+

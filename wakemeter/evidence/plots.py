@@ -11,7 +11,6 @@ import cv2
 import numpy as np
 
 from ..detect.analysis import WakeAnalysis
-from ..physics.dispersion import steady_wavenumber
 
 
 def spectrum_plot(analysis: WakeAnalysis, *, size: int = 520) -> np.ndarray | None:
@@ -25,17 +24,12 @@ def spectrum_plot(analysis: WakeAnalysis, *, size: int = 520) -> np.ndarray | No
     img = cv2.resize(img, (size, size), interpolation=cv2.INTER_NEAREST)
     sx, sy = size / n_u, size / n_v
     dk_u, dk_v = p["spectrum_dk"]
-    u, h, d = p["fit_speed_mps"], p["fit_depth_m"], p["fit_delta_deg"]
-    th = np.radians(np.arange(-84.0, 84.5, 0.5))
-    if np.isinf(h):
-        k = analysis.gravity_mps2 / (u * u * np.cos(th) ** 2)
-    else:
-        k = np.asarray(steady_wavenumber(u, np.abs(np.degrees(th)), h, g=analysis.gravity_mps2))
-    a = th + np.radians(d)
+    u, h = p["fit_speed_mps"], p["fit_depth_m"]
+    ku, kv = p["fitted_curve"]
     for sign in (1, -1):
-        cu = n_u / 2 + sign * k * np.cos(a) / dk_u
-        cv = n_v / 2 + sign * k * np.sin(a) / dk_v
-        ok = np.isfinite(k) & (cu >= 0) & (cu < n_u) & (cv >= 0) & (cv < n_v)
+        cu = n_u / 2 + sign * ku / dk_u
+        cv = n_v / 2 + sign * kv / dk_v
+        ok = np.isfinite(cu) & np.isfinite(cv) & (cu >= 0) & (cu < n_u) & (cv >= 0) & (cv < n_v)
         pts = np.stack([(cu[ok] + 0.5) * sx, (cv[ok] + 0.5) * sy], axis=1).astype(np.int32)
         if len(pts) > 1:
             cv2.polylines(img, [pts], False, (255, 60, 60), 2, cv2.LINE_AA)
