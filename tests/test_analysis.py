@@ -226,3 +226,26 @@ def test_supercritical_vessel_without_the_depth(tmp_path, seed, froude):
     assert a.speed.ci95_low_mps <= case.speed_mps <= a.speed.ci95_high_mps
     assert a.depth_ci95_m[0] <= case.depth_m <= a.depth_ci95_m[1]
     assert "supercritical curve" in a.methods[0].method
+
+
+def test_long_waves_found_at_half_resolution(tmp_path):
+    # Synthetic truth: 5.42 m/s (transverse waves 18.8 m, 2*pi*U^2/g) on 0.31 m pixels, i.e. 61 pixels per wave:
+    # too few waves fit the full-resolution box to pass the decision, the half-resolution look finds them.
+    import numpy as np
+
+    from wakemeter.synth import Hull, OpticalModel, VesselSpec, render, write
+    from wakemeter.synth.demo import vessel_scene
+
+    u = 5.42
+    length = u * u / (9.81 * 0.35 ** 2)
+    vessel = VesselSpec("Long-wave case", 12.5, -20.25, u, 131.0, Hull(length, length / 5))
+    spec = vessel_scene("long waves", vessel, 1024, 0.31, imaging=OpticalModel(sun_azimuth_deg=40.0, noise_std=0.02),
+                        sea=None, depth_m=np.inf, seed=11)
+    tif, sidecar = write(render(spec), tmp_path / "long.tif")
+    truth = json.loads(sidecar.read_text())["vessels"][0]
+    with open_scene(tif) as sc:
+        a = analyze(sc, vessel_px=(truth["pixel_col"], truth["pixel_row"]))
+    assert a.wake_found
+    assert a.pixel_m == pytest.approx(2 * 0.31, rel=0.02)  # the half-resolution look was used
+    assert a.speed.speed_mps == pytest.approx(u, rel=0.03)
+    assert a.speed.ci95_low_mps <= u <= a.speed.ci95_high_mps

@@ -156,6 +156,17 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     stage(0.05, "reading the vessel's surroundings")
     step = 1
     p = _one_pass(scene, vessel_px, step, g, depth_fit, radar)
+    if not (p.fit.significance >= SIGNIFICANCE_MIN and p.side_contrast >= SIDE_CONTRAST_MIN) \
+            and min(scene.width, scene.height) >= 0.8 * CHIP_PX * 2:
+        # nothing at full resolution: the waves may be too long for the box (a few wavelengths only); one
+        # look at half resolution (the false-alarm check covers both looks, see DEVELOPERS.md)
+        try:
+            p_coarse = _one_pass(scene, vessel_px, 2, g, depth_fit, radar)
+        except ParameterError:
+            p_coarse = None
+        if p_coarse is not None and p_coarse.fit.significance >= SIGNIFICANCE_MIN \
+                and p_coarse.side_contrast >= SIDE_CONTRAST_MIN:
+            p, step = p_coarse, 2
     for _ in range(3):
         lam_px = 2 * np.pi * p.fit.speed_mps ** 2 / g / p.chip.m_per_px if np.isfinite(p.fit.speed_mps) else np.nan
         if not (np.isfinite(lam_px) and lam_px > BOX_PX / 5 and p.fit.significance >= SIGNIFICANCE_MIN):
