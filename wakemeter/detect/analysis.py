@@ -21,6 +21,8 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from . import arms as arms_mod
 from . import lines as lines_mod
+from .chip_measures import (chip_outline, radar_offset_estimate, track_profile, wake_geometry,
+                            wedge_arms)
 from .prepare import Chip, prepare_chip
 from .result import RadarGeometry, WakeAnalysis
 from .spectral import (FR_MAX, FR_SUPER_RANGE, CurveFit, DepthFit, crest_spacing, curve_points, fit_at_froude,
@@ -60,7 +62,6 @@ FR_OPEN_CHECK = (0.75, FR_RULE_OUT)
 #: Fr_h 0.85 and 0.92 the joint fit's errors were within 2 % in 19 of 20 found cases.
 FITTED_DEPTH_REL_STD = 0.01
 ARMS_DRAW_MAX_STD = 6.0  # deg
-K_HI_FACTOR = 1.8  # wave-energy band for the arms: 0.5 to 1.8 x the transverse wavenumber
 
 
 @dataclass(frozen=True)
@@ -213,7 +214,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                f"wake-side contrast {p.side_contrast:.1f} (needs {SIDE_CONTRAST_MIN})")
         return WakeAnalysis(False, why, significance, snapped, lonlat, None, None, None, (), None, None,
                             None, None, regime_none, None, None, g, chip.m_per_px, tuple(cautions),
-                            geometry={"chip": _chip_outline(chip)},
+                            geometry={"chip": chip_outline(chip)},
                             plots={"side_contrast": p.side_contrast, "fit_speed": fit.speed_mps})
     # depth: given, or tested by fitting speed, depth and track together on the finite-depth curve
     # (Zilman et al. 2004); the deep-water fit is kept unless depth clearly improves the fit
@@ -245,12 +246,13 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                     shallow_alt, rule_out = alt, drop
     back = (p.back_deg + delta_fit) % 360.0
     lam_pred = float(kelvin.transverse_wavelength(u_fit, h_fit, g=g))
-    prof = _track_profile(chip, back, lam_pred, m)
+    prof = track_profile(chip, back, lam_pred, m, gap_px=GAP_PX, box_px=BOX_PX)
     band = (0.85 * lam_pred, 1.18 * lam_pred) if finite else (0.8 * lam_pred, 1.25 * lam_pred)
     lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=band) if np.isfinite(lam_pred) else (np.nan, np.nan, 0.0)
     transverse_seen = bool(np.isfinite(lam_t) and snr >= TRANSVERSE_SNR_MIN)
-    arms, energy, evalid, reach = _arms(
-        chip, back, lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u_fit, g=g)), m)
+    arms, energy, evalid, reach = wedge_arms(
+        chip, back, lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u_fit, g=g)), m,
+        gap_px=GAP_PX)
     half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
     # straight lines through the vessel with their significance: Kelvin arms (wave-energy ridges; the track
     # frame's +v is the image's counter-clockwise side, so its fan angles change sign) and the radar narrow V
@@ -301,7 +303,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             seed=rng)
         methods.append(est)
     if radar_geometry is not None:
-        est = _radar_offset_estimate(chip, back, heading, frame, radar_geometry, cond, rng)
+        est = radar_offset_estimate(chip, back, heading, frame, radar_geometry, cond, rng)
         if est is not None:
             methods.append(est)
         else:
@@ -374,7 +376,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         cautions.append("water depth not given: deep water assumed (the wave spectrum shows no depth effect)")
     cautions.append("speed is through the water; a current adds to the speed over ground")
     # draw the arms only when they were measured well enough to be worth showing as evidence
-    geometry = _geometry(chip, back, half, arms if (arms is not None and half_sd <= ARMS_DRAW_MAX_STD) else None,
+    geometry = wake_geometry(chip, back, half, arms if (arms is not None and half_sd <= ARMS_DRAW_MAX_STD) else None,
                          [ln for ln in lines if ln.kind == "narrow-V arm"])
     plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,
              "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": delta_fit,
@@ -416,83 +418,4 @@ def _bootstrap(p: _Pass, g: float, depth: float, speed: float, delta: float, *, 
                 out.append((r.speed_mps, r.delta_deg, r.depth_m))
             else:
                 out.append((f.speed_mps, f.delta_deg, depth))
-    return out
-
-
-def _track_profile(chip: Chip, back: float, lam_pred: float, m: float) -> np.ndarray:
-    """Mean of a narrow band along the track behind the vessel (for the transverse crest spacing)."""
-    tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(GAP_PX, GAP_PX + 2 * BOX_PX), v_half=BOX_PX / 2)
-    c = tf.shape[0] // 2
-    half_w = int(max(1, min(lam_pred / m / 6, 6))) if np.isfinite(lam_pred) else 2
-    valid_u = np.nonzero(np.abs(tf[c]) > 0)[0]
-    return tf[c - half_w:c + half_w + 1, :valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
-
-
-def _arms(chip: Chip, back: float, lam_pred: float, m: float
-          ) -> tuple[arms_mod.Arms | None, np.ndarray, np.ndarray, int]:
-    """Half-angle from the outer edge of the wave energy in a wide track frame; also returns the energy
-    map, its valid mask and the vessel's column in it."""
-    reach = int(0.46 * chip.data.shape[0])
-    wide = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=reach)
-    wvalid = track_frame(chip.valid.astype(np.float32), chip.vessel_rc, back, u_range=(-reach, reach),
-                         v_half=reach, order=0) > 0
-    k_t = 2 * np.pi / lam_pred if np.isfinite(lam_pred) else 2 * np.pi / (20 * m)
-    energy = arms_mod.wave_energy(wide, m, k_lo=0.5 * k_t, k_hi=min(K_HI_FACTOR * k_t, 2 * np.pi / (2.6 * m)),
-                                  smooth_px=max(1.5, 0.3 * lam_pred / m if np.isfinite(lam_pred) else 3))
-    ahead_e = energy[:, :reach - GAP_PX][wvalid[:, :reach - GAP_PX]]
-    bg = float(np.median(ahead_e)) if ahead_e.size else 0.0
-    noise = float(1.4826 * np.median(np.abs(ahead_e - bg))) if ahead_e.size else 1e-9
-    energy = np.where(wvalid, energy, 0.0)
-    found = arms_mod.half_angle_from_edges(energy[:, reach:], u_offset=0, background=bg, noise=max(noise, 1e-12))
-    return found, energy, wvalid, reach
-
-
-def _radar_offset_estimate(chip, back, heading, frame, geo: RadarGeometry, cond, rng):
-    """Speed from the hull's azimuth displacement off its own turbulent wake (Raney 1971).
-
-    The wake line is found anywhere within the largest plausible displacement (20 m/s radial
-    speed); the hull is the bright blob nearest the given position.
-    """
-    if chip.hull_rc is None:
-        return None
-    max_off_m = geo.slant_range_m / geo.platform_speed_mps * 20.0
-    found = arms_mod.wake_line_offset(chip.data, chip.valid, back, max_offset_px=max_off_m / chip.m_per_px)
-    if found is None or found[2] < 5.0:
-        return None
-    s_wake, theta_deg, _sig = found
-    n = chip.data.shape[0]
-    t = np.radians(theta_deg)
-    # Radon detector coordinate of the hull: s = x cos(theta) + y sin(theta), x right, y up, about the centre
-    x_h, y_h = chip.hull_rc[1] - n // 2, n // 2 - chip.hull_rc[0]
-    lateral_px = x_h * np.cos(t) + y_h * np.sin(t) - s_wake
-    fdc, fdr = frame.image_direction(geo.flight_bearing_deg)
-    proj = fdc * np.cos(t) - fdr * np.sin(t)  # the flight direction's component along the line normal
-    if abs(proj) < 0.1:
-        return None
-    offset_m = float(lateral_px / proj * chip.m_per_px)
-    return inv.speed_from_radar_offset(
-        inv.Uncertain(offset_m, 2.0 * chip.m_per_px), inv.Uncertain(geo.slant_range_m, geo.slant_range_std_m),
-        inv.Uncertain(geo.platform_speed_mps, geo.platform_speed_std_mps), incidence_deg=geo.incidence_deg,
-        heading_deg=inv.Uncertain(heading, 1.0), look_bearing_deg=geo.look_bearing_deg, conditions=cond, seed=rng)
-
-
-def _chip_outline(chip: Chip) -> list[tuple[float, float]]:
-    n = chip.data.shape[0]
-    return [chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))]
-
-
-def _geometry(chip: Chip, back: float, half: float | None, arms, narrow: list | None = None) -> dict:
-    n = chip.data.shape[0]
-    length = 0.45 * n
-    r0, c0 = chip.vessel_rc
-
-    def ray(angle_deg: float) -> list[tuple[float, float]]:
-        a = np.radians(angle_deg)
-        return [chip.to_scene(r0, c0), chip.to_scene(r0 - length * np.sin(a), c0 + length * np.cos(a))]
-    out = {"chip": _chip_outline(chip), "track": ray(back)}
-    if half is not None and arms is not None:
-        out["arm_left"] = ray(back + (arms.left_deg if np.isfinite(arms.left_deg) else half))
-        out["arm_right"] = ray(back - (arms.right_deg if np.isfinite(arms.right_deg) else half))
-    for ln in narrow or []:
-        out["narrow_v_left" if ln.angle_from_track_deg > 0 else "narrow_v_right"] = ray(back + ln.angle_from_track_deg)
     return out
