@@ -212,3 +212,19 @@ def test_info_and_quicklook_commands(tmp_path, capsys):
     assert main(["info", str(tmp_path / "nope.tif")]) == 2
     assert "no such file" in capsys.readouterr().err
     assert main(["quicklook", str(DEMO), "--out", str(tmp_path / "missing" / "q.png")]) == 2
+
+
+@pytest.mark.parametrize("looks", [1, 3, 6, 10])
+def test_multilook_speckle_is_recognised_as_radar(looks):
+    # Multi-look intensity speckle is gamma distributed with shape L (Goodman 1976, from memory): its mean is
+    # barely above its median at 6-10 looks, so the mean/median rule alone misses it; the local
+    # spread-grows-with-mean rule must catch it.  Float reflectance with additive noise must not pass.
+    from wakemeter.scene.display import looks_like_radar
+    rng = np.random.default_rng(looks)
+    texture = 1.0 + 0.3 * np.sin(np.arange(100_000) / 40.0)
+    speckle = rng.gamma(looks, 1.0 / looks, 100_000) * 0.05 * texture
+    assert looks_like_radar("float32", 1, speckle.astype(np.float32))
+    reflectance = 0.35 + 0.05 * np.sin(np.arange(100_000) / 7.0) + rng.normal(0, 0.02, 100_000)
+    assert not looks_like_radar("float32", 1, reflectance.astype(np.float32))
+    assert not looks_like_radar("float32", 1, (10 * np.log10(speckle)).astype(np.float32))  # dB: negative values
+    assert not looks_like_radar("uint16", 1, (speckle * 1000).astype(np.uint16))

@@ -230,6 +230,9 @@ class Canvas(QWidget):
                 if k in g:
                     qp.setPen(self._pen(ITEM_COLOURS["finding_arm"], 2))
                     qp.drawLine(self.to_screen(g[k][0]), self.to_screen(g[k][1]))
+            if "hull_shift" in g:
+                qp.setPen(self._pen(ITEM_COLOURS["vessel"], 1, dash=True))
+                qp.drawLine(self.to_screen(g["hull_shift"][0]), self.to_screen(g["hull_shift"][1]))
             for k in ("narrow_v_left", "narrow_v_right"):
                 if k in g:
                     qp.setPen(self._pen(ITEM_COLOURS["finding_narrow_v"], 1, dash=True))

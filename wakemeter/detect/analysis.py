@@ -21,6 +21,7 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from . import arms as arms_mod
 from . import lines as lines_mod
+from .apex import find_displaced_apex
 from .chip_measures import (chip_outline, radar_offset_estimate, track_profile, wake_geometry,
                             wedge_arms)
 from .prepare import Chip, prepare_chip
@@ -76,13 +77,13 @@ class _Pass:
 
 
 def _one_pass(scene: Scene, px: tuple[float, float], step: int, g: float, depth: float,
-              radar: bool | None) -> _Pass:
+              radar: bool | None, snap: bool = True) -> _Pass:
     """Prepare a chip, find which way the wake lies and fit the deep-water (or given-depth) curve.
 
     Two candidate track directions are tried, the centre of the energetic wedge and the
     turbulent wake line (localised Radon); the one whose spectrum fits better wins.
     """
-    chip = prepare_chip(scene, px, size_px=CHIP_PX, step=step, radar=radar)
+    chip = prepare_chip(scene, px, size_px=CHIP_PX, step=step, radar=radar, snap_radius_m=40.0 if snap else 0.0)
     side = wake_side(chip)
     candidates = [side.back_angle_deg]
     tw = arms_mod.turbulent_wake(chip.data, chip.valid, chip.vessel_rc, side.back_angle_deg)
@@ -107,7 +108,8 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             radar_geometry: RadarGeometry | None = None, radar: bool | None = None,
             pixel_rel_std: float = 0.005, seed: int = 0,
             progress: Callable[[float, str], None] | None = None,
-            cancelled: Callable[[], bool] | None = None) -> WakeAnalysis:
+            cancelled: Callable[[], bool] | None = None,
+            displaced_hull_px: tuple[float, float] | None = None) -> WakeAnalysis:
     """Analyse the wake of one vessel.
 
     Parameters
@@ -126,6 +128,10 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     progress, cancelled : callables, optional
         ``progress(fraction, what)`` is called between stages; when ``cancelled()`` returns
         True the analysis stops with :class:`~wakemeter.errors.CancelledError`.
+    displaced_hull_px : (col, row), optional
+        Radar: the hull is seen here, away from its wake (azimuth shift of a moving target), and
+        ``vessel_px`` is where the wake starts.  Found automatically when a radar hull shows no wake
+        of its own (:mod:`wakemeter.detect.apex`).
     """
     def stage(fraction: float, what: str) -> None:
         if cancelled is not None and cancelled():
@@ -156,13 +162,14 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     # scale selection: coarser when the waves are long for the box, finer when too short
     stage(0.05, "reading the vessel's surroundings")
     step = 1
-    p = _one_pass(scene, vessel_px, step, g, depth_fit, radar)
+    snap = displaced_hull_px is None
+    p = _one_pass(scene, vessel_px, step, g, depth_fit, radar, snap)
     if not (p.fit.significance >= SIGNIFICANCE_MIN and p.side_contrast >= SIDE_CONTRAST_MIN) \
             and min(scene.width, scene.height) >= 0.8 * CHIP_PX * 2:
         # nothing at full resolution: the waves may be too long for the box (a few wavelengths only); one
         # look at half resolution (the false-alarm check covers both looks, see DEVELOPERS.md)
         try:
-            p_coarse = _one_pass(scene, vessel_px, 2, g, depth_fit, radar)
+            p_coarse = _one_pass(scene, vessel_px, 2, g, depth_fit, radar, snap)
         except ParameterError:
             p_coarse = None
         if p_coarse is not None and p_coarse.fit.significance >= SIGNIFICANCE_MIN \
@@ -175,7 +182,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         if min(scene.width, scene.height) < 0.8 * CHIP_PX * 2 * step:
             break  # no room for a coarser chip
         try:
-            p_coarse = _one_pass(scene, vessel_px, 2 * step, g, depth_fit, radar)
+            p_coarse = _one_pass(scene, vessel_px, 2 * step, g, depth_fit, radar, snap)
         except ParameterError:
             break
         p, step = p_coarse, 2 * step
@@ -205,10 +212,27 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         or (supercritical and sup.score >= SUPER_SIGNIFICANCE_MIN)))
     frame = scene.local_frame(snapped[0], snapped[1])
     cautions = [CAUTION_ESTIMATE]
+    if displaced_hull_px is not None:
+        d_m = frame.length_of(displaced_hull_px[0] - snapped[0], displaced_hull_px[1] - snapped[1])
+        cautions.append(f"the hull is seen {d_m:.0f} m from the start of its wake (radar shows moving targets shifted "
+                        "in azimuth, Raney 1971): the analysis starts where the wake starts, the vessel's true "
+                        "position at the time of imaging; check that this wake belongs to this hull")
     if not frame.georeferenced:
         cautions.append("the image has no georeference: distances use the hand calibration"
                         + ("" if frame.north_known else "; headings are relative to image up, not true bearings"))
     regime_none = inv.DepthRegime("unknown", None, None, None, None, "no wake: nothing to judge")
+    if not found and chip.radar and chip.hull_rc is not None and displaced_hull_px is None:
+        # a radar hull beside its wake (moving targets are shifted in azimuth): look for where the wake starts
+        # (only from a bright hull: without one there is nothing displaced)
+        stage(0.3, "looking for a wake displaced from the hull")
+        apex = find_displaced_apex(scene, snapped, step=chip.step, size_px=CHIP_PX, radar=True)
+        if apex is not None:
+            moved = analyze(scene, vessel_px=apex.apex_px, depth_m=depth_m, depth_std_m=depth_std_m,
+                            hull_length_m=hull_length_m, radar_geometry=radar_geometry, radar=True,
+                            pixel_rel_std=pixel_rel_std, seed=seed, progress=progress, cancelled=cancelled,
+                            displaced_hull_px=snapped)
+            if moved.wake_found:
+                return moved
     if not found:
         why = (f"no wake found: spectral significance {significance:.1f} (needs {SIGNIFICANCE_MIN}) and "
                f"wake-side contrast {p.side_contrast:.1f} (needs {SIDE_CONTRAST_MIN})")
@@ -303,7 +327,11 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
             seed=rng)
         methods.append(est)
     if radar_geometry is not None:
-        est = radar_offset_estimate(chip, back, heading, frame, radar_geometry, cond, rng)
+        hull_chip = chip
+        if displaced_hull_px is not None:  # the hull is not at the wake's start: use where it was seen
+            hull_chip = replace(chip, hull_rc=((displaced_hull_px[1] - chip.origin_px[1]) / chip.step,
+                                               (displaced_hull_px[0] - chip.origin_px[0]) / chip.step))
+        est = radar_offset_estimate(hull_chip, back, heading, frame, radar_geometry, cond, rng)
         if est is not None:
             methods.append(est)
         else:
@@ -378,6 +406,8 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     # draw the arms only when they were measured well enough to be worth showing as evidence
     geometry = wake_geometry(chip, back, half, arms if (arms is not None and half_sd <= ARMS_DRAW_MAX_STD) else None,
                          [ln for ln in lines if ln.kind == "narrow-V arm"])
+    if displaced_hull_px is not None:  # from the hull as imaged to where its wake starts
+        geometry["hull_shift"] = [tuple(displaced_hull_px), tuple(snapped)]
     plots = {"whitened_spectrum": sp.white, "spectrum_dk": (sp.dk_u, sp.dk_v), "profile": prof,
              "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": delta_fit,
              "fitted_curve": curve_points(u_fit, h_fit, delta_fit, g=g, k_max=1.05 * sp.k_hi),

@@ -98,6 +98,8 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     for key in ("arm_left", "arm_right"):
         if key in geo:
             cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["arm"], 2 * lw, cv2.LINE_AA)
+    if "hull_shift" in geo:
+        cv2.line(img, px(geo["hull_shift"][0]), px(geo["hull_shift"][1]), COLOURS["vessel"], lw, cv2.LINE_AA)
     for key in ("narrow_v_left", "narrow_v_right"):
         if key in geo:
             cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["narrow_v"], lw, cv2.LINE_AA)

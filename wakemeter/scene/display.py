@@ -63,15 +63,35 @@ def to_uint8(img: np.ndarray) -> np.ndarray:
 
 
 def looks_like_radar(dtype: str, count: int, sample: np.ndarray) -> bool:
-    """Heuristic: single-band float data with a long positive tail (linear backscatter).
+    """Heuristic: single-band, non-negative float data with multiplicative speckle (linear backscatter).
 
-    Common practice, no source: linear sigma0 is positive with a mean well above
-    its median (speckle), unlike dB or reflectance.
+    Common practice, no source for the thresholds: linear sigma0 is positive with a mean above its
+    median, and speckle is multiplicative, so in short runs of neighbouring pixels the spread grows
+    with the mean (log-log slope near 1) and the equivalent number of looks, mean^2 / variance, is
+    small (1-20 for multi-look products; Oliver & Quegan 1998, Understanding SAR Images, from
+    memory).  Additive sensor noise on reflectance gives a slope near 0 and a far larger ratio.
+    ``sample`` is a row-major run of valid pixels (neighbours stay neighbours).
     """
     if count != 1 or not dtype.startswith("float"):
         return False
-    s = sample[np.isfinite(sample)]
+    s = np.asarray(sample, dtype=np.float64)
+    s = s[np.isfinite(s)]
     if s.size < 16 or np.any(s < 0):
         return False
     med = float(np.median(s))
-    return med > 0 and float(np.mean(s)) > 1.1 * med
+    if med <= 0:
+        return False
+    if float(np.mean(s)) > 1.1 * med:
+        return True
+    w = 16
+    blocks = s[:s.size // w * w].reshape(-1, w)
+    mu, sd = blocks.mean(axis=1), blocks.std(axis=1)
+    ok = (mu > 0) & (sd > 0)
+    if ok.sum() < 20:
+        return False
+    enl = float(np.median(mu[ok] ** 2 / sd[ok] ** 2))
+    lm = np.log(mu[ok])
+    if np.ptp(lm) < 1e-6:
+        return False
+    slope = float(np.polyfit(lm, np.log(sd[ok]), 1)[0])
+    return enl < 20.0 and slope > 0.6
