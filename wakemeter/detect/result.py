@@ -65,6 +65,8 @@ class WakeAnalysis:
                                  if sp else None),
             "consistency": sp.verdict if sp else None,
             "heading_deg": _num(self.heading_deg), "heading_std_deg": _num(self.heading_std_deg),
+            # the side of the vessel the wake lies on (behind it): true bearing from the vessel along the wake
+            "wake_bearing_deg": _num((self.heading_deg + 180.0) % 360.0) if self.heading_deg is not None else None,
             "half_angle_deg": _num(self.half_angle_deg), "half_angle_std_deg": _num(self.half_angle_std_deg),
             "transverse_wavelength_m": _num(self.transverse_wavelength_m),
             "regime": self.regime.regime.replace(" ", "-"), "regime_explanation": self.regime.explanation,

@@ -74,7 +74,9 @@ def schema_path() -> Path:
 def describe_lines(result: dict) -> str:
     """One line of text for the wake lines of a result (JSON form): angle from the track, significance."""
     parts = []
-    for kind, label in (("Kelvin arm", "Kelvin arms"), ("narrow-V arm", "narrow V")):
+    for kind, label in (("turbulent wake (dark)", "dark turbulent wake"),
+                        ("turbulent wake (bright)", "bright turbulent wake"),
+                        ("Kelvin arm", "Kelvin arms"), ("narrow-V arm", "narrow V")):
         found = [ln for ln in result.get("lines") or [] if ln["kind"] == kind and ln["angle_from_track_deg"] is not None]
         if found:
             parts.append(label + " at " + ", ".join(
