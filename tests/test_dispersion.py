@@ -112,3 +112,18 @@ def test_bad_depth_rejected(bad):
 def test_bad_frequency_rejected():
     with pytest.raises(ParameterError, match="omega_radps"):
         d.wavenumber_from_frequency(-1.0, 10.0, g=G)
+
+
+def test_table_lookup_of_the_steady_wavenumber_matches_the_solver():
+    # Against the Newton solver of this module (itself checked against CEM and Dean & Dalrymple above): the
+    # table look-up used in the spectral fits must agree to 1e-6 and give NaN exactly where no steady wave exists.
+    from wakemeter.physics.dispersion import steady_wavenumber, steady_wavenumber_fast
+    rng = np.random.default_rng(3)
+    u = rng.uniform(0.5, 25.0, 50_000)
+    th = rng.uniform(0.0, 89.0, 50_000)
+    for h in (0.3, 2.0, 7.5, 40.0, np.inf):
+        exact = np.asarray(steady_wavenumber(u, th, h, g=9.81))
+        fast = steady_wavenumber_fast(u, th, h, g=9.81)
+        assert np.array_equal(np.isnan(exact), np.isnan(fast))
+        ok = np.isfinite(exact)
+        assert np.max(np.abs(fast[ok] / exact[ok] - 1)) < 1e-6

@@ -27,7 +27,7 @@ import numpy as np
 import scipy.fft as sfft
 from scipy import ndimage, optimize, stats
 
-from ..physics.dispersion import steady_wavenumber
+from ..physics.dispersion import steady_wavenumber, steady_wavenumber_fast
 
 #: The reference (ahead) spectrum is an upper envelope (3x3 maximum, then smoothing), so a sharp swell
 #: peak present on both sides cancels instead of leaving an excess where plain smoothing would lower it.
@@ -103,12 +103,7 @@ def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: flo
     (the long waves, where depth acts)."""
     th = _THETA[None, :]
     u = speeds[:, None]
-    if np.isinf(depth_m):
-        k = g / (u * u * np.cos(th) ** 2)
-    else:
-        k = np.asarray(steady_wavenumber(np.broadcast_to(u, (u.shape[0], th.shape[1])),
-                                         np.abs(np.degrees(np.broadcast_to(th, (u.shape[0], th.shape[1])))),
-                                         depth_m, g=g))
+    k = steady_wavenumber_fast(u, np.abs(np.degrees(th)), depth_m, g=g)  # (speeds, theta)
     ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
     if k_cap_factor is not None:
         ok &= k <= k_cap_factor * g / (u * u)
@@ -247,7 +242,7 @@ FR_MAX = 0.98  #: subcritical fits only
 def _steady_q(frs: np.ndarray, g: float, theta: np.ndarray = _THETA) -> np.ndarray:
     """k U^2 / g of the steady waves, (len(frs), len(theta)): depends on Fr_h and theta only."""
     th = np.degrees(np.abs(theta))
-    return np.stack([np.asarray(steady_wavenumber(1.0, th, 1.0 / (g * f * f), g=g)) for f in frs]) / g
+    return np.stack([steady_wavenumber_fast(np.ones(1), th, 1.0 / (g * f * f), g=g) for f in frs]) / g
 
 
 def _grid_best(sp: SpectrumPair, speeds: np.ndarray, frs: np.ndarray, deltas: np.ndarray, g: float
