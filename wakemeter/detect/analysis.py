@@ -286,9 +286,13 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
     half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
     # straight lines through the vessel with their significance: Kelvin arms (wave-energy ridges; the track
     # frame's +v is the image's counter-clockwise side, so its fan angles change sign) and the radar narrow V
+    # searched near the measured half-angle when it is well measured, else near the one the fit predicts
+    # (Kelvin's in deep water, Havelock's for the fitted or given depth)
+    expected = float(havelock.half_angle(u_fit / np.sqrt(g * h_fit))) if np.isfinite(h_fit) \
+        else kelvin.KELVIN_HALF_ANGLE_DEG
+    near = half if (half is not None and half_sd <= ARMS_DRAW_MAX_STD) else expected
     lines = [replace(ln, angle_from_track_deg=-ln.angle_from_track_deg)
-             for ln in lines_mod.kelvin_arm_lines(energy, evalid, u0=reach, near_deg=half if (
-                 half is not None and half_sd <= ARMS_DRAW_MAX_STD) else None)]
+             for ln in lines_mod.kelvin_arm_lines(energy, evalid, u0=reach, near_deg=near)]
     if chip.radar:
         lines += lines_mod.narrow_v_lines(chip.data, chip.valid, chip.vessel_rc, back)
     tw = p.turbulent
