@@ -66,6 +66,7 @@ def run(args: argparse.Namespace) -> int:
 
 def format_analysis(a) -> str:
     """A readable summary of a :class:`WakeAnalysis`."""
+    from .evidence.record import describe_lines
     from .physics.units import mps_to_knots
 
     j = a.to_json()
@@ -83,6 +84,7 @@ def format_analysis(a) -> str:
                                     if j["half_angle_deg"] is not None else "not measured"),
         "transverse waves:    " + (f"{j['transverse_wavelength_m']:.1f} m apart" if j["transverse_wavelength_m"]
                                     else "not seen"),
+        f"wake lines:          {describe_lines(j)}",
         f"depth regime:        {j['regime']} - {j['regime_explanation']}",
     ]
     if j["depth_m"] is not None:

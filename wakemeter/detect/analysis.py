@@ -384,7 +384,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         lo_alt = max(min(a.speed_mps for a in alts) - half_w, 0.0) if alts else combined.ci95_low_mps
         hi_alt = max(a.speed_mps for a in alts) + half_w if alts else combined.ci95_high_mps
         if lo_alt < combined.ci95_low_mps or hi_alt > combined.ci95_high_mps:
-            frs = ", ".join(f"{f:.1f}" for f, _ in open_alts)
+            frs = ", ".join(f"{f:.2f}" for f, _ in open_alts)
             combined = replace(combined, ci95_low_mps=min(lo_alt, combined.ci95_low_mps),
                                ci95_high_mps=max(hi_alt, combined.ci95_high_mps),
                                verdict=combined.verdict + f"; interval widened to cover shallower water that fits "
