@@ -58,7 +58,11 @@ def main() -> None:
               f"from cache {from_cache[-1] * 1e3:.1f} ms", flush=True)
     print(f"median: new zoom level from the file {statistics.median(from_file) * 1e3:.0f} ms (goal < 200), "
           f"from cached tiles {statistics.median(from_cache) * 1e3:.1f} ms (goal < 50)")
+    # tear down in order so that interpreter shutdown finds no Qt objects left for the garbage collector
     win.close()
+    win.deleteLater()
+    app.processEvents()
+    del c, win
 
 
 if __name__ == "__main__":
