@@ -51,6 +51,7 @@ def test_analysis_shows_speed_interval_and_keeps_gui_responsive(win, qtbot):
     html = win.controller.panel.text.toHtml()
     assert "95 % interval" in html and f"{result['speed_knots']:.1f} kn" in html
     assert "licensed" in html  # the caution is shown with the numbers
+    assert "Wake lines" in html and "Kelvin arms at" in html  # the lines found, with their significance
     gaps = [b - a for a, b in zip(ticks, ticks[1:])]
     assert len(ticks) > 5 and max(gaps) < 0.5  # goal 0.1 s; generous margin for a loaded test machine
 

@@ -51,7 +51,8 @@ def test_pdf_pages_and_text(exported):
     text = " ".join(p.extract_text() for p in reader.pages)
     flat = " ".join(text.split())
     for needle in ("Wake speed estimate", "95 % interval", "Heading", "Methods", "Provenance", "SHA-256",
-                   "R. Fenwick", "licensed professionals", "not certified"):
+                   "R. Fenwick", "licensed professionals", "not certified", "Wake lines through the vessel",
+                   "Kelvin arms at"):
         assert needle in flat, needle
 
 
