@@ -234,14 +234,17 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
         # a radar hull beside its wake (moving targets are shifted in azimuth): look for where the wake starts
         # (only from a bright hull: without one there is nothing displaced)
         stage(0.3, "looking for a wake displaced from the hull")
-        apex = find_displaced_apex(scene, snapped, step=chip.step, size_px=CHIP_PX, radar=True)
-        if apex is not None:
-            moved = analyze(scene, vessel_px=apex.apex_px, depth_m=depth_m, depth_std_m=depth_std_m,
-                            hull_length_m=hull_length_m, radar_geometry=radar_geometry, radar=True,
-                            pixel_rel_std=pixel_rel_std, seed=seed, progress=progress, cancelled=cancelled,
-                            displaced_hull_px=snapped)
-            if moved.wake_found:
-                return moved
+        try:
+            apex = find_displaced_apex(scene, snapped, step=chip.step, size_px=CHIP_PX, radar=True)
+            moved = None if apex is None else analyze(
+                scene, vessel_px=apex.apex_px, depth_m=depth_m, depth_std_m=depth_std_m,
+                hull_length_m=hull_length_m, radar_geometry=radar_geometry, radar=True,
+                pixel_rel_std=pixel_rel_std, seed=seed, progress=progress, cancelled=cancelled,
+                displaced_hull_px=snapped)
+        except ParameterError:  # the wake's start lies too near the scene's edge to analyse: keep "no wake"
+            moved = None
+        if moved is not None and moved.wake_found:
+            return moved
     if not found:
         why = (f"no wake found: spectral significance {significance:.1f} (needs {SIGNIFICANCE_MIN}) and "
                f"wake-side contrast {p.side_contrast:.1f} (needs {SIDE_CONTRAST_MIN}); thresholds set for "
