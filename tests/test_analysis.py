@@ -282,3 +282,4 @@ def test_radar_hull_displaced_from_its_wake(tmp_path, seed):
                  + (truth["hull_pixel_row"] - truth["pixel_row"]) ** 2) ** 0.5
     assert apex_err < 0.5 * hull_dist  # the reported position moved well toward the true one
     assert any("from the start of its wake" in c for c in a.cautions)
+    assert a.geometry["hull_shift"][0] == pytest.approx((truth["hull_pixel_col"], truth["hull_pixel_row"]), abs=3)
