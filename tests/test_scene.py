@@ -228,3 +228,36 @@ def test_multilook_speckle_is_recognised_as_radar(looks):
     assert not looks_like_radar("float32", 1, reflectance.astype(np.float32))
     assert not looks_like_radar("float32", 1, (10 * np.log10(speckle)).astype(np.float32))  # dB: negative values
     assert not looks_like_radar("uint16", 1, (speckle * 1000).astype(np.uint16))
+
+
+def test_radar_in_decibels_is_recognised_and_analysed(tmp_path):
+    # The radar demo converted to dB (10 log10, as many products deliver it) must give the same analysis as the
+    # linear original: same speed within 1 %.  Optical-looking float data (reflectance) is not taken for dB radar.
+    import json
+
+    import rasterio
+
+    from wakemeter.detect.analysis import analyze
+    from wakemeter.scene.display import looks_like_radar_db
+    from wakemeter.scene.raster import open_scene
+
+    root = Path(__file__).resolve().parents[1] / "sample_scenes"
+    src = root / "outer_roads_radar.tif"
+    with rasterio.open(src) as ds:
+        profile, lin = ds.profile, ds.read(1)
+    profile.update(dtype="float32", nodata=None)
+    db_path = tmp_path / "radar_db.tif"
+    with rasterio.open(db_path, "w", **profile) as dst:
+        dst.write((10 * np.log10(np.maximum(lin, 1e-6))).astype(np.float32)[None])
+    truth = json.loads((root / "outer_roads_radar.truth.json").read_text())["vessels"][0]
+    pos = (truth["hull_pixel_col"], truth["hull_pixel_row"])
+    with open_scene(src) as a_sc, open_scene(db_path) as b_sc:
+        a, b = analyze(a_sc, vessel_px=pos), analyze(b_sc, vessel_px=pos)
+    assert a.wake_found and b.wake_found
+    assert b.speed.speed_mps == pytest.approx(a.speed.speed_mps, rel=0.01)
+    from wakemeter.detect.prepare import prepare_chip
+    with open_scene(db_path) as b_sc:
+        chip = prepare_chip(b_sc, pos, size_px=256)
+    assert chip.radar  # radar-only steps (narrow V, displaced hull) stay on for data in dB
+    rng = np.random.default_rng(0)
+    assert not looks_like_radar_db("float32", 1, (0.35 + rng.normal(0, 0.02, 10_000)).astype(np.float32))

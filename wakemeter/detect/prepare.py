@@ -77,9 +77,11 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
         ok = valid.all(axis=0)
     else:
         img, ok = data[0], valid[0]
+    sample = img[ok][:100_000]
+    in_db = display.looks_like_radar_db(scene.info.dtype, scene.info.count, sample)
     if radar is None:
-        radar = display.looks_like_radar(scene.info.dtype, scene.info.count, img[ok][:100_000])
-    if radar:
+        radar = in_db or display.looks_like_radar(scene.info.dtype, scene.info.count, sample)
+    if radar and not in_db:  # linear backscatter to dB; data already in dB is used as it is
         ok &= img > 0
         img = np.where(ok, display.to_db(np.where(ok, img, 1.0)), 0.0)
     full = np.zeros((size_px, size_px), np.float32)

@@ -62,6 +62,27 @@ def to_uint8(img: np.ndarray) -> np.ndarray:
     return np.round(np.nan_to_num(img, nan=0.0) * 255.0).astype(np.uint8)
 
 
+def looks_like_radar_db(dtype: str, count: int, sample: np.ndarray) -> bool:
+    """Heuristic: single-band float radar already in decibels (mostly negative, speckle of a few dB).
+
+    Common practice, no source for the thresholds: calibrated backscatter of the sea lies around -30 to 0 dB,
+    and log-speckle has a constant spread of 5.6 / sqrt(L) dB for L looks (from memory), so short runs of
+    neighbouring pixels scatter by roughly 1-10 dB whatever their mean.
+    """
+    if count != 1 or not dtype.startswith("float"):
+        return False
+    s = np.asarray(sample, dtype=np.float64)
+    s = s[np.isfinite(s)]
+    if s.size < 64 or np.mean(s < 0) < 0.5:
+        return False
+    p1, med, p99 = np.percentile(s, [1, 50, 99])
+    if not (p1 > -80.0 and p99 < 30.0 and -40.0 <= med <= 5.0):
+        return False
+    w = 16
+    sd = s[:s.size // w * w].reshape(-1, w).std(axis=1)
+    return 0.8 <= float(np.median(sd)) <= 10.0
+
+
 def looks_like_radar(dtype: str, count: int, sample: np.ndarray) -> bool:
     """Heuristic: single-band, non-negative float data with multiplicative speckle (linear backscatter).
 
