@@ -44,6 +44,7 @@ def run(n: int, first: int, **kw) -> list[dict]:
                 row.update(est=j["speed_mps"], lo=lo, hi=hi, rel_err=j["speed_mps"] / case.speed_mps - 1,
                            covered=lo <= case.speed_mps <= hi,
                            hdg_err=((j["heading_deg"] - case.heading_deg + 180) % 360) - 180, regime=j["regime"],
+                           hdg_std=j["heading_std_deg"],
                            methods=[m["name"] for m in j["methods"]],
                            z={m["name"][:10]: round((m["speed_mps"] - case.speed_mps) / m["std_mps"], 2)
                               for m in j["methods"]},
@@ -67,7 +68,8 @@ if __name__ == "__main__":
         hd = np.array([abs(r["hdg_err"]) for r in found])
         cov = np.mean([r["covered"] for r in found])
         print(f"speed within 3 %: {np.mean(err <= 0.03):.0%} (median |error| {np.median(err):.2%}, max {err.max():.2%})")
-        print(f"heading within 2 deg: {np.mean(hd <= 2):.0%} (median {np.median(hd):.2f} deg, max {hd.max():.1f})")
+        print(f"heading within 2 deg: {np.mean(hd <= 2):.0%} (median {np.median(hd):.2f} deg, max {hd.max():.1f}); "
+              f"95th percentile of |error| / stated std {np.quantile(hd / np.array([r['hdg_std'] for r in found]), 0.95):.2f}")
         print(f"95 % interval coverage: {cov:.0%}; median time {np.median([r['time_s'] for r in rows]):.2f} s")
         width = np.median([(r["hi"] - r["lo"]) / r["u"] for r in found])
         regimes = {k: sum(r["regime"] == k for r in found) for k in sorted({r["regime"] for r in found})}

@@ -98,18 +98,23 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     for key in ("arm_left", "arm_right"):
         if key in geo:
             cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["arm"], 2 * lw, cv2.LINE_AA)
-    if "hull_shift" in geo:
-        cv2.line(img, px(geo["hull_shift"][0]), px(geo["hull_shift"][1]), COLOURS["vessel"], lw, cv2.LINE_AA)
+    if "hull_shift" in geo:  # the hull as the radar imaged it, and the line to where its wake starts
+        hx, hy = px(geo["hull_shift"][0])
+        cv2.line(img, (hx, hy), px(geo["hull_shift"][1]), COLOURS["vessel"], lw, cv2.LINE_AA)
+        r = int(6 * s + 3)
+        cv2.rectangle(img, (hx - r, hy - r), (hx + r, hy + r), COLOURS["vessel"], lw, cv2.LINE_AA)
     for key in ("narrow_v_left", "narrow_v_right"):
         if key in geo:
             cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["narrow_v"], lw, cv2.LINE_AA)
     vx, vy = px(analysis.vessel_px)
+    # what the result box must not hide: the vessel, a displaced hull and the ends of the drawn lines
+    avoid = [(vx, vy)] + [px(p) for key in ("track", "arm_left", "arm_right", "hull_shift") for p in geo.get(key, [])]
     cv2.circle(img, (vx, vy), int(10 * s + 4), COLOURS["vessel"], 2 * lw, cv2.LINE_AA)
-    _decorations(img, scene, analysis, crop, step, s, lw, scene_label)
+    _decorations(img, scene, analysis, crop, step, s, lw, scene_label, avoid)
     return img
 
 
-def _decorations(img, scene, analysis, crop, step, s, lw, scene_label) -> None:
+def _decorations(img, scene, analysis, crop, step, s, lw, scene_label, avoid=()) -> None:
     h, w = img.shape[:2]
     try:
         frame = scene.local_frame(*analysis.vessel_px)
@@ -149,7 +154,7 @@ def _decorations(img, scene, analysis, crop, step, s, lw, scene_label) -> None:
         _text(img, labels[2], (4, h - int(50 * s) - 40), 0.7 * s)
         size3 = cv2.getTextSize(labels[3], FONT, 0.7 * s, 1)[0]
         _text(img, labels[3], (w - size3[0] - 4, h - 6), 0.7 * s)
-    _result_box(img, analysis, s, scene_label, scene.info.acquisition_time)
+    _result_box(img, analysis, s, scene_label, scene.info.acquisition_time, avoid)
 
 
 def result_lines(analysis: WakeAnalysis) -> list[str]:
@@ -167,7 +172,8 @@ def result_lines(analysis: WakeAnalysis) -> list[str]:
     return lines
 
 
-def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquired: str | None) -> None:
+def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquired: str | None,
+                avoid=()) -> None:
     lines = result_lines(analysis)
     lines += [f"Scene: {scene_label}" if scene_label else "", f"Acquired: {acquired}" if acquired else "",
               "Estimate from imagery - not a certified measurement"]
@@ -177,7 +183,16 @@ def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquire
     lh = int(max(sz[1] for sz in sizes) * 1.8)
     bw = max(sz[0] for sz in sizes) + int(24 * s)
     bh = lh * len(lines) + int(16 * s)
-    x0, y0 = int(20 * s), int(40 * s)
+    h, w = img.shape[:2]
+    # top left unless that hides what was drawn; then top right (below the north arrow), then bottom right
+    corners = [(int(20 * s), int(40 * s)), (w - bw - int(20 * s), int(110 * s)),
+               (w - bw - int(20 * s), h - bh - int(40 * s))]
+    pad = int(10 * s)
+
+    def hidden(corner: tuple[int, int]) -> int:
+        x, y = corner
+        return sum(x - pad <= ax <= x + bw + pad and y - pad <= ay <= y + bh + pad for ax, ay in avoid)
+    x0, y0 = min(((max(x, 0), max(y, 0)) for x, y in corners), key=hidden)
     roi = img[y0:y0 + bh, x0:x0 + bw]
     roi[:] = (0.25 * roi + 0.75 * np.array(COLOURS["box"])).astype(np.uint8)
     for i, ln in enumerate(lines):
