@@ -52,3 +52,15 @@ def test_crest_lines_follow_the_kelvin_shape(demo):
     assert d == pytest.approx(2 * kelvin.transverse_wavelength(a.speed.speed_mps, g=a.gravity_mps2), rel=1e-6)
     b = f.bearing_of(mid[0] - a.vessel_px[0], mid[1] - a.vessel_px[1])
     assert abs(((b - a.heading_deg) % 360) - 180) < 0.01
+
+
+def test_revision_keeps_the_intervals_cover_of_shallower_water(demo):
+    # Without hand input the finding is the analysis itself; with a hand crest the recombined interval must
+    # still cover the speeds of shallower water the analysis could not rule out (its interval_cover).
+    sc, a = demo
+    assert revise(a) is a
+    lam = kelvin.transverse_wavelength(7.202, g=a.gravity_mps2)
+    r = revise(a, hand_crest=(lam, 0.3, 0.0))
+    cover = a.plots.get("interval_cover")
+    if cover is not None:
+        assert r.speed.ci95_low_mps <= cover[0] + 1e-9 and r.speed.ci95_high_mps >= cover[1] - 1e-9

@@ -384,13 +384,15 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
                       "the 95 % interval covers it" for f, _ in open_alts))
     if half is not None and cond_depth is None:
         regime = replace(regime, explanation=regime.explanation + f"; arms measured at {half:.1f} +/- {half_sd:.1f} deg")
+    interval_cover = None  #: speeds the interval must keep covering (shallower water not ruled out)
     if open_alts:  # the interval covers the speeds of shallower water that fits almost as well
         alts = [a for _, a in open_alts if np.isfinite(a.speed_mps)]
         half_w = 0.5 * (combined.ci95_high_mps - combined.ci95_low_mps)  # the same precision at the other depth
         lo_alt = max(min(a.speed_mps for a in alts) - half_w, 0.0) if alts else combined.ci95_low_mps
         hi_alt = max(a.speed_mps for a in alts) + half_w if alts else combined.ci95_high_mps
+        interval_cover = (float(lo_alt), float(hi_alt), ", ".join(f"{f:.2f}" for f, _ in open_alts))
         if lo_alt < combined.ci95_low_mps or hi_alt > combined.ci95_high_mps:
-            frs = ", ".join(f"{f:.2f}" for f, _ in open_alts)
+            frs = interval_cover[2]
             combined = replace(combined, ci95_low_mps=min(lo_alt, combined.ci95_low_mps),
                                ci95_high_mps=max(hi_alt, combined.ci95_high_mps),
                                verdict=combined.verdict + f"; interval widened to cover shallower water that fits "
@@ -438,7 +440,7 @@ def analyze(scene: Scene, *, vessel_px: tuple[float, float] | None = None,
              "fit_speed_mps": u_fit, "fit_depth_m": h_fit, "fit_delta_deg": delta_fit,
              "fitted_curve": curve_points(u_fit, h_fit, delta_fit, g=g, k_max=1.05 * sp.k_hi),
              "spectrum_band": (sp.k_lo, sp.k_hi), "transverse_wavelength_m": lam_t if transverse_seen else None,
-             "profile_m_per_px": m, "depth_gain": depth_gain, "shallow_rule_out": rule_out, "side_contrast": p.side_contrast,
+             "profile_m_per_px": m, "interval_cover": interval_cover, "depth_gain": depth_gain, "shallow_rule_out": rule_out, "side_contrast": p.side_contrast,
              "boot_speeds": [b[0] for b in sub],
              "radon": None if p.turbulent is None else p.turbulent.sinogram,
              "radon_angles_deg": None if p.turbulent is None else p.turbulent.angles_deg,

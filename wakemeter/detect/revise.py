@@ -30,8 +30,9 @@ def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | N
     hand_half_angle : (half_angle_deg, std_deg), optional
         A hand-drawn arm replacing the measured half-angle.
     """
-    if not analysis.wake_found:
-        return analysis
+    had_hand = any("(by hand)" in m.method for m in analysis.methods)
+    if not analysis.wake_found or (hand_crest is None and hand_half_angle is None and not had_hand):
+        return analysis  # nothing to revise: the analysis' own interval stands as it is
     g = analysis.gravity_mps2
     depth = None
     if analysis.depth_m is not None and analysis.depth_ci95_m is not None:
@@ -62,6 +63,14 @@ def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | N
                     inv.Uncertain(half, half_sd), cond, seed=rng)
                 methods.append(replace(est, method=est.method + " (by hand)"))
     combined = inv.combine_estimates(methods)
+    cover = analysis.plots.get("interval_cover")
+    if cover is not None:  # shallower water the analysis could not rule out stays inside the interval
+        lo, hi, frs = cover
+        if lo < combined.ci95_low_mps or hi > combined.ci95_high_mps:
+            combined = replace(combined, ci95_low_mps=min(lo, combined.ci95_low_mps),
+                               ci95_high_mps=max(hi, combined.ci95_high_mps),
+                               verdict=combined.verdict + f"; interval widened to cover shallower water that fits "
+                               f"almost as well (Fr_h {frs})")
     if not combined.consistent:
         cautions.append(combined.verdict)
     return replace(analysis, methods=tuple(methods), speed=combined, half_angle_deg=half, half_angle_std_deg=half_sd,
