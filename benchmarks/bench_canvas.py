@@ -18,6 +18,7 @@ from pathlib import Path
 from PySide6.QtWidgets import QApplication
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
+from timing import close_qt  # noqa: E402
 
 
 def main() -> None:
@@ -58,10 +59,7 @@ def main() -> None:
               f"from cache {from_cache[-1] * 1e3:.1f} ms", flush=True)
     print(f"median: new zoom level from the file {statistics.median(from_file) * 1e3:.0f} ms (goal < 200), "
           f"from cached tiles {statistics.median(from_cache) * 1e3:.1f} ms (goal < 50)")
-    # tear down in order so that interpreter shutdown finds no Qt objects left for the garbage collector
-    win.close()
-    win.deleteLater()
-    app.processEvents()
+    close_qt(app, win)
     del c, win
 
 

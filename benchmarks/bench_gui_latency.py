@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import json
 import statistics
+import sys
 import time
 from pathlib import Path
 
@@ -16,6 +17,8 @@ from PySide6.QtCore import QTimer
 from PySide6.QtWidgets import QApplication
 
 ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from timing import close_qt  # noqa: E402
 
 
 def main() -> None:
@@ -42,13 +45,8 @@ def main() -> None:
     gaps = [b - a for a, b in zip(ticks, ticks[1:])]
     print(f"GUI event loop during 5 analyses: {len(ticks)} ticks of a 10 ms timer; median gap "
           f"{statistics.median(gaps) * 1e3:.1f} ms, largest {max(gaps) * 1e3:.1f} ms (goal < 100 ms)")
-    # tear down in order (window, timer, then the application) so that interpreter shutdown finds no Qt
-    # objects left for the garbage collector
     timer.timeout.disconnect()
-    timer.deleteLater()
-    win.close()
-    win.deleteLater()
-    app.processEvents()
+    close_qt(app, timer, win)
     del win, timer
 
 

@@ -17,6 +17,8 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from timing import print_speed_summary, speed_check  # noqa: E402
 from wake_cases import make_case  # noqa: E402
 
 from wakemeter.detect.analysis import analyze  # noqa: E402
@@ -40,17 +42,13 @@ def main(n: int, first: int) -> None:
                 a = analyze(sc, vessel_px=hull)
             shift_px = float(np.hypot(hull[0] - t["pixel_col"], hull[1] - t["pixel_row"]))
             row = {"seed": seed, "shift_m": round(t["radar_azimuth_offset_m"]), "shift_px": round(shift_px),
-                   "found": a.wake_found}
+                   "found": a.wake_found, **speed_check(a, case.speed_mps)}
             if a.wake_found:
-                row.update(rel_err=round(a.speed.speed_mps / case.speed_mps - 1, 4),
-                           covered=bool(a.speed.ci95_low_mps <= case.speed_mps <= a.speed.ci95_high_mps),
-                           position_err_px=round(float(np.hypot(a.vessel_px[0] - t["pixel_col"],
-                                                                a.vessel_px[1] - t["pixel_row"]))))
+                row["position_err_px"] = round(float(np.hypot(a.vessel_px[0] - t["pixel_col"],
+                                                              a.vessel_px[1] - t["pixel_row"])))
             rows.append(row)
             print(row, flush=True)
-    found = [r for r in rows if r["found"]]
-    print(f"\nfound {len(found)}/{len(rows)}; speed within 3 %: {sum(abs(r['rel_err']) <= 0.03 for r in found)}; "
-          f"intervals holding the truth: {sum(r['covered'] for r in found)}")
+    print_speed_summary(rows)
 
 
 if __name__ == "__main__":

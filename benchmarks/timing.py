@@ -1,4 +1,4 @@
-"""Shared helper of the benchmark scripts."""
+"""Shared helpers of the benchmark scripts: timing, the speed check of the sweeps, Qt teardown."""
 
 from __future__ import annotations
 
@@ -14,3 +14,29 @@ def best_time(fn: Callable[[], object], repeat: int = 7) -> float:
         fn()
         best = min(best, time.perf_counter() - t)
     return best
+
+
+def speed_check(analysis, true_speed_mps: float) -> dict:
+    """Relative speed error and whether the 95 % interval holds the truth (empty when no wake was found)."""
+    if not analysis.wake_found:
+        return {}
+    s = analysis.speed
+    return {"rel_err": round(s.speed_mps / true_speed_mps - 1, 4),
+            "covered": bool(s.ci95_low_mps <= true_speed_mps <= s.ci95_high_mps)}
+
+
+def print_speed_summary(rows: list[dict]) -> None:
+    """One line: found, within 3 %, intervals holding the truth (rows carry ``found`` and :func:`speed_check`)."""
+    found = [r for r in rows if r["found"]]
+    print(f"\nfound {len(found)}/{len(rows)}; speed within 3 %: {sum(abs(r['rel_err']) <= 0.03 for r in found)}; "
+          f"intervals holding the truth: {sum(r['covered'] for r in found)}")
+
+
+def close_qt(app, *objects) -> None:
+    """Delete Qt objects before the interpreter does: a window or timer left to the garbage collector at
+    shutdown, after the application, can crash the process on exit."""
+    for obj in objects:
+        if hasattr(obj, "close"):
+            obj.close()
+        obj.deleteLater()
+    app.processEvents()

@@ -15,10 +15,13 @@ from pathlib import Path
 
 import numpy as np
 
-from wakemeter.detect.analysis import analyze
-from wakemeter.scene.raster import open_scene
-from wakemeter.synth import Hull, OpticalModel, RadarModel, VesselSpec, render, write
-from wakemeter.synth.demo import vessel_scene
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from timing import print_speed_summary, speed_check  # noqa: E402
+
+from wakemeter.detect.analysis import analyze  # noqa: E402
+from wakemeter.scene.raster import open_scene  # noqa: E402
+from wakemeter.synth import Hull, OpticalModel, RadarModel, VesselSpec, render, write  # noqa: E402
+from wakemeter.synth.demo import vessel_scene  # noqa: E402
 
 G = 9.81
 
@@ -48,16 +51,11 @@ def main(lo: float, hi: float, size: int, n: int) -> None:
             t = json.loads(sidecar.read_text())["vessels"][0]
             with open_scene(tif) as sc:
                 a = analyze(sc, vessel_px=(t["pixel_col"], t["pixel_row"]))
-        row = {"seed": seed, "radar": radar, "px_per_wave": round(lam / p, 1), "u": round(u, 2), "found": a.wake_found}
-        if a.wake_found:
-            row.update(rel_err=round(a.speed.speed_mps / u - 1, 4),
-                       covered=bool(a.speed.ci95_low_mps <= u <= a.speed.ci95_high_mps),
-                       analysis_pixel_m=round(a.pixel_m, 2))
+        row = {"seed": seed, "radar": radar, "px_per_wave": round(lam / p, 1), "u": round(u, 2),
+               "found": a.wake_found, "analysis_pixel_m": round(a.pixel_m, 2), **speed_check(a, u)}
         rows.append(row)
         print(row, flush=True)
-    found = [r for r in rows if r["found"]]
-    print(f"\nfound {len(found)}/{len(rows)}; within 3 %: {sum(abs(r['rel_err']) <= 0.03 for r in found)}; "
-          f"intervals holding the truth: {sum(r['covered'] for r in found)}")
+    print_speed_summary(rows)
 
 
 if __name__ == "__main__":

@@ -62,6 +62,19 @@ def to_uint8(img: np.ndarray) -> np.ndarray:
     return np.round(np.nan_to_num(img, nan=0.0) * 255.0).astype(np.uint8)
 
 
+def _float_sample(dtype: str, count: int, sample: np.ndarray) -> np.ndarray | None:
+    """The finite values of a single-band float sample, or None for other data (never radar backscatter)."""
+    if count != 1 or not dtype.startswith("float"):
+        return None
+    s = np.asarray(sample, dtype=np.float64)
+    return s[np.isfinite(s)]
+
+
+def _runs(s: np.ndarray, width: int = 16) -> np.ndarray:
+    """Consecutive runs of ``width`` neighbouring pixels of a row-major sample, (n_runs, width)."""
+    return s[:s.size // width * width].reshape(-1, width)
+
+
 def looks_like_radar_db(dtype: str, count: int, sample: np.ndarray) -> bool:
     """Heuristic: single-band float radar already in decibels (mostly negative, speckle of a few dB).
 
@@ -69,17 +82,13 @@ def looks_like_radar_db(dtype: str, count: int, sample: np.ndarray) -> bool:
     and log-speckle has a constant spread of 5.6 / sqrt(L) dB for L looks (from memory), so short runs of
     neighbouring pixels scatter by roughly 1-10 dB whatever their mean.
     """
-    if count != 1 or not dtype.startswith("float"):
-        return False
-    s = np.asarray(sample, dtype=np.float64)
-    s = s[np.isfinite(s)]
-    if s.size < 64 or np.mean(s < 0) < 0.5:
+    s = _float_sample(dtype, count, sample)
+    if s is None or s.size < 64 or np.mean(s < 0) < 0.5:
         return False
     p1, med, p99 = np.percentile(s, [1, 50, 99])
     if not (p1 > -80.0 and p99 < 30.0 and -40.0 <= med <= 5.0):
         return False
-    w = 16
-    sd = s[:s.size // w * w].reshape(-1, w).std(axis=1)
+    sd = _runs(s).std(axis=1)
     return 0.8 <= float(np.median(sd)) <= 10.0
 
 
@@ -93,19 +102,15 @@ def looks_like_radar(dtype: str, count: int, sample: np.ndarray) -> bool:
     memory).  Additive sensor noise on reflectance gives a slope near 0 and a far larger ratio.
     ``sample`` is a row-major run of valid pixels (neighbours stay neighbours).
     """
-    if count != 1 or not dtype.startswith("float"):
-        return False
-    s = np.asarray(sample, dtype=np.float64)
-    s = s[np.isfinite(s)]
-    if s.size < 16 or np.any(s < 0):
+    s = _float_sample(dtype, count, sample)
+    if s is None or s.size < 16 or np.any(s < 0):
         return False
     med = float(np.median(s))
     if med <= 0:
         return False
     if float(np.mean(s)) > 1.1 * med:
         return True
-    w = 16
-    blocks = s[:s.size // w * w].reshape(-1, w)
+    blocks = _runs(s)
     mu, sd = blocks.mean(axis=1), blocks.std(axis=1)
     ok = (mu > 0) & (sd > 0)
     if ok.sum() < 20:
