@@ -12,7 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
-from wakemeter.detect.analysis import analyze
+from wakemeter.detect.analysis import AnalysisRequest, analyze
 from wakemeter.scene.raster import open_scene
 
 SCENE = Path(__file__).resolve().parents[1] / "sample_scenes" / "harbour_approach_optical.tif"
@@ -20,14 +20,14 @@ SCENE = Path(__file__).resolve().parents[1] / "sample_scenes" / "harbour_approac
 
 def test_bench_analyze(benchmark):
     sc = open_scene(SCENE)
-    analyze(sc, vessel_lonlat=(-35.0, 36.0))
-    benchmark(lambda: analyze(sc, vessel_lonlat=(-35.0, 36.0)))
+    analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0)))
+    benchmark(lambda: analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0))))
 
 
 if __name__ == "__main__":
     sc = open_scene(SCENE)
     t = time.perf_counter()
-    analyze(sc, vessel_lonlat=(-35.0, 36.0))
+    analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0)))
     first = time.perf_counter() - t
     times, reads = [], []
     for _ in range(7):
@@ -35,7 +35,7 @@ if __name__ == "__main__":
         sc.read(window=(0, 0, 1024, 1024))
         reads.append(time.perf_counter() - t)
         t = time.perf_counter()
-        a = analyze(sc, vessel_lonlat=(-35.0, 36.0))
+        a = analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0)))
         times.append(time.perf_counter() - t)
     med = float(np.median(times))
     print(f"analyze, one vessel, 1024^2 scene: median {med * 1e3:.0f} ms (first call {first * 1e3:.0f} ms) | "

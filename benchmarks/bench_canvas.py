@@ -17,7 +17,6 @@ from pathlib import Path
 
 from PySide6.QtWidgets import QApplication
 
-sys.path.insert(0, str(Path(__file__).resolve().parent))
 from timing import close_qt  # noqa: E402
 
 

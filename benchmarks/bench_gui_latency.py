@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import json
 import statistics
-import sys
 import time
 from pathlib import Path
 
@@ -17,7 +16,6 @@ from PySide6.QtCore import QTimer
 from PySide6.QtWidgets import QApplication
 
 ROOT = Path(__file__).resolve().parents[1]
-sys.path.insert(0, str(Path(__file__).resolve().parent))
 from timing import close_qt  # noqa: E402
 
 

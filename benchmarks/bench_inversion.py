@@ -8,7 +8,6 @@ Run: python3 tasks.py bench   (or python benchmarks/bench_inversion.py)
 
 from __future__ import annotations
 
-
 import numpy as np
 
 try:

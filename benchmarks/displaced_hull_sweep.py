@@ -1,7 +1,7 @@
 """Radar hulls shifted away from their wakes (script): does the analysis find the wake's start?
 
 Run: ``.venv/bin/python benchmarks/displaced_hull_sweep.py [N] [first_seed]``.  Renders the random
-radar cases of ``tests/wake_cases.py`` with the azimuth shift of a moving target switched on (Raney
+radar cases of ``wakemeter.synth.cases`` with the azimuth shift of a moving target switched on (Raney
 1971), clicks the shifted hull, and prints per case the shift, whether a wake was found, the speed
 error, the interval and how far the reported position is from the true one.
 """
@@ -9,24 +9,22 @@ error, the interval and how far the reported position is from the true one.
 from __future__ import annotations
 
 import json
-import sys
 import tempfile
 from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
 
-sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
-sys.path.insert(0, str(Path(__file__).resolve().parent))
-from timing import print_speed_summary, speed_check  # noqa: E402
-from wake_cases import make_case  # noqa: E402
-
-from wakemeter.detect.analysis import analyze  # noqa: E402
+from wakemeter.detect.analysis import AnalysisRequest, analyze  # noqa: E402
 from wakemeter.scene.raster import open_scene  # noqa: E402
 from wakemeter.synth import render, write  # noqa: E402
+from wakemeter.synth.cases import make_case  # noqa: E402
+
+from sweep_record import parse, record  # noqa: E402
+from timing import speed_check, speed_summary  # noqa: E402
 
 
-def main(n: int, first: int) -> None:
+def main(n: int, first: int, tuning) -> list[dict]:
     rows = []
     with tempfile.TemporaryDirectory() as tmp:
         for seed in range(first, first + n):
@@ -39,7 +37,7 @@ def main(n: int, first: int) -> None:
                 print(f"seed {seed}: the shifted hull falls outside the scene; skipped")
                 continue
             with open_scene(tif) as sc:
-                a = analyze(sc, vessel_px=hull)
+                a = analyze(sc, AnalysisRequest(vessel_px=hull), tuning)
             shift_px = float(np.hypot(hull[0] - t["pixel_col"], hull[1] - t["pixel_row"]))
             row = {"seed": seed, "shift_m": round(t["radar_azimuth_offset_m"]), "shift_px": round(shift_px),
                    "found": a.wake_found, **speed_check(a, case.speed_mps)}
@@ -48,8 +46,10 @@ def main(n: int, first: int) -> None:
                                                               a.vessel_px[1] - t["pixel_row"])))
             rows.append(row)
             print(row, flush=True)
-    print_speed_summary(rows)
+    return rows
 
 
 if __name__ == "__main__":
-    main(int(sys.argv[1]) if len(sys.argv) > 1 else 16, int(sys.argv[2]) if len(sys.argv) > 2 else 0)
+    args, tuning = parse(__doc__.splitlines()[0], [("n", int, 16, "number of radar cases"), ("first", int, 0, "first seed")])
+    rows = main(args.n, args.first, tuning)
+    record("displaced_hull_sweep", {"n": args.n, "first": args.first}, tuning, speed_summary(rows), rows, write=not args.no_record)

@@ -1,27 +1,26 @@
 """False-alarm sweep (script): the decision statistics on wake-free scenes.
 
-Run: ``.venv/bin/python benchmarks/null_sweep.py [N] [SIZE]``.  Prints the spectral significance
-and wake-side contrast of every wake-free scene (N synthetic noise/swell scenes and the
-scikit-image textures, SIZE x SIZE pixels, 640 by default) at three positions, and how many
-would be called a wake.  Scenes of 1024 px or more also exercise the half-resolution look.
+Run: ``.venv/bin/python benchmarks/null_sweep.py [N] [SIZE] [--tune NAME=VALUE]``.  Analyses every wake-free
+scene (N synthetic noise/swell scenes and the scikit-image textures, SIZE x SIZE pixels, 640 by default)
+at three positions and records how many would be called a wake, beside the last record in
+``benchmarks/results/``.  Scenes of 1024 px or more also exercise the half-resolution look.
 """
 
 from __future__ import annotations
 
-import sys
 import tempfile
 from pathlib import Path
 
 import numpy as np
 
-sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
-from null_cases import TEXTURES, synthetic_null, texture_null  # noqa: E402
+from wakemeter.detect.analysis import AnalysisRequest, analyze
+from wakemeter.scene.raster import open_scene
+from wakemeter.synth.cases import TEXTURES, synthetic_null, texture_null
 
-from wakemeter.detect.analysis import analyze  # noqa: E402
-from wakemeter.scene.raster import open_scene  # noqa: E402
+from sweep_record import parse, record
 
 
-def main(n: int, size: int = 640) -> None:
+def main(n: int, size: int, tuning) -> tuple[dict, list[dict]]:
     rows = []
     f = size / 640
     with tempfile.TemporaryDirectory() as tmp:
@@ -30,14 +29,19 @@ def main(n: int, size: int = 640) -> None:
         for path in paths:
             with open_scene(path) as sc:
                 for pos in ((320 * f, 320 * f), (200 * f, 420 * f), (440 * f, 250 * f)):
-                    a = analyze(sc, vessel_px=pos)
-                    rows.append((path.name, pos, a.significance, a.plots.get("side_contrast"), a.wake_found))
-                    print(f"{path.name:<24} {pos} significance {a.significance:6.2f} side {rows[-1][3]:7.2f} "
-                          f"{'WAKE' if a.wake_found else ''}", flush=True)
-    sig = np.array([r[2] for r in rows])
-    print(f"\n{len(rows)} wake-free trials: {sum(r[4] for r in rows)} called a wake; significance max {sig.max():.2f}, "
-          f"99th percentile {np.percentile(sig, 99):.2f}")
+                    a = analyze(sc, AnalysisRequest(vessel_px=pos), tuning)
+                    rows.append({"scene": path.name, "position_px": list(pos), "significance": a.significance,
+                                 "side_contrast": a.diagnostics.side_contrast, "wake": a.wake_found})
+                    print(f"{path.name:<24} {pos} significance {a.significance:6.2f} side "
+                          f"{a.diagnostics.side_contrast:7.2f} {'WAKE' if a.wake_found else ''}", flush=True)
+    sig = np.array([r["significance"] for r in rows])
+    summary = {"trials": len(rows), "called_a_wake": int(sum(r["wake"] for r in rows)),
+               "max_significance": float(np.nanmax(sig)), "significance_p99": float(np.nanpercentile(sig, 99))}
+    return summary, rows
 
 
 if __name__ == "__main__":
-    main(int(sys.argv[1]) if len(sys.argv) > 1 else 30, int(sys.argv[2]) if len(sys.argv) > 2 else 640)
+    args, tuning = parse(__doc__.splitlines()[0], [("n", int, 30, "synthetic wake-free scenes"),
+                                                   ("size", int, 640, "scene side, pixels")])
+    summary, rows = main(args.n, args.size, tuning)
+    record("null_sweep", {"n": args.n, "size": args.size}, tuning, summary, rows, write=not args.no_record)

@@ -25,11 +25,12 @@ def speed_check(analysis, true_speed_mps: float) -> dict:
             "covered": bool(s.ci95_low_mps <= true_speed_mps <= s.ci95_high_mps)}
 
 
-def print_speed_summary(rows: list[dict]) -> None:
-    """One line: found, within 3 %, intervals holding the truth (rows carry ``found`` and :func:`speed_check`)."""
+def speed_summary(rows: list[dict]) -> dict:
+    """Found, within 3 %, intervals holding the truth (rows carry ``found`` and :func:`speed_check`)."""
     found = [r for r in rows if r["found"]]
-    print(f"\nfound {len(found)}/{len(rows)}; speed within 3 %: {sum(abs(r['rel_err']) <= 0.03 for r in found)}; "
-          f"intervals holding the truth: {sum(r['covered'] for r in found)}")
+    return {"cases": len(rows), "found": len(found),
+            "speed_within_3pct": sum(abs(r["rel_err"]) <= 0.03 for r in found),
+            "intervals_holding_truth": sum(r["covered"] for r in found)}
 
 
 def close_qt(app, *objects) -> None:

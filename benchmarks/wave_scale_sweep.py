@@ -1,6 +1,6 @@
 """Waves short or long for the pixel size (script): speed accuracy outside the usual 7-45 pixels per wave.
 
-Run: ``.venv/bin/python benchmarks/wave_scale_sweep.py LO HI [SIZE] [N]``, e.g. ``3 7`` (short waves, 640 px
+Run: ``.venv/bin/python benchmarks/wave_scale_sweep.py LO HI [SIZE] [N] [--tune NAME=VALUE]``, e.g. ``3 7`` (short waves, 640 px
 scenes) or ``45 150 1024`` (long waves; scenes of 1024 px or more let the analysis take its half-resolution
 look).  Random synthetic deep-water wakes, alternately radar and optical, with LO <= transverse wavelength /
 pixel <= HI; prints per case and the summary (found, within 3 %, interval holding the truth).
@@ -9,24 +9,23 @@ pixel <= HI; prints per case and the summary (found, within 3 %, interval holdin
 from __future__ import annotations
 
 import json
-import sys
 import tempfile
 from pathlib import Path
 
 import numpy as np
 
-sys.path.insert(0, str(Path(__file__).resolve().parent))
-from timing import print_speed_summary, speed_check  # noqa: E402
-
-from wakemeter.detect.analysis import analyze  # noqa: E402
+from wakemeter.detect.analysis import AnalysisRequest, analyze  # noqa: E402
 from wakemeter.scene.raster import open_scene  # noqa: E402
 from wakemeter.synth import Hull, OpticalModel, RadarModel, VesselSpec, render, write  # noqa: E402
 from wakemeter.synth.demo import vessel_scene  # noqa: E402
 
+from sweep_record import parse, record  # noqa: E402
+from timing import speed_check, speed_summary  # noqa: E402
+
 G = 9.81
 
 
-def main(lo: float, hi: float, size: int, n: int) -> None:
+def main(lo: float, hi: float, size: int, n: int, tuning) -> list[dict]:
     rows = []
     for seed in range(n):
         rng = np.random.default_rng(777 + seed)
@@ -50,14 +49,15 @@ def main(lo: float, hi: float, size: int, n: int) -> None:
             tif, sidecar = write(render(spec), Path(tmp) / "case.tif")
             t = json.loads(sidecar.read_text())["vessels"][0]
             with open_scene(tif) as sc:
-                a = analyze(sc, vessel_px=(t["pixel_col"], t["pixel_row"]))
+                a = analyze(sc, AnalysisRequest(vessel_px=(t["pixel_col"], t["pixel_row"])), tuning)
         row = {"seed": seed, "radar": radar, "px_per_wave": round(lam / p, 1), "u": round(u, 2),
                "found": a.wake_found, "analysis_pixel_m": round(a.pixel_m, 2), **speed_check(a, u)}
         rows.append(row)
         print(row, flush=True)
-    print_speed_summary(rows)
+    return rows
 
 
 if __name__ == "__main__":
-    a = sys.argv[1:]
-    main(float(a[0]), float(a[1]), int(a[2]) if len(a) > 2 else 640, int(a[3]) if len(a) > 3 else 10)
+    args, tuning = parse(__doc__.splitlines()[0], [("lo", float, 3.0, "fewest pixels per transverse wave"), ("hi", float, 7.0, "most pixels per wave"), ("size", int, 640, "scene side, pixels"), ("n", int, 10, "number of cases")])
+    rows = main(args.lo, args.hi, args.size, args.n, tuning)
+    record("wave_scale_sweep", {"lo": args.lo, "hi": args.hi, "size": args.size, "n": args.n}, tuning, speed_summary(rows), rows, write=not args.no_record)

@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 PKG = Path(__file__).resolve().parents[1] / "wakemeter"
-CORE = ["physics", "scene", "detect", "synth", "evidence"]
+CORE = ["physics", "scene", "detect", "synth", "evidence", "project", "cli"]
 
 
 @pytest.mark.parametrize("layer", CORE)

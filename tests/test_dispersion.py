@@ -5,7 +5,8 @@ Sources are named beside each check.
 
 import numpy as np
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from wakemeter.errors import ParameterError
 from wakemeter.physics import dispersion as d

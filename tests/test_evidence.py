@@ -12,7 +12,8 @@ import pytest
 from pypdf import PdfReader
 
 from wakemeter.cli import main
-from wakemeter.detect.analysis import analyze
+from wakemeter.detect.analysis import AnalysisRequest, analyze
+from wakemeter.detect.findings import SegmentKind
 from wakemeter.errors import SceneWriteError
 from wakemeter.evidence.annotate import COLOURS
 from wakemeter.evidence.export import export_evidence
@@ -27,7 +28,7 @@ SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
 def exported(tmp_path_factory):
     out = tmp_path_factory.mktemp("evidence")
     with open_scene(SCENE) as sc:
-        a = analyze(sc, vessel_lonlat=(-35.0, 36.0))
+        a = analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0)))
         files = export_evidence(sc, a, out, analyst="R. Fenwick", parameters={"vessel": "-35.0,36.0"},
                                 exported_at="2026-06-20T09:00:00+00:00")
     return a, files, out
@@ -59,12 +60,12 @@ def test_pdf_pages_and_text(exported):
 def test_png_size_and_arm_colour_where_the_arms_are(exported):
     a, files, _ = exported
     img = cv2.imread(str(files.image))[..., ::-1]
-    c0 = min(p[0] for p in a.geometry["chip"])
-    r0 = min(p[1] for p in a.geometry["chip"])
+    c0 = min(p[0] for p in a.drawing.points_of(SegmentKind.AREA))
+    r0 = min(p[1] for p in a.drawing.points_of(SegmentKind.AREA))
     c0, r0 = max(int(np.floor(c0)), 0), max(int(np.floor(r0)), 0)
     assert img.shape[2] == 3 and img.shape[0] > 300 and img.shape[1] > 300
     arm = np.array(COLOURS["arm"])
-    (x0, y0), (x1, y1) = a.geometry["arm_left"]
+    (x0, y0), (x1, y1) = a.drawing.first(SegmentKind.ARM_LEFT).points
     hits = 0
     for t in np.linspace(0.2, 0.9, 8):  # along the drawn arm
         x, y = int(x0 + t * (x1 - x0)) - c0, int(y0 + t * (y1 - y0)) - r0
@@ -81,7 +82,7 @@ def test_second_export_is_identical_and_overwrite_needs_force(exported, tmp_path
     with open_scene(SCENE) as sc:
         with pytest.raises(SceneWriteError, match="already exist"):
             export_evidence(sc, a, out)
-        again = export_evidence(sc, analyze(sc, vessel_lonlat=(-35.0, 36.0)), tmp_path, analyst="R. Fenwick",
+        again = export_evidence(sc, analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0))), tmp_path, analyst="R. Fenwick",
                                 parameters={"vessel": "-35.0,36.0"}, exported_at="2026-06-20T09:00:00+00:00")
     assert again.image.read_bytes() == files.image.read_bytes()
     assert json.loads(again.data.read_text())["result"] == json.loads(files.data.read_text())["result"]
@@ -91,7 +92,7 @@ def test_read_only_folder_fails_cleanly(tmp_path, monkeypatch):
     ro = tmp_path / "ro"
     ro.mkdir()
     with open_scene(SCENE) as sc:
-        a = analyze(sc, vessel_lonlat=(-35.0, 36.0))
+        a = analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0)))
         real_access = os.access
         monkeypatch.setattr(os, "access", lambda p, m: False if Path(p) == ro else real_access(p, m))
         with pytest.raises(SceneWriteError, match="not writable"):
@@ -107,7 +108,7 @@ def test_read_only_folder_fails_cleanly(tmp_path, monkeypatch):
 
 def test_no_wake_report_says_so(tmp_path):
     with open_scene(ROOT / "sample_scenes" / "calm_no_wake.tif") as sc:
-        a = analyze(sc, vessel_px=(384, 384))
+        a = analyze(sc, AnalysisRequest(vessel_px=(384, 384)))
         files = export_evidence(sc, a, tmp_path)
     record = json.loads(files.data.read_text())
     validate(record)

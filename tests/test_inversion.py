@@ -6,10 +6,17 @@ from scipy import stats
 
 from wakemeter.errors import ParameterError
 from wakemeter.physics import havelock, kelvin
-from wakemeter.physics.inversion import (Conditions, Uncertain, assess_depth_regime, combine_estimates,
-                                         speed_and_depth_from_transverse_wavelength_and_half_angle,
-                                         speed_from_crest_wavelength, speed_from_radar_offset,
-                                         speed_from_spectral_fit, speed_from_transverse_wavelength)
+from wakemeter.physics.inversion import (
+    Conditions,
+    Uncertain,
+    assess_depth_regime,
+    combine_estimates,
+    speed_and_depth_from_transverse_wavelength_and_half_angle,
+    speed_from_crest_wavelength,
+    speed_from_radar_offset,
+    speed_from_spectral_fit,
+    speed_from_transverse_wavelength,
+)
 
 G = 9.81
 FIXED_G = Conditions(g_mps2=Uncertain(G, 0.0))

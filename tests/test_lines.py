@@ -1,20 +1,17 @@
 """Straight wake lines through the vessel: the ray fan, the radar narrow V and the Kelvin-arm ridges."""
 
 import json
-import sys
 from dataclasses import replace
-from pathlib import Path
 
 import numpy as np
 import pytest
 
-sys.path.insert(0, str(Path(__file__).resolve().parent))
-from wake_cases import make_case  # noqa: E402
-
-from wakemeter.detect.analysis import analyze  # noqa: E402
+from wakemeter.detect.analysis import AnalysisRequest, analyze  # noqa: E402
+from wakemeter.detect.findings import SegmentKind
 from wakemeter.detect.lines import ray_fan  # noqa: E402
 from wakemeter.scene.raster import open_scene  # noqa: E402
 from wakemeter.synth import render, write  # noqa: E402
+from wakemeter.synth.cases import make_case  # noqa: E402
 
 
 def test_ray_fan_is_exact_on_a_plane():
@@ -53,13 +50,13 @@ def test_radar_narrow_v_is_found_at_its_angle(tmp_path, seed):
     tif, sidecar = write(render(spec), tmp_path / "nv.tif")
     truth = json.loads(sidecar.read_text())["vessels"][0]
     with open_scene(tif) as sc:
-        a = analyze(sc, vessel_px=(truth["pixel_col"], truth["pixel_row"]))
+        a = analyze(sc, AnalysisRequest(vessel_px=(truth["pixel_col"], truth["pixel_row"])))
     assert a.wake_found
     nv = [ln for ln in a.lines if ln.kind == "narrow-V arm"]
     assert len(nv) == 2 and {np.sign(ln.angle_from_track_deg) for ln in nv} == {-1.0, 1.0}
     assert a.narrow_v_half_angle_deg == pytest.approx(3.0, abs=0.5)
     assert all(ln.significance >= 6.0 for ln in nv)
-    assert {"narrow_v_left", "narrow_v_right"} <= set(a.geometry)
+    assert {SegmentKind.NARROW_V_LEFT, SegmentKind.NARROW_V_RIGHT} <= {s.kind for s in a.drawing.segments}
     j = a.to_json()
     assert j["narrow_v_half_angle_deg"] == pytest.approx(3.0, abs=0.5)
     assert {ln["kind"] for ln in j["lines"]} >= {"narrow-V arm"}

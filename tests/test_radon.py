@@ -4,7 +4,8 @@ import numpy as np
 import pytest
 from scipy.ndimage import gaussian_filter
 from skimage import data
-from skimage.transform import radon as sk_radon, resize
+from skimage.transform import radon as sk_radon
+from skimage.transform import resize
 
 from wakemeter.detect.radon import radon
 from wakemeter.errors import ParameterError

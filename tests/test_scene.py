@@ -237,7 +237,7 @@ def test_radar_in_decibels_is_recognised_and_analysed(tmp_path):
 
     import rasterio
 
-    from wakemeter.detect.analysis import analyze
+    from wakemeter.detect.analysis import AnalysisRequest, analyze
     from wakemeter.scene.display import looks_like_radar_db
     from wakemeter.scene.raster import open_scene
 
@@ -252,7 +252,7 @@ def test_radar_in_decibels_is_recognised_and_analysed(tmp_path):
     truth = json.loads((root / "outer_roads_radar.truth.json").read_text())["vessels"][0]
     pos = (truth["hull_pixel_col"], truth["hull_pixel_row"])
     with open_scene(src) as a_sc, open_scene(db_path) as b_sc:
-        a, b = analyze(a_sc, vessel_px=pos), analyze(b_sc, vessel_px=pos)
+        a, b = analyze(a_sc, AnalysisRequest(vessel_px=pos)), analyze(b_sc, AnalysisRequest(vessel_px=pos))
     assert a.wake_found and b.wake_found
     assert b.speed.speed_mps == pytest.approx(a.speed.speed_mps, rel=0.01)
     from wakemeter.detect.prepare import prepare_chip

@@ -14,8 +14,17 @@ from scipy.ndimage import uniform_filter
 from wakemeter.errors import ParameterError
 from wakemeter.physics import havelock, kelvin
 from wakemeter.scene import geodesy
-from wakemeter.synth import (AmbientSea, Hull, OpticalModel, RadarModel, SceneSpec, VesselSpec, kelvin_elevation,
-                             render, write)
+from wakemeter.synth import (
+    AmbientSea,
+    Hull,
+    OpticalModel,
+    RadarModel,
+    SceneSpec,
+    VesselSpec,
+    kelvin_elevation,
+    render,
+    write,
+)
 
 G = 9.81
 

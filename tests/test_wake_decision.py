@@ -8,24 +8,20 @@ a found wake 9.5).  Here other seeds and other positions are used.  Zero alarms 
 (rule of three: Hanley & Lippman-Hand 1983, JAMA 249).
 """
 
-import sys
-from pathlib import Path
 
 import pytest
 
-sys.path.insert(0, str(Path(__file__).resolve().parent))
-from null_cases import TEXTURES, synthetic_null, texture_null  # noqa: E402
-
-from wakemeter.detect.analysis import analyze  # noqa: E402
+from wakemeter.detect.analysis import AnalysisRequest, analyze  # noqa: E402
 from wakemeter.errors import ParameterError  # noqa: E402
 from wakemeter.scene.raster import open_scene  # noqa: E402
+from wakemeter.synth.cases import TEXTURES, synthetic_null, texture_null  # noqa: E402
 
 
 @pytest.mark.parametrize("seed", range(100, 108))
 def test_synthetic_wake_free_scenes(tmp_path, seed):
     with open_scene(synthetic_null(seed, tmp_path)) as sc:
         for pos in ((330, 300), (260, 380)):
-            a = analyze(sc, vessel_px=pos)
+            a = analyze(sc, AnalysisRequest(vessel_px=pos))
             assert not a.wake_found, (seed, pos, a.decision)
             assert a.speed is None and a.methods == ()
 
@@ -35,7 +31,7 @@ def test_textures_are_not_wakes(tmp_path, name):
     # Either "no wake", or a clear refusal when most of the area is saturated (treated as land/cloud).
     with open_scene(texture_null(name, tmp_path)) as sc:
         try:
-            a = analyze(sc, vessel_px=(300, 340))
+            a = analyze(sc, AnalysisRequest(vessel_px=(300, 340)))
         except ParameterError as err:
             assert "valid pixels" in str(err)
             return

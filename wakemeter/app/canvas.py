@@ -14,6 +14,7 @@ from PySide6.QtCore import QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import QBrush, QColor, QFont, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QWidget
 
+from ..detect.findings import SegmentKind
 from ..errors import WakemeterError
 from .document import AddItem, ChangeItem, Document, Measurement, Vessel
 from .tiles import TILE, TileLoader, estimate_contrast
@@ -28,6 +29,16 @@ ITEM_COLOURS = {
 }
 TOOLS = ("look", "vessel", "track", "arm", "crest", "ruler", "calibrate")
 HANDLE_PX = 7
+
+
+#: how each kind of drawn segment of a finding looks: (colour key, pen width, dashed)
+SEGMENT_STYLES = {
+    SegmentKind.AREA: ("chip", 1, True), SegmentKind.TRACK: ("finding_track", 2, False),
+    SegmentKind.ARM_LEFT: ("finding_arm", 2, False), SegmentKind.ARM_RIGHT: ("finding_arm", 2, False),
+    SegmentKind.HULL_SHIFT: ("vessel", 1, True),
+    SegmentKind.NARROW_V_LEFT: ("finding_narrow_v", 1, True), SegmentKind.NARROW_V_RIGHT: ("finding_narrow_v", 1, True),
+    SegmentKind.CREST: ("crest_fit", 1, False),
+}
 
 
 class Canvas(QWidget):
@@ -216,32 +227,19 @@ class Canvas(QWidget):
             a = self.doc.effective_finding(vid)
             if a is None or vid in self.doc.rejected:
                 continue
-            g = a.geometry
-            if "chip" in g:
-                qp.setPen(self._pen(ITEM_COLOURS["chip"], 1, dash=True))
+            for seg in a.drawing.segments:
+                if seg.kind != SegmentKind.AREA and not a.wake_found:
+                    continue
+                colour, width, dash = SEGMENT_STYLES[seg.kind]
+                qp.setPen(self._pen(ITEM_COLOURS[colour], width, dash=dash))
                 qp.setBrush(Qt.NoBrush)
-                qp.drawPolygon(QPolygonF([self.to_screen(p) for p in g["chip"]]))
-            if not a.wake_found:
-                continue
-            if "track" in g:
-                qp.setPen(self._pen(ITEM_COLOURS["finding_track"], 2))
-                qp.drawLine(self.to_screen(g["track"][0]), self.to_screen(g["track"][1]))
-            for k in ("arm_left", "arm_right"):
-                if k in g:
-                    qp.setPen(self._pen(ITEM_COLOURS["finding_arm"], 2))
-                    qp.drawLine(self.to_screen(g[k][0]), self.to_screen(g[k][1]))
-            if "hull_shift" in g:
-                qp.setPen(self._pen(ITEM_COLOURS["vessel"], 1, dash=True))
-                qp.drawLine(self.to_screen(g["hull_shift"][0]), self.to_screen(g["hull_shift"][1]))
-            for k in ("narrow_v_left", "narrow_v_right"):
-                if k in g:
-                    qp.setPen(self._pen(ITEM_COLOURS["finding_narrow_v"], 1, dash=True))
-                    qp.drawLine(self.to_screen(g[k][0]), self.to_screen(g[k][1]))
-            for line in g.get("crests", []):
-                qp.setPen(self._pen(ITEM_COLOURS["crest_fit"], 1))
-                path = QPainterPath(self.to_screen(line[0]))
-                for p in line[1:]:
-                    path.lineTo(self.to_screen(p))
+                pts = [self.to_screen(p) for p in seg.points]
+                if seg.kind == SegmentKind.AREA:
+                    qp.drawPolygon(QPolygonF(pts))
+                    continue
+                path = QPainterPath(pts[0])
+                for p in pts[1:]:
+                    path.lineTo(p)
                 qp.drawPath(path)
 
     def _draw_drag(self, qp: QPainter) -> None:

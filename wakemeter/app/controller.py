@@ -10,9 +10,9 @@ from PySide6.QtCore import QObject, Qt, QTimer
 from PySide6.QtGui import QKeySequence
 from PySide6.QtWidgets import QDockWidget, QFileDialog, QMessageBox, QScrollArea
 
-from .. import session as session_mod
 from ..errors import WakemeterError
-from .document import Measurement, SetFinding, SetRejected, StoredFinding, Vessel
+from ..project import session as session_mod
+from .document import SetFinding, SetRejected
 from .results import ResultsPanel
 from .workers import Job
 
@@ -69,16 +69,14 @@ class Controller(QObject):
             self._shown_vid = None
             return
         if vid != self._shown_vid:
-            self.panel.set_inputs(self.doc.inputs.get(vid))
+            self.panel.set_request(self.doc.requests.get(vid))
             self._shown_vid = vid
         eff = self.doc.effective_finding(vid)
         name = self.doc.vessels[vid].name
         if eff is None:
             self.panel.show_result(name, None)
             return
-        from ..detect.analysis import WakeAnalysis
-        self.panel.show_result(name, eff.to_json(), rejected=vid in self.doc.rejected,
-                               analysis=eff if isinstance(eff, WakeAnalysis) else None)
+        self.panel.show_result(name, eff.to_json(), rejected=vid in self.doc.rejected, analysis=eff)
 
     # ---- analysis ---------------------------------------------------------
     def analyse_selected(self) -> None:
@@ -103,17 +101,19 @@ class Controller(QObject):
         scene = self.doc.scene
         if v is None or scene is None:
             return self._next()
-        inputs = self.panel.inputs() if vid == self.doc.vessel_of_selection() else dict(self.doc.inputs.get(vid, {}))
-        self.doc.inputs[vid] = inputs
-        position = tuple(v.position)  # copies taken on the GUI thread
-        from ..detect.analysis import RadarGeometry, analyze
-
-        rg = RadarGeometry(*inputs["radar_geometry"]) if inputs.get("radar_geometry") else None
+        if vid == self.doc.vessel_of_selection():  # the panel shows this vessel: take what it says
+            try:
+                self.doc.requests[vid] = self.panel.request(v.position, self.doc.requests.get(vid))
+            except WakemeterError as err:
+                self.win.error("Cannot analyse", str(err))
+                self.queue.clear()
+                return
+        request = self.doc.project.request_for(vid)  # a frozen copy, taken on the GUI thread
+        self.doc.requests[vid] = request
+        from ..detect.analysis import analyze
 
         def work(progress, cancelled):
-            return analyze(scene, vessel_px=position, depth_m=inputs.get("depth_m"),
-                           hull_length_m=inputs.get("hull_length_m"), radar_geometry=rg,
-                           progress=progress, cancelled=cancelled)
+            return analyze(scene, request, progress=progress, cancelled=cancelled)
 
         def done(result):
             self.doc.undo.push(SetFinding(self.doc, vid, result, f"analyse {v.name}"))
@@ -133,29 +133,7 @@ class Controller(QObject):
 
     # ---- sessions ---------------------------------------------------------
     def session_data(self) -> dict:
-        sc = self.doc.scene
-        if sc is None:
-            raise WakemeterError("open a scene first")
-        cal = sc.calibration
-        findings = {}
-        for vid, f in self.doc.findings.items():
-            eff = self.doc.effective_finding(vid)
-            if eff is None:
-                continue
-            geo = {k: v for k, v in eff.geometry.items()}
-            findings[str(vid)] = {"result": eff.to_json(), "geometry": geo, "rejected": vid in self.doc.rejected}
-        return {
-            "scene": {"absolute_path": str(sc.info.path), "sha256": sc.sha256(), "size_bytes": sc.info.file_size},
-            "calibration": None if cal is None else {"pixel_size_m": cal.m_per_col,
-                                                     "north_up_deg": cal.bearing_up_deg if cal.north_known else None},
-            "vessels": [{"id": v.id, "name": v.name, "position_px": list(v.position)} for v in self.doc.vessels.values()],
-            "measurements": [{"id": m.id, "kind": m.kind, "points_px": [list(p) for p in m.points],
-                              "vessel_id": m.vessel_id, "values": {k: v for k, v in m.values.items()
-                                                                    if k in ("distance_m",)}}
-                             for m in self.doc.measurements.values()],
-            "inputs": {str(k): v for k, v in self.doc.inputs.items()},
-            "findings": findings,
-        }
+        return session_mod.to_session(self.doc.project)
 
     def save_session(self, path: str) -> bool:
         try:
@@ -202,27 +180,19 @@ class Controller(QObject):
         if not self.win.open_path(scene_path):
             return False
         doc = self.doc
-        if data.get("calibration") and not doc.scene.info.georeferenced:
-            from ..scene import geodesy
-            c = data["calibration"]
-            doc.scene.calibrate(geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"], north_up_deg=c["north_up_deg"]))
-        for v in data["vessels"]:
-            doc.vessels[int(v["id"])] = Vessel(int(v["id"]), v["name"], tuple(v["position_px"]))
-        for m in data["measurements"]:
-            item = Measurement(int(m["id"]), m["kind"], tuple(tuple(p) for p in m["points_px"]), m.get("vessel_id"),
-                               values=m.get("values") or {})
-            doc.measurements[item.id] = item
-        doc.reevaluate_all()
-        doc.inputs = {int(k): v for k, v in (data.get("inputs") or {}).items()}
-        for k, f in (data.get("findings") or {}).items():
-            doc.findings[int(k)] = StoredFinding(f["result"], f.get("geometry") or {})
-            if f.get("rejected"):
-                doc.rejected.add(int(k))
-        import itertools
-        top = max([0] + list(doc.vessels) + list(doc.measurements))
-        doc._ids = itertools.count(top + 1)
-        doc.undo.clear()
-        doc.changed.emit()
+        try:
+            if data.get("calibration") and not doc.scene.info.georeferenced:
+                from ..scene import geodesy
+                c = data["calibration"]
+                doc.scene.calibrate(geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"],
+                                                             north_up_deg=c["north_up_deg"]))
+            session_mod.fill_project(doc.project, data)
+        except (WakemeterError, KeyError, TypeError) as err:
+            doc.project.clear()
+            doc.loaded()
+            self.win.error("Could not open the session", str(err))
+            return False
+        doc.loaded()
         self.session_path = path
         self.win.say(f"session opened: {path}")
         return True
@@ -271,19 +241,17 @@ class Controller(QObject):
             self.export(vid, folder, ask=True)
 
     def export(self, vid: int, folder: str, *, ask: bool = False, force: bool = False, analyst: str | None = None):
-        from ..detect.analysis import WakeAnalysis, analyze
         from ..evidence.export import default_basename, export_evidence
+        from ..evidence.from_session import with_plots
 
         if vid in self.doc.rejected:
             self.win.error("Not exported", "this finding was rejected")
             return None
-        eff = self.doc.effective_finding(vid)
-        if not isinstance(eff, WakeAnalysis):  # reopened from a session: recompute (deterministic)
-            inp = self.doc.inputs.get(vid, {})
-            raw = analyze(self.doc.scene, vessel_px=self.doc.vessels[vid].position, depth_m=inp.get("depth_m"),
-                          hull_length_m=inp.get("hull_length_m"))
-            self.doc.findings[vid] = raw
-            eff = self.doc.effective_finding(vid)
+        try:  # a finding read from a session has no plot arrays: its own request is run again (deterministic)
+            eff = with_plots(self.doc.project, vid)
+        except WakemeterError as err:
+            self.win.error("Could not export", str(err))
+            return None
         base = default_basename(self.doc.scene, eff)
         exists = any((Path(folder) / f"{base}{s}").exists() for s in (".png", ".pdf", ".json"))
         if exists and ask and not force:
@@ -293,8 +261,7 @@ class Controller(QObject):
                 return None
         try:
             files = export_evidence(self.doc.scene, eff, folder, analyst=analyst, force=force,
-                                    parameters={"vessel_px": list(self.doc.vessels[vid].position),
-                                                **{k: v for k, v in self.doc.inputs.get(vid, {}).items() if v}})
+                                    parameters={"vessel": self.doc.vessels[vid].name})
         except WakemeterError as err:
             self.win.error("Could not export", str(err))
             return None

@@ -3,15 +3,28 @@
 from __future__ import annotations
 
 import html
+from dataclasses import replace
 
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import Signal
-from PySide6.QtWidgets import (QCheckBox, QDoubleSpinBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QPushButton,
-                               QTabWidget, QTextBrowser, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (
+    QCheckBox,
+    QDoubleSpinBox,
+    QFormLayout,
+    QGroupBox,
+    QHBoxLayout,
+    QLabel,
+    QPushButton,
+    QTabWidget,
+    QTextBrowser,
+    QVBoxLayout,
+    QWidget,
+)
 
-from ..evidence.record import describe_lines
-from ..physics.units import KNOT_MPS
+from ..detect.request import AnalysisRequest, RadarGeometry
+from ..evidence import summary
+from ..physics.inversion import Uncertain
 
 
 def _spin(lo: float, hi: float, dec: int, suffix: str, tip: str, special: str = "unknown") -> QDoubleSpinBox:
@@ -119,6 +132,7 @@ class ResultsPanel(QWidget):
 
     # ---- inputs -----------------------------------------------------------
     def inputs(self) -> dict:
+        """What the panel shows, as plain numbers (None: not given)."""
         out = {"depth_m": self.depth.value() or None, "hull_length_m": self.hull.value() or None,
                "radar_geometry": None}
         if self.use_radar.isChecked() and self.slant.value() > 0 and self.vplat.value() > 0 and self.inc.value() > 0:
@@ -126,13 +140,31 @@ class ResultsPanel(QWidget):
                                      self.inc.value()]
         return out
 
-    def set_inputs(self, d: dict | None) -> None:
-        d = d or {}
-        self.depth.setValue(d.get("depth_m") or 0.0)
-        self.hull.setValue(d.get("hull_length_m") or 0.0)
-        rg = d.get("radar_geometry")
-        self.use_radar.setChecked(bool(rg))
-        for w, v in zip((self.slant, self.vplat, self.look, self.inc), rg or (0, 0, -1, 0)):
+    def request(self, position: tuple[float, float], base: AnalysisRequest | None = None) -> AnalysisRequest:
+        """The analysis request for a vessel at ``position``: the panel's values over ``base`` (which keeps
+        what the panel does not show: depth uncertainty, radar uncertainties, seed)."""
+        base = (base or AnalysisRequest(vessel_px=position)).at_pixel(position)
+        d = self.inputs()
+        depth = None
+        if d["depth_m"]:
+            std = base.depth.std if base.depth is not None and base.depth.value == d["depth_m"] else 0.0
+            depth = Uncertain(d["depth_m"], std)
+        rg = None
+        if d["radar_geometry"]:
+            r, v, look, inc = d["radar_geometry"]
+            old = base.radar_geometry
+            rg = RadarGeometry(r, v, look, inc) if old is None else replace(
+                old, slant_range_m=r, platform_speed_mps=v, look_bearing_deg=look, incidence_deg=inc)
+        return replace(base, depth=depth, hull_length_m=d["hull_length_m"], radar_geometry=rg)
+
+    def set_request(self, req: AnalysisRequest | None) -> None:
+        self.depth.setValue(req.depth.value if req is not None and req.depth is not None else 0.0)
+        self.hull.setValue(req.hull_length_m or 0.0 if req is not None else 0.0)
+        rg = None if req is None else req.radar_geometry
+        self.use_radar.setChecked(rg is not None)
+        values = (0, 0, -1, 0) if rg is None else (rg.slant_range_m, rg.platform_speed_mps, rg.look_bearing_deg,
+                                                   rg.incidence_deg)
+        for w, v in zip((self.slant, self.vplat, self.look, self.inc), values):
             w.setValue(v)
 
     # ---- display ----------------------------------------------------------
@@ -163,30 +195,30 @@ class ResultsPanel(QWidget):
         self.radon_pick.setData([], [])
 
     def _plots(self, a) -> None:
-        if a is None or not a.plots.get("whitened_spectrum") is not None:
+        if a is None or a.plots is None:
             self._clear_plots()
             return
         p = a.plots
-        white = p["whitened_spectrum"]
-        dk_u, dk_v = p["spectrum_dk"]
+        white = p.whitened_spectrum
+        dk_u, dk_v = p.spectrum_dk
         n_v, n_u = white.shape
         self.spec_img.setImage(np.clip(white, -2, 6), levels=(-2, 6))
         self.spec_img.setColorMap(pg.colormap.get("viridis"))
         from PySide6.QtCore import QRectF
         self.spec_img.setRect(QRectF(-n_u / 2 * dk_u, -n_v / 2 * dk_v, n_u * dk_u, n_v * dk_v))
-        ku, kv = p["fitted_curve"]  # computed by the analysis; the panel only draws
+        ku, kv = p.fitted_curve  # computed by the analysis; the panel only draws
         for c, sgn in zip(self.spec_curve, (1, -1)):
             c.setData(sgn * ku, sgn * kv, connect="finite")
-        prof = np.asarray(p["profile"], float)
-        x = np.arange(prof.size) * p["profile_m_per_px"]
+        prof = np.asarray(p.profile, float)
+        x = np.arange(prof.size) * p.profile_m_per_px
         self.prof_line.setData(x, prof)
-        lam = p.get("transverse_wavelength_m")
+        lam = p.transverse_wavelength_m
         if lam:
             xs = np.arange(0, x[-1], lam)
             self.prof_marks.setData(xs, np.full(xs.size, np.nanmax(prof)))
         else:
             self.prof_marks.setData([], [])
-        sino = p.get("radon")
+        sino = p.radon
         if sino is not None:
             from PySide6.QtCore import QRectF
             n = sino.shape[0]
@@ -194,42 +226,26 @@ class ResultsPanel(QWidget):
             self.radon_img.setImage(sino, levels=(lo, hi))
             self.radon_img.setColorMap(pg.colormap.get("viridis"))
             self.radon_img.setRect(QRectF(0, -n / 2, 180, n))
-            ang, off, _sig = p["radon_pick"]
+            ang, off, _sig = p.radon_pick
             self.radon_pick.setData([ang % 180], [off])
 
 
 def result_html(r: dict, rejected: bool = False) -> str:
+    """The result as HTML for the panel (the same rows as the CLI and the PDF: evidence.summary)."""
     esc = html.escape
     if not r.get("wake_found"):
         return (f"<h3>No wake found</h3><p>{esc(r.get('decision', ''))}</p><p>No speed is given for a vessel "
                 "without a detectable wake. You can still measure by hand (crest ruler, track, arm).</p>")
-    lo, hi = r["speed_ci95_mps"]
-    rows = "".join(f"<tr><td>{esc(m['name'])}</td><td align=right>{m['speed_mps']:.2f}</td>"
-                   f"<td align=right>{m['speed_ci95_mps'][0]:.2f} – {m['speed_ci95_mps'][1]:.2f}</td>"
-                   f"<td align=right>{m['speed_mps'] / KNOT_MPS:.1f}</td></tr>" for m in r["methods"])
-    assumptions = sorted({a for m in r["methods"] for a in m.get("assumptions", [])})
-    depth = ("not estimated" if r["depth_m"] is None else
-             f"{r['depth_m']:.1f} m (95 %: {r['depth_ci95_m'][0]:.1f} – {r['depth_ci95_m'][1]:.1f} m)")
-    half = ("not measured" if r["half_angle_deg"] is None else
-            f"{r['half_angle_deg']:.1f} ± {r['half_angle_std_deg']:.1f}°")
-    lam = "not seen" if r["transverse_wavelength_m"] is None else f"{r['transverse_wavelength_m']:.1f} m"
+    speed, interval = summary.speed_text(r)
+    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in summary.summary_rows(r)[2:])
+    methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(r))
     return (
         ("<p style='color:#c33'><b>Rejected:</b> kept on record, not used or exported.</p>" if rejected else "")
-        + f"<h2 style='margin-bottom:2px'>{r['speed_knots']:.1f} kn &nbsp; <small>({r['speed_mps']:.2f} m/s)</small></h2>"
-        f"<p style='margin-top:0'>95 % interval <b>{lo / KNOT_MPS:.1f} – {hi / KNOT_MPS:.1f} kn</b> "
-        f"({lo:.2f} – {hi:.2f} m/s)</p>"
-        f"<table cellspacing=4>"
-        f"<tr><td>Heading (true)</td><td><b>{r['heading_deg']:.1f}°</b> ± {r['heading_std_deg']:.1f}°</td></tr>"
-        f"<tr><td>Half-angle</td><td>{half}</td></tr>"
-        f"<tr><td>Transverse crests</td><td>{lam}</td></tr>"
-        f"<tr><td>Wake lines</td><td>{esc(describe_lines(r))}</td></tr>"
-        f"<tr><td>Depth regime</td><td><b>{esc(r['regime'])}</b></td></tr>"
-        f"<tr><td>Depth</td><td>{depth}</td></tr></table>"
-        f"<p><small>{esc(r['regime_explanation'])}</small></p>"
-        f"<h4>Methods</h4><table border=0 cellspacing=4><tr><th align=left>method</th><th>m/s</th>"
-        f"<th>95 % (m/s)</th><th>kn</th></tr>{rows}</table>"
-        f"<p>{esc(r['consistency'] or '')}</p>"
-        "<h4>Assumptions</h4><ul>" + "".join(f"<li>{esc(a)}</li>" for a in assumptions)
-        + f"<li>gravity {r['gravity_mps2']:.4f} m/s²; analysis pixel {r['pixel_m']:.2f} m</li></ul>"
-        "<h4>Cautions</h4><ul>" + "".join(f"<li>{esc(c)}</li>" for c in r["cautions"]) + "</ul>"
+        + f"<h2 style='margin-bottom:2px'>{esc(speed)}</h2>"
+        f"<p style='margin-top:0'>95 % interval <b>{esc(interval)}</b></p>"
+        f"<table cellspacing=4>{rows}</table>"
+        "<h4>Methods</h4><table border=0 cellspacing=4><tr><th align=left>method</th><th>m/s</th>"
+        f"<th>95 % (m/s)</th><th>kn</th></tr>{methods}</table>"
+        "<h4>Assumptions</h4><ul>" + "".join(f"<li>{esc(a)}</li>" for a in summary.assumption_texts(r)) + "</ul>"
+        "<h4>Cautions</h4><ul>" + "".join(f"<li>{esc(c)}</li>" for c in summary.caution_texts(r)) + "</ul>"
         f"<p><small>{esc(r['decision'])}</small></p>")

@@ -16,11 +16,11 @@ import cv2
 import numpy as np
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
 from PySide6.QtGui import QImage
+from rasterio.enums import Resampling
 
 from ..errors import ParameterError, WakemeterError
 from ..scene import display
 from ..scene.raster import Scene
-from rasterio.enums import Resampling
 
 TILE = 256
 

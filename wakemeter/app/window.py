@@ -7,13 +7,25 @@ from pathlib import Path
 import numpy as np
 from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QAction, QActionGroup, QIcon, QKeySequence
-from PySide6.QtWidgets import (QDockWidget, QFileDialog, QHBoxLayout, QInputDialog, QLabel, QListWidget,
-                               QListWidgetItem, QMainWindow, QMessageBox, QProgressBar, QPushButton, QWidget)
+from PySide6.QtWidgets import (
+    QDockWidget,
+    QFileDialog,
+    QHBoxLayout,
+    QInputDialog,
+    QLabel,
+    QListWidget,
+    QListWidgetItem,
+    QMainWindow,
+    QMessageBox,
+    QProgressBar,
+    QPushButton,
+    QWidget,
+)
 
 from ..errors import WakemeterError
 from ..scene import geodesy
 from .canvas import Canvas
-from .document import Document, Measurement, RemoveItem, SetCalibration, Vessel, ChangeItem
+from .document import ChangeItem, Document, Measurement, RemoveItem, SetCalibration, Vessel
 from .workers import Job, Relay
 
 ICONS = Path(__file__).resolve().parents[2] / "icons"

@@ -26,6 +26,7 @@ from scipy import ndimage
 from ..scene.raster import Scene
 from .prepare import prepare_chip
 from .radon import radon
+from .robust import median_spread
 
 _ANGLES = np.arange(0.0, 180.0, 1.0)
 #: the dark line must stand this far below the Radon background (robust spreads), and the darkness
@@ -59,8 +60,7 @@ def find_displaced_apex(scene: Scene, hull_px: tuple[float, float], *, step: int
     offs = np.arange(n) - c
     band = np.abs(offs) <= max_off
     ref = sino[band]
-    med = float(np.median(ref))
-    mad = float(1.4826 * np.median(np.abs(ref - med))) or 1e-9
+    med, mad = median_spread(ref)
     z = (sino - med) / mad
     best: Apex | None = None
     # the three darkest lines with distinct directions (a Kelvin arm can be dark in some looks)

@@ -17,6 +17,7 @@ import numpy as np
 from scipy import ndimage
 
 from .radon import radon
+from .robust import median_spread
 
 
 @dataclass(frozen=True)
@@ -149,8 +150,7 @@ def turbulent_wake(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[fl
     band = np.abs(np.arange(n) - n // 2) <= max(2, n // 160)
     sub = sino[np.ix_(band, cols)]
     ref = sino[np.abs(np.arange(n) - n // 2) <= max(2, n // 160)]
-    med = float(np.median(ref))
-    mad = float(1.4826 * np.median(np.abs(ref - med))) or 1e-9
+    med, mad = median_spread(ref)
     k = np.unravel_index(np.argmax(np.abs(sub - med)), sub.shape)
     val = float(sub[k])
     th = _RADON_ANGLES[cols][k[1]]
@@ -183,7 +183,6 @@ def wake_line_offset(chip_data: np.ndarray, valid: np.ndarray, back_angle_deg: f
     band = np.abs(offs) <= max_offset_px
     sub = sino[np.ix_(band, cols)]
     ref = sino[band]
-    med = float(np.median(ref))
-    mad = float(1.4826 * np.median(np.abs(ref - med))) or 1e-9
+    med, mad = median_spread(ref)
     k = np.unravel_index(np.argmax(np.abs(sub - med)), sub.shape)
     return float(offs[band][k[0]]), float(_RADON_ANGLES[cols][k[1]]), float(abs(sub[k] - med) / mad)

@@ -30,6 +30,10 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import ndimage
 
+from .findings import LineKind
+from .robust import median_spread
+from .tuning import REACH_FRACTION
+
 #: A line is reported when it stands this many robust spreads above the ahead fan (set on the deep
 #: sweep's radar scenes, which have no narrow V: no false narrow V in 30 scenes; see DEVELOPERS.md).
 LINE_SIGNIFICANCE_MIN = 6.0
@@ -39,7 +43,7 @@ LINE_SIGNIFICANCE_MIN = 6.0
 class WakeLine:
     """One straight wake line through the vessel."""
 
-    kind: str  #: "Kelvin arm" or "narrow-V arm"
+    kind: LineKind
     angle_from_track_deg: float  #: signed image angle from the backward track direction (counter-clockwise +)
     significance: float  #: excess over the ahead fan's median, in robust spreads
     length_px: float  #: length of the rays used, chip pixels
@@ -65,8 +69,7 @@ def _significance(behind: np.ndarray, ahead: np.ndarray) -> np.ndarray:
     ref = ahead[np.isfinite(ahead)]
     if ref.size < 10:
         return np.full(behind.shape, np.nan)
-    med = float(np.median(ref))
-    mad = float(1.4826 * np.median(np.abs(ref - med))) or 1e-9
+    med, mad = median_spread(ref)
     return (behind - med) / mad
 
 
@@ -89,14 +92,14 @@ def narrow_v_lines(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[fl
                    ) -> list[WakeLine]:
     """Bright thin lines through the vessel within ``min_angle_deg``-``max_angle_deg`` of the track, each side."""
     n = chip_data.shape[0]
-    r_max = 0.46 * n
+    r_max = REACH_FRACTION * n
     img = ndimage.gaussian_filter(np.where(valid, chip_data, 0.0), 0.7)
     angles = np.arange(-max_angle_deg - 3.0, max_angle_deg + 3.0 + 1e-9, 0.2)
     behind = ray_fan(img, valid, vessel_rc, back_angle_deg, angles, r_min_px=r_min_px, r_max_px=r_max)
     wide = np.arange(-40.0, 40.0 + 1e-9, 0.2)
     ahead = ray_fan(img, valid, vessel_rc, back_angle_deg + 180.0, wide, r_min_px=r_min_px, r_max_px=r_max)
     sig = _significance(behind, ahead)
-    return [WakeLine("narrow-V arm", a, s, r_max - r_min_px)
+    return [WakeLine(LineKind.NARROW_V, a, s, r_max - r_min_px)
             for a, s in _best_each_side(angles, sig, min_angle_deg, max_angle_deg) if s >= LINE_SIGNIFICANCE_MIN]
 
 
@@ -120,5 +123,5 @@ def kelvin_arm_lines(energy: np.ndarray, valid: np.ndarray, *, u0: int, near_deg
     wide = np.arange(-80.0, 80.0 + 1e-9, 0.5)
     ahead = ray_fan(energy, valid, origin, 180.0, wide, r_min_px=r_min_px, r_max_px=r_max)
     sig = _significance(behind, ahead)
-    return [WakeLine("Kelvin arm", a, s, r_max - r_min_px)
+    return [WakeLine(LineKind.KELVIN_ARM, a, s, r_max - r_min_px)
             for a, s in _best_each_side(angles, sig, lo, hi) if s >= LINE_SIGNIFICANCE_MIN]

@@ -17,6 +17,7 @@ from ..errors import ParameterError
 from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
+from .robust import median_spread
 
 
 @dataclass(frozen=True)
@@ -39,8 +40,7 @@ class Chip:
 
 
 def _mad_sigma(a: np.ndarray) -> float:
-    med = np.median(a)
-    return float(1.4826 * np.median(np.abs(a - med))) or float(np.std(a)) or 1.0
+    return median_spread(a, floor=0.0)[1] or float(np.std(a)) or 1.0
 
 
 def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int = 768, step: int = 1,

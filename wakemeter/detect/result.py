@@ -1,29 +1,30 @@
-"""What an analysis returns: the radar geometry it may use and the frozen result with its JSON form."""
+"""What an analysis returns: the frozen :class:`WakeAnalysis` with its JSON form and the way back.
+
+The JSON (documented in ``wakemeter/evidence/evidence.schema.json``, object ``result``) echoes the
+request it answers and the software version.  :meth:`WakeAnalysis.from_json` rebuilds everything but
+the plot arrays, so a finding read from a session can be revised, drawn and reported; the arrays come
+back by running the same request again (the analysis is deterministic).
+"""
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
+from .. import __version__
+from ..errors import ParameterError
 from ..physics import inversion as inv
 from ..physics.units import KNOT_MPS
+from .findings import Caution, CautionCode, Diagnostics, Drawing, IntervalCover, LineKind, PlotData
+from .lines import WakeLine
+from .request import AnalysisRequest, RadarGeometry
 
+__all__ = ["RadarGeometry", "WakeAnalysis", "SOFTWARE"]
 
-@dataclass(frozen=True)
-class RadarGeometry:
-    """Radar acquisition geometry for the azimuth-offset method (Raney 1971)."""
-
-    slant_range_m: float
-    platform_speed_mps: float
-    look_bearing_deg: float  #: true bearing from the radar toward the scene
-    incidence_deg: float
-    slant_range_std_m: float = 1000.0
-    platform_speed_std_mps: float = 10.0
-
-    @property
-    def flight_bearing_deg(self) -> float:
-        return (self.look_bearing_deg - 90.0) % 360.0
+SOFTWARE = f"wakemeter {__version__}"
+_REGIME_OF_JSON = {r.value.replace(" ", "-"): r for r in inv.Regime}
 
 
 @dataclass(frozen=True)
@@ -48,10 +49,27 @@ class WakeAnalysis:
     depth_ci95_m: tuple[float, float] | None
     gravity_mps2: float
     pixel_m: float
-    cautions: tuple[str, ...]
-    geometry: dict = field(default_factory=dict, compare=False, repr=False)  #: lines for drawing, scene px
-    plots: dict = field(default_factory=dict, compare=False, repr=False)  #: arrays for plots
-    lines: tuple = ()  #: lines.WakeLine found through the vessel (Kelvin arms, radar narrow V)
+    cautions: tuple[Caution, ...]
+    drawing: Drawing = field(default_factory=Drawing, compare=False)  #: lines for drawing, scene px
+    diagnostics: Diagnostics = field(default_factory=Diagnostics, compare=False)
+    lines: tuple[WakeLine, ...] = ()  #: straight wake lines through the vessel
+    interval_cover: IntervalCover | None = None  #: shallower water the interval keeps covering
+    request: AnalysisRequest | None = None  #: what was asked
+    revised: bool = False  #: hand measurements were combined in (see detect.revise)
+    software: str = SOFTWARE
+    plots: PlotData | None = field(default=None, compare=False, repr=False)  #: arrays for plots (not stored)
+
+    def caution_codes(self) -> tuple[CautionCode, ...]:
+        return tuple(c.code for c in self.cautions)
+
+    def has_caution(self, code: CautionCode) -> bool:
+        return any(c.code == code for c in self.cautions)
+
+    @property
+    def narrow_v_half_angle_deg(self) -> float | None:
+        """Mean half-angle of the radar narrow-V arms found (None when none was)."""
+        nv = [abs(ln.angle_from_track_deg) for ln in self.lines if ln.kind == LineKind.NARROW_V]
+        return float(np.mean(nv)) if nv else None
 
     def to_json(self) -> dict:
         """Plain data with the documented field names; unknown numbers are None."""
@@ -64,32 +82,109 @@ class WakeAnalysis:
             "speed_ci95_knots": ([_num(sp.ci95_low_mps / KNOT_MPS), _num(sp.ci95_high_mps / KNOT_MPS)]
                                  if sp else None),
             "consistency": sp.verdict if sp else None,
+            "combination": None if sp is None else {
+                "std_mps": _num(sp.std_mps), "chi2": _num(sp.chi2), "dof": sp.dof, "p_value": _num(sp.p_value),
+                "consistent": sp.consistent, "outlier": sp.outlier},
             "heading_deg": _num(self.heading_deg), "heading_std_deg": _num(self.heading_std_deg),
             # the side of the vessel the wake lies on (behind it): true bearing from the vessel along the wake
             "wake_bearing_deg": _num((self.heading_deg + 180.0) % 360.0) if self.heading_deg is not None else None,
             "half_angle_deg": _num(self.half_angle_deg), "half_angle_std_deg": _num(self.half_angle_std_deg),
             "transverse_wavelength_m": _num(self.transverse_wavelength_m),
-            "regime": self.regime.regime.replace(" ", "-"), "regime_explanation": self.regime.explanation,
+            "transverse_wavelength_std_m": _num(self.transverse_wavelength_std_m),
+            "regime": self.regime.regime.value.replace(" ", "-"), "regime_explanation": self.regime.explanation,
             "depth_froude": _num(self.regime.froude_depth),
+            "depth_froude_ci95": _pair_json(self.regime.froude_ci95),
             "depth_m": _num(self.depth_m),
-            "depth_ci95_m": [_num(self.depth_ci95_m[0]), _num(self.depth_ci95_m[1])] if self.depth_ci95_m else None,
+            "depth_ci95_m": _pair_json(self.depth_ci95_m),
             "methods": [{"name": m.method, "speed_mps": _num(m.speed_mps), "std_mps": _num(m.std_mps),
                          "speed_ci95_mps": [_num(m.ci95_low_mps), _num(m.ci95_high_mps)],
+                         "draws": m.draws, "valid_fraction": _num(m.valid_fraction), "by_hand": m.by_hand,
                          "assumptions": list(m.assumptions)} for m in self.methods],
             "vessel_px": [_num(self.vessel_px[0]), _num(self.vessel_px[1])],
             "vessel_lonlat": [_num(v) for v in self.vessel_lonlat] if self.vessel_lonlat else None,
             "gravity_mps2": _num(self.gravity_mps2), "pixel_m": _num(self.pixel_m),
-            "cautions": list(self.cautions),
-            "lines": [{"kind": ln.kind, "angle_from_track_deg": _num(ln.angle_from_track_deg),
-                       "significance": _num(ln.significance)} for ln in self.lines],
+            "cautions": [c.to_json() for c in self.cautions],
+            "lines": [{"kind": str(ln.kind), "angle_from_track_deg": _num(ln.angle_from_track_deg),
+                       "significance": _num(ln.significance), "length_px": _num(ln.length_px)} for ln in self.lines],
             "narrow_v_half_angle_deg": _num(self.narrow_v_half_angle_deg),
+            "interval_cover": None if self.interval_cover is None else self.interval_cover.to_json(),
+            "diagnostics": self.diagnostics.to_json(),
+            "drawing": self.drawing.to_json(),
+            "revised": self.revised,
+            "request": None if self.request is None else self.request.to_json(),
+            "software": self.software,
         }
 
-    @property
-    def narrow_v_half_angle_deg(self) -> float | None:
-        """Mean half-angle of the radar narrow-V arms found (None when none was)."""
-        nv = [abs(ln.angle_from_track_deg) for ln in self.lines if ln.kind == "narrow-V arm"]
-        return float(np.mean(nv)) if nv else None
+    @classmethod
+    def from_json(cls, j: Any, *, drawing: Any = None) -> WakeAnalysis:
+        """Rebuild a finding from :meth:`to_json` (the plot arrays are not stored: ``plots`` is None).
+
+        ``drawing`` is the older sessions' separate geometry dict, used when the result has none.
+        """
+        if not isinstance(j, dict):
+            raise ParameterError(f"a stored finding must be a JSON object, got {type(j).__name__}")
+        try:
+            return _from_json(cls, j, drawing)
+        except (KeyError, TypeError, ValueError, IndexError) as err:
+            raise ParameterError(f"the stored finding is damaged or incomplete ({type(err).__name__}: {err})") from err
+
+
+def _from_json(cls: type[WakeAnalysis], j: dict, drawing: Any) -> WakeAnalysis:
+    methods = tuple(inv.SpeedEstimate(
+        m["name"], _f(m["speed_mps"]), _f(m["std_mps"]), _f(m["speed_ci95_mps"][0]), _f(m["speed_ci95_mps"][1]),
+        int(m.get("draws") or 0), _f(m.get("valid_fraction", 1.0)), tuple(m.get("assumptions") or ()),
+        bool(m.get("by_hand", "(by hand)" in m["name"]))) for m in j.get("methods") or ())
+    speed = None
+    if j.get("speed_mps") is not None:
+        c = j.get("combination") or {}
+        lo, hi = j["speed_ci95_mps"]
+        std = c.get("std_mps")
+        speed = inv.CombinedSpeed(
+            _f(j["speed_mps"]), _f(std if std is not None else (hi - lo) / 3.92), _f(lo), _f(hi),
+            _f(c.get("chi2", 0.0)), int(c.get("dof", max(len(methods) - 1, 0))), _f(c.get("p_value", 1.0)),
+            bool(c.get("consistent", True)), c.get("outlier"), tuple(m.method for m in methods),
+            str(j.get("consistency") or ""))
+    regime = inv.DepthRegime(_REGIME_OF_JSON[j["regime"]], _opt(j.get("depth_froude")),
+                             _opt_pair(j.get("depth_froude_ci95")), _opt(j.get("depth_m")),
+                             _opt_pair(j.get("depth_ci95_m")), str(j.get("regime_explanation") or ""))
+    lines = tuple(WakeLine(LineKind(ln["kind"]), _f(ln["angle_from_track_deg"]), _f(ln["significance"]),
+                           _f(ln.get("length_px") or 0.0)) for ln in j.get("lines") or ()
+                  if ln.get("angle_from_track_deg") is not None)
+    req = j.get("request")
+    lonlat = j.get("vessel_lonlat")
+    return cls(
+        wake_found=bool(j["wake_found"]), decision=str(j.get("decision") or ""),
+        significance=_f(j.get("significance")), vessel_px=(_f(j["vessel_px"][0]), _f(j["vessel_px"][1])),
+        vessel_lonlat=None if not lonlat else (_f(lonlat[0]), _f(lonlat[1])),
+        heading_deg=_opt(j.get("heading_deg")), heading_std_deg=_opt(j.get("heading_std_deg")), speed=speed,
+        methods=methods, half_angle_deg=_opt(j.get("half_angle_deg")),
+        half_angle_std_deg=_opt(j.get("half_angle_std_deg")),
+        transverse_wavelength_m=_opt(j.get("transverse_wavelength_m")),
+        transverse_wavelength_std_m=_opt(j.get("transverse_wavelength_std_m")), regime=regime,
+        depth_m=_opt(j.get("depth_m")), depth_ci95_m=_opt_pair(j.get("depth_ci95_m")),
+        gravity_mps2=_f(j["gravity_mps2"]), pixel_m=_f(j["pixel_m"]),
+        cautions=tuple(Caution.from_json(c) for c in j.get("cautions") or ()),
+        drawing=Drawing.from_json(j.get("drawing") or drawing),
+        diagnostics=Diagnostics.from_json(j.get("diagnostics")), lines=lines,
+        interval_cover=IntervalCover.from_json(j.get("interval_cover")),
+        request=None if req is None else AnalysisRequest.from_json(req),
+        revised=bool(j.get("revised", False)), software=str(j.get("software") or "unknown"))
+
+
+def _f(x: Any) -> float:
+    return float("nan") if x is None else float(x)
+
+
+def _opt(x: Any) -> float | None:
+    return None if x is None else float(x)
+
+
+def _opt_pair(x: Any) -> tuple[float, float] | None:
+    return None if not x or x[0] is None or x[1] is None else (float(x[0]), float(x[1]))
+
+
+def _pair_json(x: tuple[float, float] | None) -> list | None:
+    return [_num(x[0]), _num(x[1])] if x else None
 
 
 def _num(x: float | None) -> float | None:

@@ -3,7 +3,8 @@
 An analyst may reject a finding, or correct it with a hand measurement: a crest
 spacing from the crest ruler becomes one more speed estimate; a hand-drawn arm
 replaces the measured half-angle (and so the depth regime).  The estimates are
-then combined again by the inversion core.
+then combined again by the inversion core.  Hand estimates are marked
+(:attr:`SpeedEstimate.by_hand`) so a second revision replaces them.
 """
 
 from __future__ import annotations
@@ -15,7 +16,15 @@ import numpy as np
 from ..physics import inversion as inv
 from ..physics import kelvin
 from ..scene.raster import Scene
-from .analysis import WakeAnalysis
+from .explain import widen
+from .findings import Caution, CautionCode, Segment, SegmentKind
+from .result import WakeAnalysis
+
+HAND_CODES = (CautionCode.HAND_CREST, CautionCode.HAND_ARM, CautionCode.METHODS_DISAGREE)
+#: standard uncertainty of the crest direction read off a hand-drawn ruler (common practice, no source)
+HAND_ANGLE_STD_DEG = 2.0
+#: crests further than this from transverse are too oblique to invert reliably (cos^2 theta -> 0)
+HAND_ANGLE_MAX_DEG = 80.0
 
 
 def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | None = None,
@@ -30,7 +39,7 @@ def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | N
     hand_half_angle : (half_angle_deg, std_deg), optional
         A hand-drawn arm replacing the measured half-angle.
     """
-    had_hand = any("(by hand)" in m.method for m in analysis.methods)
+    had_hand = any(m.by_hand for m in analysis.methods)
     if not analysis.wake_found or (hand_crest is None and hand_half_angle is None and not had_hand):
         return analysis  # nothing to revise: the analysis' own interval stands as it is
     g = analysis.gravity_mps2
@@ -39,20 +48,21 @@ def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | N
         depth = inv.Uncertain(analysis.depth_m, max((analysis.depth_ci95_m[1] - analysis.depth_ci95_m[0]) / 3.92, 0.0))
     cond = inv.Conditions(g_mps2=inv.Uncertain(g, 0.0005), depth_m=depth)
     rng = np.random.default_rng(seed)
-    methods = [m for m in analysis.methods if "(by hand)" not in m.method]
-    cautions = [c for c in analysis.cautions if "hand" not in c]
+    methods = [m for m in analysis.methods if not m.by_hand]
+    cautions = [c for c in analysis.cautions if c.code not in HAND_CODES]
     half, half_sd = analysis.half_angle_deg, analysis.half_angle_std_deg
     if hand_crest is not None:
         lam, sd, ang = hand_crest
-        theta = min(max(ang, 0.0), 80.0)
-        est = inv.speed_from_crest_wavelength(inv.Uncertain(lam, max(sd, 0.005 * lam)), inv.Uncertain(theta, 2.0),
+        theta = min(max(ang, 0.0), HAND_ANGLE_MAX_DEG)
+        est = inv.speed_from_crest_wavelength(inv.Uncertain(lam, max(sd, 0.005 * lam)),
+                                              inv.Uncertain(theta, HAND_ANGLE_STD_DEG),
                                               cond, seed=rng, method="crest ruler (by hand)")
-        methods.append(est)
-        cautions.append("includes a crest spacing measured by hand")
+        methods.append(replace(est, by_hand=True))
+        cautions.append(Caution(CautionCode.HAND_CREST, "includes a crest spacing measured by hand"))
     regime = analysis.regime
     if hand_half_angle is not None:
         half, half_sd = hand_half_angle
-        cautions.append(f"half-angle corrected by hand to {half:.1f} +/- {half_sd:.1f} deg")
+        cautions.append(Caution(CautionCode.HAND_ARM, f"half-angle corrected by hand to {half:.1f} +/- {half_sd:.1f} deg"))
         lam_t = analysis.transverse_wavelength_m
         if depth is None:
             regime = inv.assess_depth_regime(half_angle_deg=inv.Uncertain(half, half_sd),
@@ -61,22 +71,24 @@ def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | N
                 est, _dep = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
                     inv.Uncertain(lam_t, max(analysis.transverse_wavelength_std_m or 0.0, 0.006 * lam_t)),
                     inv.Uncertain(half, half_sd), cond, seed=rng)
-                methods.append(replace(est, method=est.method + " (by hand)"))
-    combined = inv.combine_estimates(methods)
-    cover = analysis.plots.get("interval_cover")
-    if cover is not None:  # shallower water the analysis could not rule out stays inside the interval
-        lo, hi, frs = cover
-        if lo < combined.ci95_low_mps or hi > combined.ci95_high_mps:
-            combined = replace(combined, ci95_low_mps=min(lo, combined.ci95_low_mps),
-                               ci95_high_mps=max(hi, combined.ci95_high_mps),
-                               verdict=combined.verdict + f"; interval widened to cover shallower water that fits "
-                               f"almost as well (Fr_h {frs})")
+                methods.append(replace(est, method=est.method + " (by hand)", by_hand=True))
+    # shallower water the analysis could not rule out stays inside the interval
+    combined = widen(inv.combine_estimates(methods), analysis.interval_cover)
     if not combined.consistent:
-        cautions.append(combined.verdict)
+        cautions.append(Caution(CautionCode.METHODS_DISAGREE, combined.verdict))
+    revised = hand_crest is not None or hand_half_angle is not None
+    decision = analysis.decision.split(" (revised")[0]
     return replace(analysis, methods=tuple(methods), speed=combined, half_angle_deg=half, half_angle_std_deg=half_sd,
-                   regime=regime, cautions=tuple(cautions),
-                   decision=analysis.decision.split(" (revised")[0] + " (revised with hand measurements)"
-                   if (hand_crest or hand_half_angle) else analysis.decision)
+                   regime=regime, cautions=tuple(cautions), revised=revised,
+                   decision=decision + " (revised with hand measurements)" if revised else decision)
+
+
+def with_crest_lines(scene: Scene, analysis: WakeAnalysis, *, n_crests: int = 4) -> WakeAnalysis:
+    """The finding with a few fitted crest lines added to its drawing (once)."""
+    if analysis.drawing.first(SegmentKind.CREST) is not None:
+        return analysis
+    crests = [Segment(SegmentKind.CREST, tuple(line)) for line in kelvin_crest_lines(scene, analysis, n_crests=n_crests)]
+    return replace(analysis, drawing=analysis.drawing.plus(crests)) if crests else analysis
 
 
 def kelvin_crest_lines(scene: Scene, analysis: WakeAnalysis, *, n_crests: int = 4) -> list[list[tuple[float, float]]]:
@@ -86,7 +98,8 @@ def kelvin_crest_lines(scene: Scene, analysis: WakeAnalysis, *, n_crests: int = 
     x = a cos(theta)(1 + sin^2 theta), y = a cos^2(theta) sin(theta), theta in (-90, 90) deg.
     Drawn only for the deep-water regime (finite depth bends the crests differently).
     """
-    if not analysis.wake_found or analysis.speed is None or analysis.regime.regime not in ("deep", "unknown"):
+    if not analysis.wake_found or analysis.speed is None or analysis.heading_deg is None \
+            or analysis.regime.regime not in (inv.Regime.DEEP, inv.Regime.UNKNOWN):
         return []
     u = analysis.speed.speed_mps
     lam_t = float(kelvin.transverse_wavelength(u, g=analysis.gravity_mps2))

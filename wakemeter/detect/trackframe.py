@@ -14,6 +14,8 @@ import numpy as np
 from scipy import ndimage
 
 from .prepare import Chip
+from .robust import median_spread
+from .tuning import REACH_FRACTION
 
 
 def track_frame(img: np.ndarray, centre_rc: tuple[float, float], back_angle_deg: float, *,
@@ -43,7 +45,7 @@ def polar_energy(chip: Chip, *, smooth_px: float = 3.0, n_angles: int = 360) -> 
     e = ndimage.gaussian_filter(chip.data.astype(np.float64) ** 2, smooth_px)
     n = chip.data.shape[0]
     ang = np.arange(n_angles) * 360.0 / n_angles
-    r = np.linspace(0.06 * n, 0.46 * n, 64)
+    r = np.linspace(0.06 * n, REACH_FRACTION * n, 64)
     a = np.radians(ang)[:, None]
     rows = chip.vessel_rc[0] - r[None, :] * np.sin(a)
     cols = chip.vessel_rc[1] + r[None, :] * np.cos(a)
@@ -70,6 +72,5 @@ def wake_side(chip: Chip, *, wedge_deg: float = 40.0) -> WakeSide:
         centre = float(np.degrees(np.angle(z)) % 360)
     else:
         centre = float(ang[i])
-    med = np.median(sm)
-    mad = 1.4826 * np.median(np.abs(sm - med)) or 1e-9
+    med, mad = median_spread(sm)
     return WakeSide(centre, float((sm[i] - med) / mad))

@@ -14,7 +14,8 @@ from dataclasses import dataclass
 import cv2
 import numpy as np
 
-from ..detect.analysis import WakeAnalysis
+from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, SegmentKind
+from ..detect.result import WakeAnalysis
 from ..physics.units import KNOT_MPS
 from ..scene import display, geodesy
 from ..scene.raster import Scene
@@ -45,7 +46,7 @@ class Crop:
 
 def crop_for(scene: Scene, analysis: WakeAnalysis, *, max_side: int = 2400) -> tuple[Crop, int]:
     """The chip area around the vessel, clipped to the scene, and the decimation to keep it <= max_side."""
-    pts = np.array(analysis.geometry.get("chip") or [analysis.vessel_px])
+    pts = np.array(analysis.drawing.points_of(SegmentKind.AREA) or [analysis.vessel_px])
     c0, r0 = np.floor(pts.min(axis=0)).astype(int)
     c1, r1 = np.ceil(pts.max(axis=0)).astype(int)
     c0, r0 = max(c0, 0), max(r0, 0)
@@ -90,25 +91,25 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     def px(pt: tuple[float, float]) -> tuple[int, int]:
         return int(round((pt[0] - crop.col0) / step)), int(round((pt[1] - crop.row0) / step))
 
-    geo = analysis.geometry
-    if "chip" in geo:
-        cv2.polylines(img, [np.array([px(p) for p in geo["chip"]], np.int32)], True, COLOURS["chip"], lw, cv2.LINE_AA)
-    if "track" in geo:
-        cv2.line(img, px(geo["track"][0]), px(geo["track"][1]), COLOURS["track"], 2 * lw, cv2.LINE_AA)
-    for key in ("arm_left", "arm_right"):
-        if key in geo:
-            cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["arm"], 2 * lw, cv2.LINE_AA)
-    if "hull_shift" in geo:  # the hull as the radar imaged it, and the line to where its wake starts
-        hx, hy = px(geo["hull_shift"][0])
-        cv2.line(img, (hx, hy), px(geo["hull_shift"][1]), COLOURS["vessel"], lw, cv2.LINE_AA)
-        r = int(6 * s + 3)
-        cv2.rectangle(img, (hx - r, hy - r), (hx + r, hy + r), COLOURS["vessel"], lw, cv2.LINE_AA)
-    for key in ("narrow_v_left", "narrow_v_right"):
-        if key in geo:
-            cv2.line(img, px(geo[key][0]), px(geo[key][1]), COLOURS["narrow_v"], lw, cv2.LINE_AA)
+    d = analysis.drawing
+    for seg in d.segments:
+        pts = [px(p) for p in seg.points]
+        if seg.kind == SegmentKind.AREA:
+            cv2.polylines(img, [np.array(pts, np.int32)], True, COLOURS["chip"], lw, cv2.LINE_AA)
+        elif seg.kind == SegmentKind.TRACK:
+            cv2.line(img, pts[0], pts[1], COLOURS["track"], 2 * lw, cv2.LINE_AA)
+        elif seg.kind in ARM_KINDS:
+            cv2.line(img, pts[0], pts[1], COLOURS["arm"], 2 * lw, cv2.LINE_AA)
+        elif seg.kind == SegmentKind.HULL_SHIFT:  # the hull as the radar imaged it, and where its wake starts
+            hx, hy = pts[0]
+            cv2.line(img, (hx, hy), pts[1], COLOURS["vessel"], lw, cv2.LINE_AA)
+            r = int(6 * s + 3)
+            cv2.rectangle(img, (hx - r, hy - r), (hx + r, hy + r), COLOURS["vessel"], lw, cv2.LINE_AA)
+        elif seg.kind in NARROW_V_KINDS:
+            cv2.line(img, pts[0], pts[1], COLOURS["narrow_v"], lw, cv2.LINE_AA)
     vx, vy = px(analysis.vessel_px)
     # what the result box must not hide: the vessel, a displaced hull and the ends of the drawn lines
-    avoid = [(vx, vy)] + [px(p) for key in ("track", "arm_left", "arm_right", "hull_shift") for p in geo.get(key, [])]
+    avoid = [(vx, vy)] + [px(p) for p in d.points_of(SegmentKind.TRACK, *ARM_KINDS, SegmentKind.HULL_SHIFT)]
     cv2.circle(img, (vx, vy), int(10 * s + 4), COLOURS["vessel"], 2 * lw, cv2.LINE_AA)
     _decorations(img, scene, analysis, crop, step, s, lw, scene_label, avoid)
     return img

@@ -10,22 +10,22 @@ from __future__ import annotations
 import cv2
 import numpy as np
 
-from ..detect.analysis import WakeAnalysis
+from ..detect.result import WakeAnalysis
 
 
 def spectrum_plot(analysis: WakeAnalysis, *, size: int = 520) -> np.ndarray | None:
     p = analysis.plots
-    white = p.get("whitened_spectrum")
-    if white is None:
+    if p is None:
         return None
+    white = p.whitened_spectrum
     z = np.clip((white + 2.0) / 8.0, 0, 1)
     img = cv2.applyColorMap((z * 255).astype(np.uint8), cv2.COLORMAP_VIRIDIS)[..., ::-1]
     n_v, n_u = white.shape
     img = cv2.resize(img, (size, size), interpolation=cv2.INTER_NEAREST)
     sx, sy = size / n_u, size / n_v
-    dk_u, dk_v = p["spectrum_dk"]
-    u, h = p["fit_speed_mps"], p["fit_depth_m"]
-    ku, kv = p["fitted_curve"]
+    dk_u, dk_v = p.spectrum_dk
+    u, h = p.fit_speed_mps, p.fit_depth_m
+    ku, kv = p.fitted_curve
     for sign in (1, -1):
         cu = n_u / 2 + sign * ku / dk_u
         cv = n_v / 2 + sign * kv / dk_v
@@ -43,10 +43,9 @@ def spectrum_plot(analysis: WakeAnalysis, *, size: int = 520) -> np.ndarray | No
 
 def profile_plot(analysis: WakeAnalysis, *, width: int = 760, height: int = 260) -> np.ndarray | None:
     p = analysis.plots
-    prof = p.get("profile")
-    if prof is None or len(prof) < 4:
+    if p is None or len(p.profile) < 4:
         return None
-    m = p["profile_m_per_px"]
+    prof, m = p.profile, p.profile_m_per_px
     img = np.full((height, width, 3), 255, np.uint8)
     x = np.arange(len(prof)) * m
     y = np.asarray(prof, float)
@@ -56,7 +55,7 @@ def profile_plot(analysis: WakeAnalysis, *, width: int = 760, height: int = 260)
     xs = pad + (x / max(x[-1], 1e-9)) * (width - 2 * pad)
     ys = height - pad - (np.clip(y, lo, hi) - lo) / (hi - lo) * (height - 2 * pad)
     cv2.polylines(img, [np.stack([xs, ys], 1).astype(np.int32)], False, (40, 40, 40), 1, cv2.LINE_AA)
-    lam = p.get("transverse_wavelength_m")
+    lam = p.transverse_wavelength_m
     if lam:
         for xm in np.arange(0, x[-1], lam):
             xx = int(pad + xm / x[-1] * (width - 2 * pad))

@@ -12,14 +12,14 @@ from importlib import resources
 from pathlib import Path
 
 from .. import __version__
-from ..detect.analysis import WakeAnalysis
+from ..caution import CAUTION
+from ..detect.result import WakeAnalysis
 from ..scene.raster import Scene
+from .summary import assumption_texts
 
-SCHEMA_VERSION = "wakemeter.evidence/1"
+SCHEMA_VERSION = "wakemeter.evidence/2"
 
-CAUTION_TEXT = ("These figures are estimates derived from imagery, for analysis. They are not certified "
-                "measurements. Local regulations, certified measuring instruments and licensed professionals "
-                "decide any enforcement. Scene timing and georeferencing must be verified independently.")
+CAUTION_TEXT = CAUTION  #: the one caution text (wakemeter/caution.py)
 
 
 def schema() -> dict:
@@ -41,7 +41,7 @@ def provenance(scene: Scene, *, analyst: str | None, parameters: dict, exported_
         "software": f"wakemeter {__version__}",
         "python": platform.python_version(),
         "analysis_parameters": parameters,
-        "exported_at": exported_at or _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat(),
+        "exported_at": exported_at or _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat(),
         "analyst": analyst or None,
     }
 
@@ -50,11 +50,13 @@ def build_record(scene: Scene, analysis: WakeAnalysis, *, analyst: str | None, p
                  files: dict[str, str], exported_at: str | None = None) -> dict:
     """The full evidence record (plain data)."""
     result = analysis.to_json()
+    if analysis.request is not None:
+        parameters = {**parameters, "request": analysis.request.to_json()}
     return {
         "schema": SCHEMA_VERSION,
         "caution": CAUTION_TEXT,
         "result": result,
-        "assumptions": sorted({a for m in result["methods"] for a in m["assumptions"]}),
+        "assumptions": assumption_texts(result)[:-1],
         "provenance": provenance(scene, analyst=analyst, parameters=parameters, exported_at=exported_at),
         "files": files,
     }
@@ -69,16 +71,3 @@ def validate(record: dict) -> None:
 
 def schema_path() -> Path:
     return Path(str(resources.files(__package__).joinpath("evidence.schema.json")))
-
-
-def describe_lines(result: dict) -> str:
-    """One line of text for the wake lines of a result (JSON form): angle from the track, significance."""
-    parts = []
-    for kind, label in (("turbulent wake (dark)", "dark turbulent wake"),
-                        ("turbulent wake (bright)", "bright turbulent wake"),
-                        ("Kelvin arm", "Kelvin arms"), ("narrow-V arm", "narrow V")):
-        found = [ln for ln in result.get("lines") or [] if ln["kind"] == kind and ln["angle_from_track_deg"] is not None]
-        if found:
-            parts.append(label + " at " + ", ".join(
-                f"{ln['angle_from_track_deg']:+.1f} deg (significance {ln['significance']:.0f})" for ln in found))
-    return "; ".join(parts) if parts else "none stands out"

@@ -18,6 +18,7 @@ References
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from enum import StrEnum
 
 import numpy as np
 from scipy import stats
@@ -91,6 +92,7 @@ class SpeedEstimate:
     draws: int
     valid_fraction: float  #: share of draws that gave a physical speed
     assumptions: tuple[str, ...] = field(default_factory=tuple)
+    by_hand: bool = False  #: from a hand measurement (crest ruler, hand-drawn arm), not from the image analysis
 
     @property
     def speed_knots(self) -> float:
@@ -331,12 +333,23 @@ def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) ->
 # Depth-regime bands of Fr_h.  The 0.6 limit follows Havelock's curve (half-angle
 # within ~0.3 deg of Kelvin's below it); 0.9 and 1.1 bound the near-critical band
 # where the pattern changes fast (common practice, no source).
-_REGIME_BANDS = ((0.6, "deep"), (0.9, "finite depth"), (1.1, "near-critical"), (np.inf, "supercritical"))
+class Regime(StrEnum):
+    """Depth regimes of a wake; the values are the words shown to users."""
+
+    DEEP = "deep"
+    FINITE_DEPTH = "finite depth"
+    NEAR_CRITICAL = "near-critical"
+    SUPERCRITICAL = "supercritical"
+    UNKNOWN = "unknown"
+
+
+_REGIME_BANDS = ((0.6, Regime.DEEP), (0.9, Regime.FINITE_DEPTH), (1.1, Regime.NEAR_CRITICAL),
+                 (np.inf, Regime.SUPERCRITICAL))
 
 
 @dataclass(frozen=True)
 class DepthRegime:
-    regime: str  #: deep, finite depth, near-critical, supercritical, unknown
+    regime: Regime
     froude_depth: float | None
     froude_ci95: tuple[float, float] | None
     depth_m: float | None
@@ -344,19 +357,22 @@ class DepthRegime:
     explanation: str
 
 
-def _band(fr: float) -> str:
+def _band(fr: float) -> Regime:
     return next(name for top, name in _REGIME_BANDS if fr < top)
 
 
 def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertain | None = None,
                         half_angle_deg: Uncertain | None = None, transverse_seen: bool | None = None,
-                        g: float = STANDARD_GRAVITY, draws: int = 20_000, seed: int = 0) -> DepthRegime:
+                        g: float = STANDARD_GRAVITY, draws: int = 20_000, seed: int = 0,
+                        depth_source: str = "given") -> DepthRegime:
     """Say whether shallow water shaped the wake, from what is known.
 
     Known speed and depth give Fr_h directly.  Otherwise the half-angle tells:
     at Kelvin's value the pattern is deep-water like (depth unknown); wider
     means finite depth or supercritical (the presence of transverse waves
     decides); narrower than Kelvin's is not explained by depth alone.
+    ``depth_source`` names where a known depth came from ("given" by the user or "fitted"
+    to the waves) in the explanation.
     """
     rng = np.random.default_rng(seed)
     if speed is not None and depth_m is not None:
@@ -368,7 +384,7 @@ def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertai
         fr = u / np.sqrt(g * h)
         lo, med, hi = np.percentile(fr, [2.5, 50, 97.5])
         regime = _band(float(med))
-        expl = (f"depth Froude number {med:.2f} (95 %: {lo:.2f}-{hi:.2f}) from speed and the given depth "
+        expl = (f"depth Froude number {med:.2f} (95 %: {lo:.2f}-{hi:.2f}) from speed and the {depth_source} depth "
                 f"{depth_m.value:.1f} m: {regime}")
         return DepthRegime(regime, float(med), (float(lo), float(hi)), depth_m.value,
                            (depth_m.value - 1.96 * depth_m.std, depth_m.value + 1.96 * depth_m.std), expl)
@@ -376,11 +392,11 @@ def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertai
         a, sa = half_angle_deg.value, max(half_angle_deg.std, 0.1)
         k = kelvin.KELVIN_HALF_ANGLE_DEG
         if abs(a - k) <= 2 * sa:
-            return DepthRegime("deep", None, None, None, None,
+            return DepthRegime(Regime.DEEP, None, None, None, None,
                                f"half-angle {a:.1f} +/- {half_angle_deg.std:.1f} deg agrees with Kelvin's {k:.2f} deg: "
                                "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told")
         if a < k:
-            return DepthRegime("unknown", None, None, None, None,
+            return DepthRegime(Regime.UNKNOWN, None, None, None, None,
                                f"half-angle {a:.1f} deg is narrower than Kelvin's: not a depth effect; "
                                "a fast, short hull (high hull Froude number) or a supercritical vessel without "
                                "transverse waves could explain it")
@@ -398,9 +414,9 @@ def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertai
                                f"half-angle {a:.1f} deg wider than Kelvin's with transverse waves: subcritical "
                                f"Fr_h = {sub:.2f} (Havelock 1908)")
         if transverse_seen is False:
-            return DepthRegime("supercritical", br.supercritical, None, None, None,
+            return DepthRegime(Regime.SUPERCRITICAL, br.supercritical, None, None, None,
                                f"half-angle {a:.1f} deg and no transverse waves: supercritical, "
                                f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}")
-        return DepthRegime("unknown", None, None, None, None, br.note)
-    return DepthRegime("unknown", None, None, None, None,
+        return DepthRegime(Regime.UNKNOWN, None, None, None, None, br.note)
+    return DepthRegime(Regime.UNKNOWN, None, None, None, None,
                        "neither depth nor half-angle known: the depth regime cannot be told")

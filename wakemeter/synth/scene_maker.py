@@ -22,12 +22,21 @@ from rasterio.errors import RasterioError
 
 from .. import __version__
 from ..errors import ParameterError, SceneWriteError
-from ..physics import havelock, kelvin, radar as radar_phys
+from ..physics import havelock, kelvin
+from ..physics import radar as radar_phys
 from ..physics.gravity import normal_gravity
 from ..physics.units import KNOT_MPS
 from ..scene import geodesy
-from .imaging import (AmbientSea, OpticalModel, RadarModel, ambient_slopes, narrow_v_profile, optical_pixels,
-                      radar_pixels, track_profile)
+from .imaging import (
+    AmbientSea,
+    OpticalModel,
+    RadarModel,
+    ambient_slopes,
+    narrow_v_profile,
+    optical_pixels,
+    radar_pixels,
+    track_profile,
+)
 from .wavefield import Hull, hull_pressure, kelvin_elevation
 
 TRUTH_SCHEMA = "wakemeter.synth-truth/1"

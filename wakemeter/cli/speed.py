@@ -4,12 +4,12 @@ from __future__ import annotations
 
 import argparse
 
-from .cli import CAUTION, command
-from .physics import inversion as inv
-from .physics.gravity import normal_gravity
+from ..physics import inversion as inv
+from ..physics.gravity import normal_gravity
+from .base import CAUTION_LINE, Command
 
 
-def _add(p: argparse.ArgumentParser) -> None:
+def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--transverse-wavelength", type=float, metavar="M", help="transverse crest spacing along the track, m")
     p.add_argument("--crest-wavelength", type=float, metavar="M", help="crest spacing of a divergent train, m")
     p.add_argument("--crest-angle", type=float, default=0.0, metavar="DEG",
@@ -27,7 +27,6 @@ def _add(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=0)
 
 
-@command("speed", "Speed through the water from measured wavelengths and angles (Monte Carlo 95 % interval).")(_add)
 def run(args: argparse.Namespace) -> int:
     if args.latitude is not None:
         g = inv.Uncertain(float(normal_gravity(args.latitude)), 0.0005)
@@ -60,5 +59,9 @@ def run(args: argparse.Namespace) -> int:
     regime = inv.assess_depth_regime(speed=estimates[0], depth_m=depth, half_angle_deg=half,
                                      transverse_seen=args.transverse_wavelength is not None, g=g.value)
     print(f"depth regime: {regime.regime} - {regime.explanation}")
-    print(CAUTION)
+    print(CAUTION_LINE)
     return 0
+
+
+COMMAND = Command("speed", "Speed through the water from measured wavelengths and angles (Monte Carlo 95 % interval).",
+                  add_arguments, run)

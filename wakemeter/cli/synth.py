@@ -5,11 +5,11 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from .cli import command
-from .physics.units import knots_to_mps
+from ..physics.units import knots_to_mps
+from .base import Command
 
 
-def _add(p: argparse.ArgumentParser) -> None:
+def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--out", required=True, help="output GeoTIFF path, or a folder with --demo")
     p.add_argument("--demo", action="store_true", help="write all the bundled demo scenes into the --out folder")
     p.add_argument("--lon", type=float, default=-35.0, help="vessel longitude, deg (WGS 84)")
@@ -37,10 +37,9 @@ def _add(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=0)
 
 
-@command("synth", "Make a synthetic wake scene of known truth (GeoTIFF plus <name>.truth.json).")(_add)
 def run(args: argparse.Namespace) -> int:
-    from .synth import AmbientSea, Hull, OpticalModel, RadarModel, VesselSpec, render, write
-    from .synth.demo import vessel_scene, write_demo_scenes
+    from ..synth import AmbientSea, Hull, OpticalModel, RadarModel, VesselSpec, render, write
+    from ..synth.demo import vessel_scene, write_demo_scenes
 
     if args.demo:
         for path in write_demo_scenes(args.out):
@@ -62,3 +61,7 @@ def run(args: argparse.Namespace) -> int:
     tif, sidecar = write(render(spec), out)
     print(f"wrote {tif} and {sidecar}")
     return 0
+
+
+COMMAND = Command("synth", "Make a synthetic wake scene of known truth (GeoTIFF plus <name>.truth.json).",
+                  add_arguments, run)

@@ -1,0 +1,59 @@
+"""Headless commands: ``wakemeter <command> ...``; ``wakemeter [SCENE]`` opens the desktop program.
+
+One module per command (each exposes ``COMMAND`` or ``COMMANDS``); shared options live in
+:mod:`.options`, the caution in :mod:`wakemeter.caution`.  Command modules never import this package
+back.  Every command prints a plain-language error and exits with status 2 on bad input instead of a
+traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from collections.abc import Sequence
+
+from .. import __version__
+from ..errors import WakemeterError
+from . import analyze, report, scene, speed, synth
+from .base import Command
+from .options import join_negative_lists
+
+COMMANDS: dict[str, Command] = {c.name: c for c in (speed.COMMAND, *scene.COMMANDS, synth.COMMAND, analyze.COMMAND,
+                                                     report.COMMAND)}
+
+
+def build_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="wakemeter", description="Measure ship wakes on georeferenced imagery. "
+                                "'wakemeter SCENE' opens the desktop program on a scene.")
+    p.add_argument("--version", action="version", version=f"wakemeter {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+    for name, c in sorted(COMMANDS.items()):
+        # argparse %-formats help texts: a literal percent sign must be doubled
+        sp = sub.add_parser(name, help=c.help.replace("%", "%%"), description=c.help)
+        c.add_arguments(sp)
+    return p
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    argv = join_negative_lists(list(sys.argv[1:] if argv is None else argv))
+    if not argv or (argv[0] not in COMMANDS and argv[0] not in ("-h", "--help", "--version")):
+        return _open_program(argv)
+    args = build_parser().parse_args(argv)
+    try:
+        return COMMANDS[args.command].run(args)
+    except WakemeterError as err:
+        print(f"wakemeter {args.command}: {err}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("wakemeter: interrupted", file=sys.stderr)
+        return 130
+
+
+def _open_program(argv: list[str]) -> int:
+    from ..app.main import run_program
+
+    return run_program(argv)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,49 @@
+"""``wakemeter analyze``: speed, heading and depth regime of a vessel's wake, headless."""
+
+from __future__ import annotations
+
+import argparse
+import json
+
+from .base import CAUTION_LINE, Command
+from .options import add_request_options, request_from_args
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    p.add_argument("scene", help="raster file")
+    add_request_options(p)
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..detect.analysis import analyze
+    from ..scene.raster import open_scene
+
+    request = request_from_args(args)
+    with open_scene(args.scene) as scene:
+        a = analyze(scene, request)
+    print(json.dumps(a.to_json(), indent=2) if args.json else format_analysis(a.to_json()))
+    return 0
+
+
+def format_analysis(j: dict) -> str:
+    """A readable summary of a result (its JSON form): the rows every view shows, then the methods."""
+    from ..evidence import summary
+
+    rows = summary.summary_rows(j)
+    width = max(len(k) for k, _ in rows) + 2
+    out = [f"{k + ':':<{width}}{v}" for k, v in rows]
+    if not j["wake_found"]:
+        return "\n".join(out + ["no speed is given for a scene without a detectable wake", CAUTION_LINE])
+    out.append("methods:")
+    out += [f"  {name:<48} {speed} m/s  (95 %: {ci})" for name, speed, ci, _kn in summary.method_rows(j)]
+    out.append("assumptions:")
+    out += [f"  - {a}" for a in summary.assumption_texts(j)]
+    out.append(j["decision"])
+    out.append("cautions:")
+    out += [f"  - {c}" for c in summary.caution_texts(j)]
+    return "\n".join(out)
+
+
+COMMAND = Command("analyze", "Find a vessel's wake and estimate speed (95 % interval), heading and depth regime.",
+                  add_arguments, run)

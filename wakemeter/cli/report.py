@@ -1,0 +1,46 @@
+"""``wakemeter report``: analyse a vessel and write the evidence files (PNG, PDF, JSON)."""
+
+from __future__ import annotations
+
+import argparse
+
+from .base import CAUTION_LINE, Command
+from .options import add_request_options, request_from_args
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    p.add_argument("scene", help="raster file, or a saved session (.json): every vessel not rejected")
+    add_request_options(p)
+    p.add_argument("--out", required=True, metavar="FOLDER", help="folder for the three files")
+    p.add_argument("--analyst", help="analyst name to record in the report")
+    p.add_argument("--force", action="store_true", help="overwrite existing files of the same name")
+    p.add_argument("--paper", choices=["A4", "Letter"], help="page size (default: by locale)")
+
+
+def run(args: argparse.Namespace) -> int:
+    from ..detect.analysis import analyze
+    from ..evidence.export import export_evidence
+    from ..evidence.from_session import is_session, report_from_session
+    from ..scene.raster import open_scene
+
+    if is_session(args.scene):  # a saved session instead of a scene: every vessel not rejected
+        for files in report_from_session(args.scene, args.out, analyst=args.analyst, force=args.force):
+            print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
+        print(CAUTION_LINE)
+        return 0
+    request = request_from_args(args)
+    with open_scene(args.scene) as scene:
+        a = analyze(scene, request)
+        files = export_evidence(scene, a, args.out, analyst=args.analyst, force=args.force, paper=args.paper)
+    print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
+    if a.speed is not None:
+        print(f"speed {a.speed.speed_mps:.2f} m/s, 95 % interval {a.speed.ci95_low_mps:.2f}-"
+              f"{a.speed.ci95_high_mps:.2f} m/s; heading {a.heading_deg:.1f} deg")
+    else:
+        print("no wake found: the report says so and gives no speed")
+    print(CAUTION_LINE)
+    return 0
+
+
+COMMAND = Command("report", "Analyse a vessel's wake and write an annotated PNG, a PDF report and a JSON record.",
+                  add_arguments, run)

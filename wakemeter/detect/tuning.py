@@ -1,0 +1,124 @@
+"""Every tuned number of the wake analysis in one frozen :class:`Tuning`, with its unit and what set it.
+
+The sweeps in ``benchmarks/`` vary a field by argument (``--tune significance_min=6.5``) instead of
+patching module globals; ``DEFAULT_TUNING`` is what the program uses.  Change a default only together
+with the sweeps named beside it, and say so in the commit message (see DEVELOPERS.md).
+
+Seeds 0-59 of :func:`wakemeter.synth.cases.make_case` are the calibration set; tests use other seeds
+(300 and up).  "common practice, no source" marks a working rule we chose, not a measured value.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, fields, replace
+
+from ..errors import ParameterError
+
+#: reach of the wedge and line searches from the vessel, as a fraction of the chip side: the largest
+#: radius that stays inside the chip for any track direction (0.5) with a margin for the interpolation
+REACH_FRACTION = 0.46
+
+
+@dataclass(frozen=True)
+class Tuning:
+    """Thresholds and sizes of the analysis (units in the names; scores are standardised spectral power)."""
+
+    # ---- the wake decision (benchmarks/null_sweep.py: 0 alarms in 354 trials at 640 px, 234 at 1024 px) ----
+    significance_min: float = 7.0  #: spectral significance needed to call a wake
+    side_contrast_min: float = 8.0  #: wake-side contrast needed to call a wake
+    wake_free_trials: int = 588  #: wake-free trials behind the two thresholds (null sweeps, 640 and 1024 px)
+    # ---- sizes (pixels of the analysis look) ----
+    chip_px: int = 640  #: side of the square chip read around the vessel
+    box_px: int = 256  #: side of the spectral box behind (and ahead of) the vessel
+    gap_px: int = 12  #: gap between the vessel and the boxes (hull and bow foam)
+    snap_radius_m: float = 40.0  #: a bright hull this close to the click is taken as the vessel
+    # ---- scale choice ----
+    coarse_scene_factor: float = 1.6  #: a half-resolution look needs a scene side >= this x chip_px x step
+    coarse_wave_box_fraction: float = 0.2  #: look coarser when the transverse wave exceeds this x box_px
+    coarse_looks_max: int = 3  #: at most this many halvings
+    # ---- track candidates ----
+    turbulent_candidate_min: float = 8.0  #: a turbulent wake this significant is tried as the track
+    turbulent_candidate_sep_deg: float = 2.0  #: ... when it differs from the wedge's centre by more than this
+    delta_max_deg: float = 20.0  #: track correction searched by the spectral fit
+    delta_step_deg: float = 1.5  #: its grid step
+    # ---- depth model (accuracy_sweep at Fr_h 0.85/0.92, seeds 420-431, and deep seeds 0-59) ----
+    depth_gain_min: float = 1.0  #: joint (speed, depth, track) fit must beat the deep fit by this score
+    fr_depth_effect: float = 0.6  #: below this Fr_h depth changes the pattern too little (Havelock: < 0.3 deg)
+    fr_rule_out: float = 0.9  #: Fr_h whose fit must score rule_out_min below the best to call deep water
+    rule_out_min: float = 1.5  #: score drop that rules a depth out
+    fr_open_check: tuple[float, ...] = (0.75, 0.9)  #: Fr_h tried against the best fit for the interval's cover
+    super_gain_min: float = 2.0  #: supercritical curve must beat the others by this (seeds 470-477, Fr_h 1.3)
+    super_significance_min: float = 9.0  #: a wake seen only through the supercritical curve needs this
+    # ---- crests and arms ----
+    transverse_snr_min: float = 12.0  #: transverse crest spacing reported above this profile SNR
+    transverse_band_deep: tuple[float, float] = (0.8, 1.25)  #: crest search band around the predicted lambda_t
+    transverse_band_finite: tuple[float, float] = (0.85, 1.18)  #: ... with the depth known or fitted
+    transverse_std_inflation: float = 1.25  #: stated crest-spacing uncertainty x this (common practice, no source)
+    transverse_rel_std_floor: float = 0.006  #: smallest relative uncertainty of a crest spacing
+    arms_draw_max_std_deg: float = 6.0  #: arms drawn and used as the line search centre when this well measured
+    turbulent_line_max_off_deg: float = 4.0  #: a turbulent wake line further off the fitted track is not reported
+    narrow_arm_margin_deg: float = 2.0  #: arms narrower than Kelvin's by max(2 sigma, this) get the fast-hull caution
+    havelock_pair_max_std_deg: float = 4.0  #: half-angle good enough for the Havelock speed-and-depth method
+    # ---- uncertainty (accuracy_sweep seeds 0-59: 95th percentile of |error|/sigma 1.07, all intervals held) ----
+    spectral_sigma_scale: float = 0.5  #: quarter-box spread x this, optical
+    spectral_sigma_scale_radar: float = 0.3  #: ... radar (analysed in dB; 95th pct of |error|/sigma 0.53 at 0.5)
+    boot_score_min: float = 3.0  #: a quarter-box refit counts only when its own curve stands out this much
+    boot_delta_extra_deg: float = 6.0  #: quarter boxes search the track within |delta| + this
+    boot_speed_range: tuple[float, float] = (0.75, 1.33)  #: quarter boxes search this x the full-box speed
+    speed_rel_std_floor: float = 0.006  #: smallest relative speed uncertainty before scaling (common practice)
+    fitted_depth_rel_std: float = 0.01  #: floor with a fitted depth (seeds 420-431: 19 of 20 within 2 %)
+    heading_sigma_scale: float = 0.4  #: quarter-box track spread x this (95th pct |error|/sigma 0.40)
+    heading_std_floor_deg: float = 0.3  #: smallest stated heading uncertainty
+    fitted_depth_std_floor: float = 0.05  #: smallest relative uncertainty of a fitted depth
+    fitted_depth_std_cap: float = 0.5  #: largest relative uncertainty of a fitted depth
+    # ---- radar azimuth offset (Raney 1971) ----
+    radar_max_radial_mps: float = 20.0  #: largest radial speed searched for the wake line
+    radar_wake_line_min: float = 5.0  #: significance of the wake line used for the offset
+    radar_offset_std_px: float = 2.0  #: standard uncertainty of the offset, pixels
+    radar_heading_std_deg: float = 1.0  #: heading uncertainty used in the offset inversion
+
+    def __post_init__(self) -> None:
+        for f in fields(self):
+            v = getattr(self, f.name)
+            vals = v if isinstance(v, tuple) else (v,)
+            if any(not isinstance(x, (int, float)) or isinstance(x, bool) or x != x or x < 0 for x in vals):
+                raise ParameterError(f"tuning {f.name} must be a number >= 0 (or numbers), got {v!r}")
+        if self.box_px * 2 + self.gap_px * 2 > self.chip_px:
+            raise ParameterError(f"tuning: two boxes of {self.box_px} px and the gap must fit the chip of "
+                                 f"{self.chip_px} px")
+
+    @property
+    def false_alarm_rate_max(self) -> float:
+        """Upper 95 % bound of the false-alarm rate per decision (rule of three on the wake-free trials)."""
+        return 3.0 / self.wake_free_trials
+
+    @property
+    def false_alarm_note(self) -> str:
+        return (f"false-alarm rate below {100 * self.false_alarm_rate_max:.1f} % per decision: none in "
+                f"{self.wake_free_trials} wake-free test scenes")
+
+    def with_overrides(self, items: list[str] | tuple[str, ...]) -> Tuning:
+        """A copy with ``name=value`` overrides (the sweeps' ``--tune`` arguments)."""
+        known = {f.name: f for f in fields(self)}
+        changes: dict = {}
+        for item in items:
+            name, sep, text = item.partition("=")
+            if not sep or name not in known:
+                raise ParameterError(f"unknown tuning {item!r}; known: {', '.join(sorted(known))}")
+            old = getattr(self, name)
+            try:
+                if isinstance(old, tuple):
+                    changes[name] = tuple(float(x) for x in text.split(","))
+                else:
+                    changes[name] = type(old)(text)
+            except ValueError as err:
+                raise ParameterError(f"tuning {name} needs a number, got {text!r}") from err
+        return replace(self, **changes)
+
+    def changed_fields(self) -> dict:
+        """The fields that differ from the defaults (recorded with sweep results)."""
+        return {f.name: getattr(self, f.name) for f in fields(self)
+                if getattr(self, f.name) != getattr(DEFAULT_TUNING, f.name)}
+
+
+DEFAULT_TUNING = Tuning()

@@ -1,0 +1,77 @@
+"""Stage 4 of the analysis: what is measured on the chip once the wake, its track and depth are known.
+
+The transverse crest spacing along the track, the half-angle from the outer edge of the wave energy,
+the straight wake lines through the vessel with their significance (Kelvin-arm ridges, the radar
+narrow V, the turbulent wake), and the lines to draw.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from ..physics import havelock, kelvin
+from . import lines as lines_mod
+from .arms import Arms
+from .chip_measures import track_profile, wake_drawing, wedge_arms
+from .depth_model import DepthModel
+from .findings import Drawing, LineKind
+from .look import Look
+from .spectral import crest_spacing
+from .tuning import REACH_FRACTION, Tuning
+
+
+@dataclass(frozen=True, eq=False)
+class WakeMeasures:
+    back_deg: float  #: image angle of the backward track after the fit's correction
+    profile: np.ndarray  #: intensity along the track behind the vessel
+    transverse_wavelength_m: float | None  #: None when no regular transverse crests stand out
+    transverse_wavelength_std_m: float | None
+    half_angle_deg: float | None
+    half_angle_std_deg: float | None
+    arms: Arms | None
+    lines: tuple[lines_mod.WakeLine, ...]
+    drawing: Drawing
+
+
+def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> WakeMeasures:
+    t = tuning
+    chip, m = look.chip, look.chip.m_per_px
+    u, h = model.speed_mps, model.depth_m
+    back = (look.back_deg + model.delta_deg) % 360.0
+    lam_pred = float(kelvin.transverse_wavelength(u, h, g=g))
+    prof = track_profile(chip, back, lam_pred, m, gap_px=t.gap_px, box_px=t.box_px)
+    lo, hi = t.transverse_band_finite if model.finite else t.transverse_band_deep
+    if np.isfinite(lam_pred):
+        lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(lo * lam_pred, hi * lam_pred))
+    else:
+        lam_t, lam_t_sd, snr = np.nan, np.nan, 0.0
+    seen = bool(np.isfinite(lam_t) and snr >= t.transverse_snr_min)
+    arms, energy, evalid, reach = wedge_arms(
+        chip, back, lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u, g=g)), m,
+        gap_px=t.gap_px)
+    half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
+    well_measured = half is not None and half_sd is not None and half_sd <= t.arms_draw_max_std_deg
+    # Kelvin arms: wave-energy ridges (the track frame's +v is the image's counter-clockwise side, so its fan
+    # angles change sign), searched near the measured half-angle when it is well measured, else near the one
+    # the fit predicts (Kelvin's in deep water, Havelock's for the fitted or given depth)
+    expected = float(havelock.half_angle(u / np.sqrt(g * h))) if np.isfinite(h) else kelvin.KELVIN_HALF_ANGLE_DEG
+    near = half if well_measured else expected
+    found = [replace(ln, angle_from_track_deg=-ln.angle_from_track_deg)
+             for ln in lines_mod.kelvin_arm_lines(energy, evalid, u0=reach, near_deg=near)]
+    if chip.radar:
+        found += lines_mod.narrow_v_lines(chip.data, chip.valid, chip.vessel_rc, back)
+    tw = look.turbulent
+    # the turbulent wake runs along the track the spectrum gives; a line well off it is something else
+    if tw is not None:
+        tw_angle = float((tw.angle_deg - back + 180.0) % 360.0 - 180.0)
+        if tw.significance >= lines_mod.LINE_SIGNIFICANCE_MIN and abs(tw_angle) <= t.turbulent_line_max_off_deg:
+            kind = LineKind.TURBULENT_DARK if tw.dark else LineKind.TURBULENT_BRIGHT
+            found.insert(0, lines_mod.WakeLine(kind, tw_angle, float(tw.significance),
+                                               float(REACH_FRACTION * chip.data.shape[0])))
+    # draw the arms only when they were measured well enough to be worth showing as evidence
+    drawing = wake_drawing(chip, back, half, arms if (arms is not None and well_measured) else None,
+                           [ln for ln in found if ln.kind == LineKind.NARROW_V])
+    return WakeMeasures(back, prof, lam_t if seen else None, lam_t_sd if seen else None, half, half_sd, arms,
+                        tuple(found), drawing)

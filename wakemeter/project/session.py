@@ -1,0 +1,161 @@
+"""Analysis sessions: a documented, versioned JSON file of our own schema ("wakemeter.session/2").
+
+Fields: ``schema``; ``scene`` {``path`` (relative to the session file when possible),
+``absolute_path``, ``sha256``, ``size_bytes``}; ``calibration`` (null or {``pixel_size_m``,
+``north_up_deg``}); ``vessels`` [{``id``, ``name``, ``position_px``}]; ``measurements``
+[{``id``, ``kind``, ``points_px``, ``vessel_id``, ``values``}]; ``requests`` {vessel id: the analysis
+request JSON (``wakemeter.request/1``: depth with its uncertainty, hull length, radar geometry, seed)};
+``findings`` {vessel id: {``result`` (the analysis JSON, with its drawing and request), ``rejected``}};
+``saved_at``.  Sessions of schema 1 (``inputs`` instead of ``requests``, a separate ``geometry``) are read.
+
+Writes are atomic (temporary file, then rename); a corrupt or future-version file raises
+:class:`SessionError` and nothing is changed.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import json
+import math
+import os
+from pathlib import Path
+
+from ..errors import WakemeterError
+from ..fileio import atomic_write_bytes
+from .model import Measurement, Project, Vessel
+
+SCHEMA = "wakemeter.session/2"
+READABLE = ("wakemeter.session/1", SCHEMA)
+
+
+class SessionError(WakemeterError, ValueError):
+    """A session file cannot be read (corrupt, not a session, or from a newer version)."""
+
+
+def save(path: str | os.PathLike, data: dict) -> Path:
+    """Write a session dict atomically; relative scene path computed here."""
+    target = Path(path)
+    data = {"schema": SCHEMA, "saved_at": _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat(),
+            **{k: v for k, v in data.items() if k not in ("schema", "saved_at")}}
+    scene = dict(data.get("scene") or {})
+    if scene.get("absolute_path"):
+        try:
+            scene["path"] = os.path.relpath(scene["absolute_path"], target.parent.resolve())
+        except ValueError:  # another drive
+            scene["path"] = scene["absolute_path"]
+    data["scene"] = scene
+    text = json.dumps(data, indent=2, default=_plain)
+    try:
+        atomic_write_bytes(target, (text + "\n").encode())
+    except OSError as err:
+        raise SessionError(f"cannot save the session to {target}: {err.strerror or err}") from err
+    return target
+
+
+def _plain(x):
+    import numpy as np
+    if isinstance(x, np.generic):
+        return x.item()
+    if isinstance(x, np.ndarray):
+        return x.tolist()
+    raise TypeError(f"cannot store {type(x).__name__} in a session")
+
+
+def load(path: str | os.PathLike) -> dict:
+    """Read and check a session file; resolves the scene path relative to the file."""
+    p = Path(path)
+    try:
+        data = json.loads(p.read_text())
+    except FileNotFoundError as err:
+        raise SessionError(f"{p}: no such session file") from err
+    except (OSError, UnicodeDecodeError) as err:
+        raise SessionError(f"{p}: cannot be read ({err})") from err
+    except json.JSONDecodeError as err:
+        raise SessionError(f"{p}: not a valid session file (damaged or truncated JSON at line {err.lineno})") from err
+    if not isinstance(data, dict) or not str(data.get("schema", "")).startswith("wakemeter.session/"):
+        raise SessionError(f"{p}: not a wakemeter session file")
+    if data["schema"] not in READABLE:
+        raise SessionError(f"{p}: written by a newer wakemeter ({data['schema']}); this version reads {SCHEMA}")
+    for key in ("scene", "vessels", "measurements"):
+        if key not in data:
+            raise SessionError(f"{p}: the session is incomplete (no '{key}')")
+    scene = data["scene"]
+    rel = Path(scene.get("path") or "")
+    candidate = (p.parent / rel) if not rel.is_absolute() else rel
+    scene["resolved_path"] = str(candidate.resolve()) if candidate.exists() else scene.get("absolute_path")
+    return data
+
+
+def autosave_path() -> Path:
+    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
+    return Path(base) / "wakemeter" / "autosave.session.json"
+
+
+# ---- the project in a session ------------------------------------------------------------------
+
+def to_session(project: Project) -> dict:
+    """The session dict of a project (without ``schema``/``saved_at``, which :func:`save` adds)."""
+    sc = project.scene
+    if sc is None:
+        raise SessionError("open a scene first")
+    cal = sc.calibration
+    findings = {}
+    for vid in project.findings:
+        eff = project.effective_finding(vid)
+        if eff is not None:
+            findings[str(vid)] = {"result": eff.to_json(), "rejected": vid in project.rejected}
+    return {
+        "scene": {"absolute_path": str(sc.info.path), "sha256": sc.sha256(), "size_bytes": sc.info.file_size},
+        "calibration": None if cal is None else {"pixel_size_m": cal.m_per_col,
+                                                 "north_up_deg": cal.bearing_up_deg if cal.north_known else None},
+        "vessels": [{"id": v.id, "name": v.name, "position_px": list(v.position)} for v in project.vessels.values()],
+        "measurements": [{"id": m.id, "kind": str(m.kind), "points_px": [list(p) for p in m.points],
+                          "vessel_id": m.vessel_id,
+                          "values": {k: v for k, v in m.values.items() if k in ("distance_m",)}}
+                         for m in project.measurements.values()],
+        "requests": {str(vid): project.request_for(vid).to_json() for vid in project.requests},
+        "findings": findings,
+    }
+
+
+def fill_project(project: Project, data: dict) -> None:
+    """Put a loaded session's vessels, measurements, requests and findings into ``project`` (whose scene
+    is open and calibrated already).  Raises :class:`SessionError` naming what is wrong."""
+    from ..detect.request import AnalysisRequest
+    from ..detect.result import WakeAnalysis
+    from ..errors import ParameterError
+
+    project.clear()
+    try:
+        for v in data["vessels"]:
+            vid = int(v["id"])
+            project.vessels[vid] = Vessel(vid, str(v["name"]), _point(v["position_px"]))
+        for m in data["measurements"]:
+            pts = m["points_px"]
+            item = Measurement(int(m["id"]), str(m["kind"]), (_point(pts[0]), _point(pts[1])),
+                               None if m.get("vessel_id") is None else int(m["vessel_id"]),
+                               values=dict(m.get("values") or {}))
+            project.measurements[item.id] = item
+        requests = data.get("requests")
+        if requests is None:  # schema 1: the inputs the user typed
+            requests = {k: AnalysisRequest.from_inputs(project.vessels[int(k)].position, v).to_json()
+                        for k, v in (data.get("inputs") or {}).items() if int(k) in project.vessels}
+        for k, r in requests.items():
+            project.requests[int(k)] = AnalysisRequest.from_json(r)
+        for k, f in (data.get("findings") or {}).items():
+            project.findings[int(k)] = WakeAnalysis.from_json(f["result"], drawing=f.get("geometry"))
+            if f.get("rejected"):
+                project.rejected.add(int(k))
+    except (KeyError, TypeError, ValueError, IndexError, AttributeError, OverflowError) as err:
+        if isinstance(err, ParameterError):
+            raise SessionError(f"the session holds a bad value: {err}") from err
+        raise SessionError(f"the session is damaged ({type(err).__name__}: {err})") from err
+    project.reevaluate_all()
+    project.continue_ids()
+
+
+def _point(p) -> tuple[float, float]:
+    x, y = float(p[0]), float(p[1])
+    if not (math.isfinite(x) and math.isfinite(y)) or len(p) != 2:
+        raise ValueError(f"a position must be two finite numbers, got {p!r}")
+    return x, y
