@@ -23,6 +23,13 @@ ROOT = Path(__file__).resolve().parent
 VENV = ROOT / ".venv"
 STAMP = VENV / ".pyproject-sha256"
 DEMO = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
+#: run before the tests by ``tasks.py test`` (without extra arguments)
+CHECKS = (
+    ("-m", "ruff", "check", "."),
+    ("-m", "ruff", "format", "--check", "."),
+    ("-c", "import sys; from importlinter.cli import lint_imports_command as c; sys.exit(c())"),  # lint-imports
+    ("-m", "mypy"),
+)
 
 
 def _py() -> Path:
@@ -30,7 +37,7 @@ def _py() -> Path:
 
 
 def ensure_venv() -> Path:
-    if sys.version_info < (3, 11):
+    if sys.version_info < (3, 11):  # noqa: UP036 - tasks.py runs under whatever python3 the user has
         sys.exit(f"wakemeter needs Python 3.11 or newer; this is {sys.version.split()[0]}")
     want = hashlib.sha256((ROOT / "pyproject.toml").read_bytes()).hexdigest()
     if _py().exists() and STAMP.exists() and STAMP.read_text().strip() == want:
@@ -56,6 +63,12 @@ def main(argv: list[str]) -> int:
         cmd = [str(py), "-m", "wakemeter", *(rest or [str(DEMO)])]
     elif what == "test":
         env.setdefault("QT_QPA_PLATFORM", "offscreen")
+        if not rest:  # the whole suite: lint, format, layer contracts and types first (configured in pyproject.toml)
+            for step in CHECKS:
+                print(f"$ python {' '.join(step)}", flush=True)
+                if subprocess.call([str(py), *step], cwd=ROOT, env=env) != 0:
+                    print(f"tasks.py test: '{' '.join(step)}' failed; fix it before the tests run", file=sys.stderr)
+                    return 1
         cmd = [str(py), "-m", "pytest", "-q", "-p", "no:cacheprovider", *rest]
     else:
         env.setdefault("QT_QPA_PLATFORM", "offscreen")

@@ -37,19 +37,34 @@ def run(n: int, first: int, tuning, **kw) -> list[dict]:
                 dt = time.perf_counter() - t
             j = a.to_json()
             d = a.diagnostics
-            row = {"seed": seed, "kind": "radar" if "looks" in side["imaging"] else "optical",
-                   "pixel_m": case.spec.pixel_m, "u": case.speed_mps, "found": j["wake_found"], "time_s": round(dt, 2),
-                   "sig": round(a.significance, 1), "side": round(d.side_contrast, 1)}
+            row = {
+                "seed": seed,
+                "kind": "radar" if "looks" in side["imaging"] else "optical",
+                "pixel_m": case.spec.pixel_m,
+                "u": case.speed_mps,
+                "found": j["wake_found"],
+                "time_s": round(dt, 2),
+                "sig": round(a.significance, 1),
+                "side": round(d.side_contrast, 1),
+            }
             if j["wake_found"]:
                 lo, hi = j["speed_ci95_mps"]
-                row.update(est=j["speed_mps"], lo=lo, hi=hi, rel_err=j["speed_mps"] / case.speed_mps - 1,
-                           covered=lo <= case.speed_mps <= hi,
-                           hdg_err=((j["heading_deg"] - case.heading_deg + 180) % 360) - 180, regime=j["regime"],
-                           hdg_std=j["heading_std_deg"], methods=[m["name"] for m in j["methods"]],
-                           z={m["name"][:10]: round((m["speed_mps"] - case.speed_mps) / m["std_mps"], 2)
-                              for m in j["methods"]},
-                           gain=round(d.depth_gain, 2) if np.isfinite(d.depth_gain) else None,
-                           spec_rel_std=j["methods"][0]["std_mps"] / j["speed_mps"])
+                row.update(
+                    est=j["speed_mps"],
+                    lo=lo,
+                    hi=hi,
+                    rel_err=j["speed_mps"] / case.speed_mps - 1,
+                    covered=lo <= case.speed_mps <= hi,
+                    hdg_err=((j["heading_deg"] - case.heading_deg + 180) % 360) - 180,
+                    regime=j["regime"],
+                    hdg_std=j["heading_std_deg"],
+                    methods=[m["name"] for m in j["methods"]],
+                    z={
+                        m["name"][:10]: round((m["speed_mps"] - case.speed_mps) / m["std_mps"], 2) for m in j["methods"]
+                    },
+                    gain=round(d.depth_gain, 2) if np.isfinite(d.depth_gain) else None,
+                    spec_rel_std=j["methods"][0]["std_mps"] / j["speed_mps"],
+                )
             else:
                 row.update(fit_speed=d.fit_speed_mps if np.isfinite(d.fit_speed_mps) else None)
             rows.append(row)
@@ -64,23 +79,39 @@ def summarise(rows: list[dict]) -> dict:
         return out
     err = np.array([abs(r["rel_err"]) for r in found])
     hd = np.array([abs(r["hdg_err"]) for r in found])
-    out.update({
-        "speed_within_3pct": int(np.sum(err <= 0.03)), "median_abs_speed_error": float(np.median(err)),
-        "max_abs_speed_error": float(err.max()), "intervals_holding_truth": int(sum(r["covered"] for r in found)),
-        "median_interval_width_rel": float(np.median([(r["hi"] - r["lo"]) / r["u"] for r in found])),
-        "headings_within_2deg": int(np.sum(hd <= 2)), "max_heading_error_deg": float(hd.max()),
-        "heading_error_over_std_p95": float(np.quantile(hd / np.array([r["hdg_std"] for r in found]), 0.95)),
-        "median_time_s": float(np.median([r["time_s"] for r in rows])),
-    })
+    out.update(
+        {
+            "speed_within_3pct": int(np.sum(err <= 0.03)),
+            "median_abs_speed_error": float(np.median(err)),
+            "max_abs_speed_error": float(err.max()),
+            "intervals_holding_truth": int(sum(r["covered"] for r in found)),
+            "median_interval_width_rel": float(np.median([(r["hi"] - r["lo"]) / r["u"] for r in found])),
+            "headings_within_2deg": int(np.sum(hd <= 2)),
+            "max_heading_error_deg": float(hd.max()),
+            "heading_error_over_std_p95": float(np.quantile(hd / np.array([r["hdg_std"] for r in found]), 0.95)),
+            "median_time_s": float(np.median([r["time_s"] for r in rows])),
+        }
+    )
     for k in sorted({r["regime"] for r in found}):
         out[f"regime_{k}"] = sum(r["regime"] == k for r in found)
     return out
 
 
 if __name__ == "__main__":
-    args, tuning = parse(__doc__.splitlines()[0], [("n", int, 40, "number of cases"),
-                                                   ("first", int, 0, "first seed"),
-                                                   ("depth_froude", float, None, "render at this Fr_h")])
+    args, tuning = parse(
+        __doc__.splitlines()[0],
+        [
+            ("n", int, 40, "number of cases"),
+            ("first", int, 0, "first seed"),
+            ("depth_froude", float, None, "render at this Fr_h"),
+        ],
+    )
     rows = run(args.n, args.first, tuning, depth_froude=args.depth_froude)
-    record("accuracy_sweep", {"n": args.n, "first": args.first, "depth_froude": args.depth_froude}, tuning,
-           summarise(rows), rows, write=not args.no_record)
+    record(
+        "accuracy_sweep",
+        {"n": args.n, "first": args.first, "depth_froude": args.depth_froude},
+        tuning,
+        summarise(rows),
+        rows,
+        write=not args.no_record,
+    )

@@ -38,6 +38,8 @@ if __name__ == "__main__":
         a = analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0)))
         times.append(time.perf_counter() - t)
     med = float(np.median(times))
-    print(f"analyze, one vessel, 1024^2 scene: median {med * 1e3:.0f} ms (first call {first * 1e3:.0f} ms) | "
-          f"reading the neighbourhood {np.median(reads) * 1e3:.1f} ms | ratio {med / np.median(reads):.0f}x | "
-          f"speed {a.speed.speed_mps:.3f} m/s")
+    print(
+        f"analyze, one vessel, 1024^2 scene: median {med * 1e3:.0f} ms (first call {first * 1e3:.0f} ms) | "
+        f"reading the neighbourhood {np.median(reads) * 1e3:.1f} ms | ratio {med / np.median(reads):.0f}x | "
+        f"speed {a.speed.speed_mps:.3f} m/s"
+    )

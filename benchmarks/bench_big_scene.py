@@ -24,7 +24,7 @@ from pathlib import Path
 
 import numpy as np
 
-CHILD = r'''
+CHILD = r"""
 import json, os, resource, statistics, sys, time
 os.environ["XDG_CACHE_HOME"] = sys.argv[3]
 import numpy as np, rasterio
@@ -62,7 +62,7 @@ elif what in ("ref_view", "ref_window"):
                 ds.read(1, window=((9000, 11048), (4000 + 97 * i, 6048 + 97 * i)))
         times.append(time.perf_counter() - t)
 print(json.dumps({"median_s": statistics.median(times) if times else 0.0, "rss_mb": rss()}))
-'''
+"""
 
 
 def make(path: Path, side: int, overviews: bool) -> None:
@@ -70,9 +70,20 @@ def make(path: Path, side: int, overviews: bool) -> None:
     from affine import Affine
     from rasterio.enums import Resampling
 
-    prof = {"driver": "GTiff", "width": side, "height": side, "count": 1, "dtype": "uint16", "tiled": True,
-            "blockxsize": 512, "blockysize": 512, "compress": "deflate", "crs": "EPSG:32631",
-            "transform": Affine(2, 0, 500_000, 0, -2, 6_000_000), "BIGTIFF": "IF_SAFER"}
+    prof = {
+        "driver": "GTiff",
+        "width": side,
+        "height": side,
+        "count": 1,
+        "dtype": "uint16",
+        "tiled": True,
+        "blockxsize": 512,
+        "blockysize": 512,
+        "compress": "deflate",
+        "crs": "EPSG:32631",
+        "transform": Affine(2, 0, 500_000, 0, -2, 6_000_000),
+        "BIGTIFF": "IF_SAFER",
+    }
     rng = np.random.default_rng(0)
     x = np.arange(side)
     with rasterio.open(path, "w", **prof) as dst:
@@ -86,8 +97,9 @@ def make(path: Path, side: int, overviews: bool) -> None:
 
 
 def child(path: Path, what: str, cache: Path) -> dict:
-    out = subprocess.run([sys.executable, "-c", CHILD, str(path), what, str(cache)], capture_output=True, text=True,
-                         check=True)
+    out = subprocess.run(
+        [sys.executable, "-c", CHILD, str(path), what, str(cache)], capture_output=True, text=True, check=True
+    )
     return json.loads(out.stdout.strip().splitlines()[-1])
 
 
@@ -106,18 +118,26 @@ def main() -> None:
         rows = []
         if not ovr:
             import shutil
+
             shutil.rmtree(cache, ignore_errors=True)  # measure a real first build
             r = child(p, "pyramid", cache)
             rows.append(("pyramid build (once)", r, None))
         for what in ("view", "window"):
-            rows.append((f"{'whole-scene view 1024 px' if what == 'view' else '2048x2048 window'}",
-                         child(p, what, cache), child(p, f"ref_{what}", cache)))
+            rows.append(
+                (
+                    f"{'whole-scene view 1024 px' if what == 'view' else '2048x2048 window'}",
+                    child(p, what, cache),
+                    child(p, f"ref_{what}", cache),
+                )
+            )
         print(f"\n{name}, {side} x {side} uint16 (baseline process {base:.0f} MB)")
         for label, r, ref in rows:
             extra = r["rss_mb"] - base
             line = f"  {label:<26} median {r['median_s'] * 1e3:8.1f} ms   extra peak memory {extra:6.0f} MB"
             if ref is not None:
-                line += f"   | plain rasterio {ref['median_s'] * 1e3:8.1f} ms, ratio {r['median_s'] / ref['median_s']:.2f}"
+                line += (
+                    f"   | plain rasterio {ref['median_s'] * 1e3:8.1f} ms, ratio {r['median_s'] / ref['median_s']:.2f}"
+                )
             print(line, flush=True)
 
 

@@ -25,6 +25,7 @@ def main() -> None:
         path = Path(sys.argv[1])
     else:
         from bench_big_scene import make
+
         path = Path(tempfile.gettempdir()) / "wakemeter-bench" / "with_overviews_20000.tif"
         path.parent.mkdir(exist_ok=True)
         if not path.exists():
@@ -54,10 +55,15 @@ def main() -> None:
         t = time.perf_counter()
         c.grab()
         from_cache.append(time.perf_counter() - t)
-        print(f"zoom 1/{1 / zoom:.0f}: {len(keys)} tiles, from file {from_file[-1] * 1e3:.0f} ms, "
-              f"from cache {from_cache[-1] * 1e3:.1f} ms", flush=True)
-    print(f"median: new zoom level from the file {statistics.median(from_file) * 1e3:.0f} ms (goal < 200), "
-          f"from cached tiles {statistics.median(from_cache) * 1e3:.1f} ms (goal < 50)")
+        print(
+            f"zoom 1/{1 / zoom:.0f}: {len(keys)} tiles, from file {from_file[-1] * 1e3:.0f} ms, "
+            f"from cache {from_cache[-1] * 1e3:.1f} ms",
+            flush=True,
+        )
+    print(
+        f"median: new zoom level from the file {statistics.median(from_file) * 1e3:.0f} ms (goal < 200), "
+        f"from cached tiles {statistics.median(from_cache) * 1e3:.1f} ms (goal < 50)"
+    )
     close_qt(app, win)
     del c, win
 

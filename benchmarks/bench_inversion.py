@@ -44,4 +44,6 @@ if __name__ == "__main__":
     ref = best_time(reference)
     for name, fn in (("deep water", deep), ("finite depth", finite)):
         t = best_time(fn)
-        print(f"{name:>13}: {t * 1e3:7.1f} ms for 1e5 draws | reference numpy {ref * 1e3:6.1f} ms | ratio {t / ref:5.1f}")
+        print(
+            f"{name:>13}: {t * 1e3:7.1f} ms for 1e5 draws | reference numpy {ref * 1e3:6.1f} ms | ratio {t / ref:5.1f}"
+        )

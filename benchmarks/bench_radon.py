@@ -19,10 +19,19 @@ from wakemeter.detect.radon import _interpolation_matrix, radon
 def chip(n: int = 1024, smooth_px: float = 2.0) -> np.ndarray:
     from wakemeter.synth import Hull, kelvin_elevation
 
-    eta = kelvin_elevation((n, n), dx_m=1.0, dy_m=1.0, vessel_xy_m=(0.75 * n, 0.3 * n), speed_mps=6.0,
-                           heading_xy=(0.8, 0.6), hull=Hull(30, 6), g=9.81)
+    eta = kelvin_elevation(
+        (n, n),
+        dx_m=1.0,
+        dy_m=1.0,
+        vessel_xy_m=(0.75 * n, 0.3 * n),
+        speed_mps=6.0,
+        heading_xy=(0.8, 0.6),
+        hull=Hull(30, 6),
+        g=9.81,
+    )
     if smooth_px:
         from scipy.ndimage import gaussian_filter
+
         eta = gaussian_filter(eta, smooth_px)  # as the detector prepares chips before the Radon transform
     yy, xx = np.mgrid[:n, :n]
     eta[(xx - n // 2) ** 2 + (yy - n // 2) ** 2 > (n // 2) ** 2] = 0
@@ -53,12 +62,18 @@ if __name__ == "__main__":
     t_ours = float(np.median(times))
     dev = np.abs(out - ref)
     mx = np.abs(ref).max()
-    print(f"Radon 1024x1024, 180 angles: skimage {t_sk * 1e3:.0f} ms | wakemeter {t_ours * 1e3:.1f} ms (median of 7; "
-          f"first call {t_first * 1e3:.0f} ms) | speed-up {t_sk / t_ours:.0f}x")
-    print(f"largest deviation / sinogram max (chip smoothed 2 px, as the detector uses it): all angles "
-          f"{dev.max() / mx:.2%}, at 0 deg {dev[:, 0].max() / mx:.1e}, at 90 deg {dev[:, 90].max() / mx:.1e}")
+    print(
+        f"Radon 1024x1024, 180 angles: skimage {t_sk * 1e3:.0f} ms | wakemeter {t_ours * 1e3:.1f} ms (median of 7; "
+        f"first call {t_first * 1e3:.0f} ms) | speed-up {t_sk / t_ours:.0f}x"
+    )
+    print(
+        f"largest deviation / sinogram max (chip smoothed 2 px, as the detector uses it): all angles "
+        f"{dev.max() / mx:.2%}, at 0 deg {dev[:, 0].max() / mx:.1e}, at 90 deg {dev[:, 90].max() / mx:.1e}"
+    )
     raw = chip(smooth_px=0.0)
     ref_raw = sk_radon(raw, th, circle=True)
     d2 = np.abs(radon(raw, th) - ref_raw).max() / np.abs(ref_raw).max()
-    print(f"unsmoothed chip with waves up to Nyquist: largest deviation {d2:.2%} (skimage's bilinear rotation "
-          "is itself inexact there; tests/test_radon.py compares both with analytic projections)")
+    print(
+        f"unsmoothed chip with waves up to Nyquist: largest deviation {d2:.2%} (skimage's bilinear rotation "
+        "is itself inexact there; tests/test_radon.py compares both with analytic projections)"
+    )

@@ -31,9 +31,19 @@ from wakemeter.scene.raster import open_scene
 
 def make_scene(folder: Path, side: int) -> Path:
     path = folder / f"big_{side}.tif"
-    prof = {"driver": "GTiff", "width": side, "height": side, "count": 1, "dtype": "uint16", "tiled": True,
-            "blockxsize": 512, "blockysize": 512, "compress": "deflate", "crs": "EPSG:32631",
-            "transform": Affine(2, 0, 500_000, 0, -2, 6_000_000)}
+    prof = {
+        "driver": "GTiff",
+        "width": side,
+        "height": side,
+        "count": 1,
+        "dtype": "uint16",
+        "tiled": True,
+        "blockxsize": 512,
+        "blockysize": 512,
+        "compress": "deflate",
+        "crs": "EPSG:32631",
+        "transform": Affine(2, 0, 500_000, 0, -2, 6_000_000),
+    }
     rng = np.random.default_rng(0)
     with rasterio.open(path, "w", **prof) as dst:
         for r in range(0, side, 512):
@@ -77,7 +87,11 @@ if __name__ == "__main__":
         with rasterio.open(path) as ds:
             wref = best_time(lambda: ds.read(1, window=((5000, 5512), (5000, 5512))), repeat=3)
         win = best_time(lambda: sc.read(window=(5000, 5000, 512, 512)), repeat=3)
-        print(f"zoomed-out 1024x1024 read: rasterio reference {ref:.2f} s | wakemeter without pyramid {before:.2f} s "
-              f"| with pyramid {after * 1e3:.1f} ms | speed-up {ref / after:.0f}x (pyramid built once in {build:.1f} s)")
-        print(f"512x512 window read:       rasterio reference {wref * 1e3:.2f} ms | wakemeter {win * 1e3:.2f} ms "
-              f"| ratio {win / wref:.2f}")
+        print(
+            f"zoomed-out 1024x1024 read: rasterio reference {ref:.2f} s | wakemeter without pyramid {before:.2f} s "
+            f"| with pyramid {after * 1e3:.1f} ms | speed-up {ref / after:.0f}x (pyramid built once in {build:.1f} s)"
+        )
+        print(
+            f"512x512 window read:       rasterio reference {wref * 1e3:.2f} ms | wakemeter {win * 1e3:.2f} ms "
+            f"| ratio {win / wref:.2f}"
+        )

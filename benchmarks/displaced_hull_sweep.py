@@ -39,17 +39,32 @@ def main(n: int, first: int, tuning) -> list[dict]:
             with open_scene(tif) as sc:
                 a = analyze(sc, AnalysisRequest(vessel_px=hull), tuning)
             shift_px = float(np.hypot(hull[0] - t["pixel_col"], hull[1] - t["pixel_row"]))
-            row = {"seed": seed, "shift_m": round(t["radar_azimuth_offset_m"]), "shift_px": round(shift_px),
-                   "found": a.wake_found, **speed_check(a, case.speed_mps)}
+            row = {
+                "seed": seed,
+                "shift_m": round(t["radar_azimuth_offset_m"]),
+                "shift_px": round(shift_px),
+                "found": a.wake_found,
+                **speed_check(a, case.speed_mps),
+            }
             if a.wake_found:
-                row["position_err_px"] = round(float(np.hypot(a.vessel_px[0] - t["pixel_col"],
-                                                              a.vessel_px[1] - t["pixel_row"])))
+                row["position_err_px"] = round(
+                    float(np.hypot(a.vessel_px[0] - t["pixel_col"], a.vessel_px[1] - t["pixel_row"]))
+                )
             rows.append(row)
             print(row, flush=True)
     return rows
 
 
 if __name__ == "__main__":
-    args, tuning = parse(__doc__.splitlines()[0], [("n", int, 16, "number of radar cases"), ("first", int, 0, "first seed")])
+    args, tuning = parse(
+        __doc__.splitlines()[0], [("n", int, 16, "number of radar cases"), ("first", int, 0, "first seed")]
+    )
     rows = main(args.n, args.first, tuning)
-    record("displaced_hull_sweep", {"n": args.n, "first": args.first}, tuning, speed_summary(rows), rows, write=not args.no_record)
+    record(
+        "displaced_hull_sweep",
+        {"n": args.n, "first": args.first},
+        tuning,
+        speed_summary(rows),
+        rows,
+        write=not args.no_record,
+    )

@@ -26,8 +26,13 @@ def parse(description: str, positional: list[tuple[str, type, object, str]]) -> 
     p = argparse.ArgumentParser(description=description)
     for name, kind, default, help_text in positional:
         p.add_argument(name, type=kind, nargs="?", default=default, help=help_text)
-    p.add_argument("--tune", action="append", default=[], metavar="NAME=VALUE",
-                   help="change one field of wakemeter.detect.tuning.Tuning for this run")
+    p.add_argument(
+        "--tune",
+        action="append",
+        default=[],
+        metavar="NAME=VALUE",
+        help="change one field of wakemeter.detect.tuning.Tuning for this run",
+    )
     p.add_argument("--no-record", action="store_true", help="print only; do not write benchmarks/results/")
     args = p.parse_args()
     return args, DEFAULT_TUNING.with_overrides(args.tune)
@@ -36,17 +41,22 @@ def parse(description: str, positional: list[tuple[str, type, object, str]]) -> 
 def _commit() -> tuple[str, bool]:
     root = Path(__file__).resolve().parents[1]
     try:
-        sha = subprocess.run(["git", "rev-parse", "HEAD"], cwd=root, capture_output=True, text=True,
-                             check=True).stdout.strip()
-        dirty = bool(subprocess.run(["git", "status", "--porcelain", "--", "wakemeter"], cwd=root,
-                                    capture_output=True, text=True).stdout.strip())
+        sha = subprocess.run(
+            ["git", "rev-parse", "HEAD"], cwd=root, capture_output=True, text=True, check=True
+        ).stdout.strip()
+        dirty = bool(
+            subprocess.run(
+                ["git", "status", "--porcelain", "--", "wakemeter"], cwd=root, capture_output=True, text=True
+            ).stdout.strip()
+        )
     except (OSError, subprocess.CalledProcessError):
         return "unknown", True
     return sha, dirty
 
 
-def record(sweep: str, arguments: dict, tuning: Tuning, summary: dict, cases: list[dict], *,
-           write: bool = True) -> Path | None:
+def record(
+    sweep: str, arguments: dict, tuning: Tuning, summary: dict, cases: list[dict], *, write: bool = True
+) -> Path | None:
     """Print the summary beside the last record's and (unless ``write`` is False) store the new record."""
     key = "-".join(f"{v}" for v in arguments.values() if v is not None)
     changes = tuning.changed_fields()
@@ -62,9 +72,16 @@ def record(sweep: str, arguments: dict, tuning: Tuning, summary: dict, cases: li
     if not write:
         return None
     sha, dirty = _commit()
-    rec = {"sweep": sweep, "arguments": arguments, "commit": sha, "uncommitted_changes": dirty,
-           "date": _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat(),
-           "tuning_changes": changes, "summary": summary, "cases": cases}
+    rec = {
+        "sweep": sweep,
+        "arguments": arguments,
+        "commit": sha,
+        "uncommitted_changes": dirty,
+        "date": _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat(),
+        "tuning_changes": changes,
+        "summary": summary,
+        "cases": cases,
+    }
     RESULTS.mkdir(exist_ok=True)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=RESULTS)
     with os.fdopen(fd, "w") as fh:

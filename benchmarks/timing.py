@@ -21,16 +21,21 @@ def speed_check(analysis, true_speed_mps: float) -> dict:
     if not analysis.wake_found:
         return {}
     s = analysis.speed
-    return {"rel_err": round(s.speed_mps / true_speed_mps - 1, 4),
-            "covered": bool(s.ci95_low_mps <= true_speed_mps <= s.ci95_high_mps)}
+    return {
+        "rel_err": round(s.speed_mps / true_speed_mps - 1, 4),
+        "covered": bool(s.ci95_low_mps <= true_speed_mps <= s.ci95_high_mps),
+    }
 
 
 def speed_summary(rows: list[dict]) -> dict:
     """Found, within 3 %, intervals holding the truth (rows carry ``found`` and :func:`speed_check`)."""
     found = [r for r in rows if r["found"]]
-    return {"cases": len(rows), "found": len(found),
-            "speed_within_3pct": sum(abs(r["rel_err"]) <= 0.03 for r in found),
-            "intervals_holding_truth": sum(r["covered"] for r in found)}
+    return {
+        "cases": len(rows),
+        "found": len(found),
+        "speed_within_3pct": sum(abs(r["rel_err"]) <= 0.03 for r in found),
+        "intervals_holding_truth": sum(r["covered"] for r in found),
+    }
 
 
 def close_qt(app, *objects) -> None:

@@ -72,8 +72,21 @@ def test_wake_lines_on_random_scenes(sweep):
 def test_json_fields(sweep):
     case, a = next((c, a) for c, a in sweep if a.wake_found)
     j = a.to_json()
-    for key in ("wake_found", "speed_mps", "speed_knots", "speed_ci95_mps", "heading_deg", "half_angle_deg",
-                "transverse_wavelength_m", "regime", "depth_m", "depth_ci95_m", "methods", "vessel_px", "cautions"):
+    for key in (
+        "wake_found",
+        "speed_mps",
+        "speed_knots",
+        "speed_ci95_mps",
+        "heading_deg",
+        "half_angle_deg",
+        "transverse_wavelength_m",
+        "regime",
+        "depth_m",
+        "depth_ci95_m",
+        "methods",
+        "vessel_px",
+        "cautions",
+    ):
         assert key in j
     assert j["regime"] in ("deep", "finite-depth", "near-critical", "supercritical", "unknown")
     assert 0 <= j["heading_deg"] < 360
@@ -112,7 +125,13 @@ def test_radar_offset_method_on_demo():
     # wake (Raney 1971: dx = -(R/V) v_r, R = 850 km, V = 7.5 km/s).  The user clicks the bright hull.
     truth = json.loads((ROOT / "sample_scenes" / "outer_roads_radar.truth.json").read_text())["vessels"][0]
     with open_scene(ROOT / "sample_scenes" / "outer_roads_radar.tif") as sc:
-        a = analyze(sc, AnalysisRequest(vessel_px=(truth["hull_pixel_col"] + 1, truth["hull_pixel_row"] - 1), radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0)))
+        a = analyze(
+            sc,
+            AnalysisRequest(
+                vessel_px=(truth["hull_pixel_col"] + 1, truth["hull_pixel_row"] - 1),
+                radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0),
+            ),
+        )
     assert a.wake_found and a.speed.speed_mps == pytest.approx(9.003, rel=0.03)
     radar = [m for m in a.methods if m.method == "radar azimuth offset"]
     assert radar, a.cautions
@@ -167,7 +186,12 @@ def test_finite_depth_scenes_with_known_depth(tmp_path, seed):
     tif, sidecar = write_case(case, tmp_path)
     truth = json.loads(sidecar.read_text())["vessels"][0]
     with open_scene(tif) as sc:
-        a = analyze(sc, AnalysisRequest(vessel_px=(truth["pixel_col"], truth["pixel_row"]), depth=Uncertain(case.depth_m, 0.05 * case.depth_m)))
+        a = analyze(
+            sc,
+            AnalysisRequest(
+                vessel_px=(truth["pixel_col"], truth["pixel_row"]), depth=Uncertain(case.depth_m, 0.05 * case.depth_m)
+            ),
+        )
     if not a.wake_found:
         pytest.xfail("weak radar wake not detected (allowed: no speed rather than a wrong one)")
     assert a.speed.speed_mps == pytest.approx(case.speed_mps, rel=0.03)
@@ -210,7 +234,7 @@ def test_finite_depth_found_without_the_depth(shallow_sweep):
 
 def test_deep_regime_rules_out_shallow_water_explicitly(sweep):
     # A "deep" verdict without a given depth must say what was ruled out; "unknown" must say what was not.
-    for case, a in sweep:
+    for _case, a in sweep:
         if a.wake_found and a.regime.regime == "deep":
             assert "fits clearly worse" in a.regime.explanation
         elif a.wake_found and a.regime.regime == "unknown":
@@ -245,10 +269,18 @@ def test_long_waves_found_at_half_resolution(tmp_path):
     from wakemeter.synth.demo import vessel_scene
 
     u = 5.42
-    length = u * u / (9.81 * 0.35 ** 2)
+    length = u * u / (9.81 * 0.35**2)
     vessel = VesselSpec("Long-wave case", 12.5, -20.25, u, 131.0, Hull(length, length / 5))
-    spec = vessel_scene("long waves", vessel, 1024, 0.31, imaging=OpticalModel(sun_azimuth_deg=40.0, noise_std=0.02),
-                        sea=None, depth_m=np.inf, seed=11)
+    spec = vessel_scene(
+        "long waves",
+        vessel,
+        1024,
+        0.31,
+        imaging=OpticalModel(sun_azimuth_deg=40.0, noise_std=0.02),
+        sea=None,
+        depth_m=np.inf,
+        seed=11,
+    )
     tif, sidecar = write(render(spec), tmp_path / "long.tif")
     truth = json.loads(sidecar.read_text())["vessels"][0]
     with open_scene(tif) as sc:
@@ -278,8 +310,11 @@ def test_radar_hull_displaced_from_its_wake(tmp_path, seed):
     assert a.speed.speed_mps == pytest.approx(case.speed_mps, rel=0.03)
     assert a.speed.ci95_low_mps <= case.speed_mps <= a.speed.ci95_high_mps
     apex_err = ((a.vessel_px[0] - truth["pixel_col"]) ** 2 + (a.vessel_px[1] - truth["pixel_row"]) ** 2) ** 0.5
-    hull_dist = ((truth["hull_pixel_col"] - truth["pixel_col"]) ** 2
-                 + (truth["hull_pixel_row"] - truth["pixel_row"]) ** 2) ** 0.5
+    hull_dist = (
+        (truth["hull_pixel_col"] - truth["pixel_col"]) ** 2 + (truth["hull_pixel_row"] - truth["pixel_row"]) ** 2
+    ) ** 0.5
     assert apex_err < 0.5 * hull_dist  # the reported position moved well toward the true one
     assert a.has_caution(CautionCode.DISPLACED_HULL)
-    assert a.drawing.first(SegmentKind.HULL_SHIFT).points[0] == pytest.approx((truth["hull_pixel_col"], truth["hull_pixel_row"]), abs=3)
+    assert a.drawing.first(SegmentKind.HULL_SHIFT).points[0] == pytest.approx(
+        (truth["hull_pixel_col"], truth["hull_pixel_row"]), abs=3
+    )

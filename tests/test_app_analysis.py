@@ -40,6 +40,7 @@ def _analyse(win, qtbot):
 
 def test_analysis_shows_speed_interval_and_keeps_gui_responsive(win, qtbot):
     from PySide6.QtCore import QTimer
+
     ticks = []
     timer = QTimer()
     timer.timeout.connect(lambda: ticks.append(time.perf_counter()))
@@ -80,6 +81,7 @@ def test_reject_and_correct_arm_by_hand(win, qtbot):
     dc, dr = f.image_direction(TRUTH["heading_deg"])
     win.canvas.finish_line("track", (vx, vy), (vx - 200 * dc, vy - 200 * dr))
     import numpy as np
+
     a = np.radians(34.0)
     end = (vx - 200 * (np.cos(a) * dc - np.sin(a) * dr), vy - 200 * (np.cos(a) * dr + np.sin(a) * dc))
     win.canvas.finish_line("arm", (vx, vy), end)
@@ -143,6 +145,7 @@ def test_autosave_and_restore_after_a_crash(win, qtbot, tmp_path):
     _analyse(win, qtbot)
     win.controller.autosave_now()
     from wakemeter.project.session import autosave_path
+
     assert autosave_path().exists()
     # a new program start finds it (the first window "crashed": it never closed cleanly)
     w2 = MainWindow()
@@ -156,6 +159,7 @@ def test_autosave_and_restore_after_a_crash(win, qtbot, tmp_path):
 
 def test_report_command_accepts_a_session(win, qtbot, tmp_path):
     from wakemeter.cli import main
+
     _analyse(win, qtbot)
     path = tmp_path / "s.json"
     assert win.controller.save_session(str(path))
@@ -188,8 +192,12 @@ def test_export_from_a_reopened_session_keeps_every_input(qtbot, tmp_path, monke
     pos = (truth["hull_pixel_col"] + 1, truth["hull_pixel_row"] - 1)
     w.doc.undo.push(AddItem(w.doc, Vessel(w.doc.new_id(), "Grey Heron", pos), "mark vessel"))
     vid = next(iter(w.doc.vessels))
-    req = AnalysisRequest(vessel_px=pos, depth=Uncertain(60.0, 6.0), seed=5,
-                          radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0, slant_range_std_m=800.0))
+    req = AnalysisRequest(
+        vessel_px=pos,
+        depth=Uncertain(60.0, 6.0),
+        seed=5,
+        radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0, slant_range_std_m=800.0),
+    )
     w.doc.requests[vid] = req
     w.controller.panel.set_request(req)  # what the analyst typed in the panel
     _analyse(w, qtbot)
@@ -211,8 +219,10 @@ def test_export_from_a_reopened_session_keeps_every_input(qtbot, tmp_path, monke
     assert files is not None
     rec = json.loads(files.data.read_text())["result"]
     assert AnalysisRequest.from_json(rec["request"]) == req
-    assert rec["speed_mps"] == before.speed.speed_mps and rec["speed_ci95_mps"] == [before.speed.ci95_low_mps,
-                                                                                      before.speed.ci95_high_mps]
+    assert rec["speed_mps"] == before.speed.speed_mps and rec["speed_ci95_mps"] == [
+        before.speed.ci95_low_mps,
+        before.speed.ci95_high_mps,
+    ]
     assert [m["name"] for m in rec["methods"]] == [m.method for m in before.methods]
     w2.close()
     headless = tmp_path / "headless"

@@ -34,6 +34,7 @@ def _truth(name):
 
 def test_open_zoom_pan_and_track_bearing(win, qtbot):
     from PySide6.QtWidgets import QApplication
+
     assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
     wait_for_tiles(win, QApplication.instance())
     c = win.canvas
@@ -100,6 +101,7 @@ def test_crest_ruler_across_transverse_crests(win):
 
 def test_calibrate_plain_image_with_two_points(win, tmp_path):
     import cv2
+
     img = (np.random.default_rng(0).random((200, 300)) * 255).astype(np.uint8)
     p = tmp_path / "plain.png"
     cv2.imwrite(str(p), img)
@@ -129,12 +131,27 @@ def test_corrupt_file_gives_message_and_window_keeps_working(win, tmp_path):
 def test_screenshot_command(tmp_path):
     import subprocess
     import sys
+
     out = tmp_path / "shot.png"
-    r = subprocess.run([sys.executable, "-m", "wakemeter", str(ROOT / "sample_scenes" / "outer_roads_radar.tif"),
-                        "--screenshot", str(out), "--size", "900x600"], capture_output=True, text=True,
-                       env={**__import__("os").environ, "QT_QPA_PLATFORM": "offscreen"}, timeout=120)
+    r = subprocess.run(
+        [
+            sys.executable,
+            "-m",
+            "wakemeter",
+            str(ROOT / "sample_scenes" / "outer_roads_radar.tif"),
+            "--screenshot",
+            str(out),
+            "--size",
+            "900x600",
+        ],
+        capture_output=True,
+        text=True,
+        env={**__import__("os").environ, "QT_QPA_PLATFORM": "offscreen"},
+        timeout=120,
+    )
     assert r.returncode == 0, r.stderr
     import cv2
+
     img = cv2.imread(str(out))
     assert img.shape[:2] == (600, 900)
     assert img[100:500, 200:700].std() > 10  # the scene is drawn, not an empty canvas
@@ -143,10 +160,20 @@ def test_screenshot_command(tmp_path):
 def test_band_choice_on_a_multiband_scene(win, tmp_path):
     import rasterio
     from affine import Affine
+
     p = tmp_path / "four.tif"
     data = (np.random.default_rng(1).random((4, 64, 80)) * 1000).astype(np.uint16)
-    with rasterio.open(p, "w", driver="GTiff", width=80, height=64, count=4, dtype="uint16", crs="EPSG:32631",
-                       transform=Affine(2, 0, 500000, 0, -2, 6000000)) as dst:
+    with rasterio.open(
+        p,
+        "w",
+        driver="GTiff",
+        width=80,
+        height=64,
+        count=4,
+        dtype="uint16",
+        crs="EPSG:32631",
+        transform=Affine(2, 0, 500000, 0, -2, 6000000),
+    ) as dst:
         dst.write(data)
     assert win.open_path(str(p))
     assert win.canvas.loader.contrast.bands == (1, 2, 3)

@@ -18,12 +18,14 @@ CORE = ["physics", "scene", "detect", "synth", "evidence", "project", "cli"]
 def test_core_layer_does_not_import_qt(layer):
     if not (PKG / layer / "__init__.py").exists():
         pytest.fail(f"layer {layer} missing")
-    code = (f"import sys, importlib, pkgutil\n"
-            f"import wakemeter.{layer} as m\n"
-            f"for i in pkgutil.walk_packages(m.__path__, m.__name__ + '.'):\n"
-            f"    importlib.import_module(i.name)\n"
-            f"bad = [k for k in sys.modules if k.split('.')[0] in ('PySide6', 'PyQt5', 'PyQt6', 'pyqtgraph')]\n"
-            f"print(bad); sys.exit(1 if bad else 0)\n")
+    code = (
+        f"import sys, importlib, pkgutil\n"
+        f"import wakemeter.{layer} as m\n"
+        f"for i in pkgutil.walk_packages(m.__path__, m.__name__ + '.'):\n"
+        f"    importlib.import_module(i.name)\n"
+        f"bad = [k for k in sys.modules if k.split('.')[0] in ('PySide6', 'PyQt5', 'PyQt6', 'pyqtgraph')]\n"
+        f"print(bad); sys.exit(1 if bad else 0)\n"
+    )
     r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
     assert r.returncode == 0, r.stdout + r.stderr
 
@@ -40,11 +42,22 @@ def _imports(path: Path) -> set[str]:
     return out
 
 
-@pytest.mark.parametrize("layer, forbidden", [("detect", "synth"), ("physics", "scene"), ("physics", "detect"),
-                                              ("scene", "detect"), ("detect", "evidence"), ("detect", "app"),
-                                              # the GUI draws what the analysis computed; it evaluates no
-                                              # wave physics of its own
-                                              ("app", "dispersion"), ("app", "kelvin"), ("app", "havelock")])
+@pytest.mark.parametrize(
+    "layer, forbidden",
+    [
+        ("detect", "synth"),
+        ("physics", "scene"),
+        ("physics", "detect"),
+        ("scene", "detect"),
+        ("detect", "evidence"),
+        ("detect", "app"),
+        # the GUI draws what the analysis computed; it evaluates no
+        # wave physics of its own
+        ("app", "dispersion"),
+        ("app", "kelvin"),
+        ("app", "havelock"),
+    ],
+)
 def test_dependencies_point_one_way(layer, forbidden):
     for f in (PKG / layer).rglob("*.py"):
         for imp in _imports(f):

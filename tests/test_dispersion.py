@@ -92,7 +92,7 @@ def test_starting_value_bound_used_by_solver():
 def test_round_trip_omega_k(omega, h):
     # Self-consistency: k from omega satisfies omega^2 = g k tanh(k h).
     k = d.wavenumber_from_frequency(omega, h, g=G)
-    assert G * k * np.tanh(k * h) == pytest.approx(omega ** 2, rel=1e-10)
+    assert G * k * np.tanh(k * h) == pytest.approx(omega**2, rel=1e-10)
 
 
 @settings(max_examples=200, deadline=None)
@@ -119,6 +119,7 @@ def test_table_lookup_of_the_steady_wavenumber_matches_the_solver():
     # Against the Newton solver of this module (itself checked against CEM and Dean & Dalrymple above): the
     # table look-up used in the spectral fits must agree to 1e-6 and give NaN exactly where no steady wave exists.
     from wakemeter.physics.dispersion import steady_wavenumber, steady_wavenumber_fast
+
     rng = np.random.default_rng(3)
     u = rng.uniform(0.5, 25.0, 50_000)
     th = rng.uniform(0.0, 89.0, 50_000)

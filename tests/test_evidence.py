@@ -29,8 +29,14 @@ def exported(tmp_path_factory):
     out = tmp_path_factory.mktemp("evidence")
     with open_scene(SCENE) as sc:
         a = analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0)))
-        files = export_evidence(sc, a, out, analyst="R. Fenwick", parameters={"vessel": "-35.0,36.0"},
-                                exported_at="2026-06-20T09:00:00+00:00")
+        files = export_evidence(
+            sc,
+            a,
+            out,
+            analyst="R. Fenwick",
+            parameters={"vessel": "-35.0,36.0"},
+            exported_at="2026-06-20T09:00:00+00:00",
+        )
     return a, files, out
 
 
@@ -51,9 +57,19 @@ def test_pdf_pages_and_text(exported):
     assert len(reader.pages) >= 2
     text = " ".join(p.extract_text() for p in reader.pages)
     flat = " ".join(text.split())
-    for needle in ("Wake speed estimate", "95 % interval", "Heading", "Methods", "Provenance", "SHA-256",
-                   "R. Fenwick", "licensed professionals", "not certified", "Wake lines through the vessel",
-                   "Kelvin arms at"):
+    for needle in (
+        "Wake speed estimate",
+        "95 % interval",
+        "Heading",
+        "Methods",
+        "Provenance",
+        "SHA-256",
+        "R. Fenwick",
+        "licensed professionals",
+        "not certified",
+        "Wake lines through the vessel",
+        "Kelvin arms at",
+    ):
         assert needle in flat, needle
 
 
@@ -70,10 +86,10 @@ def test_png_size_and_arm_colour_where_the_arms_are(exported):
     for t in np.linspace(0.2, 0.9, 8):  # along the drawn arm
         x, y = int(x0 + t * (x1 - x0)) - c0, int(y0 + t * (y1 - y0)) - r0
         if 0 <= y < img.shape[0] and 0 <= x < img.shape[1]:
-            patch = img[max(y - 2, 0):y + 3, max(x - 2, 0):x + 3].reshape(-1, 3).astype(int)
+            patch = img[max(y - 2, 0) : y + 3, max(x - 2, 0) : x + 3].reshape(-1, 3).astype(int)
             hits += bool(np.any(np.abs(patch - arm).sum(axis=1) < 60))
     assert hits >= 5
-    far = img[-40:, img.shape[1] // 2:].reshape(-1, 3).astype(int)  # a corner away from the arms
+    far = img[-40:, img.shape[1] // 2 :].reshape(-1, 3).astype(int)  # a corner away from the arms
     assert not np.any(np.abs(far - arm).sum(axis=1) < 30)
 
 
@@ -82,8 +98,14 @@ def test_second_export_is_identical_and_overwrite_needs_force(exported, tmp_path
     with open_scene(SCENE) as sc:
         with pytest.raises(SceneWriteError, match="already exist"):
             export_evidence(sc, a, out)
-        again = export_evidence(sc, analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0))), tmp_path, analyst="R. Fenwick",
-                                parameters={"vessel": "-35.0,36.0"}, exported_at="2026-06-20T09:00:00+00:00")
+        again = export_evidence(
+            sc,
+            analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0))),
+            tmp_path,
+            analyst="R. Fenwick",
+            parameters={"vessel": "-35.0,36.0"},
+            exported_at="2026-06-20T09:00:00+00:00",
+        )
     assert again.image.read_bytes() == files.image.read_bytes()
     assert json.loads(again.data.read_text())["result"] == json.loads(files.data.read_text())["result"]
 
@@ -100,6 +122,7 @@ def test_read_only_folder_fails_cleanly(tmp_path, monkeypatch):
         monkeypatch.undo()
         # a failure half-way (the PDF writer breaks) leaves nothing behind
         import wakemeter.evidence.export as ex
+
         monkeypatch.setattr(ex, "write_pdf", lambda *a_, **k: (_ for _ in ()).throw(OSError(28, "No space left")))
         with pytest.raises(SceneWriteError, match="No space"):
             export_evidence(sc, a, ro)

@@ -69,9 +69,11 @@ def test_frame_bearing_agrees_with_long_geodesic_on_rotated_and_flipped_grids():
     # Self-consistency with pyproj.Geod: the local frame's bearing of an image direction equals the
     # geodesic azimuth between the two pixels 200 px apart (rotation, shear and flips included).
     geod = Geod(ellps="WGS84")
-    for t in (Affine.translation(400_000, 6_500_000) @ Affine.rotation(-40) @ Affine.scale(2.0, -2.0),
-              Affine.translation(400_000, 6_500_000) @ Affine.shear(10, 0) @ Affine.scale(2.0, -2.5),
-              Affine(2.0, 0, 400_000, 0, 2.0, 6_500_000)):  # flipped: rows grow northward
+    for t in (
+        Affine.translation(400_000, 6_500_000) @ Affine.rotation(-40) @ Affine.scale(2.0, -2.0),
+        Affine.translation(400_000, 6_500_000) @ Affine.shear(10, 0) @ Affine.scale(2.0, -2.5),
+        Affine(2.0, 0, 400_000, 0, 2.0, 6_500_000),
+    ):  # flipped: rows grow northward
         georef = gd.GeoRef(t, "EPSG:32631")
         f = gd.local_frame(georef, 500, 500)
         for dc, dr in ((1, 0), (0, -1), (3, 4), (-2, 1)):
@@ -118,8 +120,15 @@ def test_bad_georeference():
         gd.GeoRef(Affine.identity(), "EPSG:99999999")
 
 
-@pytest.mark.parametrize("lon, lat, code", [(-35.0, 36.0, "EPSG:32625"), (-20.0, -41.0, "EPSG:32727"),
-                                            (179.9, 10.0, "EPSG:32660"), (-180.0, 10.0, "EPSG:32601")])
+@pytest.mark.parametrize(
+    "lon, lat, code",
+    [
+        (-35.0, 36.0, "EPSG:32625"),
+        (-20.0, -41.0, "EPSG:32727"),
+        (179.9, 10.0, "EPSG:32660"),
+        (-180.0, 10.0, "EPSG:32601"),
+    ],
+)
 def test_utm_zone(lon, lat, code):
     # Source: the standard 6-degree UTM zones (common practice, from memory: zone = floor((lon+180)/6)+1).
     assert gd.utm_crs_for(lon, lat) == code

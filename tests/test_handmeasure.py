@@ -32,7 +32,10 @@ def test_track_bearing_on_demo():
         assert h.bearing_deg == pytest.approx(62.0, abs=0.1)
         assert h.length_m == pytest.approx(400.0, rel=1e-3)
         a = np.radians(19.47)
-        arm_end = (vessel[0] - 200 * (np.cos(a) * dc - np.sin(a) * dr), vessel[1] - 200 * (np.cos(a) * dr + np.sin(a) * dc))
+        arm_end = (
+            vessel[0] - 200 * (np.cos(a) * dc - np.sin(a) * dr),
+            vessel[1] - 200 * (np.cos(a) * dr + np.sin(a) * dc),
+        )
         ang, sd = hm.angle_to_track(sc, (wake_end, vessel), (vessel, arm_end))
         assert ang == pytest.approx(19.47, abs=0.2) and sd > 0
 

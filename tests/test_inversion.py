@@ -25,9 +25,16 @@ FIXED_G = Conditions(g_mps2=Uncertain(G, 0.0))
 def test_linear_case_matches_gum():
     # Source: JCGM 100:2008 (GUM) eq. (10): for the linear model v_r = -(V/R) dx with V, R
     # exact, u(v_r) = (V/R) u(dx).  JCGM 101:2008: Monte Carlo must reproduce it.
-    est = speed_from_radar_offset(Uncertain(-400.0, 20.0), Uncertain(800_000.0, 0.0), Uncertain(7_500.0, 0.0),
-                                  incidence_deg=90 - 1e-9, heading_deg=Uncertain(90.0, 0.0), look_bearing_deg=90.0,
-                                  draws=200_000, seed=1)
+    est = speed_from_radar_offset(
+        Uncertain(-400.0, 20.0),
+        Uncertain(800_000.0, 0.0),
+        Uncertain(7_500.0, 0.0),
+        incidence_deg=90 - 1e-9,
+        heading_deg=Uncertain(90.0, 0.0),
+        look_bearing_deg=90.0,
+        draws=200_000,
+        seed=1,
+    )
     vr = 7500 / 800_000 * 400
     u = 7500 / 800_000 * 20
     assert est.speed_mps == pytest.approx(vr, rel=2e-3)
@@ -48,8 +55,9 @@ def test_transverse_wavelength_first_order_gum():
 def test_pixel_and_gravity_uncertainty_enter():
     # Self-consistency: more input uncertainty gives a wider interval (pixel scale and gravity).
     base = speed_from_transverse_wavelength(Uncertain(64.0, 0.1), FIXED_G, seed=3)
-    px = speed_from_transverse_wavelength(Uncertain(64.0, 0.1), Conditions(g_mps2=Uncertain(G, 0.0),
-                                                                           pixel_scale_rel_std=0.02), seed=3)
+    px = speed_from_transverse_wavelength(
+        Uncertain(64.0, 0.1), Conditions(g_mps2=Uncertain(G, 0.0), pixel_scale_rel_std=0.02), seed=3
+    )
     gr = speed_from_transverse_wavelength(Uncertain(64.0, 0.1), Conditions(g_mps2=Uncertain(G, 0.05)), seed=3)
     assert px.std_mps > 5 * base.std_mps
     assert px.std_mps == pytest.approx(10.0 * 0.01, rel=0.1)  # U ~ sqrt(scale): half the relative error
@@ -75,12 +83,14 @@ def test_coverage_of_95_percent_intervals():
 
 def test_finite_depth_speed_and_crest_angle():
     # Source: guide table [computed]: U = 10 m/s, h = 11.295 m -> lambda_t = 123.32 m.
-    est = speed_from_transverse_wavelength(Uncertain(123.32, 0.3), Conditions(g_mps2=Uncertain(G, 0),
-                                                                              depth_m=Uncertain(11.295, 0.0)))
+    est = speed_from_transverse_wavelength(
+        Uncertain(123.32, 0.3), Conditions(g_mps2=Uncertain(G, 0), depth_m=Uncertain(11.295, 0.0))
+    )
     assert est.speed_mps == pytest.approx(10.0, abs=0.01)
     # crest at 35.26 deg in deep water: lambda = (2/3) lambda_t
-    c = speed_from_crest_wavelength(Uncertain(64.049 * 2 / 3, 0.2), Uncertain(kelvin.CUSP_PROPAGATION_DEG, 0.5),
-                                    FIXED_G)
+    c = speed_from_crest_wavelength(
+        Uncertain(64.049 * 2 / 3, 0.2), Uncertain(kelvin.CUSP_PROPAGATION_DEG, 0.5), FIXED_G
+    )
     assert c.speed_mps == pytest.approx(10.0, abs=0.01)
     assert any("propagation angle" in a for a in c.assumptions)
 
@@ -88,7 +98,8 @@ def test_finite_depth_speed_and_crest_angle():
 def test_joint_speed_and_depth():
     # Self-consistency with the guide value: U = 10, Fr_h = 0.95 -> lambda_t = 123.32 m, half-angle 46.10 deg.
     est, depth = speed_and_depth_from_transverse_wavelength_and_half_angle(
-        Uncertain(123.32, 0.5), Uncertain(46.10, 0.3), FIXED_G, seed=4)
+        Uncertain(123.32, 0.5), Uncertain(46.10, 0.3), FIXED_G, seed=4
+    )
     assert est.speed_mps == pytest.approx(10.0, abs=0.05)
     assert depth.depth_m == pytest.approx(11.295, abs=0.1)
     assert depth.ci95_low_m < 11.295 < depth.ci95_high_m
@@ -101,13 +112,13 @@ def test_combination_consistent_and_not():
     b = speed_from_transverse_wavelength(Uncertain(64.05, 1.0), FIXED_G)
     ok = combine_estimates([a, b])
     assert ok.consistent and ok.outlier is None
-    w = np.array([1 / a.std_mps ** 2, 1 / b.std_mps ** 2])
+    w = np.array([1 / a.std_mps**2, 1 / b.std_mps**2])
     assert ok.speed_mps == pytest.approx(np.sum(w * [a.speed_mps, b.speed_mps]) / w.sum())
     bad = speed_from_spectral_fit(Uncertain(14.0, 0.3), FIXED_G)
     res = combine_estimates([a, b, bad])
     assert not res.consistent and res.outlier == "spectral fit" and "DISAGREE" in res.verdict
     assert res.p_value == pytest.approx(stats.chi2.sf(res.chi2, 2))
-    plain = np.sqrt(1 / (1 / a.std_mps ** 2 + 1 / b.std_mps ** 2 + 1 / bad.std_mps ** 2))
+    plain = np.sqrt(1 / (1 / a.std_mps**2 + 1 / b.std_mps**2 + 1 / bad.std_mps**2))
     assert res.std_mps > plain  # inflated, not hidden
 
 
@@ -127,15 +138,21 @@ def test_depth_regime_paths():
     assert assess_depth_regime().regime == "unknown"
 
 
-@pytest.mark.parametrize("call, match", [
-    (lambda: speed_from_transverse_wavelength(Uncertain(-3.0, 1.0)), "wavelength"),
-    (lambda: Uncertain(float("nan"), 1.0), "finite"),
-    (lambda: Uncertain(3.0, -1.0), "uncertainty"),
-    (lambda: Conditions(depth_m=Uncertain(0.0, 0.0)), "depth_m"),
-    (lambda: speed_from_crest_wavelength(Uncertain(30.0, 1.0), Uncertain(95.0, 1.0)), "angle"),
-    (lambda: speed_and_depth_from_transverse_wavelength_and_half_angle(Uncertain(60, 1), Uncertain(15, 1)), "half_angle"),
-    (lambda: speed_from_transverse_wavelength(Uncertain(60.0, 1.0), draws=5), "draws"),
-])
+@pytest.mark.parametrize(
+    "call, match",
+    [
+        (lambda: speed_from_transverse_wavelength(Uncertain(-3.0, 1.0)), "wavelength"),
+        (lambda: Uncertain(float("nan"), 1.0), "finite"),
+        (lambda: Uncertain(3.0, -1.0), "uncertainty"),
+        (lambda: Conditions(depth_m=Uncertain(0.0, 0.0)), "depth_m"),
+        (lambda: speed_from_crest_wavelength(Uncertain(30.0, 1.0), Uncertain(95.0, 1.0)), "angle"),
+        (
+            lambda: speed_and_depth_from_transverse_wavelength_and_half_angle(Uncertain(60, 1), Uncertain(15, 1)),
+            "half_angle",
+        ),
+        (lambda: speed_from_transverse_wavelength(Uncertain(60.0, 1.0), draws=5), "draws"),
+    ],
+)
 def test_bad_input_names_parameter(call, match):
     with pytest.raises(ParameterError, match=match):
         call()
@@ -145,7 +162,8 @@ def test_long_transverse_waves_in_shallow_water_stay_subcritical():
     # Source: Dean & Dalrymple ch. 3: in depth h every wave travels slower than sqrt(g h), so
     # transverse waves (c = U) bound the speed from below sqrt(g h) and the regime is near-critical.
     h = 3.0
-    est = speed_from_transverse_wavelength(Uncertain(200.0, 1.0), Conditions(g_mps2=Uncertain(G, 0),
-                                                                            depth_m=Uncertain(h, 0.0)))
+    est = speed_from_transverse_wavelength(
+        Uncertain(200.0, 1.0), Conditions(g_mps2=Uncertain(G, 0), depth_m=Uncertain(h, 0.0))
+    )
     assert est.ci95_high_mps < np.sqrt(G * h)
     assert assess_depth_regime(speed=est, depth_m=Uncertain(h, 0.01), g=G).regime == "near-critical"

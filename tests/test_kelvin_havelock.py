@@ -46,8 +46,20 @@ def test_finite_depth_transverse_wavelength():
     assert np.isnan(kelvin.transverse_wavelength(10.0, 5.0, g=G))  # supercritical: none
 
 
-@pytest.mark.parametrize("fr, angle", [(0.5, 19.48), (0.7, 20.53), (0.8, 24.32), (0.9, 34.62), (0.95, 46.10),
-                                       (0.99, 67.89), (1.2, 56.44), (1.5, 41.81), (2.0, 30.00)])
+@pytest.mark.parametrize(
+    "fr, angle",
+    [
+        (0.5, 19.48),
+        (0.7, 20.53),
+        (0.8, 24.32),
+        (0.9, 34.62),
+        (0.95, 46.10),
+        (0.99, 67.89),
+        (1.2, 56.44),
+        (1.5, 41.81),
+        (2.0, 30.00),
+    ],
+)
 def test_havelock_half_angle(fr, angle):
     # Source: guide table, computed independently from Havelock (1908) stationarity condition;
     # supercritical values are arcsin(1/Fr_h).  Required agreement 0.05 deg.

@@ -35,9 +35,13 @@ def demo():
 
 
 def test_request_round_trip_and_checks():
-    req = AnalysisRequest(vessel_lonlat=(-35.0, 36.0), depth=inv.Uncertain(12.0, 1.5), hull_length_m=30.0,
-                          radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0, slant_range_std_m=500.0),
-                          seed=7)
+    req = AnalysisRequest(
+        vessel_lonlat=(-35.0, 36.0),
+        depth=inv.Uncertain(12.0, 1.5),
+        hull_length_m=30.0,
+        radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0, slant_range_std_m=500.0),
+        seed=7,
+    )
     assert AnalysisRequest.from_json(json.loads(json.dumps(req.to_json()))) == req
     with pytest.raises(ParameterError, match="slant range must be > 0"):
         RadarGeometry(0, 0, 0, 0)

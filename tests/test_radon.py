@@ -26,12 +26,22 @@ def test_gaussian_blobs_match_analytic_projection():
     yy, xx = np.mgrid[:n, :n]
     x, y = xx - n // 2, n // 2 - yy
     blobs = [(30, -20, 3.0, 1.0), (-50, 40, 5.0, 2.0), (10, 60, 2.0, 1.5)]
-    img = sum(a * np.exp(-((x - x0) ** 2 + (y - y0) ** 2) / (2 * s ** 2)) for x0, y0, s, a in blobs)
+    img = sum(a * np.exp(-((x - x0) ** 2 + (y - y0) ** 2) / (2 * s**2)) for x0, y0, s, a in blobs)
     th = np.arange(0, 180, 7.0)
     t = np.arange(n) - n // 2
-    exact = np.stack([sum(a * np.sqrt(2 * np.pi) * s * np.exp(
-        -(t - (x0 * np.cos(np.radians(q)) + y0 * np.sin(np.radians(q)))) ** 2 / (2 * s ** 2))
-        for x0, y0, s, a in blobs) for q in th], axis=1)
+    exact = np.stack(
+        [
+            sum(
+                a
+                * np.sqrt(2 * np.pi)
+                * s
+                * np.exp(-((t - (x0 * np.cos(np.radians(q)) + y0 * np.sin(np.radians(q)))) ** 2) / (2 * s**2))
+                for x0, y0, s, a in blobs
+            )
+            for q in th
+        ],
+        axis=1,
+    )
     ours = radon(img, th)
     assert np.abs(ours - exact).max() / exact.max() < 0.006
     ref = sk_radon(_disc(img), th, circle=True)

@@ -22,12 +22,23 @@ ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
 
 
-def _write(path, data, *, crs="EPSG:32631", transform=Affine(2, 0, 500_000, 0, -2, 6_000_000), **kw):
+UTM_2M = Affine(2, 0, 500_000, 0, -2, 6_000_000)
+
+
+def _write(path, data, *, crs="EPSG:32631", transform=UTM_2M, **kw):
     data = np.asarray(data)
     if data.ndim == 2:
         data = data[None]
-    prof = {"driver": "GTiff", "width": data.shape[2], "height": data.shape[1], "count": data.shape[0],
-            "dtype": data.dtype.name, "crs": crs, "transform": transform, **kw}
+    prof = {
+        "driver": "GTiff",
+        "width": data.shape[2],
+        "height": data.shape[1],
+        "count": data.shape[0],
+        "dtype": data.dtype.name,
+        "crs": crs,
+        "transform": transform,
+        **kw,
+    }
     with rasterio.open(path, "w", **prof) as dst:
         dst.write(data)
     return Path(path)
@@ -42,6 +53,7 @@ def test_open_demo_scene_metadata():
         f = sc.local_frame()
         assert f.m_per_col == pytest.approx(2.0, rel=1e-6)
         import hashlib
+
         assert sc.sha256() == hashlib.sha256(DEMO.read_bytes()).hexdigest()
 
 
@@ -95,6 +107,7 @@ def test_pyramid_built_in_cache_with_progress_and_cancel(tmp_path, monkeypatch):
         def cancel_soon():
             calls["n"] += 1
             return calls["n"] > 3
+
         with pytest.raises(CancelledError):
             pyramid.ensure_pyramid(sc, cancelled=cancel_soon)
         assert not list((tmp_path / "cache").rglob("*.part"))
@@ -111,6 +124,7 @@ def test_pyramid_built_in_cache_with_progress_and_cancel(tmp_path, monkeypatch):
 
 def test_ungeoreferenced_png_opens_with_flag(tmp_path):
     import cv2
+
     img = (np.arange(64 * 48) % 251).reshape(48, 64).astype(np.uint8)
     p = tmp_path / "plain.png"
     cv2.imwrite(str(p), img)
@@ -121,6 +135,7 @@ def test_ungeoreferenced_png_opens_with_flag(tmp_path):
         d, _ = sc.read()
         assert np.array_equal(d[0], img)
         from wakemeter.scene import geodesy
+
         sc.calibrate(geodesy.calibrated_frame(pixel_size_m=geodesy.pixel_size_from_two_points((0, 0), (0, 40), 20.0)))
         f = sc.local_frame(3, 3)
         assert f.m_per_col == 0.5 and not f.north_known
@@ -128,8 +143,11 @@ def test_ungeoreferenced_png_opens_with_flag(tmp_path):
 
 
 def test_engineering_crs_is_flagged_not_crashing(tmp_path):
-    p = _write(tmp_path / "local.tif", np.zeros((8, 8), np.uint8),
-               crs='LOCAL_CS["site grid",LOCAL_DATUM["none",0],UNIT["metre",1],AXIS["X",EAST],AXIS["Y",NORTH]]')
+    p = _write(
+        tmp_path / "local.tif",
+        np.zeros((8, 8), np.uint8),
+        crs='LOCAL_CS["site grid",LOCAL_DATUM["none",0],UNIT["metre",1],AXIS["X",EAST],AXIS["Y",NORTH]]',
+    )
     with open_scene(p) as sc:
         assert not sc.info.georeferenced and "unusable" in sc.info.georeference_note
 
@@ -204,9 +222,14 @@ def test_info_and_quicklook_commands(tmp_path, capsys):
     assert s["bounds_wgs84"]["west"] < -35.0 < s["bounds_wgs84"]["east"] or s["bounds_wgs84"]["west"] < -34.99
     assert s["overviews"] == []
     out = tmp_path / "q.png"
-    assert main(["quicklook", str(ROOT / "sample_scenes" / "outer_roads_radar.tif"), "--out", str(out),
-                 "--max-size", "200"]) == 0
+    assert (
+        main(
+            ["quicklook", str(ROOT / "sample_scenes" / "outer_roads_radar.tif"), "--out", str(out), "--max-size", "200"]
+        )
+        == 0
+    )
     import cv2
+
     q = cv2.imread(str(out), cv2.IMREAD_UNCHANGED)
     assert q.shape == (200, 200) and q.std() > 10
     assert main(["info", str(tmp_path / "nope.tif")]) == 2
@@ -220,6 +243,7 @@ def test_multilook_speckle_is_recognised_as_radar(looks):
     # barely above its median at 6-10 looks, so the mean/median rule alone misses it; the local
     # spread-grows-with-mean rule must catch it.  Float reflectance with additive noise must not pass.
     from wakemeter.scene.display import looks_like_radar
+
     rng = np.random.default_rng(looks)
     texture = 1.0 + 0.3 * np.sin(np.arange(100_000) / 40.0)
     speckle = rng.gamma(looks, 1.0 / looks, 100_000) * 0.05 * texture
@@ -256,6 +280,7 @@ def test_radar_in_decibels_is_recognised_and_analysed(tmp_path):
     assert a.wake_found and b.wake_found
     assert b.speed.speed_mps == pytest.approx(a.speed.speed_mps, rel=0.01)
     from wakemeter.detect.prepare import prepare_chip
+
     with open_scene(db_path) as b_sc:
         chip = prepare_chip(b_sc, pos, size_px=256)
     assert chip.radar  # radar-only steps (narrow V, displaced hull) stay on for data in dB

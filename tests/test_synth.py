@@ -32,10 +32,10 @@ G = 9.81
 def _profile_wavelength(profile: np.ndarray, dx: float) -> float:
     """Dominant wavelength of a 1-D profile: zero-padded FFT peak with parabolic interpolation."""
     p = (profile - profile.mean()) * np.hanning(profile.size)
-    n = 2 ** 16
+    n = 2**16
     sp = np.abs(np.fft.rfft(p, n))
     i = int(np.argmax(sp[5:])) + 5
-    a, b, c = np.log(sp[i - 1:i + 2])
+    a, b, c = np.log(sp[i - 1 : i + 2])
     return 1.0 / ((i + 0.5 * (a - c) / (a - 2 * b + c)) / (n * dx))
 
 
@@ -43,9 +43,17 @@ def _profile_wavelength(profile: np.ndarray, dx: float) -> float:
 def test_transverse_wavelength_deep(u):
     # Self-consistency against lambda_t = 2 pi U^2 / g (Lamb 1932 sec. 256): within 1 %.
     n, L = 1024, 30.0
-    eta = kelvin_elevation((n // 2, n), dx_m=1.0, dy_m=1.0, vessel_xy_m=(n - 100, n // 4), speed_mps=u,
-                           heading_xy=(1, 0), hull=Hull(L, L / 5), g=G)
-    lam = _profile_wavelength(eta[n // 4, 50:int(n - 100 - 3 * L)], 1.0)
+    eta = kelvin_elevation(
+        (n // 2, n),
+        dx_m=1.0,
+        dy_m=1.0,
+        vessel_xy_m=(n - 100, n // 4),
+        speed_mps=u,
+        heading_xy=(1, 0),
+        hull=Hull(L, L / 5),
+        g=G,
+    )
+    lam = _profile_wavelength(eta[n // 4, 50 : int(n - 100 - 3 * L)], 1.0)
     assert lam == pytest.approx(kelvin.transverse_wavelength(u, g=G), rel=0.01)
 
 
@@ -53,9 +61,18 @@ def test_transverse_wavelength_finite_depth():
     # Self-consistency against the finite-depth dispersion (Havelock 1908): within 2 %.
     n, L, u = 1024, 30.0, 6.0
     h = (u / 0.8) ** 2 / G
-    eta = kelvin_elevation((n // 2, n), dx_m=1.0, dy_m=1.0, vessel_xy_m=(n - 100, n // 4), speed_mps=u,
-                           heading_xy=(1, 0), hull=Hull(L, L / 5), g=G, depth_m=h)
-    lam = _profile_wavelength(eta[n // 4, 50:int(n - 100 - 3 * L)], 1.0)
+    eta = kelvin_elevation(
+        (n // 2, n),
+        dx_m=1.0,
+        dy_m=1.0,
+        vessel_xy_m=(n - 100, n // 4),
+        speed_mps=u,
+        heading_xy=(1, 0),
+        hull=Hull(L, L / 5),
+        g=G,
+        depth_m=h,
+    )
+    lam = _profile_wavelength(eta[n // 4, 50 : int(n - 100 - 3 * L)], 1.0)
     expected = kelvin.transverse_wavelength(u, h, g=G)
     assert expected > 1.1 * kelvin.transverse_wavelength(u, g=G)  # depth matters here
     assert lam == pytest.approx(expected, rel=0.02)
@@ -64,9 +81,18 @@ def test_transverse_wavelength_finite_depth():
 def _wedge_angle(depth_m: float) -> float:
     """Edge of the wave envelope (20 % of the strongest at each distance), fitted as a line."""
     n, dx, u = 1024, 2.0, 6.0
-    eta = kelvin_elevation((n, n), dx_m=dx, dy_m=dx, vessel_xy_m=((n - 50) * dx, n // 2 * dx), speed_mps=u,
-                           heading_xy=(1, 0), hull=Hull(30, 6), g=G, depth_m=depth_m)
-    env = np.sqrt(uniform_filter(eta ** 2, 9))
+    eta = kelvin_elevation(
+        (n, n),
+        dx_m=dx,
+        dy_m=dx,
+        vessel_xy_m=((n - 50) * dx, n // 2 * dx),
+        speed_mps=u,
+        heading_xy=(1, 0),
+        hull=Hull(30, 6),
+        g=G,
+        depth_m=depth_m,
+    )
+    env = np.sqrt(uniform_filter(eta**2, 9))
     ds = np.arange(400, 1600, 50)
     ys = []
     for dist in ds:
@@ -90,8 +116,16 @@ def test_wedge_follows_havelock(fr):
 def test_waves_behind_never_ahead():
     # Source: Lamb 1932 sec. 248 (Rayleigh's damping selects waves trailing the disturbance).
     n, hd = 1024, np.radians(30)
-    eta = kelvin_elevation((n, n), dx_m=2.0, dy_m=2.0, vessel_xy_m=(1024, 1024), speed_mps=7.0,
-                           heading_xy=(np.cos(hd), np.sin(hd)), hull=Hull(40, 8), g=G)
+    eta = kelvin_elevation(
+        (n, n),
+        dx_m=2.0,
+        dy_m=2.0,
+        vessel_xy_m=(1024, 1024),
+        speed_mps=7.0,
+        heading_xy=(np.cos(hd), np.sin(hd)),
+        hull=Hull(40, 8),
+        g=G,
+    )
     yy, xx = np.mgrid[0:n, 0:n]
     along = (xx - 512) * 2 * np.cos(hd) - (yy - 512) * 2 * np.sin(hd)
     ahead = np.sqrt(np.mean(eta[along > 60] ** 2))
@@ -104,8 +138,16 @@ def test_true_heading_in_both_hemispheres_and_at_zone_edge(lon, lat):
     # Reference library: pyproj.Geod (Karney 2013).  The truth heading must match the geodesic
     # bearing between the vessel and a point 500 m along its track, read back from the raster grid.
     heading = 37.0
-    spec = SceneSpec(256, 256, 10.0, lon, lat, (VesselSpec("Probe", lon, lat, 5.0, heading, Hull(20, 5)),),
-                     OpticalModel(noise_std=0), seed=3)
+    spec = SceneSpec(
+        256,
+        256,
+        10.0,
+        lon,
+        lat,
+        (VesselSpec("Probe", lon, lat, 5.0, heading, Hull(20, 5)),),
+        OpticalModel(noise_std=0),
+        seed=3,
+    )
     sc = render(spec)
     v = sc.truth["vessels"][0]
     frame = geodesy.local_frame(sc.georef, v["pixel_col"], v["pixel_row"])
@@ -121,8 +163,16 @@ def test_true_heading_in_both_hemispheres_and_at_zone_edge(lon, lat):
 
 def test_rendered_wake_trails_opposite_heading():
     # Self-consistency: the wave energy in the image lies behind the vessel along the true heading.
-    spec = SceneSpec(512, 512, 3.0, -31.5, 38.2, (VesselSpec("Probe", -31.5, 38.2, 6.0, 300.0, Hull(30, 6)),),
-                     OpticalModel(noise_std=0, foam=0), seed=1)
+    spec = SceneSpec(
+        512,
+        512,
+        3.0,
+        -31.5,
+        38.2,
+        (VesselSpec("Probe", -31.5, 38.2, 6.0, 300.0, Hull(30, 6)),),
+        OpticalModel(noise_std=0, foam=0),
+        seed=1,
+    )
     sc = render(spec)
     img = sc.data[0].astype(float)
     v = sc.truth["vessels"][0]
@@ -135,8 +185,9 @@ def test_rendered_wake_trails_opposite_heading():
 
 
 def test_geographic_crs_option():
-    spec = SceneSpec(128, 128, 10.0, -31.5, 38.2, (VesselSpec("Probe", -31.5, 38.2, 5.0, 90.0, Hull(20, 5)),),
-                     crs="EPSG:4326")
+    spec = SceneSpec(
+        128, 128, 10.0, -31.5, 38.2, (VesselSpec("Probe", -31.5, 38.2, 5.0, 90.0, Hull(20, 5)),), crs="EPSG:4326"
+    )
     sc = render(spec)
     f = geodesy.local_frame(sc.georef, 64, 64)
     assert sc.georef.crs == "EPSG:4326"
@@ -145,8 +196,18 @@ def test_geographic_crs_option():
 
 def test_determinism_sizes_dtypes_and_sidecar(tmp_path):
     def spec(seed, imaging):
-        return SceneSpec(160, 96, 4.0, -31.5, 38.2, (VesselSpec("Probe", -31.5, 38.2, 5.0, 45.0, Hull(20, 5)),),
-                         imaging, sea=AmbientSea(40.0, 10.0, 6.0, 0.4), seed=seed)
+        return SceneSpec(
+            160,
+            96,
+            4.0,
+            -31.5,
+            38.2,
+            (VesselSpec("Probe", -31.5, 38.2, 5.0, 45.0, Hull(20, 5)),),
+            imaging,
+            sea=AmbientSea(40.0, 10.0, 6.0, 0.4),
+            seed=seed,
+        )
+
     (tmp_path / "one").mkdir()
     (tmp_path / "two").mkdir()
     a1, _ = write(render(spec(7, RadarModel(looks=3))), tmp_path / "one" / "a.tif")
@@ -155,6 +216,7 @@ def test_determinism_sizes_dtypes_and_sidecar(tmp_path):
     assert a1.read_bytes() == a2.read_bytes()
     assert a1.read_bytes() != b.read_bytes()
     import rasterio
+
     with rasterio.open(a1) as ds:
         assert (ds.width, ds.height, ds.count, ds.dtypes[0]) == (160, 96, 1, "float32")
     o = render(spec(1, OpticalModel(dtype="uint16")))
@@ -165,18 +227,21 @@ def test_determinism_sizes_dtypes_and_sidecar(tmp_path):
     assert not list(tmp_path.rglob("*.part"))
 
 
-@pytest.mark.parametrize("make, match", [
-    (lambda: SceneSpec(16, 16, 1.0, 0, 0, ()), "width and height"),
-    (lambda: SceneSpec(64, 64, -1.0, 0, 0, ()), "pixel_m"),
-    (lambda: SceneSpec(64, 64, 1.0, 0, 0, (), depth_m=0.0), "depth_m"),
-    (lambda: SceneSpec(64, 64, 1.0, 0, 0, (), crs="EPSG:3857"), "crs"),
-    (lambda: VesselSpec("x", 0, 0, -2.0, 0), "speed_mps"),
-    (lambda: VesselSpec("x", 0, 95, 2.0, 0), "lon/lat"),
-    (lambda: Hull(-5, 2), "length_m"),
-    (lambda: OpticalModel(dtype="int8"), "dtype"),
-    (lambda: RadarModel(looks=0), "looks"),
-    (lambda: render(SceneSpec(64, 64, 1.0, -31.5, 38.2, (VesselSpec("far", -30.0, 38.2, 3.0, 0),))), "outside"),
-])
+@pytest.mark.parametrize(
+    "make, match",
+    [
+        (lambda: SceneSpec(16, 16, 1.0, 0, 0, ()), "width and height"),
+        (lambda: SceneSpec(64, 64, -1.0, 0, 0, ()), "pixel_m"),
+        (lambda: SceneSpec(64, 64, 1.0, 0, 0, (), depth_m=0.0), "depth_m"),
+        (lambda: SceneSpec(64, 64, 1.0, 0, 0, (), crs="EPSG:3857"), "crs"),
+        (lambda: VesselSpec("x", 0, 0, -2.0, 0), "speed_mps"),
+        (lambda: VesselSpec("x", 0, 95, 2.0, 0), "lon/lat"),
+        (lambda: Hull(-5, 2), "length_m"),
+        (lambda: OpticalModel(dtype="int8"), "dtype"),
+        (lambda: RadarModel(looks=0), "looks"),
+        (lambda: render(SceneSpec(64, 64, 1.0, -31.5, 38.2, (VesselSpec("far", -30.0, 38.2, 3.0, 0),))), "outside"),
+    ],
+)
 def test_invalid_parameters(make, match):
     with pytest.raises(ParameterError, match=match):
         make()
@@ -194,8 +259,10 @@ def test_demo_scenes_match_their_recipe(tmp_path):
     name = "outer_roads_radar"
     assert main(["synth", "--out", str(tmp_path / "x.tif"), "--size", "64", "--pixel", "5"]) == 0
     from wakemeter.synth import render, write
+
     tif, sidecar = write(render(demo_specs()[name]), tmp_path / f"{name}.tif")
     import rasterio
+
     with rasterio.open(tif) as new, rasterio.open(root / f"{name}.tif") as old:
         assert np.array_equal(new.read(), old.read())
         assert new.transform == old.transform and new.crs == old.crs

@@ -4,10 +4,10 @@ and natural textures from scikit-image's data module (reference images that are 
 A wake needs both a spectral significance >= 7 and a wake-side contrast >= 8 (analysis.py).  The
 thresholds were set with benchmarks/null_sweep.py on synthetic seeds 0-99 and the textures at three
 positions (354 trials, no alarm; largest significance 6.6) and the wake sweep (smallest contrast of
-a found wake 9.5).  Here other seeds and other positions are used.  Zero alarms in N trials bounds the false-alarm rate below 3/N at 95 %
+a found wake 9.5).  Here other seeds and other positions are used.  Zero alarms in N trials bounds the
+false-alarm rate below 3/N at 95 %
 (rule of three: Hanley & Lippman-Hand 1983, JAMA 249).
 """
-
 
 import pytest
 

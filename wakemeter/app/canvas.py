@@ -21,10 +21,16 @@ from .tiles import TILE, TileLoader, estimate_contrast
 
 # Our own palette (not borrowed from any program): calm blue-greys for chrome, clear hues for items.
 ITEM_COLOURS = {
-    "vessel": QColor(70, 230, 110), "track": QColor(255, 200, 0), "arm": QColor(255, 60, 170),
-    "crest": QColor(80, 200, 255), "ruler": QColor(240, 240, 240), "calibration": QColor(255, 140, 40),
-    "finding_track": QColor(255, 200, 0, 170), "finding_arm": QColor(255, 60, 170, 170),
-    "chip": QColor(120, 170, 255, 150), "crest_fit": QColor(80, 200, 255, 150),
+    "vessel": QColor(70, 230, 110),
+    "track": QColor(255, 200, 0),
+    "arm": QColor(255, 60, 170),
+    "crest": QColor(80, 200, 255),
+    "ruler": QColor(240, 240, 240),
+    "calibration": QColor(255, 140, 40),
+    "finding_track": QColor(255, 200, 0, 170),
+    "finding_arm": QColor(255, 60, 170, 170),
+    "chip": QColor(120, 170, 255, 150),
+    "crest_fit": QColor(80, 200, 255, 150),
     "finding_narrow_v": QColor(170, 255, 240, 190),
 }
 TOOLS = ("look", "vessel", "track", "arm", "crest", "ruler", "calibrate")
@@ -33,10 +39,13 @@ HANDLE_PX = 7
 
 #: how each kind of drawn segment of a finding looks: (colour key, pen width, dashed)
 SEGMENT_STYLES = {
-    SegmentKind.AREA: ("chip", 1, True), SegmentKind.TRACK: ("finding_track", 2, False),
-    SegmentKind.ARM_LEFT: ("finding_arm", 2, False), SegmentKind.ARM_RIGHT: ("finding_arm", 2, False),
+    SegmentKind.AREA: ("chip", 1, True),
+    SegmentKind.TRACK: ("finding_track", 2, False),
+    SegmentKind.ARM_LEFT: ("finding_arm", 2, False),
+    SegmentKind.ARM_RIGHT: ("finding_arm", 2, False),
     SegmentKind.HULL_SHIFT: ("vessel", 1, True),
-    SegmentKind.NARROW_V_LEFT: ("finding_narrow_v", 1, True), SegmentKind.NARROW_V_RIGHT: ("finding_narrow_v", 1, True),
+    SegmentKind.NARROW_V_LEFT: ("finding_narrow_v", 1, True),
+    SegmentKind.NARROW_V_RIGHT: ("finding_narrow_v", 1, True),
     SegmentKind.CREST: ("crest_fit", 1, False),
 }
 
@@ -56,9 +65,11 @@ class Canvas(QWidget):
         self.zoom = 1.0
         self.origin = QPointF(0, 0)
         self.tool = "look"
-        self._drag = None  # ("pan", start_screen, start_origin) | ("new", kind, p0, p1) | ("handle", id, idx, before)
+        self._drag: tuple | None = (
+            None  # ("pan", start_screen, start_origin) | ("new", kind, p0, p1) | ("handle", id, idx, before)
+        )
         self.setMouseTracking(True)
-        self.setFocusPolicy(Qt.StrongFocus)
+        self.setFocusPolicy(Qt.FocusPolicy.StrongFocus)
         self.setMinimumSize(320, 240)
         self.setAutoFillBackground(False)
         doc.scene_changed.connect(self._on_scene)
@@ -81,7 +92,9 @@ class Canvas(QWidget):
         if sc is None:
             return
         self.zoom = min(self.width() / sc.width, self.height() / sc.height) * 0.98
-        self.origin = QPointF(sc.width / 2 - self.width() / 2 / self.zoom, sc.height / 2 - self.height() / 2 / self.zoom)
+        self.origin = QPointF(
+            sc.width / 2 - self.width() / 2 / self.zoom, sc.height / 2 - self.height() / 2 / self.zoom
+        )
         self.zoom_changed.emit(self.zoom)
         self.update()
 
@@ -109,7 +122,7 @@ class Canvas(QWidget):
         return max(0, int(math.floor(math.log2(max(1.0, 1.0 / self.zoom)))))
 
     def visible_tiles(self, level: int):
-        f = 2 ** level
+        f = 2**level
         span = TILE * f
         sc = self.doc.scene
         c0 = max(0, int(self.origin.x() // span))
@@ -125,10 +138,10 @@ class Canvas(QWidget):
         sc = self.doc.scene
         if sc is None:
             qp.setPen(QColor(200, 205, 215))
-            qp.drawText(self.rect(), Qt.AlignCenter, "Open a scene (Ctrl+O) or drop an image here")
+            qp.drawText(self.rect(), Qt.AlignmentFlag.AlignCenter, "Open a scene (Ctrl+O) or drop an image here")
             qp.end()
             return
-        qp.setRenderHint(QPainter.SmoothPixmapTransform, self.zoom < 1)
+        qp.setRenderHint(QPainter.RenderHint.SmoothPixmapTransform, self.zoom < 1)
         lvl = self.level()
         for key in self.visible_tiles(lvl):
             img = self.loader.get(key)
@@ -138,14 +151,14 @@ class Canvas(QWidget):
                     img2 = self.loader.cached(k2)
                     if img2 is not None:
                         f2 = 2 ** (lvl + up)
-                        src_span = TILE / 2 ** up
+                        src_span = TILE / 2**up
                         sx = (key[1] - (k2[1] << up)) * src_span
                         sy = (key[2] - (k2[2] << up)) * src_span
                         self._draw_tile(qp, img2, k2, QRectF(sx, sy, src_span, src_span), key, f2)
                         break
                 continue
             self._draw_tile(qp, img, key)
-        qp.setRenderHint(QPainter.Antialiasing, True)
+        qp.setRenderHint(QPainter.RenderHint.Antialiasing, True)
         self._draw_findings(qp)
         self._draw_items(qp)
         self._draw_drag(qp)
@@ -154,7 +167,7 @@ class Canvas(QWidget):
 
     def _draw_tile(self, qp, img, key, src: QRectF | None = None, target_key=None, f_src=None) -> None:
         lvl, tx, ty = target_key or key
-        f = 2 ** lvl
+        f = 2**lvl
         c0, r0 = tx * TILE * f, ty * TILE * f
         if src is None:
             w, h = img.width() * f, img.height() * f
@@ -171,7 +184,7 @@ class Canvas(QWidget):
         pen = QPen(colour, width)
         pen.setCosmetic(True)
         if dash:
-            pen.setStyle(Qt.DashLine)
+            pen.setStyle(Qt.PenStyle.DashLine)
         return pen
 
     def _label(self, qp: QPainter, at: QPointF, text: str, colour: QColor) -> None:
@@ -183,7 +196,7 @@ class Canvas(QWidget):
         box = QRectF(at.x() + 8, at.y() - r.height() - 6, r.width() + 10, r.height() + 6)
         qp.fillRect(box, QColor(15, 18, 24, 200))
         qp.setPen(colour)
-        qp.drawText(box, Qt.AlignCenter, text)
+        qp.drawText(box, Qt.AlignmentFlag.AlignCenter, text)
 
     def _draw_items(self, qp: QPainter) -> None:
         for m in self.doc.measurements.values():
@@ -198,13 +211,17 @@ class Canvas(QWidget):
             if m.kind == "track":  # arrow at the vessel end: direction of travel
                 self._arrow(qp, b, a, col)
             t = {"track": 0.35, "arm": 0.8, "crest": 0.65}.get(m.kind, 0.5)  # labels of a vessel's lines apart
-            self._label(qp, QPointF(a.x() + t * (b.x() - a.x()), a.y() + t * (b.y() - a.y())), m.error or m.text,
-                        QColor(255, 120, 120) if m.error else col)
+            self._label(
+                qp,
+                QPointF(a.x() + t * (b.x() - a.x()), a.y() + t * (b.y() - a.y())),
+                m.error or m.text,
+                QColor(255, 120, 120) if m.error else col,
+            )
         for v in self.doc.vessels.values():
             p = self.to_screen(v.position)
             sel = v.id == self.doc.selected
             qp.setPen(self._pen(ITEM_COLOURS["vessel"], 3 if sel else 2))
-            qp.setBrush(Qt.NoBrush)
+            qp.setBrush(Qt.BrushStyle.NoBrush)
             qp.drawEllipse(p, 9, 9)
             qp.drawLine(QPointF(p.x() - 14, p.y()), QPointF(p.x() - 5, p.y()))
             qp.drawLine(QPointF(p.x() + 5, p.y()), QPointF(p.x() + 14, p.y()))
@@ -217,8 +234,13 @@ class Canvas(QWidget):
             return
         ux, uy = d.x() / n, d.y() / n
         s = 12
-        poly = QPolygonF([tip, QPointF(tip.x() - s * ux + 0.5 * s * uy, tip.y() - s * uy - 0.5 * s * ux),
-                          QPointF(tip.x() - s * ux - 0.5 * s * uy, tip.y() - s * uy + 0.5 * s * ux)])
+        poly = QPolygonF(
+            [
+                tip,
+                QPointF(tip.x() - s * ux + 0.5 * s * uy, tip.y() - s * uy - 0.5 * s * ux),
+                QPointF(tip.x() - s * ux - 0.5 * s * uy, tip.y() - s * uy + 0.5 * s * ux),
+            ]
+        )
         qp.setBrush(QBrush(col))
         qp.drawPolygon(poly)
 
@@ -232,7 +254,7 @@ class Canvas(QWidget):
                     continue
                 colour, width, dash = SEGMENT_STYLES[seg.kind]
                 qp.setPen(self._pen(ITEM_COLOURS[colour], width, dash=dash))
-                qp.setBrush(Qt.NoBrush)
+                qp.setBrush(Qt.BrushStyle.NoBrush)
                 pts = [self.to_screen(p) for p in seg.points]
                 if seg.kind == SegmentKind.AREA:
                     qp.drawPolygon(QPolygonF(pts))
@@ -258,8 +280,11 @@ class Canvas(QWidget):
             frame = sc.local_frame(col, row)
         except WakemeterError:
             qp.setPen(QColor(255, 200, 120))
-            qp.drawText(QRectF(10, self.height() - 28, 420, 20), Qt.AlignLeft,
-                        "no georeference: calibrate to measure in metres")
+            qp.drawText(
+                QRectF(10, self.height() - 28, 420, 20),
+                Qt.AlignmentFlag.AlignLeft,
+                "no georeference: calibrate to measure in metres",
+            )
             return  # the caller ends the painter
         m_per_screen_px = frame.length_of(1.0 / self.zoom, 0.0)
         target = 140 * m_per_screen_px
@@ -273,27 +298,31 @@ class Canvas(QWidget):
         qp.drawLine(QPointF(x0, y0 - 6), QPointF(x0, y0))
         qp.drawLine(QPointF(x0 + px, y0 - 6), QPointF(x0 + px, y0))
         qp.setFont(QFont("Sans", 9))
-        qp.drawText(QRectF(x0, y0 - 24, px, 16), Qt.AlignCenter, f"{length:g} m" if length < 1000 else f"{length / 1000:g} km")
+        qp.drawText(
+            QRectF(x0, y0 - 24, px, 16),
+            Qt.AlignmentFlag.AlignCenter,
+            f"{length:g} m" if length < 1000 else f"{length / 1000:g} km",
+        )
         # true north (grid convergence and image rotation included), or image up when unknown
         dc, dr = frame.image_direction(0.0) if frame.north_known else (0.0, -1.0)
         cx, cy = self.width() - 34, 44
         tip = QPointF(cx + dc * 22, cy + dr * 22)
         tail = QPointF(cx - dc * 16, cy - dr * 16)
         qp.setBrush(QBrush(QColor(15, 18, 24, 190)))
-        qp.setPen(Qt.NoPen)
+        qp.setPen(Qt.PenStyle.NoPen)
         qp.drawEllipse(QPointF(cx, cy), 28, 28)
         qp.setPen(self._pen(QColor(240, 240, 240), 2))
         qp.drawLine(tail, tip)
         self._arrow(qp, tail, tip, QColor(240, 240, 240))
         qp.setPen(QColor(240, 240, 240))
-        qp.drawText(QRectF(cx - 20, cy + 10, 40, 16), Qt.AlignCenter, "N" if frame.north_known else "up")
+        qp.drawText(QRectF(cx - 20, cy + 10, 40, 16), Qt.AlignmentFlag.AlignCenter, "N" if frame.north_known else "up")
 
     # ---- interaction ------------------------------------------------------
     def set_tool(self, tool: str) -> None:
         if tool not in TOOLS:
             raise ValueError(tool)
         self.tool = tool
-        self.setCursor(Qt.OpenHandCursor if tool == "look" else Qt.CrossCursor)
+        self.setCursor(Qt.CursorShape.OpenHandCursor if tool == "look" else Qt.CursorShape.CrossCursor)
 
     def _hit_handle(self, pos: QPointF):
         best = None
@@ -313,7 +342,9 @@ class Canvas(QWidget):
             return
         pos = ev.position()
         sp = self.to_scene(pos)
-        if ev.button() == Qt.MiddleButton or (ev.button() == Qt.LeftButton and self.tool == "look"):
+        if ev.button() == Qt.MouseButton.MiddleButton or (
+            ev.button() == Qt.MouseButton.LeftButton and self.tool == "look"
+        ):
             hit = self._hit_handle(pos) if self.tool == "look" else None
             if hit is not None:
                 _, item_id, idx = hit
@@ -321,9 +352,9 @@ class Canvas(QWidget):
                 self._drag = ("handle", item_id, idx, self.doc.item(item_id))
                 return
             self._drag = ("pan", pos, QPointF(self.origin))
-            self.setCursor(Qt.ClosedHandCursor)
+            self.setCursor(Qt.CursorShape.ClosedHandCursor)
             return
-        if ev.button() != Qt.LeftButton:
+        if ev.button() != Qt.MouseButton.LeftButton:
             return
         p = (sp.x(), sp.y())
         if self.tool == "vessel":
@@ -356,14 +387,15 @@ class Canvas(QWidget):
             else:
                 pts = list(cur.points)
                 pts[idx] = (sp.x(), sp.y())
-                self.doc.measurements[cur.id] = Measurement(cur.id, cur.kind, tuple(pts), cur.vessel_id, cur.text,
-                                                            cur.values, cur.error)
+                self.doc.measurements[cur.id] = Measurement(
+                    cur.id, cur.kind, tuple(pts), cur.vessel_id, cur.text, cur.values, cur.error
+                )
             self.update()
 
     def mouseReleaseEvent(self, ev) -> None:
         drag, self._drag = self._drag, None
         if self.tool == "look":
-            self.setCursor(Qt.OpenHandCursor)
+            self.setCursor(Qt.CursorShape.OpenHandCursor)
         if not drag:
             return
         if drag[0] == "handle":
@@ -393,23 +425,28 @@ class Canvas(QWidget):
 
     def wheelEvent(self, ev) -> None:
         steps = ev.angleDelta().y() / 120.0
-        self.set_zoom(self.zoom * (1.25 ** steps), ev.position())
+        self.set_zoom(self.zoom * (1.25**steps), ev.position())
 
     def keyPressEvent(self, ev) -> None:
         k = ev.key()
         step = 80 / self.zoom
-        moves = {Qt.Key_Left: (-step, 0), Qt.Key_Right: (step, 0), Qt.Key_Up: (0, -step), Qt.Key_Down: (0, step)}
+        moves = {
+            Qt.Key.Key_Left: (-step, 0),
+            Qt.Key.Key_Right: (step, 0),
+            Qt.Key.Key_Up: (0, -step),
+            Qt.Key.Key_Down: (0, step),
+        }
         if k in moves:
             dx, dy = moves[k]
             self.origin = QPointF(self.origin.x() + dx, self.origin.y() + dy)
             self.update()
-        elif k in (Qt.Key_Plus, Qt.Key_Equal):
+        elif k in (Qt.Key.Key_Plus, Qt.Key.Key_Equal):
             self.set_zoom(self.zoom * 1.25)
-        elif k == Qt.Key_Minus:
+        elif k == Qt.Key.Key_Minus:
             self.set_zoom(self.zoom / 1.25)
-        elif k == Qt.Key_F:
+        elif k == Qt.Key.Key_F:
             self.fit()
-        elif k == Qt.Key_1:
+        elif k == Qt.Key.Key_1:
             self.set_zoom(1.0)
         else:
             super().keyPressEvent(ev)

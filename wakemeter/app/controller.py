@@ -27,14 +27,16 @@ class Controller(QObject):
         dock.setObjectName("results")
         scroll = QScrollArea()
         scroll.setWidgetResizable(True)
-        scroll.setFrameShape(QScrollArea.NoFrame)
-        scroll.setStyleSheet("QScrollArea { background: #1c2028; } QScrollArea > QWidget > QWidget { background: #1c2028; }")
+        scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+        scroll.setStyleSheet(
+            "QScrollArea { background: #1c2028; } QScrollArea > QWidget > QWidget { background: #1c2028; }"
+        )
         scroll.setWidget(self.panel)
         self.panel.setMinimumHeight(520)
         dock.setWidget(scroll)
-        win.addDockWidget(Qt.RightDockWidgetArea, dock)
-        win.resizeDocks([win.items_dock, dock], [400, 400], Qt.Horizontal)
-        win.resizeDocks([win.items_dock, dock], [160, 600], Qt.Vertical)
+        win.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, dock)
+        win.resizeDocks([win.items_dock, dock], [400, 400], Qt.Orientation.Horizontal)
+        win.resizeDocks([win.items_dock, dock], [160, 600], Qt.Orientation.Vertical)
         self.dock = dock
         self.queue: list[int] = []
         self.panel.analyse_one.connect(self.analyse_selected)
@@ -47,7 +49,7 @@ class Controller(QObject):
         fm = win.file_menu
         first = fm.actions()[2] if len(fm.actions()) > 2 else None
         a = fm.addAction("&Save session…", self.save_dialog)
-        a.setShortcut(QKeySequence.Save)
+        a.setShortcut(QKeySequence.StandardKey.Save)
         fm.addAction("Open &session…", self.open_session_dialog)
         fm.addAction("&Export evidence…", self.export_dialog).setShortcut(QKeySequence("Ctrl+E"))
         if first is not None:
@@ -117,13 +119,20 @@ class Controller(QObject):
 
         def done(result):
             self.doc.undo.push(SetFinding(self.doc, vid, result, f"analyse {v.name}"))
-            self.win.say(f"{v.name}: " + (f"{result.speed.speed_mps:.2f} m/s, 95 % {result.speed.ci95_low_mps:.2f}"
-                                          f"–{result.speed.ci95_high_mps:.2f} m/s" if result.wake_found
-                                          else "no wake found"))
+            self.win.say(
+                f"{v.name}: "
+                + (
+                    f"{result.speed.speed_mps:.2f} m/s, 95 % {result.speed.ci95_low_mps:.2f}"
+                    f"–{result.speed.ci95_high_mps:.2f} m/s"
+                    if result.wake_found
+                    else "no wake found"
+                )
+            )
             QTimer.singleShot(0, self._next)
 
         def failed(_msg):
             self.queue.clear()
+
         self.win.run_job(Job(work, f"analysing {v.name}"), done, failed)
 
     def _reject(self, value: bool) -> None:
@@ -146,8 +155,9 @@ class Controller(QObject):
         return True
 
     def save_dialog(self) -> None:
-        path, _ = QFileDialog.getSaveFileName(self.win, "Save session", self.session_path or "analysis.wakemeter.json",
-                                              "wakemeter sessions (*.json)")
+        path, _ = QFileDialog.getSaveFileName(
+            self.win, "Save session", self.session_path or "analysis.wakemeter.json", "wakemeter sessions (*.json)"
+        )
         if path:
             self.save_session(path)
 
@@ -183,9 +193,11 @@ class Controller(QObject):
         try:
             if data.get("calibration") and not doc.scene.info.georeferenced:
                 from ..scene import geodesy
+
                 c = data["calibration"]
-                doc.scene.calibrate(geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"],
-                                                             north_up_deg=c["north_up_deg"]))
+                doc.scene.calibrate(
+                    geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"], north_up_deg=c["north_up_deg"])
+                )
             session_mod.fill_project(doc.project, data)
         except (WakemeterError, KeyError, TypeError) as err:
             doc.project.clear()
@@ -199,7 +211,7 @@ class Controller(QObject):
 
     def _locate_dialog(self, old: str | None, problem: str) -> str | None:
         ans = QMessageBox.question(self.win, "Scene not found", f"{problem}:\n{old}\n\nLocate the scene?")
-        if ans != QMessageBox.Yes:
+        if ans != QMessageBox.StandardButton.Yes:
             return None
         path, _ = QFileDialog.getOpenFileName(self.win, "Locate scene", str(Path(old or ".").parent))
         return path or None
@@ -219,7 +231,9 @@ class Controller(QObject):
         p = session_mod.autosave_path()
         if not p.exists():
             return False
-        ask = ask or (lambda text: QMessageBox.question(self.win, "Restore work?", text) == QMessageBox.Yes)
+        ask = ask or (
+            lambda text: QMessageBox.question(self.win, "Restore work?", text) == QMessageBox.StandardButton.Yes
+        )
         if ask("wakemeter did not close normally last time. Restore the work saved automatically?"):
             return self.open_session(str(p))
         p.unlink(missing_ok=True)
@@ -256,12 +270,18 @@ class Controller(QObject):
         exists = any((Path(folder) / f"{base}{s}").exists() for s in (".png", ".pdf", ".json"))
         if exists and ask and not force:
             ans = QMessageBox.question(self.win, "Replace files?", f"{base}.* already exist in {folder}. Replace them?")
-            force = ans == QMessageBox.Yes
+            force = ans == QMessageBox.StandardButton.Yes
             if not force:
                 return None
         try:
-            files = export_evidence(self.doc.scene, eff, folder, analyst=analyst, force=force,
-                                    parameters={"vessel": self.doc.vessels[vid].name})
+            files = export_evidence(
+                self.doc.scene,
+                eff,
+                folder,
+                analyst=analyst,
+                force=force,
+                parameters={"vessel": self.doc.vessels[vid].name},
+            )
         except WakemeterError as err:
             self.win.error("Could not export", str(err))
             return None

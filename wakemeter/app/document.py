@@ -15,8 +15,17 @@ from ..project import Measurement, Project, Vessel
 from ..scene import geodesy
 from ..scene.raster import open_scene
 
-__all__ = ["Document", "Measurement", "Vessel", "AddItem", "RemoveItem", "ChangeItem", "SetCalibration",
-           "SetFinding", "SetRejected"]
+__all__ = [
+    "Document",
+    "Measurement",
+    "Vessel",
+    "AddItem",
+    "RemoveItem",
+    "ChangeItem",
+    "SetCalibration",
+    "SetFinding",
+    "SetRejected",
+]
 
 
 class Document(QObject):
@@ -136,8 +145,9 @@ class RemoveItem(QUndoCommand):
         super().__init__("delete")
         self.doc = doc
         self.item_ = doc.item(item_id)
-        self.dependants = [m for m in doc.measurements.values() if m.vessel_id == item_id] \
-            if isinstance(self.item_, Vessel) else []
+        self.dependants = (
+            [m for m in doc.measurements.values() if m.vessel_id == item_id] if isinstance(self.item_, Vessel) else []
+        )
 
     def redo(self) -> None:
         for m in self.dependants:

@@ -7,8 +7,10 @@ import sys
 
 
 def run_program(argv: list[str]) -> int:
-    p = argparse.ArgumentParser(prog="wakemeter", description="Measure ship wakes on georeferenced imagery. "
-                                "Headless commands: wakemeter --help-commands")
+    p = argparse.ArgumentParser(
+        prog="wakemeter",
+        description="Measure ship wakes on georeferenced imagery. Headless commands: wakemeter --help-commands",
+    )
     p.add_argument("scene", nargs="?", help="scene to open")
     p.add_argument("--screenshot", metavar="OUT.png", help="render the window after loading, save it and exit")
     p.add_argument("--size", default="1320x860", help="window size for --screenshot, e.g. 1320x860")

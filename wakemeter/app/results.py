@@ -47,17 +47,19 @@ class ResultsPanel(QWidget):
     def __init__(self, parent=None):
         super().__init__(parent)
         lay = QVBoxLayout(self)
-        self.setStyleSheet("QLabel, QGroupBox, QCheckBox { color: #dfe6ee; } "
-                           "QGroupBox { border: 1px solid #3a4458; border-radius: 4px; margin-top: 14px; "
-                           "padding-top: 6px; } QGroupBox::title { subcontrol-origin: margin; left: 8px; }")
+        self.setStyleSheet(
+            "QLabel, QGroupBox, QCheckBox { color: #dfe6ee; } "
+            "QGroupBox { border: 1px solid #3a4458; border-radius: 4px; margin-top: 14px; "
+            "padding-top: 6px; } QGroupBox::title { subcontrol-origin: margin; left: 8px; }"
+        )
         self.title = QLabel("Select a vessel")
         self.title.setStyleSheet("font-weight: bold; font-size: 13px;")
         lay.addWidget(self.title)
         box = QGroupBox("What you know (optional)")
         form = QFormLayout(box)
-        self.depth = _spin(0.0, 5000.0, 1, "m", "Known water depth; leave at 'unknown' to let the wake tell")
+        self.depth_input = _spin(0.0, 5000.0, 1, "m", "Known water depth; leave at 'unknown' to let the wake tell")
         self.hull = _spin(0.0, 500.0, 1, "m", "Hull length, for the check of narrow arms of fast hulls")
-        form.addRow("Water depth", self.depth)
+        form.addRow("Water depth", self.depth_input)
         form.addRow("Hull length", self.hull)
         self.use_radar = QCheckBox("Radar geometry (hull offset from its wake)")
         self.use_radar.setToolTip("Enables the azimuth-offset method for radar scenes (Raney 1971)")
@@ -69,8 +71,12 @@ class ResultsPanel(QWidget):
         self.radar_box = QWidget()
         rform = QFormLayout(self.radar_box)
         rform.setContentsMargins(12, 0, 0, 0)
-        for lab, w in (("Slant range", self.slant), ("Platform speed", self.vplat), ("Look bearing", self.look),
-                       ("Incidence", self.inc)):
+        for lab, w in (
+            ("Slant range", self.slant),
+            ("Platform speed", self.vplat),
+            ("Look bearing", self.look),
+            ("Incidence", self.inc),
+        ):
             rform.addRow(lab, w)
         form.addRow(self.radar_box)
         self.radar_box.setVisible(False)
@@ -78,7 +84,9 @@ class ResultsPanel(QWidget):
         lay.addWidget(box)
         row = QHBoxLayout()
         self.run_button = QPushButton("Analyse vessel")
-        self.run_button.setToolTip("Find the wake of the selected vessel and estimate its speed (runs in the background)")
+        self.run_button.setToolTip(
+            "Find the wake of the selected vessel and estimate its speed (runs in the background)"
+        )
         self.run_button.clicked.connect(self.analyse_one.emit)
         self.run_all_button = QPushButton("Analyse all")
         self.run_all_button.setToolTip("Analyse every marked vessel, one after the other")
@@ -116,8 +124,9 @@ class ResultsPanel(QWidget):
         self.radon_plot.setLabel("left", "offset from the vessel", units="px")
         self.radon_img = pg.ImageItem()
         self.radon_plot.addItem(self.radon_img)
-        self.radon_pick = self.radon_plot.plot(pen=None, symbol="o", symbolPen=pg.mkPen((255, 200, 0), width=2),
-                                               symbolBrush=None, symbolSize=14)
+        self.radon_pick = self.radon_plot.plot(
+            pen=None, symbol="o", symbolPen=pg.mkPen((255, 200, 0), width=2), symbolBrush=None, symbolSize=14
+        )
         plots = QWidget()
         pl = QVBoxLayout(plots)
         pl.setContentsMargins(0, 0, 0, 0)
@@ -133,11 +142,18 @@ class ResultsPanel(QWidget):
     # ---- inputs -----------------------------------------------------------
     def inputs(self) -> dict:
         """What the panel shows, as plain numbers (None: not given)."""
-        out = {"depth_m": self.depth.value() or None, "hull_length_m": self.hull.value() or None,
-               "radar_geometry": None}
+        out = {
+            "depth_m": self.depth_input.value() or None,
+            "hull_length_m": self.hull.value() or None,
+            "radar_geometry": None,
+        }
         if self.use_radar.isChecked() and self.slant.value() > 0 and self.vplat.value() > 0 and self.inc.value() > 0:
-            out["radar_geometry"] = [self.slant.value(), self.vplat.value(), max(self.look.value(), 0.0),
-                                     self.inc.value()]
+            out["radar_geometry"] = [
+                self.slant.value(),
+                self.vplat.value(),
+                max(self.look.value(), 0.0),
+                self.inc.value(),
+            ]
         return out
 
     def request(self, position: tuple[float, float], base: AnalysisRequest | None = None) -> AnalysisRequest:
@@ -153,17 +169,23 @@ class ResultsPanel(QWidget):
         if d["radar_geometry"]:
             r, v, look, inc = d["radar_geometry"]
             old = base.radar_geometry
-            rg = RadarGeometry(r, v, look, inc) if old is None else replace(
-                old, slant_range_m=r, platform_speed_mps=v, look_bearing_deg=look, incidence_deg=inc)
+            rg = (
+                RadarGeometry(r, v, look, inc)
+                if old is None
+                else replace(old, slant_range_m=r, platform_speed_mps=v, look_bearing_deg=look, incidence_deg=inc)
+            )
         return replace(base, depth=depth, hull_length_m=d["hull_length_m"], radar_geometry=rg)
 
     def set_request(self, req: AnalysisRequest | None) -> None:
-        self.depth.setValue(req.depth.value if req is not None and req.depth is not None else 0.0)
+        self.depth_input.setValue(req.depth.value if req is not None and req.depth is not None else 0.0)
         self.hull.setValue(req.hull_length_m or 0.0 if req is not None else 0.0)
         rg = None if req is None else req.radar_geometry
         self.use_radar.setChecked(rg is not None)
-        values = (0, 0, -1, 0) if rg is None else (rg.slant_range_m, rg.platform_speed_mps, rg.look_bearing_deg,
-                                                   rg.incidence_deg)
+        values = (
+            (0, 0, -1, 0)
+            if rg is None
+            else (rg.slant_range_m, rg.platform_speed_mps, rg.look_bearing_deg, rg.incidence_deg)
+        )
         for w, v in zip((self.slant, self.vplat, self.look, self.inc), values):
             w.setValue(v)
 
@@ -177,9 +199,11 @@ class ResultsPanel(QWidget):
         self.reject.setEnabled(result is not None)
         self.export_button.setEnabled(result is not None and not rejected)
         if result is None:
-            self.text.setHtml("<p>No analysis yet. Mark a vessel with the <b>Vessel</b> tool, select it, give "
-                              "what you know, and press <b>Analyse vessel</b>.</p><p>Every figure comes with its "
-                              "95 % interval, method and assumptions.</p>")
+            self.text.setHtml(
+                "<p>No analysis yet. Mark a vessel with the <b>Vessel</b> tool, select it, give "
+                "what you know, and press <b>Analyse vessel</b>.</p><p>Every figure comes with its "
+                "95 % interval, method and assumptions.</p>"
+            )
             self._clear_plots()
             return
         self.text.setHtml(result_html(result, rejected))
@@ -205,6 +229,7 @@ class ResultsPanel(QWidget):
         self.spec_img.setImage(np.clip(white, -2, 6), levels=(-2, 6))
         self.spec_img.setColorMap(pg.colormap.get("viridis"))
         from PySide6.QtCore import QRectF
+
         self.spec_img.setRect(QRectF(-n_u / 2 * dk_u, -n_v / 2 * dk_v, n_u * dk_u, n_v * dk_v))
         ku, kv = p.fitted_curve  # computed by the analysis; the panel only draws
         for c, sgn in zip(self.spec_curve, (1, -1)):
@@ -221,6 +246,7 @@ class ResultsPanel(QWidget):
         sino = p.radon
         if sino is not None:
             from PySide6.QtCore import QRectF
+
             n = sino.shape[0]
             lo, hi = np.percentile(sino, [1, 99.5])
             self.radon_img.setImage(sino, levels=(lo, hi))
@@ -234,8 +260,10 @@ def result_html(r: dict, rejected: bool = False) -> str:
     """The result as HTML for the panel (the same rows as the CLI and the PDF: evidence.summary)."""
     esc = html.escape
     if not r.get("wake_found"):
-        return (f"<h3>No wake found</h3><p>{esc(r.get('decision', ''))}</p><p>No speed is given for a vessel "
-                "without a detectable wake. You can still measure by hand (crest ruler, track, arm).</p>")
+        return (
+            f"<h3>No wake found</h3><p>{esc(r.get('decision', ''))}</p><p>No speed is given for a vessel "
+            "without a detectable wake. You can still measure by hand (crest ruler, track, arm).</p>"
+        )
     speed, interval = summary.speed_text(r)
     rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in summary.summary_rows(r)[2:])
     methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(r))
@@ -248,4 +276,5 @@ def result_html(r: dict, rejected: bool = False) -> str:
         f"<th>95 % (m/s)</th><th>kn</th></tr>{methods}</table>"
         "<h4>Assumptions</h4><ul>" + "".join(f"<li>{esc(a)}</li>" for a in summary.assumption_texts(r)) + "</ul>"
         "<h4>Cautions</h4><ul>" + "".join(f"<li>{esc(c)}</li>" for c in summary.caution_texts(r)) + "</ul>"
-        f"<p><small>{esc(r['decision'])}</small></p>")
+        f"<p><small>{esc(r['decision'])}</small></p>"
+    )

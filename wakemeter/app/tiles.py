@@ -37,8 +37,15 @@ class Contrast:
     bands: tuple[int, ...] = (1,)  #: 1-based bands shown: one (grey) or three (red, green, blue)
 
 
-def estimate_contrast(scene: Scene, *, db: bool | None = None, gamma: float = 1.0, low: float = 1.0,
-                      high: float = 99.5, bands: tuple[int, ...] | None = None) -> Contrast:
+def estimate_contrast(
+    scene: Scene,
+    *,
+    db: bool | None = None,
+    gamma: float = 1.0,
+    low: float = 1.0,
+    high: float = 99.5,
+    bands: tuple[int, ...] | None = None,
+) -> Contrast:
     """Percentile stretch from a small whole-scene read (uses overviews when present)."""
     s = min(1.0, 512 / max(scene.width, scene.height))
     oh, ow = max(1, int(scene.height * s)), max(1, int(scene.width * s))
@@ -46,8 +53,9 @@ def estimate_contrast(scene: Scene, *, db: bool | None = None, gamma: float = 1.
         bands = (1, 2, 3) if scene.info.count >= 3 else (1,)
     bands = tuple(int(b) for b in bands)
     if len(bands) not in (1, 3) or any(b < 1 or b > scene.info.count for b in bands):
-        raise ParameterError(f"choose one band (grey) or three (red, green, blue) within 1..{scene.info.count}, "
-                             f"got {bands}")
+        raise ParameterError(
+            f"choose one band (grey) or three (red, green, blue) within 1..{scene.info.count}, got {bands}"
+        )
     rgb = len(bands) == 3
     data, valid = scene.read(out_shape=(oh, ow), bands=bands)
     if db is None:
@@ -57,7 +65,7 @@ def estimate_contrast(scene: Scene, *, db: bool | None = None, gamma: float = 1.
     los, his = [], []
     for b in range(len(bands)):
         v = data[b][valid[b]]
-        lo, hi = (np.percentile(v, [low, high]) if v.size else (0.0, 1.0))
+        lo, hi = np.percentile(v, [low, high]) if v.size else (0.0, 1.0)
         los.append(float(lo))
         his.append(float(hi if hi > lo else lo + 1))
     return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb, bands)
@@ -79,7 +87,7 @@ def to_rgb8(data: np.ndarray, valid: np.ndarray, c: Contrast) -> np.ndarray:
 
 def read_tile(scene: Scene, level: int, tx: int, ty: int, contrast: Contrast) -> np.ndarray | None:
     """RGB uint8 tile (may be smaller than TILE at the scene's edges); None when outside."""
-    f = 2 ** level
+    f = 2**level
     c0, r0 = tx * TILE * f, ty * TILE * f
     if c0 >= scene.width or r0 >= scene.height:
         return None
@@ -114,7 +122,8 @@ class _TileJob(QRunnable):
         if scene is None or contrast is None:
             return
         try:
-            rgb = read_tile(scene, *self.key, contrast)
+            level, tx, ty = self.key
+            rgb = read_tile(scene, level, tx, ty, contrast)
         except WakemeterError as err:
             self.loader.results.put(("failed", self.generation, self.key, str(err)))
             self.loader.signals.arrived.emit()
@@ -122,7 +131,7 @@ class _TileJob(QRunnable):
         if rgb is None:
             self.loader.results.put(("empty", self.generation, self.key, None))
         else:
-            img = QImage(rgb.data, rgb.shape[1], rgb.shape[0], 3 * rgb.shape[1], QImage.Format_RGB888).copy()
+            img = QImage(rgb.data, rgb.shape[1], rgb.shape[0], 3 * rgb.shape[1], QImage.Format.Format_RGB888).copy()
             self.loader.results.put(("ready", self.generation, self.key, img))
         self.loader.signals.arrived.emit()
 

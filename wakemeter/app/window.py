@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from functools import partial
 from pathlib import Path
 
 import numpy as np
@@ -55,6 +56,7 @@ class MainWindow(QMainWindow):
         self._build_panels()
         self._build_status()
         from .controller import Controller
+
         self.controller = Controller(self)
         self.setAcceptDrops(True)
         self.canvas.cursor_moved.connect(self._readout)
@@ -62,13 +64,15 @@ class MainWindow(QMainWindow):
         self.canvas.calibration_line.connect(self._ask_calibration)
         self.doc.changed.connect(self._refresh_list)
         self.doc.scene_changed.connect(self._on_scene)
-        self.setStyleSheet("QMainWindow { background: #1c2028; } QDockWidget { color: #dfe6ee; } "
-                           "QToolBar { background: #232935; border: none; spacing: 4px; } "
-                           "QToolButton { color: #dfe6ee; padding: 4px 8px; } "
-                           "QToolButton:checked { background: #3a4a63; border-radius: 4px; } "
-                           "QListWidget { background: #232935; color: #dfe6ee; border: none; } "
-                           "QListWidget::item:selected { background: #3a4a63; } "
-                           "QStatusBar { background: #232935; color: #dfe6ee; } QStatusBar QLabel { color: #dfe6ee; }")
+        self.setStyleSheet(
+            "QMainWindow { background: #1c2028; } QDockWidget { color: #dfe6ee; } "
+            "QToolBar { background: #232935; border: none; spacing: 4px; } "
+            "QToolButton { color: #dfe6ee; padding: 4px 8px; } "
+            "QToolButton:checked { background: #3a4a63; border-radius: 4px; } "
+            "QListWidget { background: #232935; color: #dfe6ee; border: none; } "
+            "QListWidget::item:selected { background: #3a4a63; } "
+            "QStatusBar { background: #232935; color: #dfe6ee; } QStatusBar QLabel { color: #dfe6ee; }"
+        )
 
     # ---- construction -----------------------------------------------------
     def _icon(self, name: str) -> QIcon:
@@ -79,28 +83,31 @@ class MainWindow(QMainWindow):
         mb = self.menuBar()
         fm = mb.addMenu("&File")
         a = fm.addAction("&Open scene…", self.open_dialog)
-        a.setShortcut(QKeySequence.Open)
+        a.setShortcut(QKeySequence.StandardKey.Open)
         self.recent_menu = fm.addMenu("Open &recent")
         self._fill_recent()
         self.file_menu = fm
         fm.addSeparator()
-        fm.addAction("&Quit", self.close).setShortcut(QKeySequence.Quit)
+        fm.addAction("&Quit", self.close).setShortcut(QKeySequence.StandardKey.Quit)
         em = mb.addMenu("&Edit")
         undo = self.doc.undo.createUndoAction(self, "&Undo")
-        undo.setShortcut(QKeySequence.Undo)
+        undo.setShortcut(QKeySequence.StandardKey.Undo)
         redo = self.doc.undo.createRedoAction(self, "&Redo")
-        redo.setShortcuts([QKeySequence("Ctrl+Shift+Z"), QKeySequence.Redo])
+        redo.setShortcuts([QKeySequence("Ctrl+Shift+Z"), QKeySequence(QKeySequence.StandardKey.Redo)])
         em.addAction(undo)
         em.addAction(redo)
         self.addAction(undo)
         self.addAction(redo)
         d = em.addAction("&Delete selected", self.delete_selected)
-        d.setShortcut(QKeySequence.Delete)
+        d.setShortcut(QKeySequence.StandardKey.Delete)
         em.addAction("Re&name vessel…", self.rename_selected)
         vm = mb.addMenu("&View")
-        for text, key, fn in (("Zoom &in", "+", lambda: self.canvas.set_zoom(self.canvas.zoom * 1.25)),
-                              ("Zoom &out", "-", lambda: self.canvas.set_zoom(self.canvas.zoom / 1.25)),
-                              ("&Fit to window", "F", self.canvas.fit), ("&1:1", "1", lambda: self.canvas.set_zoom(1.0))):
+        for text, key, fn in (
+            ("Zoom &in", "+", lambda: self.canvas.set_zoom(self.canvas.zoom * 1.25)),
+            ("Zoom &out", "-", lambda: self.canvas.set_zoom(self.canvas.zoom / 1.25)),
+            ("&Fit to window", "F", self.canvas.fit),
+            ("&1:1", "1", lambda: self.canvas.set_zoom(1.0)),
+        ):
             act = vm.addAction(text, fn)
             act.setShortcut(QKeySequence(key))
         vm.addSeparator()
@@ -111,7 +118,7 @@ class MainWindow(QMainWindow):
         self.db_action.setCheckable(True)
         tb = self.addToolBar("Tools")
         tb.setObjectName("tools")
-        tb.setToolButtonStyle(Qt.ToolButtonTextUnderIcon)
+        tb.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextUnderIcon)
         tb.setMovable(False)
         self.tool_actions: dict[str, QAction] = {}
         group = QActionGroup(self)
@@ -143,7 +150,7 @@ class MainWindow(QMainWindow):
         dock = QDockWidget("Measurements", self)
         dock.setObjectName("measurements")
         dock.setWidget(self.items)
-        self.addDockWidget(Qt.RightDockWidgetArea, dock)
+        self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, dock)
         self.hand_summary = QLabel("")
         self.hand_summary.setWordWrap(True)
         self.items_dock = dock
@@ -172,8 +179,12 @@ class MainWindow(QMainWindow):
 
     # ---- scene ------------------------------------------------------------
     def open_dialog(self) -> None:
-        path, _ = QFileDialog.getOpenFileName(self, "Open scene", str(Path.cwd()),
-                                              "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;All files (*)")
+        path, _ = QFileDialog.getOpenFileName(
+            self,
+            "Open scene",
+            str(Path.cwd()),
+            "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;All files (*)",
+        )
         if path:
             self.open_path(path)
 
@@ -193,24 +204,38 @@ class MainWindow(QMainWindow):
         if sc is None:
             return
         note = "" if sc.info.georeferenced else " — no georeference: use Calibrate before measuring"
-        self.say(f"{sc.info.path.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"
-                 + (f", {sc.info.crs}" if sc.info.crs and sc.info.crs.startswith("EPSG") else "") + note)
+        self.say(
+            f"{sc.info.path.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"
+            + (f", {sc.info.crs}" if sc.info.crs and sc.info.crs.startswith("EPSG") else "")
+            + note
+        )
         from ..scene.pyramid import ensure_pyramid, needs_pyramid
+
         if needs_pyramid(sc):
+
             def work(progress, cancelled):
-                return ensure_pyramid(sc, progress=lambda f: progress(f, "building overview levels"),
-                                      cancelled=cancelled)
+                return ensure_pyramid(
+                    sc, progress=lambda f: progress(f, "building overview levels"), cancelled=cancelled
+                )
+
             self.run_job(Job(work, "building overview levels (once)"), lambda _r: self.canvas.set_contrast())
 
     def _remember(self, path: str) -> None:
-        recent = [p for p in (self.settings.value("recent", []) or []) if p != path]
+        recent = [p for p in self._recent() if p != path]
         self.settings.setValue("recent", [path] + recent[:7])
         self._fill_recent()
 
     def _fill_recent(self) -> None:
         self.recent_menu.clear()
-        for p in self.settings.value("recent", []) or []:
-            self.recent_menu.addAction(p, lambda p=p: self.open_path(p))
+        for p in self._recent():
+            self.recent_menu.addAction(p, partial(self.open_path, p))
+
+    def _recent(self) -> list[str]:
+        """The recent scenes; QSettings gives a single stored path back as a plain string, not a list."""
+        value = self.settings.value("recent", [])
+        if isinstance(value, str):
+            return [value]
+        return [str(p) for p in value] if isinstance(value, (list, tuple)) else []
 
     def dragEnterEvent(self, ev) -> None:
         if ev.mimeData().hasUrls():
@@ -247,7 +272,7 @@ class MainWindow(QMainWindow):
         self.items.clear()
         for v in self.doc.vessels.values():
             it = QListWidgetItem(f"Vessel: {v.name}")
-            it.setData(Qt.UserRole, v.id)
+            it.setData(Qt.ItemDataRole.UserRole, v.id)
             self.items.addItem(it)
             for m in self.doc.measurements.values():
                 if m.vessel_id == v.id:
@@ -255,13 +280,13 @@ class MainWindow(QMainWindow):
             hand = self.doc.speed_from_hand(v.id)
             if hand:
                 it2 = QListWidgetItem("    → " + hand)
-                it2.setData(Qt.UserRole, v.id)
+                it2.setData(Qt.ItemDataRole.UserRole, v.id)
                 self.items.addItem(it2)
         for m in self.doc.measurements.values():
             if m.vessel_id is None:
                 self._add_row(m, indent=False)
         for i in range(self.items.count()):
-            if self.items.item(i).data(Qt.UserRole) == self.doc.selected:
+            if self.items.item(i).data(Qt.ItemDataRole.UserRole) == self.doc.selected:
                 self.items.setCurrentRow(i)
                 break
         self.items.blockSignals(False)
@@ -270,16 +295,16 @@ class MainWindow(QMainWindow):
         names = {"track": "track", "arm": "arm", "crest": "crest ruler", "ruler": "ruler", "calibration": "calibration"}
         text = f"{'    ' if indent else ''}{names[m.kind]}: {m.error or m.text}"
         it = QListWidgetItem(text)
-        it.setData(Qt.UserRole, m.id)
+        it.setData(Qt.ItemDataRole.UserRole, m.id)
         self.items.addItem(it)
 
     def _list_selected(self) -> None:
         it = self.items.currentItem()
         if it is not None:
-            self.doc.select(int(it.data(Qt.UserRole)))
+            self.doc.select(int(it.data(Qt.ItemDataRole.UserRole)))
 
     def _list_go(self, it: QListWidgetItem) -> None:
-        item = self.doc.item(int(it.data(Qt.UserRole)))
+        item = self.doc.item(int(it.data(Qt.ItemDataRole.UserRole)))
         if isinstance(item, Vessel):
             self.canvas.centre_on(*item.position)
         elif item is not None:
@@ -287,12 +312,14 @@ class MainWindow(QMainWindow):
 
     # ---- calibration ------------------------------------------------------
     def _ask_calibration(self, p0, p1) -> None:
-        dist, ok = QInputDialog.getDouble(self, "Calibrate", "Ground distance between the two points (m):", 100.0,
-                                          0.01, 1e7, 2)
+        dist, ok = QInputDialog.getDouble(
+            self, "Calibrate", "Ground distance between the two points (m):", 100.0, 0.01, 1e7, 2
+        )
         if not ok:
             return
-        north, ok2 = QInputDialog.getDouble(self, "Calibrate", "True bearing of image up (deg; cancel if unknown):",
-                                            0.0, 0.0, 359.99, 1)
+        north, ok2 = QInputDialog.getDouble(
+            self, "Calibrate", "True bearing of image up (deg; cancel if unknown):", 0.0, 0.0, 359.99, 1
+        )
         self.calibrate_two_points(p0, p1, dist, north if ok2 else None)
 
     def calibrate_two_points(self, p0, p1, distance_m: float, north_up_deg: float | None = None) -> bool:
@@ -310,8 +337,10 @@ class MainWindow(QMainWindow):
             return False
         marker = Measurement(self.doc.new_id(), "calibration", (p0, p1), None, values={"distance_m": distance_m})
         self.doc.undo.push(SetCalibration(self.doc, frame, marker))
-        self.say(f"calibrated: {px:.3f} m per pixel" + ("" if north_up_deg is not None else
-                                                           "; headings relative to image up"))
+        self.say(
+            f"calibrated: {px:.3f} m per pixel"
+            + ("" if north_up_deg is not None else "; headings relative to image up")
+        )
         return True
 
     # ---- status, jobs, errors --------------------------------------------
@@ -321,7 +350,7 @@ class MainWindow(QMainWindow):
     def error(self, title: str, text: str) -> None:
         self.last_error = f"{title}: {text}"
         self.say(self.last_error)
-        box = QMessageBox(QMessageBox.Warning, title, text, QMessageBox.Ok, self)
+        box = QMessageBox(QMessageBox.Icon.Warning, title, text, QMessageBox.StandardButton.Ok, self)
         box.setModal(False)
         box.open()
         self._error_box = box
@@ -341,8 +370,11 @@ class MainWindow(QMainWindow):
             parts.append(f"lat {float(lat):.6f}° lon {float(lon):.6f}°")
         try:
             v, ok = sc.read(window=(int(col), int(row), 1, 1))
-            parts.append(f"value {v[:, 0, 0].tolist() if v.shape[0] > 1 else float(v[0, 0, 0]):.4g}"
-                         if v.shape[0] == 1 and ok.all() else f"value {np.round(v[:, 0, 0], 3).tolist()}")
+            parts.append(
+                f"value {v[:, 0, 0].tolist() if v.shape[0] > 1 else float(v[0, 0, 0]):.4g}"
+                if v.shape[0] == 1 and ok.all()
+                else f"value {np.round(v[:, 0, 0], 3).tolist()}"
+            )
         except WakemeterError:
             pass
         self.readout.setText("   ".join(parts))
@@ -384,8 +416,10 @@ class MainWindow(QMainWindow):
             self.say(job.label + ": cancelled")
             if on_fail:
                 on_fail("cancelled")
-        self._relay = Relay(job, on_progress=progress, on_done=done, on_failed=failed, on_cancelled=cancelled,
-                            parent=self)
+
+        self._relay = Relay(
+            job, on_progress=progress, on_done=done, on_failed=failed, on_cancelled=cancelled, parent=self
+        )
         job.start()
 
     def cancel_job(self) -> None:
@@ -404,9 +438,12 @@ class MainWindow(QMainWindow):
             return False
         if text is None:
             cur = self.canvas.loader.contrast
-            text, ok = QInputDialog.getText(self, "Bands", f"Band numbers to show, 1..{sc.info.count} "
-                                            "(one for grey, three for red, green, blue):",
-                                            text=",".join(map(str, cur.bands if cur else (1,))))
+            text, ok = QInputDialog.getText(
+                self,
+                "Bands",
+                f"Band numbers to show, 1..{sc.info.count} (one for grey, three for red, green, blue):",
+                text=",".join(map(str, cur.bands if cur else (1,))),
+            )
             if not ok:
                 return False
         try:
@@ -425,7 +462,7 @@ class MainWindow(QMainWindow):
     def closeEvent(self, ev) -> None:
         if self.job is not None:
             self.job.cancel()
-            self.job.thread.wait(5000)
+            self.job.worker_thread.wait(5000)
         self.canvas.loader.shutdown()
         self.controller.closing()
         super().closeEvent(ev)
@@ -434,6 +471,7 @@ class MainWindow(QMainWindow):
 def wait_for_tiles(win: MainWindow, app, timeout_ms: int = 10_000) -> None:
     """Process events until the visible tiles are loaded (for screenshots and tests)."""
     import time
+
     t0 = time.time()
     while (time.time() - t0) * 1000 < timeout_ms:
         app.processEvents()

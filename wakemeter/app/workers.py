@@ -26,12 +26,12 @@ class Job(QObject):
         self.fn, self.label = fn, label
         self._cancel = threading.Event()
         self.result = None
-        self.thread = QThread()
-        self.moveToThread(self.thread)
-        self.thread.started.connect(self._run)
+        self.worker_thread = QThread()
+        self.moveToThread(self.worker_thread)
+        self.worker_thread.started.connect(self._run)
 
     def start(self) -> None:
-        self.thread.start()
+        self.worker_thread.start()
 
     def cancel(self) -> None:
         self._cancel.set()
@@ -54,7 +54,7 @@ class Job(QObject):
         except Exception as err:  # noqa: BLE001 - report, never crash the program
             self.failed.emit(f"unexpected problem: {err!r}\n{traceback.format_exc(limit=3)}")
         finally:
-            self.thread.quit()
+            self.worker_thread.quit()
 
 
 class Relay(QObject):

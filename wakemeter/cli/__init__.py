@@ -18,13 +18,17 @@ from . import analyze, report, scene, speed, synth
 from .base import Command
 from .options import join_negative_lists
 
-COMMANDS: dict[str, Command] = {c.name: c for c in (speed.COMMAND, *scene.COMMANDS, synth.COMMAND, analyze.COMMAND,
-                                                     report.COMMAND)}
+COMMANDS: dict[str, Command] = {
+    c.name: c for c in (speed.COMMAND, *scene.COMMANDS, synth.COMMAND, analyze.COMMAND, report.COMMAND)
+}
 
 
 def build_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="wakemeter", description="Measure ship wakes on georeferenced imagery. "
-                                "'wakemeter SCENE' opens the desktop program on a scene.")
+    p = argparse.ArgumentParser(
+        prog="wakemeter",
+        description="Measure ship wakes on georeferenced imagery. "
+        "'wakemeter SCENE' opens the desktop program on a scene.",
+    )
     p.add_argument("--version", action="version", version=f"wakemeter {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
     for name, c in sorted(COMMANDS.items()):

@@ -45,5 +45,6 @@ def format_analysis(j: dict) -> str:
     return "\n".join(out)
 
 
-COMMAND = Command("analyze", "Find a vessel's wake and estimate speed (95 % interval), heading and depth regime.",
-                  add_arguments, run)
+COMMAND = Command(
+    "analyze", "Find a vessel's wake and estimate speed (95 % interval), heading and depth regime.", add_arguments, run
+)

@@ -45,8 +45,11 @@ def add_request_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--depth", type=float, metavar="M", help="known water depth, m")
     p.add_argument("--depth-std", type=float, default=0.0, metavar="M", help="its standard uncertainty, m")
     p.add_argument("--hull-length", type=float, metavar="M", help="hull length, m (for the fast-hull check)")
-    p.add_argument("--radar-geometry", metavar="R,V,LOOK,INC",
-                   help="radar: slant range m, platform speed m/s, look bearing deg, incidence deg")
+    p.add_argument(
+        "--radar-geometry",
+        metavar="R,V,LOOK,INC",
+        help="radar: slant range m, platform speed m/s, look bearing deg, incidence deg",
+    )
     p.add_argument("--seed", type=int, default=0, help="seed of the Monte Carlo draws")
 
 
@@ -58,8 +61,13 @@ def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
         raise ParameterError("--depth-std needs --depth")
     rg = None
     if args.radar_geometry:
-        rg = RadarGeometry(*numbers(args.radar_geometry, 4, "--radar-geometry (slant range m, platform speed m/s, "
-                                                            "look bearing deg, incidence deg)"))
+        rg = RadarGeometry(
+            *numbers(
+                args.radar_geometry,
+                4,
+                "--radar-geometry (slant range m, platform speed m/s, look bearing deg, incidence deg)",
+            )
+        )
     depth = None
     if args.depth is not None:
         if not args.depth > 0:
@@ -68,6 +76,14 @@ def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
             raise ParameterError(f"--depth-std must be >= 0 m, got {args.depth_std}")
         depth = Uncertain(args.depth, args.depth_std)
     return AnalysisRequest(
-        vessel_lonlat=numbers(args.vessel, 2, "--vessel (longitude, latitude)") if args.vessel else None,
-        vessel_px=numbers(args.vessel_px, 2, "--vessel-px (column, row)") if args.vessel_px else None,
-        depth=depth, hull_length_m=args.hull_length, radar_geometry=rg, seed=args.seed)
+        vessel_lonlat=_two(numbers(args.vessel, 2, "--vessel (longitude, latitude)")) if args.vessel else None,
+        vessel_px=_two(numbers(args.vessel_px, 2, "--vessel-px (column, row)")) if args.vessel_px else None,
+        depth=depth,
+        hull_length_m=args.hull_length,
+        radar_geometry=rg,
+        seed=args.seed,
+    )
+
+
+def _two(values: tuple[float, ...]) -> tuple[float, float]:
+    return values[0], values[1]

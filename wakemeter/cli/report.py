@@ -34,13 +34,16 @@ def run(args: argparse.Namespace) -> int:
         files = export_evidence(scene, a, args.out, analyst=args.analyst, force=args.force, paper=args.paper)
     print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
     if a.speed is not None:
-        print(f"speed {a.speed.speed_mps:.2f} m/s, 95 % interval {a.speed.ci95_low_mps:.2f}-"
-              f"{a.speed.ci95_high_mps:.2f} m/s; heading {a.heading_deg:.1f} deg")
+        print(
+            f"speed {a.speed.speed_mps:.2f} m/s, 95 % interval {a.speed.ci95_low_mps:.2f}-"
+            f"{a.speed.ci95_high_mps:.2f} m/s; heading {a.heading_deg:.1f} deg"
+        )
     else:
         print("no wake found: the report says so and gives no speed")
     print(CAUTION_LINE)
     return 0
 
 
-COMMAND = Command("report", "Analyse a vessel's wake and write an annotated PNG, a PDF report and a JSON record.",
-                  add_arguments, run)
+COMMAND = Command(
+    "report", "Analyse a vessel's wake and write an annotated PNG, a PDF report and a JSON record.", add_arguments, run
+)

@@ -39,7 +39,14 @@ def run_quicklook(args: argparse.Namespace) -> int:
     return 0
 
 
-COMMANDS = (Command("info", "Describe a scene: size, bands, CRS, pixel size in metres, WGS 84 bounds, overviews.",
-                    _add_info, run_info),
-            Command("quicklook", "Write a stretched PNG preview of a scene (radar shown in dB).", _add_quicklook,
-                    run_quicklook))
+COMMANDS = (
+    Command(
+        "info",
+        "Describe a scene: size, bands, CRS, pixel size in metres, WGS 84 bounds, overviews.",
+        _add_info,
+        run_info,
+    ),
+    Command(
+        "quicklook", "Write a stretched PNG preview of a scene (radar shown in dB).", _add_quicklook, run_quicklook
+    ),
+)

@@ -10,20 +10,37 @@ from .base import CAUTION_LINE, Command
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
-    p.add_argument("--transverse-wavelength", type=float, metavar="M", help="transverse crest spacing along the track, m")
+    p.add_argument(
+        "--transverse-wavelength", type=float, metavar="M", help="transverse crest spacing along the track, m"
+    )
     p.add_argument("--crest-wavelength", type=float, metavar="M", help="crest spacing of a divergent train, m")
-    p.add_argument("--crest-angle", type=float, default=0.0, metavar="DEG",
-                   help="propagation angle of that crest train to the track, degrees")
+    p.add_argument(
+        "--crest-angle",
+        type=float,
+        default=0.0,
+        metavar="DEG",
+        help="propagation angle of that crest train to the track, degrees",
+    )
     p.add_argument("--crest-angle-std", type=float, default=1.0, metavar="DEG")
-    p.add_argument("--wavelength-std", type=float, default=None, metavar="M",
-                   help="standard uncertainty of the wavelength, m (default 3 %% of it)")
+    p.add_argument(
+        "--wavelength-std",
+        type=float,
+        default=None,
+        metavar="M",
+        help="standard uncertainty of the wavelength, m (default 3 %% of it)",
+    )
     p.add_argument("--half-angle", type=float, metavar="DEG", help="measured wake half-angle, degrees")
     p.add_argument("--half-angle-std", type=float, default=1.0, metavar="DEG")
     p.add_argument("--depth", type=float, metavar="M", help="known water depth, m (default: deep water)")
     p.add_argument("--depth-std", type=float, default=0.0, metavar="M")
     p.add_argument("--latitude", type=float, metavar="DEG", help="latitude for WGS 84 normal gravity")
-    p.add_argument("--pixel-rel-std", type=float, default=0.0, metavar="FRACTION",
-                   help="relative standard uncertainty of the pixel size")
+    p.add_argument(
+        "--pixel-rel-std",
+        type=float,
+        default=0.0,
+        metavar="FRACTION",
+        help="relative standard uncertainty of the pixel size",
+    )
     p.add_argument("--seed", type=int, default=0)
 
 
@@ -37,13 +54,19 @@ def run(args: argparse.Namespace) -> int:
     estimates: list[inv.SpeedEstimate] = []
     if args.transverse_wavelength is not None:
         s = args.wavelength_std if args.wavelength_std is not None else 0.03 * abs(args.transverse_wavelength)
-        estimates.append(inv.speed_from_transverse_wavelength(inv.Uncertain(args.transverse_wavelength, s), cond,
-                                                              seed=args.seed))
+        estimates.append(
+            inv.speed_from_transverse_wavelength(inv.Uncertain(args.transverse_wavelength, s), cond, seed=args.seed)
+        )
     if args.crest_wavelength is not None:
         s = args.wavelength_std if args.wavelength_std is not None else 0.03 * abs(args.crest_wavelength)
-        estimates.append(inv.speed_from_crest_wavelength(
-            inv.Uncertain(args.crest_wavelength, s), inv.Uncertain(args.crest_angle, args.crest_angle_std), cond,
-            seed=args.seed))
+        estimates.append(
+            inv.speed_from_crest_wavelength(
+                inv.Uncertain(args.crest_wavelength, s),
+                inv.Uncertain(args.crest_angle, args.crest_angle_std),
+                cond,
+                seed=args.seed,
+            )
+        )
     if not estimates:
         print("wakemeter speed: give --transverse-wavelength or --crest-wavelength (metres)")
         return 2
@@ -53,15 +76,26 @@ def run(args: argparse.Namespace) -> int:
             print(f"    assumes: {a}")
     if len(estimates) > 1:
         c = inv.combine_estimates(estimates)
-        print(f"combined: {c.speed_mps:.2f} m/s, 95 % interval {c.ci95_low_mps:.2f}-{c.ci95_high_mps:.2f} m/s; "
-              f"{c.verdict}")
+        print(
+            f"combined: {c.speed_mps:.2f} m/s, 95 % interval {c.ci95_low_mps:.2f}-{c.ci95_high_mps:.2f} m/s; "
+            f"{c.verdict}"
+        )
     half = inv.Uncertain(args.half_angle, args.half_angle_std) if args.half_angle is not None else None
-    regime = inv.assess_depth_regime(speed=estimates[0], depth_m=depth, half_angle_deg=half,
-                                     transverse_seen=args.transverse_wavelength is not None, g=g.value)
+    regime = inv.assess_depth_regime(
+        speed=estimates[0],
+        depth_m=depth,
+        half_angle_deg=half,
+        transverse_seen=args.transverse_wavelength is not None,
+        g=g.value,
+    )
     print(f"depth regime: {regime.regime} - {regime.explanation}")
     print(CAUTION_LINE)
     return 0
 
 
-COMMAND = Command("speed", "Speed through the water from measured wavelengths and angles (Monte Carlo 95 % interval).",
-                  add_arguments, run)
+COMMAND = Command(
+    "speed",
+    "Speed through the water from measured wavelengths and angles (Monte Carlo 95 % interval).",
+    add_arguments,
+    run,
+)

@@ -47,14 +47,28 @@ def run(args: argparse.Namespace) -> int:
         return 0
     speed = args.speed if args.speed is not None else float(knots_to_mps(args.speed_knots or 12.0))
     vessel = VesselSpec("Synthetic vessel", args.lon, args.lat, speed, args.heading, Hull(args.hull_length, args.beam))
+    imaging: OpticalModel | RadarModel
     if args.kind == "optical":
         imaging = OpticalModel(sun_azimuth_deg=args.sun_azimuth, dtype=args.dtype)
     else:
-        imaging = RadarModel(look_bearing_deg=args.look_bearing, incidence_deg=args.incidence, looks=args.looks,
-                             hull_displacement=not args.no_hull_shift)
+        imaging = RadarModel(
+            look_bearing_deg=args.look_bearing,
+            incidence_deg=args.incidence,
+            looks=args.looks,
+            hull_displacement=not args.no_hull_shift,
+        )
     sea = AmbientSea(args.sea_wavelength, args.sea_direction, 8.0, args.sea_strength) if args.sea_wavelength else None
-    spec = vessel_scene("custom", vessel, args.size, args.pixel, imaging=imaging, depth_m=args.depth, sea=sea,
-                         crs=args.crs, seed=args.seed)
+    spec = vessel_scene(
+        "custom",
+        vessel,
+        args.size,
+        args.pixel,
+        imaging=imaging,
+        depth_m=args.depth,
+        sea=sea,
+        crs=args.crs,
+        seed=args.seed,
+    )
     out = Path(args.out)
     if out.suffix.lower() not in (".tif", ".tiff"):
         out = out.with_suffix(".tif")
@@ -63,5 +77,6 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
-COMMAND = Command("synth", "Make a synthetic wake scene of known truth (GeoTIFF plus <name>.truth.json).",
-                  add_arguments, run)
+COMMAND = Command(
+    "synth", "Make a synthetic wake scene of known truth (GeoTIFF plus <name>.truth.json).", add_arguments, run
+)

@@ -60,8 +60,14 @@ class _Attempt:
     hull_px: tuple[float, float] | None  #: a radar hull seen away from this start
 
 
-def analyze(scene: Scene, request: AnalysisRequest, tuning: Tuning = DEFAULT_TUNING, *,
-            progress: Progress | None = None, cancelled: Callable[[], bool] | None = None) -> WakeAnalysis:
+def analyze(
+    scene: Scene,
+    request: AnalysisRequest,
+    tuning: Tuning = DEFAULT_TUNING,
+    *,
+    progress: Progress | None = None,
+    cancelled: Callable[[], bool] | None = None,
+) -> WakeAnalysis:
     """Analyse the wake of one vessel.
 
     Parameters
@@ -119,11 +125,25 @@ def _gravity(scene: Scene, px: tuple[float, float]) -> tuple[float, inv.Uncertai
     return STANDARD_GRAVITY, inv.Uncertain(STANDARD_GRAVITY, GRAVITY_STD_UNKNOWN)
 
 
-def _attempt(scene: Scene, request: AnalysisRequest, px: tuple[float, float], *, radar: bool | None,
-             hull_px: tuple[float, float] | None, tuning: Tuning) -> _Attempt:
+def _attempt(
+    scene: Scene,
+    request: AnalysisRequest,
+    px: tuple[float, float],
+    *,
+    radar: bool | None,
+    hull_px: tuple[float, float] | None,
+    tuning: Tuning,
+) -> _Attempt:
     g, g_u = _gravity(scene, px)
-    look = choose_look(scene, px, g=g, depth_m=np.inf if request.depth is None else request.depth.value,
-                       radar=radar, snap=hull_px is None, tuning=tuning)
+    look = choose_look(
+        scene,
+        px,
+        g=g,
+        depth_m=np.inf if request.depth is None else request.depth.value,
+        radar=radar,
+        snap=hull_px is None,
+        tuning=tuning,
+    )
     decision = decide(look, g=g, depth_given=request.depth is not None, tuning=tuning)
     chip = look.chip
     snapped = chip.to_scene(*chip.hull_rc) if chip.hull_rc is not None else px
@@ -138,8 +158,9 @@ def _from_displaced_apex(scene: Scene, request: AnalysisRequest, first: _Attempt
     """A radar hull beside its wake (moving targets are shifted in azimuth): look again from where the
     wake starts (only from a bright hull: without one there is nothing displaced)."""
     try:
-        apex = find_displaced_apex(scene, first.vessel_px, step=first.look.chip.step, size_px=tuning.chip_px,
-                                   radar=True)
+        apex = find_displaced_apex(
+            scene, first.vessel_px, step=first.look.chip.step, size_px=tuning.chip_px, radar=True
+        )
         if apex is None:
             return None
         return _attempt(scene, request, apex.apex_px, radar=True, hull_px=first.vessel_px, tuning=tuning)
@@ -149,20 +170,41 @@ def _from_displaced_apex(scene: Scene, request: AnalysisRequest, first: _Attempt
 
 def _no_wake(scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning) -> WakeAnalysis:
     frame = scene.local_frame(*a.vessel_px)
-    cautions = opening_cautions(hull_shift_m=None, frame_georeferenced=frame.georeferenced,
-                                north_known=frame.north_known)
+    cautions = opening_cautions(
+        hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
+    )
     regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no wake: nothing to judge")
     return WakeAnalysis(
-        False, decision_text(a.decision, a.look, tuning), a.decision.significance, a.vessel_px, a.vessel_lonlat,
-        None, None, None, (), None, None, None, None, regime, None, None, a.g, a.look.chip.m_per_px, tuple(cautions),
+        False,
+        decision_text(a.decision, a.look, tuning),
+        a.decision.significance,
+        a.vessel_px,
+        a.vessel_lonlat,
+        None,
+        None,
+        None,
+        (),
+        None,
+        None,
+        None,
+        None,
+        regime,
+        None,
+        None,
+        a.g,
+        a.look.chip.m_per_px,
+        tuple(cautions),
         drawing=Drawing((chip_outline(a.look.chip),)),
-        diagnostics=Diagnostics(side_contrast=a.look.side_contrast, fit_speed_mps=a.look.fit.speed_mps,
-                                look_step=a.look.step),
-        request=request)
+        diagnostics=Diagnostics(
+            side_contrast=a.look.side_contrast, fit_speed_mps=a.look.fit.speed_mps, look_step=a.look.step
+        ),
+        request=request,
+    )
 
 
-def _measure(scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning,
-             stage: Callable[[float, str], None]) -> WakeAnalysis:
+def _measure(
+    scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning, stage: Callable[[float, str], None]
+) -> WakeAnalysis:
     look, g = a.look, a.g
     model = choose_depth_model(look, a.decision, g=g, depth_m=request.depth_m, tuning=tuning)
     stage(0.45, "measuring crests and arms")
@@ -172,11 +214,27 @@ def _measure(scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning
     frame = scene.local_frame(*a.vessel_px)
     back = np.radians(measures.back_deg + 180)
     heading = float(frame.bearing_of(np.cos(back), -np.sin(back)))
-    depth = request.depth if request.depth is not None else (
-        inv.Uncertain(model.depth_m, spread.depth_std_m) if model.fitted else None)
+    depth = (
+        request.depth
+        if request.depth is not None
+        else (inv.Uncertain(model.depth_m, spread.depth_std_m) if model.fitted else None)
+    )
     cond = inv.Conditions(g_mps2=a.g_u, depth_m=depth, pixel_scale_rel_std=request.pixel_rel_std)
-    ctx = MethodContext(scene, request, look, model, measures, spread, heading, frame, cond, a.g_u,
-                        np.random.default_rng(request.seed), a.hull_px, tuning)
+    ctx = MethodContext(
+        scene,
+        request,
+        look,
+        model,
+        measures,
+        spread,
+        heading,
+        frame,
+        cond,
+        a.g_u,
+        np.random.default_rng(request.seed),
+        a.hull_px,
+        tuning,
+    )
     outputs = [method.estimate(ctx) for method in SPEED_METHODS]
     methods = tuple(e for o in outputs for e in o.estimates)
     stage(0.9, "combining methods")
@@ -184,14 +242,25 @@ def _measure(scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning
     regime = depth_regime(model, measures, spectral=methods[0], depth=depth, g=g, tuning=tuning)
     cover = interval_cover(model, combined)
     widened = widen(combined, cover)
-    shift_m = None if a.hull_px is None else frame.length_of(a.hull_px[0] - a.vessel_px[0],
-                                                             a.hull_px[1] - a.vessel_px[1])
-    cautions = (opening_cautions(hull_shift_m=shift_m, frame_georeferenced=frame.georeferenced,
-                                 north_known=frame.north_known)
-                + [c for o in outputs for c in o.cautions]
-                + closing_cautions(model, measures, widened, widened=widened is not combined,
-                                   depth_given=request.depth is not None, hull_length_m=request.hull_length_m, g=g,
-                                   tuning=tuning))
+    shift_m = (
+        None
+        if a.hull_px is None
+        else float(frame.length_of(a.hull_px[0] - a.vessel_px[0], a.hull_px[1] - a.vessel_px[1]))
+    )
+    cautions = (
+        opening_cautions(hull_shift_m=shift_m, frame_georeferenced=frame.georeferenced, north_known=frame.north_known)
+        + [c for o in outputs for c in o.cautions]
+        + closing_cautions(
+            model,
+            measures,
+            widened,
+            widened=widened is not combined,
+            depth_given=request.depth is not None,
+            hull_length_m=request.hull_length_m,
+            g=g,
+            tuning=tuning,
+        )
+    )
     drawing = measures.drawing.plus(s for o in outputs for s in o.segments)
     if a.hull_px is not None:  # from the hull as imaged to where its wake starts
         drawing = drawing.plus([Segment(SegmentKind.HULL_SHIFT, (a.hull_px, a.vessel_px))])
@@ -199,20 +268,48 @@ def _measure(scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning
     sp = a.decision.spectrum
     tw = look.turbulent
     plots = PlotData(
-        whitened_spectrum=sp.white, spectrum_dk=(sp.dk_u, sp.dk_v), spectrum_band=(sp.k_lo, sp.k_hi),
+        whitened_spectrum=sp.white,
+        spectrum_dk=(sp.dk_u, sp.dk_v),
+        spectrum_band=(sp.k_lo, sp.k_hi),
         fitted_curve=curve_points(model.speed_mps, model.depth_m, model.delta_deg, g=g, k_max=1.05 * sp.k_hi),
-        fit_speed_mps=model.speed_mps, fit_depth_m=model.depth_m, fit_delta_deg=model.delta_deg,
-        profile=measures.profile, profile_m_per_px=look.chip.m_per_px,
+        fit_speed_mps=model.speed_mps,
+        fit_depth_m=model.depth_m,
+        fit_delta_deg=model.delta_deg,
+        profile=measures.profile,
+        profile_m_per_px=look.chip.m_per_px,
         transverse_wavelength_m=measures.transverse_wavelength_m,
-        speed_grid=look.fit.speed_grid, score_profile=look.fit.profile,
-        radon=None if tw is None else tw.sinogram, radon_angles_deg=None if tw is None else tw.angles_deg,
-        radon_pick=None if tw is None else (tw.radon_angle_deg, tw.offset_px, tw.significance))
+        speed_grid=look.fit.speed_grid,
+        score_profile=look.fit.profile,
+        radon=None if tw is None else tw.sinogram,
+        radon_angles_deg=None if tw is None else tw.angles_deg,
+        radon_pick=None if tw is None else (tw.radon_angle_deg, tw.offset_px, tw.significance),
+    )
     return WakeAnalysis(
-        True, decision_text(a.decision, look, tuning), a.decision.significance, a.vessel_px, a.vessel_lonlat,
-        heading, spread.heading_std_deg, widened, methods, measures.half_angle_deg, measures.half_angle_std_deg,
-        measures.transverse_wavelength_m, measures.transverse_wavelength_std_m, regime,
-        None if depth is None else depth.value, depth_ci, g, look.chip.m_per_px, tuple(cautions),
+        True,
+        decision_text(a.decision, look, tuning),
+        a.decision.significance,
+        a.vessel_px,
+        a.vessel_lonlat,
+        heading,
+        spread.heading_std_deg,
+        widened,
+        methods,
+        measures.half_angle_deg,
+        measures.half_angle_std_deg,
+        measures.transverse_wavelength_m,
+        measures.transverse_wavelength_std_m,
+        regime,
+        None if depth is None else depth.value,
+        depth_ci,
+        g,
+        look.chip.m_per_px,
+        tuple(cautions),
         drawing=drawing,
-        diagnostics=Diagnostics(look.side_contrast, look.fit.speed_mps, model.depth_gain, model.rule_out,
-                                spread.boot_speeds_mps, look.step),
-        lines=measures.lines, interval_cover=cover, request=request, plots=plots)
+        diagnostics=Diagnostics(
+            look.side_contrast, look.fit.speed_mps, model.depth_gain, model.rule_out, spread.boot_speeds_mps, look.step
+        ),
+        lines=measures.lines,
+        interval_cover=cover,
+        request=request,
+        plots=plots,
+    )

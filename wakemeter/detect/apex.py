@@ -46,8 +46,15 @@ class Apex:
     distance_m: float  #: from the clicked hull to the apex
 
 
-def find_displaced_apex(scene: Scene, hull_px: tuple[float, float], *, step: int = 1, size_px: int = 640,
-                        max_distance_m: float = 2500.0, radar: bool | None = True) -> Apex | None:
+def find_displaced_apex(
+    scene: Scene,
+    hull_px: tuple[float, float],
+    *,
+    step: int = 1,
+    size_px: int = 640,
+    max_distance_m: float = 2500.0,
+    radar: bool | None = True,
+) -> Apex | None:
     """Find the dark wake line near a radar hull and the point where it starts (None if there is none)."""
     chip = prepare_chip(scene, hull_px, size_px=size_px, step=step, radar=radar)
     n = chip.data.shape[0]
@@ -85,8 +92,9 @@ def find_displaced_apex(scene: Scene, hull_px: tuple[float, float], *, step: int
     return best
 
 
-def _apex_on_line(img: np.ndarray, valid: np.ndarray, s: float, theta_deg: float, significance: float,
-                  half_width: int = 3) -> tuple[float, float, float, float] | None:
+def _apex_on_line(
+    img: np.ndarray, valid: np.ndarray, s: float, theta_deg: float, significance: float, half_width: int = 3
+) -> tuple[float, float, float, float] | None:
     """Start of the darkness along the Radon line (s, theta): (row, col, back angle, step contrast)."""
     n = img.shape[0]
     c = n // 2
@@ -103,8 +111,9 @@ def _apex_on_line(img: np.ndarray, valid: np.ndarray, s: float, theta_deg: float
     rows, cols = c - y, c + x
     vals = ndimage.map_coordinates(img, [rows.ravel(), cols.ravel()], order=1).reshape(rows.shape)
     ok = ndimage.map_coordinates(valid.astype(float), [rows.ravel(), cols.ravel()], order=0).reshape(rows.shape) > 0
-    prof = np.where(ok.sum(axis=1) > half_width, np.sum(np.where(ok, vals, 0), axis=1) / np.maximum(ok.sum(axis=1), 1),
-                    np.nan)
+    prof = np.where(
+        ok.sum(axis=1) > half_width, np.sum(np.where(ok, vals, 0), axis=1) / np.maximum(ok.sum(axis=1), 1), np.nan
+    )
     good = np.isfinite(prof)
     if good.sum() < 60:
         return None
@@ -116,6 +125,7 @@ def _apex_on_line(img: np.ndarray, valid: np.ndarray, s: float, theta_deg: float
     def mean(a: int, b: int) -> float:
         k = cnt[b] - cnt[a]
         return (csum[b] - csum[a]) / k if k >= win // 2 else np.nan
+
     best = (-np.inf, 0, 1)
     for i in range(win, t.size - win):
         before, after = mean(i - win, i), mean(i, i + win)

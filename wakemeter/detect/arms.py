@@ -50,8 +50,9 @@ def _fit_side(us: np.ndarray, vs: np.ndarray) -> tuple[float, float, float]:
     return float(np.degrees(np.arctan(b))), float(a), float(np.std(r))
 
 
-def half_angle_from_edges(energy: np.ndarray, *, u_offset: int, background: float, noise: float,
-                          frac: float = 0.2) -> Arms | None:
+def half_angle_from_edges(
+    energy: np.ndarray, *, u_offset: int, background: float, noise: float, frac: float = 0.2
+) -> Arms | None:
     """Edges of the energy wedge in a track-frame energy map (v rows centred, u columns from ``u_offset``).
 
     Returns None when the wedge does not stand above the background.
@@ -61,7 +62,7 @@ def half_angle_from_edges(energy: np.ndarray, *, u_offset: int, background: floa
     us, left, right = [], [], []
     vv = np.arange(n_v) - c
     for j in range(int(0.15 * n_u), n_u, max(1, n_u // 60)):
-        prof = ndimage.uniform_filter1d(energy[:, max(j - 2, 0):j + 3].mean(axis=1), 3)
+        prof = ndimage.uniform_filter1d(energy[:, max(j - 2, 0) : j + 3].mean(axis=1), 3)
         u = j + u_offset
         core = np.abs(vv) <= max(2.0, u * np.tan(np.radians(4.0)))  # skip the track itself
         row = []
@@ -81,17 +82,17 @@ def half_angle_from_edges(energy: np.ndarray, *, u_offset: int, background: floa
         right.append(row[1])
     if len(us) < 6:
         return None
-    us = np.asarray(us, float)
-    la, lo, ls = _fit_side(us, np.asarray(left, float))
-    ra, ro, rs = _fit_side(us, np.asarray(right, float))
+    u_arr = np.asarray(us, float)
+    la, lo, ls = _fit_side(u_arr, np.asarray(left, float))
+    ra, ro, rs = _fit_side(u_arr, np.asarray(right, float))
     angs = [a for a in (la, ra) if np.isfinite(a) and 0 < a < 89]
     if not angs:
         return None
     half = float(np.mean(angs))
     spread = abs(la - ra) / 2 if len(angs) == 2 else 3.0
-    fit_se = np.degrees(np.nanmean([ls, rs]) / max(us.max() - us.min(), 1.0)) * 2.0
+    fit_se = np.degrees(np.nanmean([ls, rs]) / max(u_arr.max() - u_arr.min(), 1.0)) * 2.0
     std = float(np.hypot(max(spread, 0.3), fit_se))
-    return Arms(half, std, la, ra, lo, ro, int(us.size))
+    return Arms(half, std, la, ra, lo, ro, int(u_arr.size))
 
 
 @dataclass(frozen=True)
@@ -125,8 +126,15 @@ def wave_energy(frame_img: np.ndarray, m_per_px: float, *, k_lo: float, k_hi: fl
 _RADON_ANGLES = np.arange(0.0, 180.0, 1.0)  # 1-deg steps: the spectral fit refines the direction
 
 
-def turbulent_wake(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[float, float], back_angle_deg: float,
-                   *, search_deg: float = 25.0, smooth_px: float = 2.0) -> TurbulentWake | None:
+def turbulent_wake(
+    chip_data: np.ndarray,
+    valid: np.ndarray,
+    vessel_rc: tuple[float, float],
+    back_angle_deg: float,
+    *,
+    search_deg: float = 25.0,
+    smooth_px: float = 2.0,
+) -> TurbulentWake | None:
     """Strongest bright or dark line through the vessel near the wake direction (localised Radon).
 
     The chip is masked to the half behind the vessel, centred on the vessel, and
@@ -161,8 +169,9 @@ def turbulent_wake(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[fl
     return TurbulentWake(float(ang), s, float(abs(val - med) / mad), bool(val < med), sino, _RADON_ANGLES, float(th))
 
 
-def wake_line_offset(chip_data: np.ndarray, valid: np.ndarray, back_angle_deg: float, *, max_offset_px: float,
-                     smooth_px: float = 2.0) -> tuple[float, float, float] | None:
+def wake_line_offset(
+    chip_data: np.ndarray, valid: np.ndarray, back_angle_deg: float, *, max_offset_px: float, smooth_px: float = 2.0
+) -> tuple[float, float, float] | None:
     """The turbulent wake as a straight line of the track direction anywhere near the chip centre.
 
     For the radar azimuth-offset method the hull is displaced from its own wake, so the wake line

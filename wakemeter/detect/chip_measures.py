@@ -23,21 +23,29 @@ def track_profile(chip: Chip, back: float, lam_pred: float, m: float, *, gap_px:
     c = tf.shape[0] // 2
     half_w = int(max(1, min(lam_pred / m / 6, 6))) if np.isfinite(lam_pred) else 2
     valid_u = np.nonzero(np.abs(tf[c]) > 0)[0]
-    return tf[c - half_w:c + half_w + 1, :valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
+    return tf[c - half_w : c + half_w + 1, : valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
 
 
-def wedge_arms(chip: Chip, back: float, lam_pred: float, m: float, *, gap_px: int
-               ) -> tuple[arms_mod.Arms | None, np.ndarray, np.ndarray, int]:
+def wedge_arms(
+    chip: Chip, back: float, lam_pred: float, m: float, *, gap_px: int
+) -> tuple[arms_mod.Arms | None, np.ndarray, np.ndarray, int]:
     """Half-angle from the outer edge of the wave energy in a wide track frame; also returns the energy
     map, its valid mask and the vessel's column in it."""
     reach = int(REACH_FRACTION * chip.data.shape[0])
     wide = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=reach)
-    wvalid = track_frame(chip.valid.astype(np.float32), chip.vessel_rc, back, u_range=(-reach, reach),
-                         v_half=reach, order=0) > 0
+    wvalid = (
+        track_frame(chip.valid.astype(np.float32), chip.vessel_rc, back, u_range=(-reach, reach), v_half=reach, order=0)
+        > 0
+    )
     k_t = 2 * np.pi / lam_pred if np.isfinite(lam_pred) else 2 * np.pi / (20 * m)
-    energy = arms_mod.wave_energy(wide, m, k_lo=0.5 * k_t, k_hi=min(K_HI_FACTOR * k_t, 2 * np.pi / (2.6 * m)),
-                                  smooth_px=max(1.5, 0.3 * lam_pred / m if np.isfinite(lam_pred) else 3))
-    ahead_e = energy[:, :reach - gap_px][wvalid[:, :reach - gap_px]]
+    energy = arms_mod.wave_energy(
+        wide,
+        m,
+        k_lo=0.5 * k_t,
+        k_hi=min(K_HI_FACTOR * k_t, 2 * np.pi / (2.6 * m)),
+        smooth_px=max(1.5, 0.3 * lam_pred / m if np.isfinite(lam_pred) else 3),
+    )
+    ahead_e = energy[:, : reach - gap_px][wvalid[:, : reach - gap_px]]
     bg, noise = median_spread(ahead_e, floor=0.0) if ahead_e.size else (0.0, 1e-9)
     energy = np.where(wvalid, energy, 0.0)
     found = arms_mod.half_angle_from_edges(energy[:, reach:], u_offset=0, background=bg, noise=max(noise, 1e-12))
@@ -59,6 +67,7 @@ def wake_drawing(chip: Chip, back: float, half: float | None, arms, narrow: list
     def ray(kind: SegmentKind, angle_deg: float) -> Segment:
         a = np.radians(angle_deg)
         return Segment(kind, (chip.to_scene(r0, c0), chip.to_scene(r0 - length * np.sin(a), c0 + length * np.cos(a))))
+
     segs = [chip_outline(chip), ray(SegmentKind.TRACK, back)]
     if half is not None and arms is not None:
         segs.append(ray(SegmentKind.ARM_LEFT, back + (arms.left_deg if np.isfinite(arms.left_deg) else half)))

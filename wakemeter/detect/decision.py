@@ -42,17 +42,25 @@ def decide(look: Look, *, g: float, depth_given: bool, tuning: Tuning) -> Decisi
     best_sub = np.nanmax([fit.score, joint.score, -np.inf])
     supercritical = bool(np.isfinite(sup.score) and sup.score >= best_sub + t.super_gain_min)
     significance = float(sup.score if supercritical else fit.significance)
-    found = bool(look.side_contrast >= t.side_contrast_min and (
-        (np.isfinite(fit.speed_mps) and fit.significance >= t.significance_min)
-        or (supercritical and sup.score >= t.super_significance_min)))
+    found = bool(
+        look.side_contrast >= t.side_contrast_min
+        and (
+            (np.isfinite(fit.speed_mps) and fit.significance >= t.significance_min)
+            or (supercritical and sup.score >= t.super_significance_min)
+        )
+    )
     return Decision(found, significance, supercritical, joint, sup, sp)
 
 
 def decision_text(decision: Decision, look: Look, tuning: Tuning) -> str:
     t = tuning
     if decision.found:
-        return (f"wake found: spectral significance {decision.significance:.1f}, wake-side contrast "
-                f"{look.side_contrast:.1f} ({t.false_alarm_note})")
-    return (f"no wake found: spectral significance {decision.significance:.1f} (needs {t.significance_min}) and "
-            f"wake-side contrast {look.side_contrast:.1f} (needs {t.side_contrast_min}); thresholds set for "
-            f"{t.false_alarm_note}")
+        return (
+            f"wake found: spectral significance {decision.significance:.1f}, wake-side contrast "
+            f"{look.side_contrast:.1f} ({t.false_alarm_note})"
+        )
+    return (
+        f"no wake found: spectral significance {decision.significance:.1f} (needs {t.significance_min}) and "
+        f"wake-side contrast {look.side_contrast:.1f} (needs {t.side_contrast_min}); thresholds set for "
+        f"{t.false_alarm_note}"
+    )

@@ -39,24 +39,50 @@ class DepthModel:
         return self.shallow_alt is not None and not self.rule_out >= tuning.rule_out_min
 
 
-def choose_depth_model(look: Look, decision: Decision, *, g: float, depth_m: float | None,
-                       tuning: Tuning) -> DepthModel:
+def choose_depth_model(
+    look: Look, decision: Decision, *, g: float, depth_m: float | None, tuning: Tuning
+) -> DepthModel:
     t = tuning
     fit, joint, sup = look.fit, decision.joint, decision.sup
     if depth_m is not None:
-        return DepthModel(fit.speed_mps, float(depth_m), fit.delta_deg, True, False, False, "", np.nan, np.nan,
-                          None, (), fit.score)
+        return DepthModel(
+            fit.speed_mps, float(depth_m), fit.delta_deg, True, False, False, "", np.nan, np.nan, None, (), fit.score
+        )
     gain = joint.score - fit.score if np.isfinite(joint.score) else np.nan
     if decision.supercritical:
-        return DepthModel(sup.speed_mps, sup.depth_m, sup.delta_deg, True, True, True,
-                          f"no transverse waves: the supercritical curve fits the wave spectrum far better (score "
-                          f"{sup.score:.1f}) than the deep-water ({fit.score:.1f}) or subcritical ({joint.score:.1f}) "
-                          "curves", gain, np.nan, None, (), fit.score)
+        return DepthModel(
+            sup.speed_mps,
+            sup.depth_m,
+            sup.delta_deg,
+            True,
+            True,
+            True,
+            f"no transverse waves: the supercritical curve fits the wave spectrum far better (score "
+            f"{sup.score:.1f}) than the deep-water ({fit.score:.1f}) or subcritical ({joint.score:.1f}) "
+            "curves",
+            gain,
+            np.nan,
+            None,
+            (),
+            fit.score,
+        )
     if gain >= t.depth_gain_min and joint.depth_froude(g) >= t.fr_depth_effect:
-        return DepthModel(joint.speed_mps, joint.depth_m, joint.delta_deg, True, True, False,
-                          f"the finite-depth curve fits the wave spectrum better than the deep-water curve "
-                          f"(score {joint.score:.1f} against {fit.score:.1f}); the deep-water fit would read "
-                          f"{fit.speed_mps:.2f} m/s", gain, np.nan, None, (), fit.score)
+        return DepthModel(
+            joint.speed_mps,
+            joint.depth_m,
+            joint.delta_deg,
+            True,
+            True,
+            False,
+            f"the finite-depth curve fits the wave spectrum better than the deep-water curve "
+            f"(score {joint.score:.1f} against {fit.score:.1f}); the deep-water fit would read "
+            f"{fit.speed_mps:.2f} m/s",
+            gain,
+            np.nan,
+            None,
+            (),
+            fit.score,
+        )
     best = max(fit.score, joint.score)
     open_alts: list[tuple[float, DepthFit]] = []
     shallow_alt, rule_out = None, np.nan
@@ -67,5 +93,17 @@ def choose_depth_model(look: Look, decision: Decision, *, g: float, depth_m: flo
             open_alts.append((fr_try, alt))
         if fr_try == t.fr_rule_out:
             shallow_alt, rule_out = alt, drop
-    return DepthModel(fit.speed_mps, np.inf, fit.delta_deg, False, False, False, "", gain, rule_out, shallow_alt,
-                      tuple(open_alts), fit.score)
+    return DepthModel(
+        fit.speed_mps,
+        np.inf,
+        fit.delta_deg,
+        False,
+        False,
+        False,
+        "",
+        gain,
+        rule_out,
+        shallow_alt,
+        tuple(open_alts),
+        fit.score,
+    )

@@ -53,12 +53,19 @@ class Caution:
 
 def _guess_code(text: str) -> CautionCode:
     """Code of a caution stored as text only by an earlier version (read-only compatibility)."""
-    for code, words in ((CautionCode.HAND_CREST, "measured by hand"), (CautionCode.HAND_ARM, "corrected by hand"),
-                        (CautionCode.DISPLACED_HULL, "start of its wake"), (CautionCode.DEPTH_FITTED, "depth was fitted"),
-                        (CautionCode.DEEP_ASSUMED, "deep water assumed"), (CautionCode.THROUGH_WATER, "through the water"),
-                        (CautionCode.METHODS_DISAGREE, "DISAGREE"), (CautionCode.INTERVAL_WIDENED, "widened"),
-                        (CautionCode.NARROW_ARMS, "narrower than Kelvin"), (CautionCode.NO_GEOREFERENCE, "georeference"),
-                        (CautionCode.RADAR_OFFSET_MISSING, "azimuth offset not measured")):
+    for code, words in (
+        (CautionCode.HAND_CREST, "measured by hand"),
+        (CautionCode.HAND_ARM, "corrected by hand"),
+        (CautionCode.DISPLACED_HULL, "start of its wake"),
+        (CautionCode.DEPTH_FITTED, "depth was fitted"),
+        (CautionCode.DEEP_ASSUMED, "deep water assumed"),
+        (CautionCode.THROUGH_WATER, "through the water"),
+        (CautionCode.METHODS_DISAGREE, "DISAGREE"),
+        (CautionCode.INTERVAL_WIDENED, "widened"),
+        (CautionCode.NARROW_ARMS, "narrower than Kelvin"),
+        (CautionCode.NO_GEOREFERENCE, "georeference"),
+        (CautionCode.RADAR_OFFSET_MISSING, "azimuth offset not measured"),
+    ):
         if words in text:
             return code
     return CautionCode.NOTE
@@ -134,8 +141,9 @@ class Drawing:
                 lines = pts if kind == SegmentKind.CREST else [pts]
                 segs += [Segment(kind, tuple((float(p[0]), float(p[1])) for p in line)) for line in lines]
         else:
-            segs = [Segment(SegmentKind(s["kind"]), tuple((float(p[0]), float(p[1])) for p in s["points"]))
-                    for s in data]
+            segs = [
+                Segment(SegmentKind(s["kind"]), tuple((float(p[0]), float(p[1])) for p in s["points"])) for s in data
+            ]
         return cls(tuple(segs))
 
 
@@ -173,9 +181,14 @@ class Diagnostics:
     look_step: int = 1  #: decimation of the look used (1: full resolution)
 
     def to_json(self) -> dict:
-        return {"side_contrast": _num(self.side_contrast), "fit_speed_mps": _num(self.fit_speed_mps),
-                "depth_gain": _num(self.depth_gain), "shallow_rule_out": _num(self.shallow_rule_out),
-                "boot_speeds_mps": [_num(v) for v in self.boot_speeds_mps], "look_step": self.look_step}
+        return {
+            "side_contrast": _num(self.side_contrast),
+            "fit_speed_mps": _num(self.fit_speed_mps),
+            "depth_gain": _num(self.depth_gain),
+            "shallow_rule_out": _num(self.shallow_rule_out),
+            "boot_speeds_mps": [_num(v) for v in self.boot_speeds_mps],
+            "look_step": self.look_step,
+        }
 
     @classmethod
     def from_json(cls, data: Any) -> Diagnostics:
@@ -186,9 +199,15 @@ class Diagnostics:
         def f(key: str) -> float:
             v = data.get(key)
             return nan if v is None else float(v)
-        return cls(f("side_contrast"), f("fit_speed_mps"), f("depth_gain"), f("shallow_rule_out"),
-                   tuple(nan if v is None else float(v) for v in data.get("boot_speeds_mps") or ()),
-                   int(data.get("look_step") or 1))
+
+        return cls(
+            f("side_contrast"),
+            f("fit_speed_mps"),
+            f("depth_gain"),
+            f("shallow_rule_out"),
+            tuple(nan if v is None else float(v) for v in data.get("boot_speeds_mps") or ()),
+            int(data.get("look_step") or 1),
+        )
 
 
 @dataclass(frozen=True, eq=False)

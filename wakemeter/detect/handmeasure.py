@@ -47,12 +47,14 @@ def ruler(scene: Scene, p0: Point, p1: Point) -> Ruler:
     dc, dr = p1[0] - p0[0], p1[1] - p0[1]
     if scene.info.georeferenced:
         from ..scene import geodesy
+
         length, bearing = geodesy.ground_distance_and_bearing(scene.georef, p0, p1)
     else:
         length, bearing = float(f.length_of(dc, dr)), float(f.bearing_of(dc, dr))
     m_px = length / d_px
-    return Ruler(length, np.sqrt(2) * PLACEMENT_PX * m_px, bearing % 360.0,
-                 float(np.degrees(np.sqrt(2) * PLACEMENT_PX / d_px)))
+    return Ruler(
+        length, np.sqrt(2) * PLACEMENT_PX * m_px, bearing % 360.0, float(np.degrees(np.sqrt(2) * PLACEMENT_PX / d_px))
+    )
 
 
 def track_heading(scene: Scene, vessel: Point, wake_end: Point) -> Ruler:

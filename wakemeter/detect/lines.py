@@ -49,18 +49,31 @@ class WakeLine:
     length_px: float  #: length of the rays used, chip pixels
 
 
-def ray_fan(img: np.ndarray, valid: np.ndarray, origin_rc: tuple[float, float], direction_deg: float,
-            angles_deg: np.ndarray, *, r_min_px: float, r_max_px: float) -> np.ndarray:
+def ray_fan(
+    img: np.ndarray,
+    valid: np.ndarray,
+    origin_rc: tuple[float, float],
+    direction_deg: float,
+    angles_deg: np.ndarray,
+    *,
+    r_min_px: float,
+    r_max_px: float,
+) -> np.ndarray:
     """Mean of ``img`` along rays from ``origin_rc`` at ``direction_deg + angles_deg`` (image angles,
     counter-clockwise from the column axis); NaN where fewer than half of a ray's samples are valid."""
     r = np.arange(r_min_px, r_max_px, 1.0)
     a = np.radians(direction_deg + np.asarray(angles_deg, float))[:, None]
     rows = origin_rc[0] - r[None, :] * np.sin(a)
     cols = origin_rc[1] + r[None, :] * np.cos(a)
-    vals = ndimage.map_coordinates(np.where(valid, img, 0.0), [rows.ravel(), cols.ravel()], order=1,
-                                   mode="constant", cval=0.0).reshape(rows.shape)
-    ok = ndimage.map_coordinates(valid.astype(float), [rows.ravel(), cols.ravel()], order=0, mode="constant",
-                                 cval=0.0).reshape(rows.shape) > 0.5
+    vals = ndimage.map_coordinates(
+        np.where(valid, img, 0.0), [rows.ravel(), cols.ravel()], order=1, mode="constant", cval=0.0
+    ).reshape(rows.shape)
+    ok = (
+        ndimage.map_coordinates(
+            valid.astype(float), [rows.ravel(), cols.ravel()], order=0, mode="constant", cval=0.0
+        ).reshape(rows.shape)
+        > 0.5
+    )
     n = ok.sum(axis=1)
     return np.where(n >= 0.5 * r.size, np.sum(np.where(ok, vals, 0.0), axis=1) / np.maximum(n, 1), np.nan)
 
@@ -87,9 +100,16 @@ def _best_each_side(angles: np.ndarray, sig: np.ndarray, lo: float, hi: float) -
     return out
 
 
-def narrow_v_lines(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[float, float], back_angle_deg: float,
-                   *, r_min_px: float = 8.0, max_angle_deg: float = 7.0, min_angle_deg: float = 0.8
-                   ) -> list[WakeLine]:
+def narrow_v_lines(
+    chip_data: np.ndarray,
+    valid: np.ndarray,
+    vessel_rc: tuple[float, float],
+    back_angle_deg: float,
+    *,
+    r_min_px: float = 8.0,
+    max_angle_deg: float = 7.0,
+    min_angle_deg: float = 0.8,
+) -> list[WakeLine]:
     """Bright thin lines through the vessel within ``min_angle_deg``-``max_angle_deg`` of the track, each side."""
     n = chip_data.shape[0]
     r_max = REACH_FRACTION * n
@@ -99,12 +119,22 @@ def narrow_v_lines(chip_data: np.ndarray, valid: np.ndarray, vessel_rc: tuple[fl
     wide = np.arange(-40.0, 40.0 + 1e-9, 0.2)
     ahead = ray_fan(img, valid, vessel_rc, back_angle_deg + 180.0, wide, r_min_px=r_min_px, r_max_px=r_max)
     sig = _significance(behind, ahead)
-    return [WakeLine(LineKind.NARROW_V, a, s, r_max - r_min_px)
-            for a, s in _best_each_side(angles, sig, min_angle_deg, max_angle_deg) if s >= LINE_SIGNIFICANCE_MIN]
+    return [
+        WakeLine(LineKind.NARROW_V, a, s, r_max - r_min_px)
+        for a, s in _best_each_side(angles, sig, min_angle_deg, max_angle_deg)
+        if s >= LINE_SIGNIFICANCE_MIN
+    ]
 
 
-def kelvin_arm_lines(energy: np.ndarray, valid: np.ndarray, *, u0: int, near_deg: float | None,
-                     r_min_px: float = 8.0, window_deg: float = 8.0) -> list[WakeLine]:
+def kelvin_arm_lines(
+    energy: np.ndarray,
+    valid: np.ndarray,
+    *,
+    u0: int,
+    near_deg: float | None,
+    r_min_px: float = 8.0,
+    window_deg: float = 8.0,
+) -> list[WakeLine]:
     """Ridges of wave energy through the vessel in a track-frame energy map (rows: lateral, centred;
     columns: along the track, the vessel at column ``u0``, behind to the right).
 
@@ -123,5 +153,8 @@ def kelvin_arm_lines(energy: np.ndarray, valid: np.ndarray, *, u0: int, near_deg
     wide = np.arange(-80.0, 80.0 + 1e-9, 0.5)
     ahead = ray_fan(energy, valid, origin, 180.0, wide, r_min_px=r_min_px, r_max_px=r_max)
     sig = _significance(behind, ahead)
-    return [WakeLine(LineKind.KELVIN_ARM, a, s, r_max - r_min_px)
-            for a, s in _best_each_side(angles, sig, lo, hi) if s >= LINE_SIGNIFICANCE_MIN]
+    return [
+        WakeLine(LineKind.KELVIN_ARM, a, s, r_max - r_min_px)
+        for a, s in _best_each_side(angles, sig, lo, hi)
+        if s >= LINE_SIGNIFICANCE_MIN
+    ]

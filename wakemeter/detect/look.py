@@ -36,34 +36,47 @@ class Look:
 
     def spectrum(self, tuning: Tuning) -> SpectrumPair:
         """The whitened spectrum behind the vessel (boxes of ``tuning.box_px``)."""
-        return whitened_spectrum(self.tf[:, -tuning.box_px:], self.tf[:, :tuning.box_px][:, ::-1], self.chip.m_per_px)
+        return whitened_spectrum(self.tf[:, -tuning.box_px :], self.tf[:, : tuning.box_px][:, ::-1], self.chip.m_per_px)
 
     def passes(self, tuning: Tuning) -> bool:
         """Whether the deep-water fit alone would call a wake."""
         return bool(self.fit.significance >= tuning.significance_min and self.side_contrast >= tuning.side_contrast_min)
 
 
-def take_look(scene: Scene, px: tuple[float, float], *, step: int, g: float, depth_m: float, radar: bool | None,
-              snap: bool, tuning: Tuning) -> Look:
+def take_look(
+    scene: Scene,
+    px: tuple[float, float],
+    *,
+    step: int,
+    g: float,
+    depth_m: float,
+    radar: bool | None,
+    snap: bool,
+    tuning: Tuning,
+) -> Look:
     """Prepare a chip, find which way the wake lies and fit the curve.
 
     Two candidate track directions are tried, the centre of the energetic wedge and the
     turbulent wake line (localised Radon); the one whose spectrum fits better wins.
     """
     t = tuning
-    chip = prepare_chip(scene, px, size_px=t.chip_px, step=step, radar=radar,
-                        snap_radius_m=t.snap_radius_m if snap else 0.0)
+    chip = prepare_chip(
+        scene, px, size_px=t.chip_px, step=step, radar=radar, snap_radius_m=t.snap_radius_m if snap else 0.0
+    )
     side = wake_side(chip)
     candidates = [side.back_angle_deg]
     tw = arms_mod.turbulent_wake(chip.data, chip.valid, chip.vessel_rc, side.back_angle_deg)
-    if tw is not None and tw.significance >= t.turbulent_candidate_min \
-            and abs(((tw.angle_deg - side.back_angle_deg) + 180) % 360 - 180) > t.turbulent_candidate_sep_deg:
+    if (
+        tw is not None
+        and tw.significance >= t.turbulent_candidate_min
+        and abs(((tw.angle_deg - side.back_angle_deg) + 180) % 360 - 180) > t.turbulent_candidate_sep_deg
+    ):
         candidates.append(tw.angle_deg)
     best: Look | None = None
     reach = t.gap_px + t.box_px
     for back in candidates:
         tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=t.box_px / 2)
-        sp = whitened_spectrum(tf[:, -t.box_px:], tf[:, :t.box_px][:, ::-1], chip.m_per_px)
+        sp = whitened_spectrum(tf[:, -t.box_px :], tf[:, : t.box_px][:, ::-1], chip.m_per_px)
         fit = fit_curve(sp, g=g, depth_m=depth_m, delta_max_deg=t.delta_max_deg, delta_step_deg=t.delta_step_deg)
         cand = Look(chip, back, side.contrast, fit, tf, tw, step)
         if best is None or (np.isfinite(fit.score) and not fit.score <= best.fit.score):
@@ -72,8 +85,9 @@ def take_look(scene: Scene, px: tuple[float, float], *, step: int, g: float, dep
     return best
 
 
-def choose_look(scene: Scene, px: tuple[float, float], *, g: float, depth_m: float, radar: bool | None,
-                snap: bool, tuning: Tuning) -> Look:
+def choose_look(
+    scene: Scene, px: tuple[float, float], *, g: float, depth_m: float, radar: bool | None, snap: bool, tuning: Tuning
+) -> Look:
     """The look at the scale that suits the waves (see the module text)."""
     t = tuning
 
@@ -93,8 +107,11 @@ def choose_look(scene: Scene, px: tuple[float, float], *, g: float, depth_m: flo
     for _ in range(t.coarse_looks_max):
         u = look.fit.speed_mps
         lam_px = float(kelvin.transverse_wavelength(u, g=g)) / look.chip.m_per_px if np.isfinite(u) else np.nan
-        if not (np.isfinite(lam_px) and lam_px > t.coarse_wave_box_fraction * t.box_px
-                and look.fit.significance >= t.significance_min):
+        if not (
+            np.isfinite(lam_px)
+            and lam_px > t.coarse_wave_box_fraction * t.box_px
+            and look.fit.significance >= t.significance_min
+        ):
             break
         if not room_for(look.step):
             break  # no room for a coarser chip

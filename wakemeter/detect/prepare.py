@@ -43,15 +43,24 @@ def _mad_sigma(a: np.ndarray) -> float:
     return median_spread(a, floor=0.0)[1] or float(np.std(a)) or 1.0
 
 
-def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int = 768, step: int = 1,
-                 radar: bool | None = None, snap_radius_m: float = 40.0, hull_mask_m: float = 30.0) -> Chip:
+def prepare_chip(
+    scene: Scene,
+    vessel_px: tuple[float, float],
+    *,
+    size_px: int = 768,
+    step: int = 1,
+    radar: bool | None = None,
+    snap_radius_m: float = 40.0,
+    hull_mask_m: float = 30.0,
+) -> Chip:
     """Read and prepare a ``size_px`` chip around ``vessel_px`` (scene col, row), decimated by ``step``."""
     if size_px < 64 or step < 1:
         raise ParameterError(f"size_px must be >= 64 and step >= 1, got {size_px!r}, {step!r}")
     col, row = vessel_px
     if not (0 <= col < scene.width and 0 <= row < scene.height):
-        raise ParameterError(f"the vessel position ({col:.1f}, {row:.1f}) lies outside the scene "
-                             f"({scene.width} x {scene.height} pixels)")
+        raise ParameterError(
+            f"the vessel position ({col:.1f}, {row:.1f}) lies outside the scene ({scene.width} x {scene.height} pixels)"
+        )
     frame = scene.local_frame(col, row)
     # integer-aligned chip: starts on a scene pixel boundary, the vessel sits near its centre
     c0 = int(np.floor(col)) - size_px * step // 2
@@ -65,6 +74,7 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
         w1 = min(start + size_px * step, limit)
         w1 = w0 + max(0, (w1 - w0) // step) * step
         return w0, w1, lead // step
+
     wc0, wc1, oc = span(c0, scene.width)
     wr0, wr1, orow = span(r0, scene.height)
     ow, oh = (wc1 - wc0) // step, (wr1 - wr0) // step
@@ -86,11 +96,13 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
         img = np.where(ok, display.to_db(np.where(ok, img, 1.0)), 0.0)
     full = np.zeros((size_px, size_px), np.float32)
     fvalid = np.zeros((size_px, size_px), bool)
-    full[orow:orow + oh, oc:oc + ow] = img
-    fvalid[orow:orow + oh, oc:oc + ow] = ok
+    full[orow : orow + oh, oc : oc + ow] = img
+    fvalid[orow : orow + oh, oc : oc + ow] = ok
     if fvalid.sum() < 0.3 * size_px * size_px:
-        raise ParameterError("less than 30 % of the area around the vessel has valid pixels: it is too close "
-                             "to the edge of the scene, or the area is nodata or land")
+        raise ParameterError(
+            "less than 30 % of the area around the vessel has valid pixels: it is too close "
+            "to the edge of the scene, or the area is nodata or land"
+        )
     # saturation (land, cloud): very bright connected areas
     vals = full[fvalid]
     med, sig = float(np.median(vals)), _mad_sigma(vals)
@@ -120,7 +132,7 @@ def prepare_chip(scene: Scene, vessel_px: tuple[float, float], *, size_px: int =
         lab, _ = ndimage.label(blob)
         if lab[pr[k], pc[k]] > 0:
             hull = lab == lab[pr[k], pc[k]]
-            if hull.sum() * m_px ** 2 < (4 * hull_mask_m) ** 2:  # a hull, not a whole bright region
+            if hull.sum() * m_px**2 < (4 * hull_mask_m) ** 2:  # a hull, not a whole bright region
                 fvalid &= ~ndimage.binary_dilation(hull, iterations=2)
     # background removal and normalisation
     filled = np.where(fvalid, full, med)

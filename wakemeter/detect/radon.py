@@ -39,8 +39,7 @@ def _lanczos(x: np.ndarray) -> np.ndarray:
     return np.where(np.abs(x) < _A, np.sinc(x) * np.sinc(x / _A), 0.0)
 
 
-def radon(image: np.ndarray, theta_deg: np.ndarray | None = None, *, pad: int = 2,
-          workers: int = -1) -> np.ndarray:
+def radon(image: np.ndarray, theta_deg: np.ndarray | None = None, *, pad: int = 2, workers: int = -1) -> np.ndarray:
     """Radon transform (sinogram) of a square image, assumed zero outside its inscribed circle.
 
     Parameters
@@ -63,7 +62,7 @@ def radon(image: np.ndarray, theta_deg: np.ndarray | None = None, *, pad: int = 
         raise ParameterError("image contains NaN or inf; fill masked pixels before the Radon transform")
     n = min(img.shape)
     r0, c0 = (img.shape[0] - n) // 2, (img.shape[1] - n) // 2
-    img = img[r0:r0 + n, c0:c0 + n]
+    img = img[r0 : r0 + n, c0 : c0 + n]
     th = np.arange(180.0) if theta_deg is None else np.asarray(theta_deg, dtype=float).ravel()
     if th.size == 0 or not np.all(np.isfinite(th)):
         raise ParameterError(f"theta_deg must be finite angles, got {theta_deg!r}")

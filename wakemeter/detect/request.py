@@ -48,12 +48,14 @@ class RadarGeometry:
     platform_speed_std_mps: float = 10.0
 
     def __post_init__(self) -> None:
-        checks = (("slant range", self.slant_range_m, "m", lambda v: v > 0, "> 0"),
-                  ("platform speed", self.platform_speed_mps, "m/s", lambda v: v > 0, "> 0"),
-                  ("look bearing", self.look_bearing_deg, "deg", lambda v: 0 <= v <= 360, "within 0-360"),
-                  ("incidence angle", self.incidence_deg, "deg", lambda v: 0 < v < 90, "between 0 and 90"),
-                  ("slant range uncertainty", self.slant_range_std_m, "m", lambda v: v >= 0, ">= 0"),
-                  ("platform speed uncertainty", self.platform_speed_std_mps, "m/s", lambda v: v >= 0, ">= 0"))
+        checks = (
+            ("slant range", self.slant_range_m, "m", lambda v: v > 0, "> 0"),
+            ("platform speed", self.platform_speed_mps, "m/s", lambda v: v > 0, "> 0"),
+            ("look bearing", self.look_bearing_deg, "deg", lambda v: 0 <= v <= 360, "within 0-360"),
+            ("incidence angle", self.incidence_deg, "deg", lambda v: 0 < v < 90, "between 0 and 90"),
+            ("slant range uncertainty", self.slant_range_std_m, "m", lambda v: v >= 0, ">= 0"),
+            ("platform speed uncertainty", self.platform_speed_std_mps, "m/s", lambda v: v >= 0, ">= 0"),
+        )
         for name, value, unit, ok, allowed in checks:
             v = _finite(value, f"radar geometry: the {name}")
             if not ok(v):
@@ -64,17 +66,24 @@ class RadarGeometry:
         return (self.look_bearing_deg - 90.0) % 360.0
 
     def to_json(self) -> dict:
-        return {"slant_range_m": self.slant_range_m, "platform_speed_mps": self.platform_speed_mps,
-                "look_bearing_deg": self.look_bearing_deg, "incidence_deg": self.incidence_deg,
-                "slant_range_std_m": self.slant_range_std_m, "platform_speed_std_mps": self.platform_speed_std_mps}
+        return {
+            "slant_range_m": self.slant_range_m,
+            "platform_speed_mps": self.platform_speed_mps,
+            "look_bearing_deg": self.look_bearing_deg,
+            "incidence_deg": self.incidence_deg,
+            "slant_range_std_m": self.slant_range_std_m,
+            "platform_speed_std_mps": self.platform_speed_std_mps,
+        }
 
     @classmethod
     def from_json(cls, data: Any) -> RadarGeometry:
         """From its JSON object, or the older form of four numbers (range, speed, look bearing, incidence)."""
         if isinstance(data, (list, tuple)):
             if len(data) != 4:
-                raise ParameterError("radar geometry needs four numbers: slant range m, platform speed m/s, "
-                                     f"look bearing deg, incidence deg; got {data!r}")
+                raise ParameterError(
+                    "radar geometry needs four numbers: slant range m, platform speed m/s, "
+                    f"look bearing deg, incidence deg; got {data!r}"
+                )
             return cls(*(_finite(v, "radar geometry") for v in data))
         if not isinstance(data, dict):
             raise ParameterError(f"radar geometry must be an object or four numbers, got {data!r}")
@@ -119,15 +128,18 @@ class AnalysisRequest:
 
     def __post_init__(self) -> None:
         if (self.vessel_px is None) == (self.vessel_lonlat is None):
-            raise ParameterError("give the vessel's position once: either in scene pixels (column, row) "
-                                 "or as longitude and latitude")
+            raise ParameterError(
+                "give the vessel's position once: either in scene pixels (column, row) or as longitude and latitude"
+            )
         if self.vessel_px is not None:
             object.__setattr__(self, "vessel_px", _pair(self.vessel_px, "the vessel's pixel position"))
         if self.vessel_lonlat is not None:
             lon, lat = _pair(self.vessel_lonlat, "the vessel's longitude and latitude")
             if not (-180 <= lon <= 360 and -90 <= lat <= 90):
-                raise ParameterError(f"the vessel's longitude {lon} and latitude {lat} are not on Earth "
-                                     "(longitude -180 to 360, latitude -90 to 90)")
+                raise ParameterError(
+                    f"the vessel's longitude {lon} and latitude {lat} are not on Earth "
+                    "(longitude -180 to 360, latitude -90 to 90)"
+                )
             object.__setattr__(self, "vessel_lonlat", (lon, lat))
         if self.depth is not None and not self.depth.value > 0:
             raise ParameterError(f"the water depth must be > 0 m, got {self.depth.value!r}")
@@ -148,13 +160,17 @@ class AnalysisRequest:
         return replace(self, vessel_px=px, vessel_lonlat=None)
 
     def to_json(self) -> dict:
-        return {"schema": REQUEST_SCHEMA,
-                "vessel_px": list(self.vessel_px) if self.vessel_px else None,
-                "vessel_lonlat": list(self.vessel_lonlat) if self.vessel_lonlat else None,
-                "depth": None if self.depth is None else {"value_m": self.depth.value, "std_m": self.depth.std},
-                "hull_length_m": self.hull_length_m,
-                "radar_geometry": None if self.radar_geometry is None else self.radar_geometry.to_json(),
-                "radar": self.radar, "pixel_rel_std": self.pixel_rel_std, "seed": self.seed}
+        return {
+            "schema": REQUEST_SCHEMA,
+            "vessel_px": list(self.vessel_px) if self.vessel_px else None,
+            "vessel_lonlat": list(self.vessel_lonlat) if self.vessel_lonlat else None,
+            "depth": None if self.depth is None else {"value_m": self.depth.value, "std_m": self.depth.std},
+            "hull_length_m": self.hull_length_m,
+            "radar_geometry": None if self.radar_geometry is None else self.radar_geometry.to_json(),
+            "radar": self.radar,
+            "pixel_rel_std": self.pixel_rel_std,
+            "seed": self.seed,
+        }
 
     @classmethod
     def from_json(cls, data: Any) -> AnalysisRequest:
@@ -162,8 +178,9 @@ class AnalysisRequest:
         if not isinstance(data, dict):
             raise ParameterError(f"an analysis request must be a JSON object, got {type(data).__name__}")
         if data.get("schema", REQUEST_SCHEMA) != REQUEST_SCHEMA:
-            raise ParameterError(f"analysis request of an unknown version {data.get('schema')!r}; "
-                                 f"this version reads {REQUEST_SCHEMA}")
+            raise ParameterError(
+                f"analysis request of an unknown version {data.get('schema')!r}; this version reads {REQUEST_SCHEMA}"
+            )
         d = data.get("depth")
         if d is not None and not isinstance(d, dict):
             raise ParameterError(f"the depth must be an object with value_m and std_m, got {d!r}")
@@ -173,17 +190,28 @@ class AnalysisRequest:
         seed = data.get("seed", 0)
         if isinstance(seed, float) and seed.is_integer():
             seed = int(seed)
-        return cls(vessel_px=_pair(data["vessel_px"], "the vessel's pixel position") if data.get("vessel_px") else None,
-                   vessel_lonlat=(_pair(data["vessel_lonlat"], "the vessel's longitude and latitude")
-                                  if data.get("vessel_lonlat") else None),
-                   depth=None if d is None else Uncertain(_finite(d.get("value_m"), "the water depth"),
-                                                          _finite(d.get("std_m", 0.0), "the depth uncertainty")),
-                   hull_length_m=(None if data.get("hull_length_m") is None
-                                  else _finite(data["hull_length_m"], "the hull length")),
-                   radar_geometry=(None if data.get("radar_geometry") is None
-                                   else RadarGeometry.from_json(data["radar_geometry"])),
-                   radar=radar, pixel_rel_std=_finite(data.get("pixel_rel_std", 0.005), "the pixel size uncertainty"),
-                   seed=seed)
+        return cls(
+            vessel_px=_pair(data["vessel_px"], "the vessel's pixel position") if data.get("vessel_px") else None,
+            vessel_lonlat=(
+                _pair(data["vessel_lonlat"], "the vessel's longitude and latitude")
+                if data.get("vessel_lonlat")
+                else None
+            ),
+            depth=None
+            if d is None
+            else Uncertain(
+                _finite(d.get("value_m"), "the water depth"), _finite(d.get("std_m", 0.0), "the depth uncertainty")
+            ),
+            hull_length_m=(
+                None if data.get("hull_length_m") is None else _finite(data["hull_length_m"], "the hull length")
+            ),
+            radar_geometry=(
+                None if data.get("radar_geometry") is None else RadarGeometry.from_json(data["radar_geometry"])
+            ),
+            radar=radar,
+            pixel_rel_std=_finite(data.get("pixel_rel_std", 0.005), "the pixel size uncertainty"),
+            seed=seed,
+        )
 
     @classmethod
     def from_inputs(cls, position_px: Point, inputs: dict | None) -> AnalysisRequest:
@@ -193,10 +221,15 @@ class AnalysisRequest:
         if inputs.get("schema") == REQUEST_SCHEMA:
             return cls.from_json(inputs).at_pixel(position_px)
         depth = inputs.get("depth_m")
-        return cls(vessel_px=position_px,
-                   depth=None if depth is None else Uncertain(_finite(depth, "the water depth"),
-                                                              _finite(inputs.get("depth_std_m") or 0.0,
-                                                                      "the depth uncertainty")),
-                   hull_length_m=inputs.get("hull_length_m") or None,
-                   radar_geometry=(None if not inputs.get("radar_geometry")
-                                   else RadarGeometry.from_json(inputs["radar_geometry"])))
+        return cls(
+            vessel_px=position_px,
+            depth=None
+            if depth is None
+            else Uncertain(
+                _finite(depth, "the water depth"), _finite(inputs.get("depth_std_m") or 0.0, "the depth uncertainty")
+            ),
+            hull_length_m=inputs.get("hull_length_m") or None,
+            radar_geometry=(
+                None if not inputs.get("radar_geometry") else RadarGeometry.from_json(inputs["radar_geometry"])
+            ),
+        )

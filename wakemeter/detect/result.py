@@ -75,37 +75,65 @@ class WakeAnalysis:
         """Plain data with the documented field names; unknown numbers are None."""
         sp = self.speed
         return {
-            "wake_found": self.wake_found, "decision": self.decision, "significance": _num(self.significance),
+            "wake_found": self.wake_found,
+            "decision": self.decision,
+            "significance": _num(self.significance),
             "speed_mps": _num(sp.speed_mps) if sp else None,
             "speed_knots": _num(sp.speed_mps / KNOT_MPS) if sp else None,
             "speed_ci95_mps": [_num(sp.ci95_low_mps), _num(sp.ci95_high_mps)] if sp else None,
-            "speed_ci95_knots": ([_num(sp.ci95_low_mps / KNOT_MPS), _num(sp.ci95_high_mps / KNOT_MPS)]
-                                 if sp else None),
+            "speed_ci95_knots": ([_num(sp.ci95_low_mps / KNOT_MPS), _num(sp.ci95_high_mps / KNOT_MPS)] if sp else None),
             "consistency": sp.verdict if sp else None,
-            "combination": None if sp is None else {
-                "std_mps": _num(sp.std_mps), "chi2": _num(sp.chi2), "dof": sp.dof, "p_value": _num(sp.p_value),
-                "consistent": sp.consistent, "outlier": sp.outlier},
-            "heading_deg": _num(self.heading_deg), "heading_std_deg": _num(self.heading_std_deg),
+            "combination": None
+            if sp is None
+            else {
+                "std_mps": _num(sp.std_mps),
+                "chi2": _num(sp.chi2),
+                "dof": sp.dof,
+                "p_value": _num(sp.p_value),
+                "consistent": sp.consistent,
+                "outlier": sp.outlier,
+            },
+            "heading_deg": _num(self.heading_deg),
+            "heading_std_deg": _num(self.heading_std_deg),
             # the side of the vessel the wake lies on (behind it): true bearing from the vessel along the wake
             "wake_bearing_deg": _num((self.heading_deg + 180.0) % 360.0) if self.heading_deg is not None else None,
-            "half_angle_deg": _num(self.half_angle_deg), "half_angle_std_deg": _num(self.half_angle_std_deg),
+            "half_angle_deg": _num(self.half_angle_deg),
+            "half_angle_std_deg": _num(self.half_angle_std_deg),
             "transverse_wavelength_m": _num(self.transverse_wavelength_m),
             "transverse_wavelength_std_m": _num(self.transverse_wavelength_std_m),
-            "regime": self.regime.regime.value.replace(" ", "-"), "regime_explanation": self.regime.explanation,
+            "regime": self.regime.regime.value.replace(" ", "-"),
+            "regime_explanation": self.regime.explanation,
             "depth_froude": _num(self.regime.froude_depth),
             "depth_froude_ci95": _pair_json(self.regime.froude_ci95),
             "depth_m": _num(self.depth_m),
             "depth_ci95_m": _pair_json(self.depth_ci95_m),
-            "methods": [{"name": m.method, "speed_mps": _num(m.speed_mps), "std_mps": _num(m.std_mps),
-                         "speed_ci95_mps": [_num(m.ci95_low_mps), _num(m.ci95_high_mps)],
-                         "draws": m.draws, "valid_fraction": _num(m.valid_fraction), "by_hand": m.by_hand,
-                         "assumptions": list(m.assumptions)} for m in self.methods],
+            "methods": [
+                {
+                    "name": m.method,
+                    "speed_mps": _num(m.speed_mps),
+                    "std_mps": _num(m.std_mps),
+                    "speed_ci95_mps": [_num(m.ci95_low_mps), _num(m.ci95_high_mps)],
+                    "draws": m.draws,
+                    "valid_fraction": _num(m.valid_fraction),
+                    "by_hand": m.by_hand,
+                    "assumptions": list(m.assumptions),
+                }
+                for m in self.methods
+            ],
             "vessel_px": [_num(self.vessel_px[0]), _num(self.vessel_px[1])],
             "vessel_lonlat": [_num(v) for v in self.vessel_lonlat] if self.vessel_lonlat else None,
-            "gravity_mps2": _num(self.gravity_mps2), "pixel_m": _num(self.pixel_m),
+            "gravity_mps2": _num(self.gravity_mps2),
+            "pixel_m": _num(self.pixel_m),
             "cautions": [c.to_json() for c in self.cautions],
-            "lines": [{"kind": str(ln.kind), "angle_from_track_deg": _num(ln.angle_from_track_deg),
-                       "significance": _num(ln.significance), "length_px": _num(ln.length_px)} for ln in self.lines],
+            "lines": [
+                {
+                    "kind": str(ln.kind),
+                    "angle_from_track_deg": _num(ln.angle_from_track_deg),
+                    "significance": _num(ln.significance),
+                    "length_px": _num(ln.length_px),
+                }
+                for ln in self.lines
+            ],
             "narrow_v_half_angle_deg": _num(self.narrow_v_half_angle_deg),
             "interval_cover": None if self.interval_cover is None else self.interval_cover.to_json(),
             "diagnostics": self.diagnostics.to_json(),
@@ -130,45 +158,83 @@ class WakeAnalysis:
 
 
 def _from_json(cls: type[WakeAnalysis], j: dict, drawing: Any) -> WakeAnalysis:
-    methods = tuple(inv.SpeedEstimate(
-        m["name"], _f(m["speed_mps"]), _f(m["std_mps"]), _f(m["speed_ci95_mps"][0]), _f(m["speed_ci95_mps"][1]),
-        int(m.get("draws") or 0), _f(m.get("valid_fraction", 1.0)), tuple(m.get("assumptions") or ()),
-        bool(m.get("by_hand", "(by hand)" in m["name"]))) for m in j.get("methods") or ())
+    methods = tuple(
+        inv.SpeedEstimate(
+            m["name"],
+            _f(m["speed_mps"]),
+            _f(m["std_mps"]),
+            _f(m["speed_ci95_mps"][0]),
+            _f(m["speed_ci95_mps"][1]),
+            int(m.get("draws") or 0),
+            _f(m.get("valid_fraction", 1.0)),
+            tuple(m.get("assumptions") or ()),
+            bool(m.get("by_hand", "(by hand)" in m["name"])),
+        )
+        for m in j.get("methods") or ()
+    )
     speed = None
     if j.get("speed_mps") is not None:
         c = j.get("combination") or {}
         lo, hi = j["speed_ci95_mps"]
         std = c.get("std_mps")
         speed = inv.CombinedSpeed(
-            _f(j["speed_mps"]), _f(std if std is not None else (hi - lo) / 3.92), _f(lo), _f(hi),
-            _f(c.get("chi2", 0.0)), int(c.get("dof", max(len(methods) - 1, 0))), _f(c.get("p_value", 1.0)),
-            bool(c.get("consistent", True)), c.get("outlier"), tuple(m.method for m in methods),
-            str(j.get("consistency") or ""))
-    regime = inv.DepthRegime(_REGIME_OF_JSON[j["regime"]], _opt(j.get("depth_froude")),
-                             _opt_pair(j.get("depth_froude_ci95")), _opt(j.get("depth_m")),
-                             _opt_pair(j.get("depth_ci95_m")), str(j.get("regime_explanation") or ""))
-    lines = tuple(WakeLine(LineKind(ln["kind"]), _f(ln["angle_from_track_deg"]), _f(ln["significance"]),
-                           _f(ln.get("length_px") or 0.0)) for ln in j.get("lines") or ()
-                  if ln.get("angle_from_track_deg") is not None)
+            _f(j["speed_mps"]),
+            _f(std if std is not None else (hi - lo) / 3.92),
+            _f(lo),
+            _f(hi),
+            _f(c.get("chi2", 0.0)),
+            int(c.get("dof", max(len(methods) - 1, 0))),
+            _f(c.get("p_value", 1.0)),
+            bool(c.get("consistent", True)),
+            c.get("outlier"),
+            tuple(m.method for m in methods),
+            str(j.get("consistency") or ""),
+        )
+    regime = inv.DepthRegime(
+        _REGIME_OF_JSON[j["regime"]],
+        _opt(j.get("depth_froude")),
+        _opt_pair(j.get("depth_froude_ci95")),
+        _opt(j.get("depth_m")),
+        _opt_pair(j.get("depth_ci95_m")),
+        str(j.get("regime_explanation") or ""),
+    )
+    lines = tuple(
+        WakeLine(
+            LineKind(ln["kind"]), _f(ln["angle_from_track_deg"]), _f(ln["significance"]), _f(ln.get("length_px") or 0.0)
+        )
+        for ln in j.get("lines") or ()
+        if ln.get("angle_from_track_deg") is not None
+    )
     req = j.get("request")
     lonlat = j.get("vessel_lonlat")
     return cls(
-        wake_found=bool(j["wake_found"]), decision=str(j.get("decision") or ""),
-        significance=_f(j.get("significance")), vessel_px=(_f(j["vessel_px"][0]), _f(j["vessel_px"][1])),
+        wake_found=bool(j["wake_found"]),
+        decision=str(j.get("decision") or ""),
+        significance=_f(j.get("significance")),
+        vessel_px=(_f(j["vessel_px"][0]), _f(j["vessel_px"][1])),
         vessel_lonlat=None if not lonlat else (_f(lonlat[0]), _f(lonlat[1])),
-        heading_deg=_opt(j.get("heading_deg")), heading_std_deg=_opt(j.get("heading_std_deg")), speed=speed,
-        methods=methods, half_angle_deg=_opt(j.get("half_angle_deg")),
+        heading_deg=_opt(j.get("heading_deg")),
+        heading_std_deg=_opt(j.get("heading_std_deg")),
+        speed=speed,
+        methods=methods,
+        half_angle_deg=_opt(j.get("half_angle_deg")),
         half_angle_std_deg=_opt(j.get("half_angle_std_deg")),
         transverse_wavelength_m=_opt(j.get("transverse_wavelength_m")),
-        transverse_wavelength_std_m=_opt(j.get("transverse_wavelength_std_m")), regime=regime,
-        depth_m=_opt(j.get("depth_m")), depth_ci95_m=_opt_pair(j.get("depth_ci95_m")),
-        gravity_mps2=_f(j["gravity_mps2"]), pixel_m=_f(j["pixel_m"]),
+        transverse_wavelength_std_m=_opt(j.get("transverse_wavelength_std_m")),
+        regime=regime,
+        depth_m=_opt(j.get("depth_m")),
+        depth_ci95_m=_opt_pair(j.get("depth_ci95_m")),
+        gravity_mps2=_f(j["gravity_mps2"]),
+        pixel_m=_f(j["pixel_m"]),
         cautions=tuple(Caution.from_json(c) for c in j.get("cautions") or ()),
         drawing=Drawing.from_json(j.get("drawing") or drawing),
-        diagnostics=Diagnostics.from_json(j.get("diagnostics")), lines=lines,
+        diagnostics=Diagnostics.from_json(j.get("diagnostics")),
+        lines=lines,
         interval_cover=IntervalCover.from_json(j.get("interval_cover")),
         request=None if req is None else AnalysisRequest.from_json(req),
-        revised=bool(j.get("revised", False)), software=str(j.get("software") or "unknown"))
+        revised=bool(j.get("revised", False)),
+        software=str(j.get("software") or "unknown"),
+    )
 
 
 def _f(x: Any) -> float:

@@ -27,8 +27,13 @@ HAND_ANGLE_STD_DEG = 2.0
 HAND_ANGLE_MAX_DEG = 80.0
 
 
-def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | None = None,
-           hand_half_angle: tuple[float, float] | None = None, seed: int = 0) -> WakeAnalysis:
+def revise(
+    analysis: WakeAnalysis,
+    *,
+    hand_crest: tuple[float, float, float] | None = None,
+    hand_half_angle: tuple[float, float] | None = None,
+    seed: int = 0,
+) -> WakeAnalysis:
     """Recombine with hand measurements.
 
     Parameters
@@ -54,23 +59,33 @@ def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | N
     if hand_crest is not None:
         lam, sd, ang = hand_crest
         theta = min(max(ang, 0.0), HAND_ANGLE_MAX_DEG)
-        est = inv.speed_from_crest_wavelength(inv.Uncertain(lam, max(sd, 0.005 * lam)),
-                                              inv.Uncertain(theta, HAND_ANGLE_STD_DEG),
-                                              cond, seed=rng, method="crest ruler (by hand)")
+        est = inv.speed_from_crest_wavelength(
+            inv.Uncertain(lam, max(sd, 0.005 * lam)),
+            inv.Uncertain(theta, HAND_ANGLE_STD_DEG),
+            cond,
+            seed=rng,
+            method="crest ruler (by hand)",
+        )
         methods.append(replace(est, by_hand=True))
         cautions.append(Caution(CautionCode.HAND_CREST, "includes a crest spacing measured by hand"))
     regime = analysis.regime
     if hand_half_angle is not None:
         half, half_sd = hand_half_angle
-        cautions.append(Caution(CautionCode.HAND_ARM, f"half-angle corrected by hand to {half:.1f} +/- {half_sd:.1f} deg"))
+        cautions.append(
+            Caution(CautionCode.HAND_ARM, f"half-angle corrected by hand to {half:.1f} +/- {half_sd:.1f} deg")
+        )
         lam_t = analysis.transverse_wavelength_m
         if depth is None:
-            regime = inv.assess_depth_regime(half_angle_deg=inv.Uncertain(half, half_sd),
-                                             transverse_seen=lam_t is not None, g=g)
+            regime = inv.assess_depth_regime(
+                half_angle_deg=inv.Uncertain(half, half_sd), transverse_seen=lam_t is not None, g=g
+            )
             if lam_t and half > kelvin.KELVIN_HALF_ANGLE_DEG + 2 * half_sd:
                 est, _dep = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
                     inv.Uncertain(lam_t, max(analysis.transverse_wavelength_std_m or 0.0, 0.006 * lam_t)),
-                    inv.Uncertain(half, half_sd), cond, seed=rng)
+                    inv.Uncertain(half, half_sd),
+                    cond,
+                    seed=rng,
+                )
                 methods.append(replace(est, method=est.method + " (by hand)", by_hand=True))
     # shallower water the analysis could not rule out stays inside the interval
     combined = widen(inv.combine_estimates(methods), analysis.interval_cover)
@@ -78,16 +93,26 @@ def revise(analysis: WakeAnalysis, *, hand_crest: tuple[float, float, float] | N
         cautions.append(Caution(CautionCode.METHODS_DISAGREE, combined.verdict))
     revised = hand_crest is not None or hand_half_angle is not None
     decision = analysis.decision.split(" (revised")[0]
-    return replace(analysis, methods=tuple(methods), speed=combined, half_angle_deg=half, half_angle_std_deg=half_sd,
-                   regime=regime, cautions=tuple(cautions), revised=revised,
-                   decision=decision + " (revised with hand measurements)" if revised else decision)
+    return replace(
+        analysis,
+        methods=tuple(methods),
+        speed=combined,
+        half_angle_deg=half,
+        half_angle_std_deg=half_sd,
+        regime=regime,
+        cautions=tuple(cautions),
+        revised=revised,
+        decision=decision + " (revised with hand measurements)" if revised else decision,
+    )
 
 
 def with_crest_lines(scene: Scene, analysis: WakeAnalysis, *, n_crests: int = 4) -> WakeAnalysis:
     """The finding with a few fitted crest lines added to its drawing (once)."""
     if analysis.drawing.first(SegmentKind.CREST) is not None:
         return analysis
-    crests = [Segment(SegmentKind.CREST, tuple(line)) for line in kelvin_crest_lines(scene, analysis, n_crests=n_crests)]
+    crests = [
+        Segment(SegmentKind.CREST, tuple(line)) for line in kelvin_crest_lines(scene, analysis, n_crests=n_crests)
+    ]
     return replace(analysis, drawing=analysis.drawing.plus(crests)) if crests else analysis
 
 
@@ -98,8 +123,12 @@ def kelvin_crest_lines(scene: Scene, analysis: WakeAnalysis, *, n_crests: int = 
     x = a cos(theta)(1 + sin^2 theta), y = a cos^2(theta) sin(theta), theta in (-90, 90) deg.
     Drawn only for the deep-water regime (finite depth bends the crests differently).
     """
-    if not analysis.wake_found or analysis.speed is None or analysis.heading_deg is None \
-            or analysis.regime.regime not in (inv.Regime.DEEP, inv.Regime.UNKNOWN):
+    if (
+        not analysis.wake_found
+        or analysis.speed is None
+        or analysis.heading_deg is None
+        or analysis.regime.regime not in (inv.Regime.DEEP, inv.Regime.UNKNOWN)
+    ):
         return []
     u = analysis.speed.speed_mps
     lam_t = float(kelvin.transverse_wavelength(u, g=analysis.gravity_mps2))

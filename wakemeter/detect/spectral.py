@@ -79,7 +79,7 @@ def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) ->
     med = np.zeros(rs.max() + 1)
     spread = np.ones(rs.max() + 1)
     for r in range(rs.max() + 1):
-        seg = ws[bounds[r]:bounds[r + 1]]
+        seg = ws[bounds[r] : bounds[r + 1]]
         if seg.size >= 8:
             med[r] = np.median(seg)
             spread[r] = 1.4826 * np.median(np.abs(seg - med[r])) or 1.0
@@ -91,14 +91,22 @@ def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) ->
     return SpectrumPair(white, dk_u, dk_v, k_lo, k_hi, m_per_px)
 
 
-def curve_score(sp: SpectrumPair, speed: float, delta_deg: float, depth_m: float, g: float,
-                k_floor_factor: float | None = None) -> float:
+def curve_score(
+    sp: SpectrumPair, speed: float, delta_deg: float, depth_m: float, g: float, k_floor_factor: float | None = None
+) -> float:
     """Mean whitened log-power along the steady-wave curve (NaN if too little of it is in band)."""
     return float(_scores(sp, np.array([speed]), delta_deg, depth_m, g, k_floor_factor=k_floor_factor)[0])
 
 
-def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: float, g: float,
-            k_cap_factor: float | None = None, k_floor_factor: float | None = None) -> np.ndarray:
+def _scores(
+    sp: SpectrumPair,
+    speeds: np.ndarray,
+    delta_deg: float,
+    depth_m: float,
+    g: float,
+    k_cap_factor: float | None = None,
+    k_floor_factor: float | None = None,
+) -> np.ndarray:
     """Scores of the curves for several speeds; ``k_cap_factor`` keeps only k <= factor * g / U^2
     (the long waves, where depth acts)."""
     th = _THETA[None, :]
@@ -112,8 +120,7 @@ def _scores(sp: SpectrumPair, speeds: np.ndarray, delta_deg: float, depth_m: flo
     return _sum_along(sp, k, th + np.radians(delta_deg), ok)
 
 
-def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray, min_points: int = 12
-               ) -> np.ndarray:
+def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray, min_points: int = 12) -> np.ndarray:
     """z-like score of curves given as wavenumbers ``k`` at image angles ``angle`` (last axis: points)."""
     ku, kv = k * np.cos(angle), k * np.sin(angle)
     n_v, n_u = sp.white.shape
@@ -125,7 +132,9 @@ def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarra
     cnt = ok.sum(axis=-1)
     # mean standardised power along the curve, scaled to a z-like figure (about 3 correlated
     # samples per independent spectral estimate under the Hann window)
-    return np.where(cnt >= min_points, np.sum(np.where(ok, vals, 0), axis=-1) / np.sqrt(np.maximum(cnt, 1) * 3.0), np.nan)
+    return np.where(
+        cnt >= min_points, np.sum(np.where(ok, vals, 0), axis=-1) / np.sqrt(np.maximum(cnt, 1) * 3.0), np.nan
+    )
 
 
 @dataclass(frozen=True)
@@ -146,8 +155,15 @@ def speed_bounds(sp: SpectrumPair, g: float) -> tuple[float, float]:
     return float(lo), float(min(hi, 60.0))
 
 
-def fit_curve(sp: SpectrumPair, *, g: float, depth_m: float = np.inf, delta_max_deg: float = 24.0,
-              delta_step_deg: float = 2.0, speed_range: tuple[float, float] | None = None) -> CurveFit:
+def fit_curve(
+    sp: SpectrumPair,
+    *,
+    g: float,
+    depth_m: float = np.inf,
+    delta_max_deg: float = 24.0,
+    delta_step_deg: float = 2.0,
+    speed_range: tuple[float, float] | None = None,
+) -> CurveFit:
     """Grid search over speed and track correction, then Nelder-Mead refinement."""
     lo, hi = speed_range or speed_bounds(sp, g)
     speeds = np.geomspace(lo, hi, 64)
@@ -164,9 +180,13 @@ def fit_curve(sp: SpectrumPair, *, g: float, depth_m: float = np.inf, delta_max_
             return 1e9
         s = curve_score(sp, float(np.exp(x[0])), float(x[1]), depth_m, g)
         return -s if np.isfinite(s) else 1e9
-    res = optimize.minimize(neg, x0, method="Nelder-Mead",
-                            options={"xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [
-                                x0, x0 + [0.01, 0], x0 + [0, 0.4]]})
+
+    res = optimize.minimize(
+        neg,
+        x0,
+        method="Nelder-Mead",
+        options={"xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.4]]},
+    )
     best = res.x if res.fun <= -np.nanmax(grid) else x0
     score = -neg(best)
     with np.errstate(all="ignore"):
@@ -175,8 +195,9 @@ def fit_curve(sp: SpectrumPair, *, g: float, depth_m: float = np.inf, delta_max_
     return CurveFit(float(np.exp(best[0])), float(best[1]), depth_m, score, score, speeds, prof)
 
 
-def crest_spacing(profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, float] | None = None
-                  ) -> tuple[float, float, float]:
+def crest_spacing(
+    profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, float] | None = None
+) -> tuple[float, float, float]:
     """Dominant crest spacing (m) of a 1-D profile, its standard uncertainty (m) and peak SNR.
 
     Zero-padded FFT of the detrended, Hann-windowed profile; parabolic interpolation of
@@ -203,7 +224,7 @@ def crest_spacing(profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, 
     i = idx[np.argmax(spec[idx])]
     if i <= 0 or i >= spec.size - 1:
         return np.nan, np.nan, 0.0
-    a, b, c = np.log(spec[i - 1:i + 2] + 1e-300)
+    a, b, c = np.log(spec[i - 1 : i + 2] + 1e-300)
     d = 0.5 * (a - c) / (a - 2 * b + c) if (a - 2 * b + c) < 0 else 0.0
     d = float(np.clip(d, -0.5, 0.5))
     fpk = (i + d) * (f[1] - f[0])
@@ -212,7 +233,7 @@ def crest_spacing(profile: np.ndarray, m_per_px: float, *, band_m: tuple[float, 
     snr = max((spec[i] - noise) / max(noise, 1e-300), 0.0)
     var_f = 6.0 / ((2 * np.pi) ** 2 * max(snr, 1e-9) * n * (n * n - 1.0))
     lam = 1.0 / fpk * m_per_px
-    sig = np.sqrt(var_f) / fpk ** 2 * m_per_px
+    sig = np.sqrt(var_f) / fpk**2 * m_per_px
     return float(lam), float(sig), float(snr)
 
 
@@ -245,23 +266,26 @@ def _steady_q(frs: np.ndarray, g: float, theta: np.ndarray = _THETA) -> np.ndarr
     return np.stack([steady_wavenumber_fast(np.ones(1), th, 1.0 / (g * f * f), g=g) for f in frs]) / g
 
 
-def _grid_best(sp: SpectrumPair, speeds: np.ndarray, frs: np.ndarray, deltas: np.ndarray, g: float
-               ) -> tuple[float, float, float] | None:
+def _grid_best(
+    sp: SpectrumPair, speeds: np.ndarray, frs: np.ndarray, deltas: np.ndarray, g: float
+) -> tuple[float, float, float] | None:
     """(speed, Fr_h, track correction) of the best curve on a grid, or None when no curve is in band."""
     theta = _THETA[::2]  # 2 deg steps are enough to find the peak; the refinement uses all of _THETA
     q = _steady_q(frs, g, theta)
     k = g * q[None, :, :] / (speeds[:, None, None] ** 2)  # (speeds, frs, theta)
     ok = np.isfinite(k) & (k >= sp.k_lo) & (k <= sp.k_hi)
-    grid = np.stack([_sum_along(sp, k, np.broadcast_to(theta + np.radians(d), k.shape), ok, min_points=6)
-                     for d in deltas])
+    grid = np.stack(
+        [_sum_along(sp, k, np.broadcast_to(theta + np.radians(d), k.shape), ok, min_points=6) for d in deltas]
+    )
     if not np.any(np.isfinite(grid)):
         return None
     i, j, f = np.unravel_index(np.nanargmax(grid), grid.shape)
     return float(speeds[j]), float(frs[f]), float(deltas[i])
 
 
-def fit_speed_depth(sp: SpectrumPair, speed: float, delta_deg: float, *, g: float,
-                    delta_max_deg: float = 20.0) -> DepthFit:
+def fit_speed_depth(
+    sp: SpectrumPair, speed: float, delta_deg: float, *, g: float, delta_max_deg: float = 20.0
+) -> DepthFit:
     """Fit speed, depth and the track correction together on the finite-depth steady-wave curve.
 
     A grid over speed (0.65-1.08 x the deep-water fit's ``speed``: depth makes the long waves
@@ -298,19 +322,28 @@ def fit_supercritical(sp: SpectrumPair, *, g: float, delta_max_deg: float = 20.0
     if best is None:
         return DepthFit(np.nan, np.nan, 0.0, np.nan)
     u, fr, d = best
-    return refine_speed_depth(sp, u, u * u / (g * fr * fr), d, g=g, fr_bounds=FR_SUPER_RANGE,
-                              delta_range=(-delta_max_deg - 2.0, delta_max_deg + 2.0))
+    return refine_speed_depth(
+        sp,
+        u,
+        u * u / (g * fr * fr),
+        d,
+        g=g,
+        fr_bounds=FR_SUPER_RANGE,
+        delta_range=(-delta_max_deg - 2.0, delta_max_deg + 2.0),
+    )
 
 
-def fit_at_froude(sp: SpectrumPair, speed: float, delta_deg: float, froude: float, *, g: float,
-                  delta_half_deg: float = 8.0) -> DepthFit:
+def fit_at_froude(
+    sp: SpectrumPair, speed: float, delta_deg: float, froude: float, *, g: float, delta_half_deg: float = 8.0
+) -> DepthFit:
     """Best speed and track correction with the depth Froude number held at ``froude``.
 
     The profile of the joint fit: comparing its score with the free fit's tells whether water that
     shallow can be ruled out."""
     speeds = np.geomspace(0.65 * speed, 1.08 * speed, 41)
-    best = _grid_best(sp, speeds, np.array([froude]), delta_deg + np.arange(-delta_half_deg, delta_half_deg + 1e-9,
-                                                                            1.0), g)
+    best = _grid_best(
+        sp, speeds, np.array([froude]), delta_deg + np.arange(-delta_half_deg, delta_half_deg + 1e-9, 1.0), g
+    )
     if best is None:
         return DepthFit(np.nan, np.nan, delta_deg, np.nan)
 
@@ -318,17 +351,29 @@ def fit_at_froude(sp: SpectrumPair, speed: float, delta_deg: float, froude: floa
         u = float(np.exp(x[0]))
         s = curve_score(sp, u, float(x[1]), u * u / (g * froude * froude), g)
         return -s if np.isfinite(s) else 1e9
+
     x0 = np.array([np.log(best[0]), best[2]])
-    res = optimize.minimize(neg, x0, method="Nelder-Mead", options={
-        "xatol": 1e-3, "fatol": 1e-4, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.5]]})
+    res = optimize.minimize(
+        neg,
+        x0,
+        method="Nelder-Mead",
+        options={"xatol": 1e-3, "fatol": 1e-4, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.5]]},
+    )
     x = res.x if res.fun <= neg(x0) else x0
     u = float(np.exp(x[0]))
     return DepthFit(u, u * u / (g * froude * froude), float(x[1]), -neg(x))
 
 
-def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg: float, *, g: float,
-                       delta_range: tuple[float, float] | None = None,
-                       fr_bounds: tuple[float, float] = (0.2, FR_MAX)) -> DepthFit:
+def refine_speed_depth(
+    sp: SpectrumPair,
+    speed: float,
+    depth_m: float,
+    delta_deg: float,
+    *,
+    g: float,
+    delta_range: tuple[float, float] | None = None,
+    fr_bounds: tuple[float, float] = (0.2, FR_MAX),
+) -> DepthFit:
     """Nelder-Mead refinement of speed, depth Froude number and track correction on the finite-depth curve.
 
     ``delta_range`` bounds the track correction (default: the start +/- 4 deg); ``fr_bounds`` the depth
@@ -343,20 +388,29 @@ def refine_speed_depth(sp: SpectrumPair, speed: float, depth_m: float, delta_deg
             return 1e9
         s = curve_score(sp, u, d, u * u / (g * fr * fr), g)
         return -s if np.isfinite(s) else 1e9
+
     x0 = np.array([np.log(speed), fr0, delta_deg])
-    res = optimize.minimize(neg, x0, method="Nelder-Mead", options={
-        "xatol": 1e-3, "fatol": 1e-4, "initial_simplex": [x0, x0 + [0.01, 0, 0], x0 + [0, 0.02, 0], x0 + [0, 0, 0.5]]})
+    res = optimize.minimize(
+        neg,
+        x0,
+        method="Nelder-Mead",
+        options={
+            "xatol": 1e-3,
+            "fatol": 1e-4,
+            "initial_simplex": [x0, x0 + [0.01, 0, 0], x0 + [0, 0.02, 0], x0 + [0, 0, 0.5]],
+        },
+    )
     x = res.x if res.fun <= neg(x0) else x0
     u, fr = float(np.exp(x[0])), float(x[1])
     return DepthFit(u, u * u / (g * fr * fr), float(x[2]), -neg(x))
 
 
-def curve_points(speed: float, depth_m: float, delta_deg: float, *, g: float, k_max: float,
-                 step_deg: float = 0.5) -> tuple[np.ndarray, np.ndarray]:
+def curve_points(
+    speed: float, depth_m: float, delta_deg: float, *, g: float, k_max: float, step_deg: float = 0.5
+) -> tuple[np.ndarray, np.ndarray]:
     """(k_u, k_v) of the steady-wave curve for drawing (rad/m; one half, mirror for the other); NaN beyond k_max."""
     th = np.arange(-84.0, 84.0 + 1e-9, step_deg)
     k = np.asarray(steady_wavenumber(speed, np.abs(th), depth_m, g=g), float)
     k = np.where(k <= k_max, k, np.nan)
     a = np.radians(th + delta_deg)
     return k * np.cos(a), k * np.sin(a)
-

@@ -25,8 +25,7 @@ class Spread:
     boot_speeds_mps: tuple[float, ...]
 
 
-def quarter_box_fits(look: Look, model: DepthModel, *, g: float, tuning: Tuning
-                     ) -> list[tuple[float, float, float]]:
+def quarter_box_fits(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> list[tuple[float, float, float]]:
     """Refit on four sub-boxes behind (with the matching ones ahead): (speed, track correction, depth)."""
     t = tuning
     box = t.box_px
@@ -39,8 +38,13 @@ def quarter_box_fits(look: Look, model: DepthModel, *, g: float, tuning: Tuning
     for rv in (slice(0, half), slice(half, box)):
         for ru in (slice(0, half), slice(half, box)):
             sp = whitened_spectrum(behind[rv, ru], ahead[rv, ru], look.chip.m_per_px)
-            f = fit_curve(sp, g=g, depth_m=depth, delta_max_deg=t.boot_delta_extra_deg + abs(delta),
-                          speed_range=(lo * speed, hi * speed))
+            f = fit_curve(
+                sp,
+                g=g,
+                depth_m=depth,
+                delta_max_deg=t.boot_delta_extra_deg + abs(delta),
+                speed_range=(lo * speed, hi * speed),
+            )
             if not (np.isfinite(f.speed_mps) and f.score >= t.boot_score_min):
                 continue  # a quarter with no wake of its own says nothing about the speed
             if model.fitted:
@@ -58,8 +62,9 @@ def estimate_spread(look: Look, model: DepthModel, *, g: float, tuning: Tuning) 
 
     def boot_std(values: list[float], floor: float) -> float:
         if len(values) < 3:
-            return max(floor, 0.05 * abs(np.mean(values)) if values else floor)
+            return max(floor, 0.05 * abs(float(np.mean(values))) if values else floor)
         return max(float(np.std(values, ddof=1) / np.sqrt(len(values)) * infl), floor)
+
     # a fitted depth adds a nearly degenerate direction (speed against depth): no shrinking of the spread,
     # and a larger floor
     u, h = model.speed_mps, model.depth_m
@@ -69,8 +74,10 @@ def estimate_spread(look: Look, model: DepthModel, *, g: float, tuning: Tuning) 
         scale = t.spectral_sigma_scale_radar if look.chip.radar else t.spectral_sigma_scale
         floor = t.speed_rel_std_floor
     u_std = scale * boot_std([b[0] for b in sub], floor * u / scale)
-    d_std = max(t.heading_sigma_scale * boot_std([b[1] for b in sub], t.heading_std_floor_deg),
-                t.heading_std_floor_deg)
-    h_std = min(boot_std([b[2] for b in sub], t.fitted_depth_std_floor * h), t.fitted_depth_std_cap * h) \
-        if model.fitted else 0.0
+    d_std = max(t.heading_sigma_scale * boot_std([b[1] for b in sub], t.heading_std_floor_deg), t.heading_std_floor_deg)
+    h_std = (
+        min(boot_std([b[2] for b in sub], t.fitted_depth_std_floor * h), t.fitted_depth_std_cap * h)
+        if model.fitted
+        else 0.0
+    )
     return Spread(u_std, d_std, h_std, tuple(b[0] for b in sub))

@@ -18,8 +18,15 @@ from .robust import median_spread
 from .tuning import REACH_FRACTION
 
 
-def track_frame(img: np.ndarray, centre_rc: tuple[float, float], back_angle_deg: float, *,
-                u_range: tuple[float, float], v_half: float, order: int = 1) -> np.ndarray:
+def track_frame(
+    img: np.ndarray,
+    centre_rc: tuple[float, float],
+    back_angle_deg: float,
+    *,
+    u_range: tuple[float, float],
+    v_half: float,
+    order: int = 1,
+) -> np.ndarray:
     """Sample ``img`` on a grid u in [u0, u1) (1-px steps), v in [-v_half, v_half); returns (v, u) array."""
     a = np.radians(back_angle_deg)
     bu = np.array([np.cos(a), -np.sin(a)])  # (dcol, drow) of +u

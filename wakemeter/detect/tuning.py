@@ -84,8 +84,9 @@ class Tuning:
             if any(not isinstance(x, (int, float)) or isinstance(x, bool) or x != x or x < 0 for x in vals):
                 raise ParameterError(f"tuning {f.name} must be a number >= 0 (or numbers), got {v!r}")
         if self.box_px * 2 + self.gap_px * 2 > self.chip_px:
-            raise ParameterError(f"tuning: two boxes of {self.box_px} px and the gap must fit the chip of "
-                                 f"{self.chip_px} px")
+            raise ParameterError(
+                f"tuning: two boxes of {self.box_px} px and the gap must fit the chip of {self.chip_px} px"
+            )
 
     @property
     def false_alarm_rate_max(self) -> float:
@@ -94,8 +95,10 @@ class Tuning:
 
     @property
     def false_alarm_note(self) -> str:
-        return (f"false-alarm rate below {100 * self.false_alarm_rate_max:.1f} % per decision: none in "
-                f"{self.wake_free_trials} wake-free test scenes")
+        return (
+            f"false-alarm rate below {100 * self.false_alarm_rate_max:.1f} % per decision: none in "
+            f"{self.wake_free_trials} wake-free test scenes"
+        )
 
     def with_overrides(self, items: list[str] | tuple[str, ...]) -> Tuning:
         """A copy with ``name=value`` overrides (the sweeps' ``--tune`` arguments)."""
@@ -117,8 +120,11 @@ class Tuning:
 
     def changed_fields(self) -> dict:
         """The fields that differ from the defaults (recorded with sweep results)."""
-        return {f.name: getattr(self, f.name) for f in fields(self)
-                if getattr(self, f.name) != getattr(DEFAULT_TUNING, f.name)}
+        return {
+            f.name: getattr(self, f.name)
+            for f in fields(self)
+            if getattr(self, f.name) != getattr(DEFAULT_TUNING, f.name)
+        }
 
 
 DEFAULT_TUNING = Tuning()

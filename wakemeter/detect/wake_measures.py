@@ -49,8 +49,12 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
         lam_t, lam_t_sd, snr = np.nan, np.nan, 0.0
     seen = bool(np.isfinite(lam_t) and snr >= t.transverse_snr_min)
     arms, energy, evalid, reach = wedge_arms(
-        chip, back, lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u, g=g)), m,
-        gap_px=t.gap_px)
+        chip,
+        back,
+        lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u, g=g)),
+        m,
+        gap_px=t.gap_px,
+    )
     half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
     well_measured = half is not None and half_sd is not None and half_sd <= t.arms_draw_max_std_deg
     # Kelvin arms: wave-energy ridges (the track frame's +v is the image's counter-clockwise side, so its fan
@@ -58,8 +62,10 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
     # the fit predicts (Kelvin's in deep water, Havelock's for the fitted or given depth)
     expected = float(havelock.half_angle(u / np.sqrt(g * h))) if np.isfinite(h) else kelvin.KELVIN_HALF_ANGLE_DEG
     near = half if well_measured else expected
-    found = [replace(ln, angle_from_track_deg=-ln.angle_from_track_deg)
-             for ln in lines_mod.kelvin_arm_lines(energy, evalid, u0=reach, near_deg=near)]
+    found = [
+        replace(ln, angle_from_track_deg=-ln.angle_from_track_deg)
+        for ln in lines_mod.kelvin_arm_lines(energy, evalid, u0=reach, near_deg=near)
+    ]
     if chip.radar:
         found += lines_mod.narrow_v_lines(chip.data, chip.valid, chip.vessel_rc, back)
     tw = look.turbulent
@@ -68,10 +74,18 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
         tw_angle = float((tw.angle_deg - back + 180.0) % 360.0 - 180.0)
         if tw.significance >= lines_mod.LINE_SIGNIFICANCE_MIN and abs(tw_angle) <= t.turbulent_line_max_off_deg:
             kind = LineKind.TURBULENT_DARK if tw.dark else LineKind.TURBULENT_BRIGHT
-            found.insert(0, lines_mod.WakeLine(kind, tw_angle, float(tw.significance),
-                                               float(REACH_FRACTION * chip.data.shape[0])))
+            found.insert(
+                0,
+                lines_mod.WakeLine(kind, tw_angle, float(tw.significance), float(REACH_FRACTION * chip.data.shape[0])),
+            )
     # draw the arms only when they were measured well enough to be worth showing as evidence
-    drawing = wake_drawing(chip, back, half, arms if (arms is not None and well_measured) else None,
-                           [ln for ln in found if ln.kind == LineKind.NARROW_V])
-    return WakeMeasures(back, prof, lam_t if seen else None, lam_t_sd if seen else None, half, half_sd, arms,
-                        tuple(found), drawing)
+    drawing = wake_drawing(
+        chip,
+        back,
+        half,
+        arms if (arms is not None and well_measured) else None,
+        [ln for ln in found if ln.kind == LineKind.NARROW_V],
+    )
+    return WakeMeasures(
+        back, prof, lam_t if seen else None, lam_t_sd if seen else None, half, half_sd, arms, tuple(found), drawing
+    )

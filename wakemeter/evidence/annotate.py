@@ -141,12 +141,15 @@ def _decorations(img, scene, analysis, crop, step, s, lw, scene_label, avoid=())
         tip = (int(cx + dc * ln), int(cy + dr * ln))
         tail = (int(cx - dc * ln * 0.6), int(cy - dr * ln * 0.6))
         cv2.arrowedLine(img, tail, tip, COLOURS["north"], 3 * lw, cv2.LINE_AA, tipLength=0.35)
-        _text(img, "N" if frame.north_known else "up", (tip[0] - int(8 * s), tip[1] - int(10 * s)), 1.0 * s,
-              thick=2)
+        _text(img, "N" if frame.north_known else "up", (tip[0] - int(8 * s), tip[1] - int(10 * s)), 1.0 * s, thick=2)
     if scene.info.georeferenced:
         gr = scene.georef
-        corners = [(crop.col0, crop.row0), (crop.col0 + crop.width, crop.row0),
-                   (crop.col0, crop.row0 + crop.height), (crop.col0 + crop.width, crop.row0 + crop.height)]
+        corners = [
+            (crop.col0, crop.row0),
+            (crop.col0 + crop.width, crop.row0),
+            (crop.col0, crop.row0 + crop.height),
+            (crop.col0 + crop.width, crop.row0 + crop.height),
+        ]
         lon, lat = geodesy.pixel_to_lonlat(gr, [c[0] for c in corners], [c[1] for c in corners])
         labels = [f"{la:.5f}, {lo:.5f}" for lo, la in zip(lon, lat)]
         size = cv2.getTextSize(labels[1], FONT, 0.7 * s, 1)[0]
@@ -163,21 +166,25 @@ def result_lines(analysis: WakeAnalysis) -> list[str]:
     if not analysis.wake_found or analysis.speed is None:
         return ["NO WAKE FOUND - no speed estimate", analysis.decision]
     sp = analysis.speed
-    lines = [f"Speed {sp.speed_mps / KNOT_MPS:.1f} kn = {sp.speed_mps:.2f} m/s",
-             f"95% interval {sp.ci95_low_mps / KNOT_MPS:.1f}-{sp.ci95_high_mps / KNOT_MPS:.1f} kn "
-             f"({sp.ci95_low_mps:.2f}-{sp.ci95_high_mps:.2f} m/s)",
-             f"Heading {analysis.heading_deg:.1f} deg true (+/- {analysis.heading_std_deg:.1f})",
-             f"Depth regime: {analysis.regime.regime}"
-             + (f", depth {analysis.depth_m:.1f} m" if analysis.depth_m is not None else ""),
-             "Method: " + " + ".join(m.method.split(" (")[0] for m in analysis.methods)]
+    lines = [
+        f"Speed {sp.speed_mps / KNOT_MPS:.1f} kn = {sp.speed_mps:.2f} m/s",
+        f"95% interval {sp.ci95_low_mps / KNOT_MPS:.1f}-{sp.ci95_high_mps / KNOT_MPS:.1f} kn "
+        f"({sp.ci95_low_mps:.2f}-{sp.ci95_high_mps:.2f} m/s)",
+        f"Heading {analysis.heading_deg:.1f} deg true (+/- {analysis.heading_std_deg:.1f})",
+        f"Depth regime: {analysis.regime.regime}"
+        + (f", depth {analysis.depth_m:.1f} m" if analysis.depth_m is not None else ""),
+        "Method: " + " + ".join(m.method.split(" (")[0] for m in analysis.methods),
+    ]
     return lines
 
 
-def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquired: str | None,
-                avoid=()) -> None:
+def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquired: str | None, avoid=()) -> None:
     lines = result_lines(analysis)
-    lines += [f"Scene: {scene_label}" if scene_label else "", f"Acquired: {acquired}" if acquired else "",
-              "Estimate from imagery - not a certified measurement"]
+    lines += [
+        f"Scene: {scene_label}" if scene_label else "",
+        f"Acquired: {acquired}" if acquired else "",
+        "Estimate from imagery - not a certified measurement",
+    ]
     lines = [ln for ln in lines if ln]
     scale = 0.75 * s
     sizes = [cv2.getTextSize(ln, FONT, scale, 1)[0] for ln in lines]
@@ -186,16 +193,21 @@ def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquire
     bh = lh * len(lines) + int(16 * s)
     h, w = img.shape[:2]
     # top left unless that hides what was drawn; then top right (below the north arrow), then bottom right
-    corners = [(int(20 * s), int(40 * s)), (w - bw - int(20 * s), int(110 * s)),
-               (w - bw - int(20 * s), h - bh - int(40 * s))]
+    corners = [
+        (int(20 * s), int(40 * s)),
+        (w - bw - int(20 * s), int(110 * s)),
+        (w - bw - int(20 * s), h - bh - int(40 * s)),
+    ]
     pad = int(10 * s)
 
     def hidden(corner: tuple[int, int]) -> int:
         x, y = corner
         return sum(x - pad <= ax <= x + bw + pad and y - pad <= ay <= y + bh + pad for ax, ay in avoid)
+
     x0, y0 = min(((max(x, 0), max(y, 0)) for x, y in corners), key=hidden)
-    roi = img[y0:y0 + bh, x0:x0 + bw]
+    roi = img[y0 : y0 + bh, x0 : x0 + bw]
     roi[:] = (0.25 * roi + 0.75 * np.array(COLOURS["box"])).astype(np.uint8)
     for i, ln in enumerate(lines):
-        _text(img, ln, (x0 + int(12 * s), y0 + int(8 * s) + lh * (i + 1) - int(lh * 0.3)), scale,
-              thick=2 if i == 0 else 1)
+        _text(
+            img, ln, (x0 + int(12 * s), y0 + int(8 * s) + lh * (i + 1) - int(lh * 0.3)), scale, thick=2 if i == 0 else 1
+        )

@@ -36,9 +36,18 @@ def default_basename(scene: Scene, analysis: WakeAnalysis) -> str:
     return f"{scene.info.path.stem}_wake_{int(round(c))}_{int(round(r))}"
 
 
-def export_evidence(scene: Scene, analysis: WakeAnalysis, out_dir: str | os.PathLike, *, analyst: str | None = None,
-                    parameters: dict | None = None, force: bool = False, basename: str | None = None,
-                    paper: str | None = None, exported_at: str | None = None) -> EvidenceFiles:
+def export_evidence(
+    scene: Scene,
+    analysis: WakeAnalysis,
+    out_dir: str | os.PathLike,
+    *,
+    analyst: str | None = None,
+    parameters: dict | None = None,
+    force: bool = False,
+    basename: str | None = None,
+    paper: str | None = None,
+    exported_at: str | None = None,
+) -> EvidenceFiles:
     """Write ``<basename>.png``, ``.pdf`` and ``.json`` into ``out_dir``; returns their paths."""
     folder = Path(out_dir)
     if not folder.is_dir():
@@ -49,20 +58,29 @@ def export_evidence(scene: Scene, analysis: WakeAnalysis, out_dir: str | os.Path
     targets = EvidenceFiles(folder / f"{base}.png", folder / f"{base}.pdf", folder / f"{base}.json")
     existing = [p.name for p in (targets.image, targets.report, targets.data) if p.exists()]
     if existing and not force:
-        raise SceneWriteError(f"cannot export: {', '.join(existing)} already exist in {folder} "
-                              "(choose another folder or allow overwriting)")
+        raise SceneWriteError(
+            f"cannot export: {', '.join(existing)} already exist in {folder} "
+            "(choose another folder or allow overwriting)"
+        )
     img = render_evidence(scene, analysis, scene_label=scene.info.path.name)
     plots = [p for p in (plots_mod.spectrum_plot(analysis), plots_mod.profile_plot(analysis)) if p is not None]
-    record = build_record(scene, analysis, analyst=analyst, parameters=parameters or {},
-                          files={"image": targets.image.name, "report": targets.report.name,
-                                 "data": targets.data.name}, exported_at=exported_at)
+    record = build_record(
+        scene,
+        analysis,
+        analyst=analyst,
+        parameters=parameters or {},
+        files={"image": targets.image.name, "report": targets.report.name, "data": targets.data.name},
+        exported_at=exported_at,
+    )
     temps: list[str] = []
     try:
+
         def temp(suffix: str) -> str:
             fd, name = tempfile.mkstemp(prefix=f".{base}.", suffix=suffix, dir=folder)
             os.close(fd)
             temps.append(name)
             return name
+
         t_png, t_pdf, t_json = temp(".png.part"), temp(".pdf.part"), temp(".json.part")
         ok, buf = cv2.imencode(".png", np.ascontiguousarray(img[..., ::-1]))
         if not ok:

@@ -32,13 +32,21 @@ def with_plots(project: Project, vessel_id: int) -> WakeAnalysis:
     return out
 
 
-def report_from_session(path: str | Path, out_dir: str | Path, *, analyst: str | None = None, force: bool = False,
-                        vessel_name: str | None = None) -> list[EvidenceFiles]:
+def report_from_session(
+    path: str | Path,
+    out_dir: str | Path,
+    *,
+    analyst: str | None = None,
+    force: bool = False,
+    vessel_name: str | None = None,
+) -> list[EvidenceFiles]:
     data = session_mod.load(path)
     scene_path = data["scene"].get("resolved_path")
     if not scene_path or not Path(scene_path).exists():
-        raise ParameterError(f"the session's scene was not found ({data['scene'].get('absolute_path')}); "
-                             "open the session in the program to locate it")
+        raise ParameterError(
+            f"the session's scene was not found ({data['scene'].get('absolute_path')}); "
+            "open the session in the program to locate it"
+        )
     out = []
     with open_scene(scene_path) as scene:
         if data.get("calibration") and not scene.info.georeferenced:
@@ -47,8 +55,11 @@ def report_from_session(path: str | Path, out_dir: str | Path, *, analyst: str |
         project = Project()
         project.scene = scene
         session_mod.fill_project(project, data)
-        vessels = [v for v in project.vessels.values() if v.id not in project.rejected
-                   and (vessel_name is None or v.name == vessel_name)]
+        vessels = [
+            v
+            for v in project.vessels.values()
+            if v.id not in project.rejected and (vessel_name is None or v.name == vessel_name)
+        ]
         if not vessels:
             raise ParameterError("the session has no vessel to report (none marked, all rejected, or no such name)")
         for v in vessels:
@@ -56,9 +67,17 @@ def report_from_session(path: str | Path, out_dir: str | Path, *, analyst: str |
                 project.findings[v.id] = analyze(scene, project.request_for(v.id))
             a = with_plots(project, v.id)
             safe = "".join(ch if ch.isalnum() else "_" for ch in v.name).strip("_")[:60] or f"vessel_{v.id}"
-            out.append(export_evidence(scene, a, out_dir, analyst=analyst, force=force,
-                                       basename=f"{scene.info.path.stem[:60]}_{safe}",
-                                       parameters={"session": Path(path).name, "vessel": v.name}))
+            out.append(
+                export_evidence(
+                    scene,
+                    a,
+                    out_dir,
+                    analyst=analyst,
+                    force=force,
+                    basename=f"{scene.info.path.stem[:60]}_{safe}",
+                    parameters={"session": Path(path).name, "vessel": v.name},
+                )
+            )
     return out
 
 
@@ -68,6 +87,7 @@ def is_session(path: str | Path) -> bool:
         return False
     try:
         import json
+
         return str(json.loads(p.read_text()).get("schema", "")).startswith("wakemeter.session/")
     except (OSError, ValueError, AttributeError, RecursionError):
         return False

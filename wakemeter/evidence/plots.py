@@ -34,10 +34,17 @@ def spectrum_plot(analysis: WakeAnalysis, *, size: int = 520) -> np.ndarray | No
         if len(pts) > 1:
             cv2.polylines(img, [pts], False, (255, 60, 60), 2, cv2.LINE_AA)
     img = np.ascontiguousarray(img)
-    cv2.putText(img, "k along track ->", (8, size - 10), cv2.FONT_HERSHEY_SIMPLEX, 0.5, (255, 255, 255), 1,
-                cv2.LINE_AA)
-    cv2.putText(img, f"fitted curve: U = {u:.2f} m/s" + ("" if np.isinf(h) else f", h = {h:.1f} m"), (8, 20),
-                cv2.FONT_HERSHEY_SIMPLEX, 0.5, (255, 255, 255), 1, cv2.LINE_AA)
+    cv2.putText(img, "k along track ->", (8, size - 10), cv2.FONT_HERSHEY_SIMPLEX, 0.5, (255, 255, 255), 1, cv2.LINE_AA)
+    cv2.putText(
+        img,
+        f"fitted curve: U = {u:.2f} m/s" + ("" if np.isinf(h) else f", h = {h:.1f} m"),
+        (8, 20),
+        cv2.FONT_HERSHEY_SIMPLEX,
+        0.5,
+        (255, 255, 255),
+        1,
+        cv2.LINE_AA,
+    )
     return img
 
 
@@ -63,6 +70,14 @@ def profile_plot(analysis: WakeAnalysis, *, width: int = 760, height: int = 260)
         label = f"transverse crest spacing {lam:.1f} m"
     else:
         label = "no regular transverse crests found"
-    cv2.putText(img, f"intensity along the track behind the vessel (0 - {x[-1]:.0f} m); {label}", (pad, 20),
-                cv2.FONT_HERSHEY_SIMPLEX, 0.45, (0, 0, 0), 1, cv2.LINE_AA)
+    cv2.putText(
+        img,
+        f"intensity along the track behind the vessel (0 - {x[-1]:.0f} m); {label}",
+        (pad, 20),
+        cv2.FONT_HERSHEY_SIMPLEX,
+        0.45,
+        (0, 0, 0),
+        1,
+        cv2.LINE_AA,
+    )
     return img

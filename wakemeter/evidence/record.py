@@ -35,9 +35,12 @@ def provenance(scene: Scene, *, analyst: str | None, parameters: dict, exported_
         "scene_sha256": scene.sha256(),
         "scene_driver": i.driver,
         "acquisition_time": i.acquisition_time,
-        "georeference": {"georeferenced": i.georeferenced, "crs": i.crs,
-                         "transform": list(i.transform)[:6] if i.georeferenced else None,
-                         "note": i.georeference_note},
+        "georeference": {
+            "georeferenced": i.georeferenced,
+            "crs": i.crs,
+            "transform": list(i.transform)[:6] if i.georeferenced else None,
+            "note": i.georeference_note,
+        },
         "software": f"wakemeter {__version__}",
         "python": platform.python_version(),
         "analysis_parameters": parameters,
@@ -46,8 +49,15 @@ def provenance(scene: Scene, *, analyst: str | None, parameters: dict, exported_
     }
 
 
-def build_record(scene: Scene, analysis: WakeAnalysis, *, analyst: str | None, parameters: dict,
-                 files: dict[str, str], exported_at: str | None = None) -> dict:
+def build_record(
+    scene: Scene,
+    analysis: WakeAnalysis,
+    *,
+    analyst: str | None,
+    parameters: dict,
+    files: dict[str, str],
+    exported_at: str | None = None,
+) -> dict:
     """The full evidence record (plain data)."""
     result = analysis.to_json()
     if analysis.request is not None:

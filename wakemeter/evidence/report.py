@@ -22,8 +22,12 @@ from .summary import assumption_texts, caution_texts, method_rows, summary_rows
 
 def page_size_for_locale() -> str:
     """'Letter' for the US and Canada style locales, 'A4' elsewhere (common practice, no source)."""
-    loc = (os.environ.get("LC_PAPER") or os.environ.get("LC_ALL") or os.environ.get("LANG")
-           or (locale.getlocale()[0] or ""))
+    loc = (
+        os.environ.get("LC_PAPER")
+        or os.environ.get("LC_ALL")
+        or os.environ.get("LANG")
+        or (locale.getlocale()[0] or "")
+    )
     return "Letter" if any(t in loc for t in ("_US", "_CA", "_PH", "_MX", "_CL", "_CO", "_VE")) else "A4"
 
 
@@ -33,20 +37,33 @@ def _png(img: np.ndarray) -> io.BytesIO:
     return io.BytesIO(buf.tobytes())
 
 
-def write_pdf(path: str, record: dict, evidence_img: np.ndarray, plots: list[np.ndarray], *,
-              paper: str | None = None) -> None:
+def write_pdf(
+    path: str, record: dict, evidence_img: np.ndarray, plots: list[np.ndarray], *, paper: str | None = None
+) -> None:
     """Write the report to ``path`` (the caller makes it atomic)."""
     size = letter if (paper or page_size_for_locale()) == "Letter" else A4
-    doc = SimpleDocTemplate(path, pagesize=size, leftMargin=16 * mm, rightMargin=16 * mm, topMargin=14 * mm,
-                            bottomMargin=14 * mm, title="wakemeter evidence report", author=record["provenance"]["analyst"] or "",
-                            creator=record["provenance"]["software"], invariant=1)
+    doc = SimpleDocTemplate(
+        path,
+        pagesize=size,
+        leftMargin=16 * mm,
+        rightMargin=16 * mm,
+        topMargin=14 * mm,
+        bottomMargin=14 * mm,
+        title="wakemeter evidence report",
+        author=record["provenance"]["analyst"] or "",
+        creator=record["provenance"]["software"],
+        invariant=1,
+    )
     st = getSampleStyleSheet()
     small = st["BodyText"].clone("small", fontSize=8, leading=10)
     warn = st["BodyText"].clone("warn", textColor=colors.HexColor("#8a1c1c"), fontSize=9.5, leading=12)
     r, prov = record["result"], record["provenance"]
     width = size[0] - 32 * mm
-    story = [Paragraph("Wake speed estimate - evidence report", st["Title"]),
-             Paragraph(f"<b>Caution.</b> {_esc(CAUTION)}", warn), Spacer(1, 4 * mm)]
+    story = [
+        Paragraph("Wake speed estimate - evidence report", st["Title"]),
+        Paragraph(f"<b>Caution.</b> {_esc(CAUTION)}", warn),
+        Spacer(1, 4 * mm),
+    ]
     story.append(_table([list(row) for row in summary_rows(r)], [55 * mm, width - 55 * mm], small))
     story.append(Spacer(1, 4 * mm))
     h, w = evidence_img.shape[:2]
@@ -65,14 +82,17 @@ def write_pdf(path: str, record: dict, evidence_img: np.ndarray, plots: list[np.
     story.append(_table(arows, [width], small))
     story.append(Paragraph("Provenance", st["Heading2"]))
     g = prov["georeference"]
-    prow = [["Scene file", prov["scene_file"]], ["Size", f"{prov['scene_size_bytes']:,} bytes"],
-            ["SHA-256", prov["scene_sha256"]],
-            ["Acquisition time", prov["acquisition_time"] or "not in the metadata"],
-            ["Georeference", f"{g['crs'] or 'none'}; {g['note'] or 'from the file'}"],
-            ["Software", prov["software"]],
-            ["Analysis parameters", ", ".join(f"{k}={v}" for k, v in prov["analysis_parameters"].items())
-             or "defaults"],
-            ["Exported", prov["exported_at"]], ["Analyst", prov["analyst"] or "not given"]]
+    prow = [
+        ["Scene file", prov["scene_file"]],
+        ["Size", f"{prov['scene_size_bytes']:,} bytes"],
+        ["SHA-256", prov["scene_sha256"]],
+        ["Acquisition time", prov["acquisition_time"] or "not in the metadata"],
+        ["Georeference", f"{g['crs'] or 'none'}; {g['note'] or 'from the file'}"],
+        ["Software", prov["software"]],
+        ["Analysis parameters", ", ".join(f"{k}={v}" for k, v in prov["analysis_parameters"].items()) or "defaults"],
+        ["Exported", prov["exported_at"]],
+        ["Analyst", prov["analyst"] or "not given"],
+    ]
     story.append(_table(prow, [45 * mm, width - 45 * mm], small))
     story.append(Spacer(1, 4 * mm))
     story.append(Paragraph(f"<b>Caution.</b> {_esc(CAUTION)}", warn))
@@ -80,17 +100,26 @@ def write_pdf(path: str, record: dict, evidence_img: np.ndarray, plots: list[np.
     def footer(canvas, doc_) -> None:
         canvas.saveState()
         canvas.setFont("Helvetica", 7)
-        canvas.drawString(16 * mm, 8 * mm, f"wakemeter evidence report - {prov['scene_file'][:80]} - "
-                                           f"sha256 {prov['scene_sha256'][:16]}... - page {doc_.page}")
+        canvas.drawString(
+            16 * mm,
+            8 * mm,
+            f"wakemeter evidence report - {prov['scene_file'][:80]} - "
+            f"sha256 {prov['scene_sha256'][:16]}... - page {doc_.page}",
+        )
         canvas.restoreState()
+
     doc.build(story, onFirstPage=footer, onLaterPages=footer)
 
 
 def _table(rows, widths, small, header: bool = False):
-    t = Table([[c if not isinstance(c, str) else Paragraph(_esc(c), small) for c in row] for row in rows],
-              colWidths=widths)
-    style = [("GRID", (0, 0), (-1, -1), 0.3, colors.grey), ("VALIGN", (0, 0), (-1, -1), "TOP"),
-             ("FONTSIZE", (0, 0), (-1, -1), 8)]
+    t = Table(
+        [[c if not isinstance(c, str) else Paragraph(_esc(c), small) for c in row] for row in rows], colWidths=widths
+    )
+    style = [
+        ("GRID", (0, 0), (-1, -1), 0.3, colors.grey),
+        ("VALIGN", (0, 0), (-1, -1), "TOP"),
+        ("FONTSIZE", (0, 0), (-1, -1), 8),
+    ]
     if header:
         style.append(("BACKGROUND", (0, 0), (-1, 0), colors.HexColor("#dde4ee")))
     t.setStyle(TableStyle(style))

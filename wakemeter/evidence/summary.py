@@ -8,26 +8,39 @@ from __future__ import annotations
 
 from ..physics.units import KNOT_MPS
 
-_LINE_LABELS = (("turbulent wake (dark)", "dark turbulent wake"), ("turbulent wake (bright)", "bright turbulent wake"),
-                ("Kelvin arm", "Kelvin arms"), ("narrow-V arm", "narrow V"))
+_LINE_LABELS = (
+    ("turbulent wake (dark)", "dark turbulent wake"),
+    ("turbulent wake (bright)", "bright turbulent wake"),
+    ("Kelvin arm", "Kelvin arms"),
+    ("narrow-V arm", "narrow V"),
+)
 
 
 def describe_lines(result: dict) -> str:
     """One line of text for the wake lines of a result: angle from the track, significance."""
     parts = []
     for kind, label in _LINE_LABELS:
-        found = [ln for ln in result.get("lines") or [] if ln["kind"] == kind and ln["angle_from_track_deg"] is not None]
+        found = [
+            ln for ln in result.get("lines") or [] if ln["kind"] == kind and ln["angle_from_track_deg"] is not None
+        ]
         if found:
-            parts.append(label + " at " + ", ".join(
-                f"{ln['angle_from_track_deg']:+.1f} deg (significance {ln['significance']:.0f})" for ln in found))
+            parts.append(
+                label
+                + " at "
+                + ", ".join(
+                    f"{ln['angle_from_track_deg']:+.1f} deg (significance {ln['significance']:.0f})" for ln in found
+                )
+            )
     return "; ".join(parts) if parts else "none stands out"
 
 
 def speed_text(r: dict) -> tuple[str, str]:
     """(speed, 95 % interval) in knots and m/s."""
     lo, hi = r["speed_ci95_mps"]
-    return (f"{r['speed_mps'] / KNOT_MPS:.1f} kn ({r['speed_mps']:.2f} m/s)",
-            f"{lo / KNOT_MPS:.1f} - {hi / KNOT_MPS:.1f} kn ({lo:.2f} - {hi:.2f} m/s)")
+    return (
+        f"{r['speed_mps'] / KNOT_MPS:.1f} kn ({r['speed_mps']:.2f} m/s)",
+        f"{lo / KNOT_MPS:.1f} - {hi / KNOT_MPS:.1f} kn ({lo:.2f} - {hi:.2f} m/s)",
+    )
 
 
 def summary_rows(r: dict) -> list[tuple[str, str]]:
@@ -37,35 +50,59 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
     else:
         speed, interval = speed_text(r)
         rows = [
-            ("Speed through water", speed), ("95 % interval", interval),
+            ("Speed through water", speed),
+            ("95 % interval", interval),
             ("Heading (true bearing)", f"{r['heading_deg']:.1f} deg (+/- {r['heading_std_deg']:.1f})"),
-            ("Wake half-angle", "not measured" if r["half_angle_deg"] is None else
-             f"{r['half_angle_deg']:.1f} +/- {r['half_angle_std_deg']:.1f} deg"),
-            ("Transverse crest spacing", "not seen" if r["transverse_wavelength_m"] is None else
-             f"{r['transverse_wavelength_m']:.1f} m"),
+            (
+                "Wake half-angle",
+                "not measured"
+                if r["half_angle_deg"] is None
+                else f"{r['half_angle_deg']:.1f} +/- {r['half_angle_std_deg']:.1f} deg",
+            ),
+            (
+                "Transverse crest spacing",
+                "not seen" if r["transverse_wavelength_m"] is None else f"{r['transverse_wavelength_m']:.1f} m",
+            ),
             ("Wake lines through the vessel", describe_lines(r)),
             ("Depth regime", f"{r['regime']} - {r['regime_explanation']}"),
-            ("Depth", "not estimated" if r["depth_m"] is None else
-             f"{r['depth_m']:.1f} m (95 %: {r['depth_ci95_m'][0]:.1f} - {r['depth_ci95_m'][1]:.1f} m)"),
+            (
+                "Depth",
+                "not estimated"
+                if r["depth_m"] is None
+                else f"{r['depth_m']:.1f} m (95 %: {r['depth_ci95_m'][0]:.1f} - {r['depth_ci95_m'][1]:.1f} m)",
+            ),
             ("Consistency of methods", r["consistency"] or ""),
         ]
-    rows.append(("Vessel position", (f"lon {r['vessel_lonlat'][0]:.6f}, lat {r['vessel_lonlat'][1]:.6f}; "
-                                     if r["vessel_lonlat"] else "") + f"pixel ({r['vessel_px'][0]:.1f}, "
-                 f"{r['vessel_px'][1]:.1f})"))
+    rows.append(
+        (
+            "Vessel position",
+            (f"lon {r['vessel_lonlat'][0]:.6f}, lat {r['vessel_lonlat'][1]:.6f}; " if r["vessel_lonlat"] else "")
+            + f"pixel ({r['vessel_px'][0]:.1f}, "
+            f"{r['vessel_px'][1]:.1f})",
+        )
+    )
     return rows
 
 
 def method_rows(r: dict) -> list[tuple[str, str, str, str]]:
     """(method, speed m/s, 95 % interval m/s, speed kn) per method."""
-    return [(m["name"] + (" [by hand]" if m.get("by_hand") and "(by hand)" not in m["name"] else ""),
-             f"{m['speed_mps']:.2f}", f"{m['speed_ci95_mps'][0]:.2f} - {m['speed_ci95_mps'][1]:.2f}",
-             f"{m['speed_mps'] / KNOT_MPS:.1f}") for m in r["methods"]]
+    return [
+        (
+            m["name"] + (" [by hand]" if m.get("by_hand") and "(by hand)" not in m["name"] else ""),
+            f"{m['speed_mps']:.2f}",
+            f"{m['speed_ci95_mps'][0]:.2f} - {m['speed_ci95_mps'][1]:.2f}",
+            f"{m['speed_mps'] / KNOT_MPS:.1f}",
+        )
+        for m in r["methods"]
+    ]
 
 
 def assumption_texts(r: dict) -> list[str]:
     out = sorted({a for m in r["methods"] for a in m.get("assumptions", [])})
-    out.append(f"gravity {r['gravity_mps2']:.4f} m/s^2 (WGS 84 normal gravity at the vessel's latitude when "
-               f"georeferenced); analysis pixel {r['pixel_m']:.2f} m")
+    out.append(
+        f"gravity {r['gravity_mps2']:.4f} m/s^2 (WGS 84 normal gravity at the vessel's latitude when "
+        f"georeferenced); analysis pixel {r['pixel_m']:.2f} m"
+    )
     return out
 
 

@@ -12,5 +12,12 @@ from .gravity import STANDARD_GRAVITY, normal_gravity
 from .kelvin import CUSP_PROPAGATION_DEG, KELVIN_HALF_ANGLE_DEG
 from .units import KNOT_MPS, knots_to_mps, mps_to_knots
 
-__all__ = ["STANDARD_GRAVITY", "normal_gravity", "CUSP_PROPAGATION_DEG", "KELVIN_HALF_ANGLE_DEG",
-           "KNOT_MPS", "knots_to_mps", "mps_to_knots"]
+__all__ = [
+    "STANDARD_GRAVITY",
+    "normal_gravity",
+    "CUSP_PROPAGATION_DEG",
+    "KELVIN_HALF_ANGLE_DEG",
+    "KNOT_MPS",
+    "knots_to_mps",
+    "mps_to_knots",
+]

@@ -113,7 +113,7 @@ def wavenumber_from_frequency(omega_radps: ArrayLike, depth_m: ArrayLike = np.in
     deep = np.isinf(h)
     hf = np.where(deep, 1.0, h)
     y = k0 * hf  # = x tanh x, with x = k h
-    x = y / np.tanh(y ** 0.75) ** (2.0 / 3.0)  # Fenton & McKee (1990) starting value
+    x = y / np.tanh(y**0.75) ** (2.0 / 3.0)  # Fenton & McKee (1990) starting value
     for _ in range(_NEWTON_STEPS):
         t = np.tanh(x)
         f = x * t - y
@@ -126,7 +126,9 @@ def wavenumber_from_frequency(omega_radps: ArrayLike, depth_m: ArrayLike = np.in
     return _scalar_or_array(k)
 
 
-def wavenumber_from_phase_speed(phase_speed_mps: ArrayLike, depth_m: ArrayLike = np.inf, *, g: float) -> np.ndarray | float:
+def wavenumber_from_phase_speed(
+    phase_speed_mps: ArrayLike, depth_m: ArrayLike = np.inf, *, g: float
+) -> np.ndarray | float:
     """Wavenumber k (rad/m) of the wave whose phase speed is ``phase_speed_mps``.
 
     In finite depth a phase speed at or above the shallow-water limit sqrt(g h)
@@ -166,7 +168,9 @@ def wavenumber_from_phase_speed(phase_speed_mps: ArrayLike, depth_m: ArrayLike =
     return _scalar_or_array(k)
 
 
-def steady_wavenumber(speed_mps: ArrayLike, propagation_deg: ArrayLike, depth_m: ArrayLike = np.inf, *, g: float) -> np.ndarray | float:
+def steady_wavenumber(
+    speed_mps: ArrayLike, propagation_deg: ArrayLike, depth_m: ArrayLike = np.inf, *, g: float
+) -> np.ndarray | float:
     """Wavenumber of the wave that stands still behind a vessel: U cos(theta) = c(k, h).
 
     Parameters
@@ -199,15 +203,16 @@ def _steady_table() -> tuple[np.ndarray, np.ndarray]:
     c = np.linspace(0.0, 1.0, 4001)
     inner = c[1:-1]
     x = np.asarray(wavenumber_from_phase_speed(inner, 1.0, g=1.0))  # h = 1, g = 1: k h = X
-    s_in = x * inner ** 2 / np.sqrt(1.0 - inner ** 2)
+    s_in = x * inner**2 / np.sqrt(1.0 - inner**2)
     return c, np.concatenate([[1.0], s_in, [np.sqrt(3.0)]])
 
 
 _STEADY_C, _STEADY_S = _steady_table()
 
 
-def steady_wavenumber_fast(speed_mps: np.ndarray, propagation_deg: np.ndarray, depth_m: float, *,
-                           g: float) -> np.ndarray:
+def steady_wavenumber_fast(
+    speed_mps: np.ndarray, propagation_deg: np.ndarray, depth_m: float, *, g: float
+) -> np.ndarray:
     """:func:`steady_wavenumber` by table look-up, for inner loops (no input checks; relative error < 1e-6).
 
     With c = U cos(theta) / sqrt(g h) the steady wave has k h = S(c) sqrt(1 - c^2) / c^2, S tabulated once;
@@ -257,8 +262,7 @@ def hunt_wavenumber(omega_radps: ArrayLike, depth_m: ArrayLike, *, g: float) -> 
     w = np.asarray(omega_radps, dtype=float)
     h = np.asarray(depth_m, dtype=float)
     y = w * w * h / g
-    d = (0.6666666666, 0.3555555555, 0.1608465608, 0.0632098765,
-         0.0217540484, 0.0065407983)
+    d = (0.6666666666, 0.3555555555, 0.1608465608, 0.0632098765, 0.0217540484, 0.0065407983)
     poly = 1.0 + sum(dn * y ** (n + 1) for n, dn in enumerate(d))
     kh2 = y * y + y / poly
     return _scalar_or_array(np.sqrt(kh2) / h)

@@ -37,7 +37,7 @@ from .kelvin import KELVIN_HALF_ANGLE_DEG
 FR_DEEP_LIMIT: float = 0.5
 
 
-def _ray_angles_unit(fr: float, theta: np.ndarray) -> np.ndarray:
+def _ray_angles_unit(fr: float | np.ndarray, theta: np.ndarray) -> np.ndarray:
     """Ray angles (rad) for h = g = 1, U = fr, at propagation angles theta (rad)."""
     c = fr * np.cos(theta)
     k = np.asarray(wavenumber_from_phase_speed(c, 1.0, g=1.0))
@@ -94,8 +94,8 @@ def half_angle(froude_depth: ArrayLike) -> np.ndarray | float:
     if np.any(sub):
         out[sub] = _half_angle_subcritical(flat[sub])
     out[sup] = np.degrees(np.arcsin(1.0 / flat[sup]))
-    out = out.reshape(fr.shape)
-    return float(out) if out.ndim == 0 else out
+    shaped = out.reshape(fr.shape)
+    return float(shaped) if shaped.ndim == 0 else shaped
 
 
 @lru_cache(maxsize=1)
@@ -134,16 +134,20 @@ def froude_from_half_angle(half_angle_deg: float) -> FroudeBranches:
     sup = 1.0 / np.sin(np.radians(a))
     interp, amin, amax = _subcritical_table()
     if a <= KELVIN_HALF_ANGLE_DEG + 0.01:
-        note = ("half-angle at or below the deep-water value: subcritical depth Froude number "
-                "cannot be told (any Fr_h below ~0.6 fits); supercritical Fr_h = "
-                f"{sup:.3f} if transverse waves are absent; a narrow angle may also mean a fast, short hull")
+        note = (
+            "half-angle at or below the deep-water value: subcritical depth Froude number "
+            "cannot be told (any Fr_h below ~0.6 fits); supercritical Fr_h = "
+            f"{sup:.3f} if transverse waves are absent; a narrow angle may also mean a fast, short hull"
+        )
         return FroudeBranches(a, None, float(sup), note)
     if a >= amax:
         sub = 1.0 - 1e-5
     else:
         sub = float(interp(max(a, amin)))
-    note = (f"two depth Froude numbers fit: subcritical Fr_h = {sub:.3f} (transverse waves present) "
-            f"or supercritical Fr_h = {sup:.3f} (no transverse waves)")
+    note = (
+        f"two depth Froude numbers fit: subcritical Fr_h = {sub:.3f} (transverse waves present) "
+        f"or supercritical Fr_h = {sup:.3f} (no transverse waves)"
+    )
     return FroudeBranches(a, sub, float(sup), note)
 
 
@@ -167,7 +171,9 @@ def transverse_wavelength_finite_depth(speed_mps: ArrayLike, depth_m: ArrayLike,
     return transverse_wavelength(speed_mps, depth_m, g=g)
 
 
-def depth_from_speed_and_transverse_wavelength(speed_mps: ArrayLike, wavelength_m: ArrayLike, *, g: float) -> np.ndarray | float:
+def depth_from_speed_and_transverse_wavelength(
+    speed_mps: ArrayLike, wavelength_m: ArrayLike, *, g: float
+) -> np.ndarray | float:
     """Depth (m) at which transverse waves of a vessel at speed U have length lambda.
 
     From U^2 = (g/k) tanh(k h): h = artanh(U^2 k / g) / k.  NaN when lambda is

@@ -57,8 +57,9 @@ def apparent_arm_angle(hull_froude_number: ArrayLike) -> np.ndarray | float:
     return float(phi) if phi.ndim == 0 else phi
 
 
-def narrow_angle_explained(measured_deg: float, speed_mps: float, hull_length_m: float, *,
-                           g: float, tolerance_deg: float = 2.0) -> bool:
+def narrow_angle_explained(
+    measured_deg: float, speed_mps: float, hull_length_m: float, *, g: float, tolerance_deg: float = 2.0
+) -> bool:
     """True when a measured arm angle below 19.47 deg fits the fast-hull model within tolerance."""
     expected = float(apparent_arm_angle(hull_froude(speed_mps, hull_length_m, g=g)))
     return bool(abs(measured_deg - expected) <= tolerance_deg)

@@ -103,9 +103,11 @@ class SpeedEstimate:
         return self.ci95_low_mps / KNOT_MPS, self.ci95_high_mps / KNOT_MPS
 
     def summary(self) -> str:
-        return (f"{self.method}: {self.speed_mps:.2f} m/s ({self.speed_knots:.1f} kn), "
-                f"95 % interval {self.ci95_low_mps:.2f}-{self.ci95_high_mps:.2f} m/s "
-                f"({self.ci95_knots[0]:.1f}-{self.ci95_knots[1]:.1f} kn)")
+        return (
+            f"{self.method}: {self.speed_mps:.2f} m/s ({self.speed_knots:.1f} kn), "
+            f"95 % interval {self.ci95_low_mps:.2f}-{self.ci95_high_mps:.2f} m/s "
+            f"({self.ci95_knots[0]:.1f}-{self.ci95_knots[1]:.1f} kn)"
+        )
 
 
 def _rng(seed: int | np.random.Generator | None) -> np.random.Generator:
@@ -129,12 +131,14 @@ def _summarise(method: str, samples: np.ndarray, n: int, assumptions: tuple[str,
     if frac < 0.5:
         raise ParameterError(
             f"{method}: only {100 * frac:.0f} % of the uncertainty draws give a physical speed; "
-            "the measurements do not fit this method (check depth, angle and wavelength)")
+            "the measurements do not fit this method (check depth, angle and wavelength)"
+        )
     s = samples[ok]
     lo, med, hi = np.percentile(s, [2.5, 50.0, 97.5])
     extra = () if frac > 0.999 else (f"{100 * (1 - frac):.1f} % of draws had no steady wave and were dropped",)
-    return SpeedEstimate(method, float(med), float(np.std(s, ddof=1)), float(lo), float(hi), int(n), frac,
-                         assumptions + extra)
+    return SpeedEstimate(
+        method, float(med), float(np.std(s, ddof=1)), float(lo), float(hi), int(n), frac, assumptions + extra
+    )
 
 
 def _common(conditions: Conditions, n: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -159,19 +163,30 @@ def _speed_from_crest(lam: np.ndarray, theta_deg: np.ndarray, h: np.ndarray, g: 
     return np.where(ok, u, np.nan)
 
 
-def speed_from_transverse_wavelength(wavelength_m: Uncertain, conditions: Conditions = Conditions(), *,
-                                     draws: int = DEFAULT_DRAWS, seed: int | np.random.Generator | None = 0) -> SpeedEstimate:
+def speed_from_transverse_wavelength(
+    wavelength_m: Uncertain,
+    conditions: Conditions = Conditions(),
+    *,
+    draws: int = DEFAULT_DRAWS,
+    seed: int | np.random.Generator | None = 0,
+) -> SpeedEstimate:
     """Speed from the transverse wavelength along the track (deep: U = sqrt(g lambda / 2 pi))."""
     if wavelength_m.value <= 0:
         raise ParameterError(f"transverse wavelength must be > 0 m, got {wavelength_m.value!r}")
-    return speed_from_crest_wavelength(wavelength_m, Uncertain(0.0, 0.0), conditions, draws=draws, seed=seed,
-                                       method="transverse wavelength")
+    return speed_from_crest_wavelength(
+        wavelength_m, Uncertain(0.0, 0.0), conditions, draws=draws, seed=seed, method="transverse wavelength"
+    )
 
 
-def speed_from_crest_wavelength(wavelength_m: Uncertain, propagation_deg: Uncertain,
-                                conditions: Conditions = Conditions(), *, draws: int = DEFAULT_DRAWS,
-                                seed: int | np.random.Generator | None = 0,
-                                method: str = "crest wavelength") -> SpeedEstimate:
+def speed_from_crest_wavelength(
+    wavelength_m: Uncertain,
+    propagation_deg: Uncertain,
+    conditions: Conditions = Conditions(),
+    *,
+    draws: int = DEFAULT_DRAWS,
+    seed: int | np.random.Generator | None = 0,
+    method: str = "crest wavelength",
+) -> SpeedEstimate:
     """Speed from the wavelength of a crest train propagating at angle theta to the track.
 
     U = c(k, h) / cos(theta); deep water U = sqrt(g lambda / 2 pi) / cos(theta).
@@ -186,13 +201,21 @@ def speed_from_crest_wavelength(wavelength_m: Uncertain, propagation_deg: Uncert
     lam = _draw(wavelength_m, draws, rng) * scale
     th = np.abs(_draw(propagation_deg, draws, rng))
     u = _speed_from_crest(lam, th, h, g)
-    extra = (f"crest propagation angle {propagation_deg.value:.1f} +/- {propagation_deg.std:.1f} deg to the track",) \
-        if propagation_deg.value > 0 or propagation_deg.std > 0 else ()
+    extra = (
+        (f"crest propagation angle {propagation_deg.value:.1f} +/- {propagation_deg.std:.1f} deg to the track",)
+        if propagation_deg.value > 0 or propagation_deg.std > 0
+        else ()
+    )
     return _summarise(method, u, draws, conditions.assumptions() + extra)
 
 
-def speed_from_spectral_fit(speed_mps: Uncertain, conditions: Conditions = Conditions(), *,
-                            draws: int = DEFAULT_DRAWS, seed: int | np.random.Generator | None = 0) -> SpeedEstimate:
+def speed_from_spectral_fit(
+    speed_mps: Uncertain,
+    conditions: Conditions = Conditions(),
+    *,
+    draws: int = DEFAULT_DRAWS,
+    seed: int | np.random.Generator | None = 0,
+) -> SpeedEstimate:
     """Wrap a spectral-fit speed (Zilman et al. 2004) and add the pixel-size uncertainty (U ~ sqrt(scale))."""
     if speed_mps.value <= 0:
         raise ParameterError(f"spectral-fit speed must be > 0 m/s, got {speed_mps.value!r}")
@@ -203,18 +226,29 @@ def speed_from_spectral_fit(speed_mps: Uncertain, conditions: Conditions = Condi
     return _summarise("spectral fit", u, draws, conditions.assumptions())
 
 
-def speed_from_radar_offset(offset_m: Uncertain, slant_range_m: Uncertain, platform_speed_mps: Uncertain, *,
-                            incidence_deg: float, heading_deg: Uncertain, look_bearing_deg: float,
-                            conditions: Conditions = Conditions(), draws: int = DEFAULT_DRAWS,
-                            seed: int | np.random.Generator | None = 0) -> SpeedEstimate:
+def speed_from_radar_offset(
+    offset_m: Uncertain,
+    slant_range_m: Uncertain,
+    platform_speed_mps: Uncertain,
+    *,
+    incidence_deg: float,
+    heading_deg: Uncertain,
+    look_bearing_deg: float,
+    conditions: Conditions = Conditions(),
+    draws: int = DEFAULT_DRAWS,
+    seed: int | np.random.Generator | None = 0,
+) -> SpeedEstimate:
     """Speed from the hull-to-wake azimuth offset in a radar scene (Raney 1971)."""
     if slant_range_m.value <= 0 or platform_speed_mps.value <= 0:
-        raise ParameterError("slant_range_m and platform_speed_mps must be > 0, got "
-                             f"{slant_range_m.value!r} and {platform_speed_mps.value!r}")
+        raise ParameterError(
+            "slant_range_m and platform_speed_mps must be > 0, got "
+            f"{slant_range_m.value!r} and {platform_speed_mps.value!r}"
+        )
     _check_draws(draws)
     # fail early and clearly on an ill-posed geometry
-    radar.ground_speed_from_radial(1.0, incidence_deg=incidence_deg, heading_deg=heading_deg.value,
-                                   look_bearing_deg=look_bearing_deg)
+    radar.ground_speed_from_radial(
+        1.0, incidence_deg=incidence_deg, heading_deg=heading_deg.value, look_bearing_deg=look_bearing_deg
+    )
     rng = _rng(seed)
     _, scale, _ = _common(conditions, draws, rng)
     dx = _draw(offset_m, draws, rng) * scale
@@ -227,7 +261,8 @@ def speed_from_radar_offset(offset_m: Uncertain, slant_range_m: Uncertain, platf
     assumptions = conditions.assumptions()[2:3] + (
         f"slant range {slant_range_m.value:.0f} m, platform speed {platform_speed_mps.value:.0f} m/s, "
         f"incidence {incidence_deg:.1f} deg, look bearing {look_bearing_deg:.1f} deg",
-        "speed over ground (the radar sees motion relative to the Earth, not the water)")
+        "speed over ground (the radar sees motion relative to the Earth, not the water)",
+    )
     return _summarise("radar azimuth offset", u, draws, assumptions)
 
 
@@ -241,8 +276,13 @@ class DepthEstimate:
 
 
 def speed_and_depth_from_transverse_wavelength_and_half_angle(
-        wavelength_m: Uncertain, half_angle_deg: Uncertain, conditions: Conditions = Conditions(), *,
-        draws: int = DEFAULT_DRAWS, seed: int | np.random.Generator | None = 0) -> tuple[SpeedEstimate, DepthEstimate]:
+    wavelength_m: Uncertain,
+    half_angle_deg: Uncertain,
+    conditions: Conditions = Conditions(),
+    *,
+    draws: int = DEFAULT_DRAWS,
+    seed: int | np.random.Generator | None = 0,
+) -> tuple[SpeedEstimate, DepthEstimate]:
     """Speed and depth together when the wedge is wider than Kelvin's and transverse waves exist.
 
     The half-angle gives Fr_h (Havelock, subcritical branch); the transverse
@@ -254,7 +294,8 @@ def speed_and_depth_from_transverse_wavelength_and_half_angle(
     if not kelvin.KELVIN_HALF_ANGLE_DEG < half_angle_deg.value < 90:
         raise ParameterError(
             f"half_angle_deg must be within ({kelvin.KELVIN_HALF_ANGLE_DEG:.2f}, 90) for a depth estimate, "
-            f"got {half_angle_deg.value!r}")
+            f"got {half_angle_deg.value!r}"
+        )
     _check_draws(draws)
     rng = _rng(seed)
     g, scale, _ = _common(conditions, draws, rng)
@@ -266,9 +307,14 @@ def speed_and_depth_from_transverse_wavelength_and_half_angle(
     k = 2 * np.pi / np.where(lam > 0, lam, 1.0)
     h = np.where(ok, kh / k, np.nan)
     u = np.where(ok, fr * np.sqrt(g * h), np.nan)
-    assumptions = conditions.assumptions()[:1] + conditions.assumptions()[2:] + (
-        f"depth inferred from the half-angle {half_angle_deg.value:.1f} +/- {half_angle_deg.std:.1f} deg "
-        "(Havelock 1908, subcritical branch: transverse waves seen)",)
+    assumptions = (
+        conditions.assumptions()[:1]
+        + conditions.assumptions()[2:]
+        + (
+            f"depth inferred from the half-angle {half_angle_deg.value:.1f} +/- {half_angle_deg.std:.1f} deg "
+            "(Havelock 1908, subcritical branch: transverse waves seen)",
+        )
+    )
     est = _summarise("transverse wavelength + half-angle (finite depth)", u, draws, assumptions)
     hv = h[np.isfinite(h)]
     fv = fr[np.isfinite(fr)]
@@ -307,7 +353,7 @@ def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) ->
     s = np.array([e.std_mps for e in estimates])
     if np.any(s <= 0):
         raise ParameterError("every estimate needs a standard uncertainty > 0 to be weighted")
-    w = 1.0 / s ** 2
+    w = 1.0 / s**2
     mean = float(np.sum(w * x) / np.sum(w))
     std = float(np.sqrt(1.0 / np.sum(w)))
     dof = len(estimates) - 1
@@ -324,10 +370,13 @@ def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) ->
         resid = np.abs(x - mean) / s
         outlier = methods[int(np.argmax(resid))]
         std *= float(np.sqrt(chi2 / dof))
-        verdict = (f"methods DISAGREE (chi2 = {chi2:.2f} on {dof} dof, p = {p:.3f}); "
-                   f"'{outlier}' stands out; uncertainty inflated by the Birge ratio")
-    return CombinedSpeed(mean, std, mean - 1.959964 * std, mean + 1.959964 * std, chi2, dof, p,
-                         consistent, outlier, methods, verdict)
+        verdict = (
+            f"methods DISAGREE (chi2 = {chi2:.2f} on {dof} dof, p = {p:.3f}); "
+            f"'{outlier}' stands out; uncertainty inflated by the Birge ratio"
+        )
+    return CombinedSpeed(
+        mean, std, mean - 1.959964 * std, mean + 1.959964 * std, chi2, dof, p, consistent, outlier, methods, verdict
+    )
 
 
 # Depth-regime bands of Fr_h.  The 0.6 limit follows Havelock's curve (half-angle
@@ -343,8 +392,12 @@ class Regime(StrEnum):
     UNKNOWN = "unknown"
 
 
-_REGIME_BANDS = ((0.6, Regime.DEEP), (0.9, Regime.FINITE_DEPTH), (1.1, Regime.NEAR_CRITICAL),
-                 (np.inf, Regime.SUPERCRITICAL))
+_REGIME_BANDS = (
+    (0.6, Regime.DEEP),
+    (0.9, Regime.FINITE_DEPTH),
+    (1.1, Regime.NEAR_CRITICAL),
+    (np.inf, Regime.SUPERCRITICAL),
+)
 
 
 @dataclass(frozen=True)
@@ -361,10 +414,17 @@ def _band(fr: float) -> Regime:
     return next(name for top, name in _REGIME_BANDS if fr < top)
 
 
-def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertain | None = None,
-                        half_angle_deg: Uncertain | None = None, transverse_seen: bool | None = None,
-                        g: float = STANDARD_GRAVITY, draws: int = 20_000, seed: int = 0,
-                        depth_source: str = "given") -> DepthRegime:
+def assess_depth_regime(
+    *,
+    speed: SpeedEstimate | None = None,
+    depth_m: Uncertain | None = None,
+    half_angle_deg: Uncertain | None = None,
+    transverse_seen: bool | None = None,
+    g: float = STANDARD_GRAVITY,
+    draws: int = 20_000,
+    seed: int = 0,
+    depth_source: str = "given",
+) -> DepthRegime:
     """Say whether shallow water shaped the wake, from what is known.
 
     Known speed and depth give Fr_h directly.  Otherwise the half-angle tells:
@@ -384,22 +444,42 @@ def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertai
         fr = u / np.sqrt(g * h)
         lo, med, hi = np.percentile(fr, [2.5, 50, 97.5])
         regime = _band(float(med))
-        expl = (f"depth Froude number {med:.2f} (95 %: {lo:.2f}-{hi:.2f}) from speed and the {depth_source} depth "
-                f"{depth_m.value:.1f} m: {regime}")
-        return DepthRegime(regime, float(med), (float(lo), float(hi)), depth_m.value,
-                           (depth_m.value - 1.96 * depth_m.std, depth_m.value + 1.96 * depth_m.std), expl)
+        expl = (
+            f"depth Froude number {med:.2f} (95 %: {lo:.2f}-{hi:.2f}) from speed and the {depth_source} depth "
+            f"{depth_m.value:.1f} m: {regime}"
+        )
+        return DepthRegime(
+            regime,
+            float(med),
+            (float(lo), float(hi)),
+            depth_m.value,
+            (depth_m.value - 1.96 * depth_m.std, depth_m.value + 1.96 * depth_m.std),
+            expl,
+        )
     if half_angle_deg is not None:
         a, sa = half_angle_deg.value, max(half_angle_deg.std, 0.1)
         k = kelvin.KELVIN_HALF_ANGLE_DEG
         if abs(a - k) <= 2 * sa:
-            return DepthRegime(Regime.DEEP, None, None, None, None,
-                               f"half-angle {a:.1f} +/- {half_angle_deg.std:.1f} deg agrees with Kelvin's {k:.2f} deg: "
-                               "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told")
+            return DepthRegime(
+                Regime.DEEP,
+                None,
+                None,
+                None,
+                None,
+                f"half-angle {a:.1f} +/- {half_angle_deg.std:.1f} deg agrees with Kelvin's {k:.2f} deg: "
+                "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told",
+            )
         if a < k:
-            return DepthRegime(Regime.UNKNOWN, None, None, None, None,
-                               f"half-angle {a:.1f} deg is narrower than Kelvin's: not a depth effect; "
-                               "a fast, short hull (high hull Froude number) or a supercritical vessel without "
-                               "transverse waves could explain it")
+            return DepthRegime(
+                Regime.UNKNOWN,
+                None,
+                None,
+                None,
+                None,
+                f"half-angle {a:.1f} deg is narrower than Kelvin's: not a depth effect; "
+                "a fast, short hull (high hull Froude number) or a supercritical vessel without "
+                "transverse waves could explain it",
+            )
         br = havelock.froude_from_half_angle(a)
         if transverse_seen is True:
             fr_lo = float(havelock.subcritical_froude_from_half_angle(max(a - 1.96 * sa, k + 1e-3)))
@@ -408,15 +488,28 @@ def assess_depth_regime(*, speed: SpeedEstimate | None = None, depth_m: Uncertai
             depth = None
             depth_ci = None
             if speed is not None:
-                depth = speed.speed_mps ** 2 / (g * sub ** 2)
-                depth_ci = (speed.ci95_low_mps ** 2 / (g * fr_hi ** 2), speed.ci95_high_mps ** 2 / (g * fr_lo ** 2))
-            return DepthRegime(_band(sub), sub, (fr_lo, fr_hi), depth, depth_ci,
-                               f"half-angle {a:.1f} deg wider than Kelvin's with transverse waves: subcritical "
-                               f"Fr_h = {sub:.2f} (Havelock 1908)")
+                depth = speed.speed_mps**2 / (g * sub**2)
+                depth_ci = (speed.ci95_low_mps**2 / (g * fr_hi**2), speed.ci95_high_mps**2 / (g * fr_lo**2))
+            return DepthRegime(
+                _band(sub),
+                sub,
+                (fr_lo, fr_hi),
+                depth,
+                depth_ci,
+                f"half-angle {a:.1f} deg wider than Kelvin's with transverse waves: subcritical "
+                f"Fr_h = {sub:.2f} (Havelock 1908)",
+            )
         if transverse_seen is False:
-            return DepthRegime(Regime.SUPERCRITICAL, br.supercritical, None, None, None,
-                               f"half-angle {a:.1f} deg and no transverse waves: supercritical, "
-                               f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}")
+            return DepthRegime(
+                Regime.SUPERCRITICAL,
+                br.supercritical,
+                None,
+                None,
+                None,
+                f"half-angle {a:.1f} deg and no transverse waves: supercritical, "
+                f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}",
+            )
         return DepthRegime(Regime.UNKNOWN, None, None, None, None, br.note)
-    return DepthRegime(Regime.UNKNOWN, None, None, None, None,
-                       "neither depth nor half-angle known: the depth regime cannot be told")
+    return DepthRegime(
+        Regime.UNKNOWN, None, None, None, None, "neither depth nor half-angle known: the depth regime cannot be told"
+    )

@@ -46,8 +46,9 @@ def _check_theta(name: str, theta_deg: ArrayLike) -> np.ndarray:
     return th
 
 
-def crest_wavelength(speed_mps: ArrayLike, propagation_deg: ArrayLike = 0.0,
-                     depth_m: ArrayLike = np.inf, *, g: float) -> np.ndarray | float:
+def crest_wavelength(
+    speed_mps: ArrayLike, propagation_deg: ArrayLike = 0.0, depth_m: ArrayLike = np.inf, *, g: float
+) -> np.ndarray | float:
     """Wavelength (m) of the steady wave at propagation angle theta behind a vessel.
 
     Deep water: lambda = 2 pi U^2 cos^2(theta) / g.  Finite depth: from
@@ -66,8 +67,9 @@ def transverse_wavelength(speed_mps: ArrayLike, depth_m: ArrayLike = np.inf, *, 
     return crest_wavelength(speed_mps, 0.0, depth_m, g=g)
 
 
-def speed_from_crest_wavelength(wavelength_m: ArrayLike, propagation_deg: ArrayLike = 0.0,
-                                depth_m: ArrayLike = np.inf, *, g: float) -> np.ndarray | float:
+def speed_from_crest_wavelength(
+    wavelength_m: ArrayLike, propagation_deg: ArrayLike = 0.0, depth_m: ArrayLike = np.inf, *, g: float
+) -> np.ndarray | float:
     """Vessel speed (m/s) from the wavelength of a steady crest at angle theta.
 
     U = c(k, h) / cos(theta), k = 2 pi / lambda; deep water U = sqrt(g lambda / (2 pi)) / cos(theta).
@@ -79,13 +81,16 @@ def speed_from_crest_wavelength(wavelength_m: ArrayLike, propagation_deg: ArrayL
     return _out(c / np.cos(np.radians(th)))
 
 
-def speed_from_transverse_wavelength(wavelength_m: ArrayLike, depth_m: ArrayLike = np.inf, *, g: float) -> np.ndarray | float:
+def speed_from_transverse_wavelength(
+    wavelength_m: ArrayLike, depth_m: ArrayLike = np.inf, *, g: float
+) -> np.ndarray | float:
     """Vessel speed (m/s) from the transverse wavelength; deep water U = sqrt(g lambda / 2 pi)."""
     return speed_from_crest_wavelength(wavelength_m, 0.0, depth_m, g=g)
 
 
-def ray_angle(propagation_deg: ArrayLike, speed_mps: ArrayLike = 1.0,
-              depth_m: ArrayLike = np.inf, *, g: float) -> np.ndarray | float:
+def ray_angle(
+    propagation_deg: ArrayLike, speed_mps: ArrayLike = 1.0, depth_m: ArrayLike = np.inf, *, g: float
+) -> np.ndarray | float:
     """Ray angle phi (degrees from the track) of the stationary wave at angle theta.
 
     tan(phi) = n sin(theta) cos(theta) / (1 - n cos^2(theta)); in deep water
@@ -120,7 +125,8 @@ def stationary_waves_on_ray(ray_deg: float) -> StationaryPair:
     phi = float(ray_deg)
     if not np.isfinite(phi) or phi <= 0 or phi > KELVIN_HALF_ANGLE_DEG + 1e-9:
         raise ParameterError(
-            f"ray_deg must be within (0, {KELVIN_HALF_ANGLE_DEG:.4f}] (inside the Kelvin wedge), got {ray_deg!r}")
+            f"ray_deg must be within (0, {KELVIN_HALF_ANGLE_DEG:.4f}] (inside the Kelvin wedge), got {ray_deg!r}"
+        )
     tp = np.tan(np.radians(phi))
     disc = max(0.0, 1.0 - 8.0 * tp * tp)
     t1 = (1.0 - np.sqrt(disc)) / (4.0 * tp)

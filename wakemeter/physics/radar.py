@@ -21,7 +21,9 @@ from numpy.typing import ArrayLike
 from ..errors import ParameterError, check_positive
 
 
-def azimuth_offset(radial_speed_mps: ArrayLike, slant_range_m: ArrayLike, platform_speed_mps: ArrayLike) -> np.ndarray | float:
+def azimuth_offset(
+    radial_speed_mps: ArrayLike, slant_range_m: ArrayLike, platform_speed_mps: ArrayLike
+) -> np.ndarray | float:
     """Azimuth displacement (m) of a target with radial speed v_r: dx = -(R/V) v_r."""
     r = np.asarray(slant_range_m, dtype=float)
     v = np.asarray(platform_speed_mps, dtype=float)
@@ -31,7 +33,9 @@ def azimuth_offset(radial_speed_mps: ArrayLike, slant_range_m: ArrayLike, platfo
     return float(dx) if dx.ndim == 0 else dx
 
 
-def radial_speed_from_offset(offset_m: ArrayLike, slant_range_m: ArrayLike, platform_speed_mps: ArrayLike) -> np.ndarray | float:
+def radial_speed_from_offset(
+    offset_m: ArrayLike, slant_range_m: ArrayLike, platform_speed_mps: ArrayLike
+) -> np.ndarray | float:
     """Radial speed (m/s) from the hull-to-wake azimuth offset: v_r = -(V/R) dx."""
     r = np.asarray(slant_range_m, dtype=float)
     v = np.asarray(platform_speed_mps, dtype=float)
@@ -41,8 +45,14 @@ def radial_speed_from_offset(offset_m: ArrayLike, slant_range_m: ArrayLike, plat
     return float(vr) if vr.ndim == 0 else vr
 
 
-def ground_speed_from_radial(radial_speed_mps: ArrayLike, *, incidence_deg: float, heading_deg: float,
-                             look_bearing_deg: float, min_projection: float = 0.1) -> np.ndarray | float:
+def ground_speed_from_radial(
+    radial_speed_mps: ArrayLike,
+    *,
+    incidence_deg: float,
+    heading_deg: float,
+    look_bearing_deg: float,
+    min_projection: float = 0.1,
+) -> np.ndarray | float:
     """Speed over the water (m/s) from the radial speed, given the geometry.
 
     v_r = U cos(heading - look bearing) sin(incidence), with the look bearing the
@@ -61,6 +71,7 @@ def ground_speed_from_radial(radial_speed_mps: ArrayLike, *, incidence_deg: floa
     if abs(proj) < min_projection:
         raise ParameterError(
             f"the vessel moves almost along the radar's flight direction (projection factor {proj:.3f} "
-            f"< {min_projection}); the azimuth offset cannot give its speed")
+            f"< {min_projection}); the azimuth offset cannot give its speed"
+        )
     u = np.asarray(radial_speed_mps, dtype=float) / proj
     return float(u) if u.ndim == 0 else u

@@ -152,8 +152,11 @@ class Project:
         return bool(sc and (sc.info.georeferenced or (sc.calibration is not None and sc.calibration.north_known)))
 
     def track_of(self, vessel_id: int | None) -> Measurement | None:
-        tracks = [m for m in self.measurements.values() if m.kind == MeasureKind.TRACK
-                  and (vessel_id is None or m.vessel_id == vessel_id)]
+        tracks = [
+            m
+            for m in self.measurements.values()
+            if m.kind == MeasureKind.TRACK and (vessel_id is None or m.vessel_id == vessel_id)
+        ]
         return tracks[-1] if tracks else None
 
     def evaluate(self, m: Measurement) -> Measurement:
@@ -169,25 +172,41 @@ class Project:
                 return replace(m, text="", error="calibrate the image first (pixel size or two points)")
             if m.kind == MeasureKind.RULER:
                 r = hm.ruler(sc, *m.points)
-                return replace(m, values={"length_m": r.length_m, "length_std_m": r.length_std_m,
-                                          "bearing_deg": r.bearing_deg},
-                               text=f"{r.length_m:.1f} ± {r.length_std_m:.1f} m, {r.bearing_deg:.1f}°", error="")
+                return replace(
+                    m,
+                    values={"length_m": r.length_m, "length_std_m": r.length_std_m, "bearing_deg": r.bearing_deg},
+                    text=f"{r.length_m:.1f} ± {r.length_std_m:.1f} m, {r.bearing_deg:.1f}°",
+                    error="",
+                )
             if m.kind == MeasureKind.TRACK:
                 t = hm.track_heading(sc, m.points[0], m.points[1])
-                return replace(m, values={"heading_deg": t.bearing_deg, "heading_std_deg": t.bearing_std_deg},
-                               text=f"heading {t.bearing_deg:.1f} ± {t.bearing_std_deg:.1f}°"
-                               + ("" if self.north_known() else " (from image up)"), error="")
+                return replace(
+                    m,
+                    values={"heading_deg": t.bearing_deg, "heading_std_deg": t.bearing_std_deg},
+                    text=f"heading {t.bearing_deg:.1f} ± {t.bearing_std_deg:.1f}°"
+                    + ("" if self.north_known() else " (from image up)"),
+                    error="",
+                )
             if m.kind == MeasureKind.ARM:
                 track = self.track_of(m.vessel_id)
                 if track is None:
                     return replace(m, text="", error="draw the vessel's track first")
                 a, sd = hm.angle_to_track(sc, track.points, m.points)
-                return replace(m, values={"half_angle_deg": a, "half_angle_std_deg": sd},
-                               text=f"half-angle {a:.1f} ± {sd:.1f}°", error="")
+                return replace(
+                    m,
+                    values={"half_angle_deg": a, "half_angle_std_deg": sd},
+                    text=f"half-angle {a:.1f} ± {sd:.1f}°",
+                    error="",
+                )
             if m.kind == MeasureKind.CREST:
                 c = hm.crest_ruler(sc, *m.points)
-                values = {"spacing_m": c.spacing_m, "spacing_std_m": c.spacing_std_m, "snr": c.snr,
-                          "profile": c.profile, "step_m": c.step_m}
+                values = {
+                    "spacing_m": c.spacing_m,
+                    "spacing_std_m": c.spacing_std_m,
+                    "snr": c.snr,
+                    "profile": c.profile,
+                    "step_m": c.step_m,
+                }
                 text = f"crests {c.spacing_m:.1f} ± {c.spacing_std_m:.1f} m"
                 track = self.track_of(m.vessel_id)
                 if track is not None:
@@ -202,15 +221,24 @@ class Project:
     # ---- findings -------------------------------------------------------
     def hand_corrections(self, vessel_id: int) -> HandCorrections:
         """The last crest ruler and the last arm of the vessel, as corrections (the rules live here only)."""
-        crest = [m for m in self.measurements.values() if m.kind == MeasureKind.CREST and m.vessel_id == vessel_id
-                 and "spacing_m" in m.values]
-        arm = [m for m in self.measurements.values() if m.kind == MeasureKind.ARM and m.vessel_id == vessel_id
-               and "half_angle_deg" in m.values]
+        crest = [
+            m
+            for m in self.measurements.values()
+            if m.kind == MeasureKind.CREST and m.vessel_id == vessel_id and "spacing_m" in m.values
+        ]
+        arm = [
+            m
+            for m in self.measurements.values()
+            if m.kind == MeasureKind.ARM and m.vessel_id == vessel_id and "half_angle_deg" in m.values
+        ]
         hand_crest = hand_arm = None
         if crest:
             v = crest[-1].values
-            hand_crest = (v["spacing_m"], v["spacing_std_m"],
-                          min(v.get("angle_to_track_deg", 0.0), HAND_CREST_ANGLE_MAX_DEG))
+            hand_crest = (
+                v["spacing_m"],
+                v["spacing_std_m"],
+                min(v.get("angle_to_track_deg", 0.0), HAND_CREST_ANGLE_MAX_DEG),
+            )
         if arm:
             v = arm[-1].values
             hand_arm = (v["half_angle_deg"], max(v["half_angle_std_deg"], HAND_ARM_STD_MIN_DEG))
@@ -246,5 +274,7 @@ class Project:
             est = inv.speed_from_crest_wavelength(inv.Uncertain(lam, sd), inv.Uncertain(theta, 2.0), draws=20_000)
         except WakemeterError as err:
             return str(err)
-        return (f"from the crest ruler: {est.speed_mps:.2f} m/s ({units.mps_to_knots(est.speed_mps):.1f} kn), "
-                f"95 % {est.ci95_low_mps:.2f}-{est.ci95_high_mps:.2f} m/s (deep water assumed)")
+        return (
+            f"from the crest ruler: {est.speed_mps:.2f} m/s ({units.mps_to_knots(est.speed_mps):.1f} kn), "
+            f"95 % {est.ci95_low_mps:.2f}-{est.ci95_high_mps:.2f} m/s (deep water assumed)"
+        )

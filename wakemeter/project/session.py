@@ -19,6 +19,7 @@ import json
 import math
 import os
 from pathlib import Path
+from typing import Any
 
 from ..errors import WakemeterError
 from ..fileio import atomic_write_bytes
@@ -35,8 +36,11 @@ class SessionError(WakemeterError, ValueError):
 def save(path: str | os.PathLike, data: dict) -> Path:
     """Write a session dict atomically; relative scene path computed here."""
     target = Path(path)
-    data = {"schema": SCHEMA, "saved_at": _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat(),
-            **{k: v for k, v in data.items() if k not in ("schema", "saved_at")}}
+    data = {
+        "schema": SCHEMA,
+        "saved_at": _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat(),
+        **{k: v for k, v in data.items() if k not in ("schema", "saved_at")},
+    }
     scene = dict(data.get("scene") or {})
     if scene.get("absolute_path"):
         try:
@@ -52,8 +56,9 @@ def save(path: str | os.PathLike, data: dict) -> Path:
     return target
 
 
-def _plain(x):
+def _plain(x: object) -> object:
     import numpy as np
+
     if isinstance(x, np.generic):
         return x.item()
     if isinstance(x, np.ndarray):
@@ -93,6 +98,7 @@ def autosave_path() -> Path:
 
 # ---- the project in a session ------------------------------------------------------------------
 
+
 def to_session(project: Project) -> dict:
     """The session dict of a project (without ``schema``/``saved_at``, which :func:`save` adds)."""
     sc = project.scene
@@ -106,13 +112,20 @@ def to_session(project: Project) -> dict:
             findings[str(vid)] = {"result": eff.to_json(), "rejected": vid in project.rejected}
     return {
         "scene": {"absolute_path": str(sc.info.path), "sha256": sc.sha256(), "size_bytes": sc.info.file_size},
-        "calibration": None if cal is None else {"pixel_size_m": cal.m_per_col,
-                                                 "north_up_deg": cal.bearing_up_deg if cal.north_known else None},
+        "calibration": None
+        if cal is None
+        else {"pixel_size_m": cal.m_per_col, "north_up_deg": cal.bearing_up_deg if cal.north_known else None},
         "vessels": [{"id": v.id, "name": v.name, "position_px": list(v.position)} for v in project.vessels.values()],
-        "measurements": [{"id": m.id, "kind": str(m.kind), "points_px": [list(p) for p in m.points],
-                          "vessel_id": m.vessel_id,
-                          "values": {k: v for k, v in m.values.items() if k in ("distance_m",)}}
-                         for m in project.measurements.values()],
+        "measurements": [
+            {
+                "id": m.id,
+                "kind": str(m.kind),
+                "points_px": [list(p) for p in m.points],
+                "vessel_id": m.vessel_id,
+                "values": {k: v for k, v in m.values.items() if k in ("distance_m",)},
+            }
+            for m in project.measurements.values()
+        ],
         "requests": {str(vid): project.request_for(vid).to_json() for vid in project.requests},
         "findings": findings,
     }
@@ -132,14 +145,21 @@ def fill_project(project: Project, data: dict) -> None:
             project.vessels[vid] = Vessel(vid, str(v["name"]), _point(v["position_px"]))
         for m in data["measurements"]:
             pts = m["points_px"]
-            item = Measurement(int(m["id"]), str(m["kind"]), (_point(pts[0]), _point(pts[1])),
-                               None if m.get("vessel_id") is None else int(m["vessel_id"]),
-                               values=dict(m.get("values") or {}))
+            item = Measurement(
+                int(m["id"]),
+                str(m["kind"]),
+                (_point(pts[0]), _point(pts[1])),
+                None if m.get("vessel_id") is None else int(m["vessel_id"]),
+                values=dict(m.get("values") or {}),
+            )
             project.measurements[item.id] = item
         requests = data.get("requests")
         if requests is None:  # schema 1: the inputs the user typed
-            requests = {k: AnalysisRequest.from_inputs(project.vessels[int(k)].position, v).to_json()
-                        for k, v in (data.get("inputs") or {}).items() if int(k) in project.vessels}
+            requests = {
+                k: AnalysisRequest.from_inputs(project.vessels[int(k)].position, v).to_json()
+                for k, v in (data.get("inputs") or {}).items()
+                if int(k) in project.vessels
+            }
         for k, r in requests.items():
             project.requests[int(k)] = AnalysisRequest.from_json(r)
         for k, f in (data.get("findings") or {}).items():
@@ -154,7 +174,7 @@ def fill_project(project: Project, data: dict) -> None:
     project.continue_ids()
 
 
-def _point(p) -> tuple[float, float]:
+def _point(p: Any) -> tuple[float, float]:
     x, y = float(p[0]), float(p[1])
     if not (math.isfinite(x) and math.isfinite(y)) or len(p) != 2:
         raise ValueError(f"a position must be two finite numbers, got {p!r}")

@@ -16,8 +16,9 @@ def to_db(intensity: np.ndarray, *, floor: float = 1e-10) -> np.ndarray:
     return (10.0 * np.log10(np.maximum(np.asarray(intensity, dtype=np.float64), floor))).astype(np.float32)
 
 
-def percentile_stretch(data: np.ndarray, valid: np.ndarray | None = None, *, low: float = 2.0,
-                       high: float = 98.0, gamma: float = 1.0) -> np.ndarray:
+def percentile_stretch(
+    data: np.ndarray, valid: np.ndarray | None = None, *, low: float = 2.0, high: float = 98.0, gamma: float = 1.0
+) -> np.ndarray:
     """Linear stretch between two percentiles of the valid pixels, then gamma."""
     if not 0 <= low < high <= 100:
         raise ParameterError(f"percentiles must satisfy 0 <= low < high <= 100, got {low!r}, {high!r}")
@@ -36,8 +37,16 @@ def percentile_stretch(data: np.ndarray, valid: np.ndarray | None = None, *, low
     return np.where(ok, out, np.nan).astype(np.float32)
 
 
-def composite(bands: np.ndarray, valid: np.ndarray | None = None, *, rgb: tuple[int, int, int] | None = None,
-              low: float = 2.0, high: float = 98.0, gamma: float = 1.0, db: bool = False) -> np.ndarray:
+def composite(
+    bands: np.ndarray,
+    valid: np.ndarray | None = None,
+    *,
+    rgb: tuple[int, int, int] | None = None,
+    low: float = 2.0,
+    high: float = 98.0,
+    gamma: float = 1.0,
+    db: bool = False,
+) -> np.ndarray:
     """Grey (one band) or RGB (three chosen band indices, 0-based) display image.
 
     Returns (rows, cols) for grey, (rows, cols, 3) for RGB.
@@ -52,8 +61,9 @@ def composite(bands: np.ndarray, valid: np.ndarray | None = None, *, rgb: tuple[
         return percentile_stretch(b[0], None if valid is None else valid[0], low=low, high=high, gamma=gamma)
     if any(i < 0 or i >= b.shape[0] for i in rgb):
         raise ParameterError(f"rgb band indices must be within 0..{b.shape[0] - 1}, got {rgb!r}")
-    chans = [percentile_stretch(b[i], None if valid is None else valid[i], low=low, high=high, gamma=gamma)
-             for i in rgb]
+    chans = [
+        percentile_stretch(b[i], None if valid is None else valid[i], low=low, high=high, gamma=gamma) for i in rgb
+    ]
     return np.stack(chans, axis=-1)
 
 
@@ -72,7 +82,7 @@ def _float_sample(dtype: str, count: int, sample: np.ndarray) -> np.ndarray | No
 
 def _runs(s: np.ndarray, width: int = 16) -> np.ndarray:
     """Consecutive runs of ``width`` neighbouring pixels of a row-major sample, (n_runs, width)."""
-    return s[:s.size // width * width].reshape(-1, width)
+    return s[: s.size // width * width].reshape(-1, width)
 
 
 def looks_like_radar_db(dtype: str, count: int, sample: np.ndarray) -> bool:

@@ -130,7 +130,9 @@ def geodesic(lon1: ArrayLike, lat1: ArrayLike, lon2: ArrayLike, lat2: ArrayLike)
     return np.asarray(dist), np.mod(np.asarray(az), 360.0)
 
 
-def ground_distance_and_bearing(georef: GeoRef, p1: tuple[float, float], p2: tuple[float, float]) -> tuple[float, float]:
+def ground_distance_and_bearing(
+    georef: GeoRef, p1: tuple[float, float], p2: tuple[float, float]
+) -> tuple[float, float]:
     """Ground distance (m) and true bearing (deg) from pixel ``p1`` to pixel ``p2`` ((col, row) each)."""
     lon, lat = pixel_to_lonlat(georef, [p1[0], p2[0]], [p1[1], p2[1]])
     d, az = geodesic(lon[0], lat[0], lon[1], lat[1])
@@ -164,8 +166,12 @@ class LocalFrame:
     def _matrix(self) -> np.ndarray:
         """2x2 map from pixel steps (dcol, -drow) to ground (east, north) metres."""
         br, bu = np.radians(self.bearing_right_deg), np.radians(self.bearing_up_deg)
-        return np.array([[self.m_per_col * np.sin(br), self.m_per_row_up * np.sin(bu)],
-                         [self.m_per_col * np.cos(br), self.m_per_row_up * np.cos(bu)]])
+        return np.array(
+            [
+                [self.m_per_col * np.sin(br), self.m_per_row_up * np.sin(bu)],
+                [self.m_per_col * np.cos(br), self.m_per_row_up * np.cos(bu)],
+            ]
+        )
 
     def ground_vector(self, dcol: ArrayLike, drow: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
         """(east, north) metres of an image displacement (dcol, drow) in pixels (rows grow downwards)."""
@@ -227,8 +233,9 @@ def calibrated_frame(*, pixel_size_m: float, north_up_deg: float | None = None) 
     if not np.isfinite(pixel_size_m) or pixel_size_m <= 0:
         raise ParameterError(f"pixel_size_m must be > 0, got {pixel_size_m!r}")
     up = 0.0 if north_up_deg is None else float(north_up_deg) % 360.0
-    return LocalFrame(pixel_size_m, pixel_size_m, (up + 90.0) % 360.0, up, georeferenced=False,
-                      north_known=north_up_deg is not None)
+    return LocalFrame(
+        pixel_size_m, pixel_size_m, (up + 90.0) % 360.0, up, georeferenced=False, north_known=north_up_deg is not None
+    )
 
 
 def pixel_size_from_two_points(p1: tuple[float, float], p2: tuple[float, float], distance_m: float) -> float:

@@ -50,8 +50,13 @@ def needs_pyramid(scene: Scene) -> bool:
     return not scene.info.overview_factors and max(scene.width, scene.height) > PYRAMID_MIN_SIDE
 
 
-def ensure_pyramid(scene: Scene, *, progress: Callable[[float], None] | None = None,
-                   cancelled: Callable[[], bool] | None = None, folder: Path | None = None) -> list[tuple[int, Path]]:
+def ensure_pyramid(
+    scene: Scene,
+    *,
+    progress: Callable[[float], None] | None = None,
+    cancelled: Callable[[], bool] | None = None,
+    folder: Path | None = None,
+) -> list[tuple[int, Path]]:
     """Build (or reuse) the cached pyramid and attach it to ``scene.pyramid``.
 
     Returns the list of (factor, path); empty when the scene has overviews or is small.
@@ -78,17 +83,29 @@ def ensure_pyramid(scene: Scene, *, progress: Callable[[float], None] | None = N
         fd, tmp = tempfile.mkstemp(prefix=".level_", suffix=".part", dir=folder)
         os.close(fd)
         try:
-            profile = {"driver": "GTiff", "width": w, "height": h, "count": scene.info.count, "dtype": "float32",
-                       "tiled": True, "blockxsize": 256, "blockysize": 256, "compress": "deflate",
-                       "nodata": float("nan"), "crs": scene.info.crs,
-                       "transform": scene.info.transform @ rasterio.Affine.scale(f)}
+            profile = {
+                "driver": "GTiff",
+                "width": w,
+                "height": h,
+                "count": scene.info.count,
+                "dtype": "float32",
+                "tiled": True,
+                "blockxsize": 256,
+                "blockysize": 256,
+                "compress": "deflate",
+                "nodata": float("nan"),
+                "crs": scene.info.crs,
+                "transform": scene.info.transform @ rasterio.Affine.scale(f),
+            }
             with rasterio.open(tmp, "w", **profile) as dst:
                 for r in range(0, h, 256):
                     if cancelled is not None and cancelled():
                         raise CancelledError("building the overview pyramid was cancelled")
                     rows = min(256, h - r)
-                    data, valid = scene.read(window=(0, r * f, scene.width, rows * f),
-                                             out_shape=(int(np.ceil(min(rows * f, scene.height - r * f) / f)), w))
+                    data, valid = scene.read(
+                        window=(0, r * f, scene.width, rows * f),
+                        out_shape=(int(np.ceil(min(rows * f, scene.height - r * f) / f)), w),
+                    )
                     data = np.where(valid, data, np.nan).astype(np.float32)
                     dst.write(data, window=Window(0, r, w, data.shape[1]))
                     done += 1

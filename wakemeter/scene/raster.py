@@ -35,15 +35,24 @@ from . import geodesy
 warnings.filterwarnings("ignore", category=NotGeoreferencedWarning)
 
 #: A full read larger than this many bytes is refused (use windows or zoomed-out reads).
-MAX_FULL_READ_BYTES = 2 * 1024 ** 3
+MAX_FULL_READ_BYTES = 2 * 1024**3
 
-_TIME_TAGS = ("ACQUISITION_START_TIME", "ACQUISITION_TIME", "FIRST_LINE_TIME", "DATE_TIME", "DATETIME",
-              "TIFFTAG_DATETIME", "acquisition_time", "datetime")
+_TIME_TAGS = (
+    "ACQUISITION_START_TIME",
+    "ACQUISITION_TIME",
+    "FIRST_LINE_TIME",
+    "DATE_TIME",
+    "DATETIME",
+    "TIFFTAG_DATETIME",
+    "acquisition_time",
+    "datetime",
+)
 
 
 def _gdal_error_types() -> tuple[type[BaseException], ...]:
     try:
         from rasterio._err import CPLE_BaseError
+
         return (RasterioError, CPLE_BaseError)
     except ImportError:  # pragma: no cover - older/newer rasterio layouts
         return (RasterioError,)
@@ -137,8 +146,10 @@ class Scene:
     @property
     def georef(self) -> geodesy.GeoRef:
         if not self.info.georeferenced or self.info.crs is None:
-            raise GeoreferenceError(f"{self.info.path.name} has no georeference; calibrate it by pixel size "
-                                    "or by two points at a known distance")
+            raise GeoreferenceError(
+                f"{self.info.path.name} has no georeference; calibrate it by pixel size "
+                "or by two points at a known distance"
+            )
         return geodesy.GeoRef(self.info.transform, self.info.crs)
 
     def calibrate(self, frame: geodesy.LocalFrame | None) -> None:
@@ -152,8 +163,9 @@ class Scene:
 
     def local_frame(self, col: float | None = None, row: float | None = None) -> geodesy.LocalFrame:
         """Metric frame at a pixel (default: the scene centre); the calibration for plain images."""
-        if not self.info.georeferenced and getattr(self, "calibration", None) is not None:
-            return self.calibration
+        calibration = getattr(self, "calibration", None)
+        if not self.info.georeferenced and calibration is not None:
+            return calibration
         col = self.width / 2 if col is None else col
         row = self.height / 2 if row is None else row
         return geodesy.local_frame(self.georef, col, row)
@@ -172,9 +184,14 @@ class Scene:
         return self._sha256
 
     # ---- reading ----------------------------------------------------------
-    def read(self, *, window: tuple[int, int, int, int] | None = None, out_shape: tuple[int, int] | None = None,
-             bands: tuple[int, ...] | None = None, resampling: Resampling = Resampling.average
-             ) -> tuple[np.ndarray, np.ndarray]:
+    def read(
+        self,
+        *,
+        window: tuple[int, int, int, int] | None = None,
+        out_shape: tuple[int, int] | None = None,
+        bands: tuple[int, ...] | None = None,
+        resampling: Resampling = Resampling.average,
+    ) -> tuple[np.ndarray, np.ndarray]:
         """Read pixels as float32 and a validity mask.
 
         Parameters
@@ -206,8 +223,10 @@ class Scene:
             raise ParameterError(f"out_shape must be at least 1 x 1, got {out_shape!r}")
         nbytes = len(bands) * oh * ow * 4
         if nbytes > MAX_FULL_READ_BYTES:
-            raise SceneReadError(f"{self.info.path.name}: reading {ow} x {oh} pixels x {len(bands)} bands "
-                                 f"({nbytes / 1e9:.1f} GB) is too large to hold; read a window or zoom out")
+            raise SceneReadError(
+                f"{self.info.path.name}: reading {ow} x {oh} pixels x {len(bands)} bands "
+                f"({nbytes / 1e9:.1f} GB) is too large to hold; read a window or zoom out"
+            )
         path, scale = self.info.path, 1
         factor = min(w / ow, h / oh)
         for f, p in sorted(self.pyramid, reverse=True):
@@ -217,11 +236,18 @@ class Scene:
         win = Window(c0 / scale, r0 / scale, w / scale, h / scale)
         try:
             ds = self._dataset(path)
-            arr = ds.read(list(bands), window=win, out_shape=(len(bands), oh, ow), resampling=resampling,
-                          masked=True, boundless=False)
+            arr = ds.read(
+                list(bands),
+                window=win,
+                out_shape=(len(bands), oh, ow),
+                resampling=resampling,
+                masked=True,
+                boundless=False,
+            )
         except GDAL_ERRORS as err:
-            raise SceneReadError(f"{self.info.path.name}: the pixels cannot be read - the file may be "
-                                 f"truncated or corrupt ({err})") from err
+            raise SceneReadError(
+                f"{self.info.path.name}: the pixels cannot be read - the file may be truncated or corrupt ({err})"
+            ) from err
         except MemoryError as err:
             raise SceneReadError(f"{self.info.path.name}: not enough memory to read {ow} x {oh} pixels") from err
         data = np.asarray(arr.filled(np.nan) if arr.dtype.kind == "f" else arr.data, dtype=np.float32)
@@ -267,7 +293,9 @@ def open_scene(path: str | os.PathLike) -> Scene:
         msg = str(err)
         if "not recognized as" in msg or "not a supported" in msg.lower():
             raise SceneReadError(f"{p}: not a raster image that can be read (unsupported or unknown format)") from err
-        raise SceneReadError(f"{p}: cannot be opened as a raster - the file may be truncated or corrupt ({msg})") from err
+        raise SceneReadError(
+            f"{p}: cannot be opened as a raster - the file may be truncated or corrupt ({msg})"
+        ) from err
     except (MemoryError, OverflowError, ValueError) as err:
         raise SceneReadError(f"{p}: the file's header is not valid ({err})") from err
     return Scene(info)
@@ -290,6 +318,7 @@ def _read_info(p: Path, ds, size: int) -> SceneInfo:
     if georef:
         try:
             crs_text = _describe_crs(crs)
+            assert crs_text is not None  # georef implies a CRS
             lon, lat = geodesy.pixel_to_lonlat(geodesy.GeoRef(transform, crs_text), ds.width / 2, ds.height / 2)
             if not (np.isfinite(lon) and np.isfinite(lat)):
                 raise GeoreferenceError("the scene centre does not map to a place on the Earth")
@@ -310,8 +339,21 @@ def _read_info(p: Path, ds, size: int) -> SceneInfo:
         ovr = tuple(ds.overviews(1))
     except GDAL_ERRORS:
         ovr = ()
-    return SceneInfo(path=p.resolve(), width=ds.width, height=ds.height, count=ds.count, dtype=ds.dtypes[0],
-                     nodata=ds.nodata, crs=crs_text, transform=transform if georef else Affine.identity(),
-                     georeferenced=georef, georeference_note=note, acquisition_time=acq,
-                     overview_factors=ovr, band_descriptions=tuple(ds.descriptions), driver=ds.driver,
-                     file_size=size, tags=tags)
+    return SceneInfo(
+        path=p.resolve(),
+        width=ds.width,
+        height=ds.height,
+        count=ds.count,
+        dtype=ds.dtypes[0],
+        nodata=ds.nodata,
+        crs=crs_text,
+        transform=transform if georef else Affine.identity(),
+        georeferenced=georef,
+        georeference_note=note,
+        acquisition_time=acq,
+        overview_factors=ovr,
+        band_descriptions=tuple(ds.descriptions),
+        driver=ds.driver,
+        file_size=size,
+        tags=tags,
+    )

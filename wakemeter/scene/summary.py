@@ -27,11 +27,22 @@ def summarise(scene: Scene) -> dict:
     """Everything ``wakemeter info`` reports, as plain data."""
     i = scene.info
     out = {
-        "file": str(i.path), "file_size_bytes": i.file_size, "driver": i.driver,
-        "width": i.width, "height": i.height, "bands": i.count, "dtype": i.dtype, "nodata": i.nodata,
-        "georeferenced": i.georeferenced, "georeference_note": i.georeference_note, "crs": i.crs,
-        "overviews": list(i.overview_factors), "acquisition_time": i.acquisition_time,
-        "pixel_size_m": None, "image_up_true_bearing_deg": None, "bounds_wgs84": None,
+        "file": str(i.path),
+        "file_size_bytes": i.file_size,
+        "driver": i.driver,
+        "width": i.width,
+        "height": i.height,
+        "bands": i.count,
+        "dtype": i.dtype,
+        "nodata": i.nodata,
+        "georeferenced": i.georeferenced,
+        "georeference_note": i.georeference_note,
+        "crs": i.crs,
+        "overviews": list(i.overview_factors),
+        "acquisition_time": i.acquisition_time,
+        "pixel_size_m": None,
+        "image_up_true_bearing_deg": None,
+        "bounds_wgs84": None,
     }
     if i.georeferenced:
         f = scene.local_frame()
@@ -43,20 +54,24 @@ def summarise(scene: Scene) -> dict:
 
 
 def format_summary(s: dict) -> str:
-    lines = [f"file:           {s['file']} ({s['file_size_bytes']:,} bytes, {s['driver']})",
-             f"size:           {s['width']} x {s['height']} pixels, {s['bands']} band(s), {s['dtype']}"
-             + (f", nodata {s['nodata']}" if s["nodata"] is not None else ""),
-             f"georeferenced:  {'yes' if s['georeferenced'] else 'NO'}"
-             + (f" ({s['georeference_note']})" if s["georeference_note"] else "")]
+    lines = [
+        f"file:           {s['file']} ({s['file_size_bytes']:,} bytes, {s['driver']})",
+        f"size:           {s['width']} x {s['height']} pixels, {s['bands']} band(s), {s['dtype']}"
+        + (f", nodata {s['nodata']}" if s["nodata"] is not None else ""),
+        f"georeferenced:  {'yes' if s['georeferenced'] else 'NO'}"
+        + (f" ({s['georeference_note']})" if s["georeference_note"] else ""),
+    ]
     if s["georeferenced"]:
         crs = s["crs"] if s["crs"].startswith("EPSG:") else "WKT: " + s["crs"]
         px = s["pixel_size_m"]
         b = s["bounds_wgs84"]
-        lines += [f"CRS:            {crs}",
-                  f"pixel size:     {px['along_rows']:.3f} m along rows x {px['along_columns']:.3f} m along columns "
-                  "(scene centre, on the ground)",
-                  f"image up:       true bearing {s['image_up_true_bearing_deg']:.3f} deg",
-                  f"bounds (WGS 84): lon {b['west']:.6f} .. {b['east']:.6f}, lat {b['south']:.6f} .. {b['north']:.6f}"]
+        lines += [
+            f"CRS:            {crs}",
+            f"pixel size:     {px['along_rows']:.3f} m along rows x {px['along_columns']:.3f} m along columns "
+            "(scene centre, on the ground)",
+            f"image up:       true bearing {s['image_up_true_bearing_deg']:.3f} deg",
+            f"bounds (WGS 84): lon {b['west']:.6f} .. {b['east']:.6f}, lat {b['south']:.6f} .. {b['north']:.6f}",
+        ]
     lines.append(f"overviews:      {', '.join(map(str, s['overviews'])) if s['overviews'] else 'none'}")
     lines.append(f"acquired:       {s['acquisition_time'] or 'unknown (not in the metadata)'}")
     return "\n".join(lines)

@@ -32,8 +32,7 @@ class Case:
     depth_m: float | None
 
 
-def make_case(seed: int, *, radar: bool | None = None, depth_froude: float | None = None,
-              size: int = 640) -> Case:
+def make_case(seed: int, *, radar: bool | None = None, depth_froude: float | None = None, size: int = 640) -> Case:
     rng = np.random.default_rng(10_000 + seed)
     while True:
         u = float(rng.uniform(2.0, 15.0))
@@ -47,16 +46,25 @@ def make_case(seed: int, *, radar: bool | None = None, depth_froude: float | Non
     lat = float(rng.uniform(-55, 55))
     lon = float(rng.uniform(-170, 170))
     radar = bool(rng.random() < 0.5) if radar is None else radar
+    imaging: RadarModel | OpticalModel
     if radar:
-        imaging = RadarModel(look_bearing_deg=float(rng.uniform(0, 360)), incidence_deg=float(rng.uniform(25, 45)),
-                             looks=int(rng.integers(3, 7)), hull_displacement=False)
+        imaging = RadarModel(
+            look_bearing_deg=float(rng.uniform(0, 360)),
+            incidence_deg=float(rng.uniform(25, 45)),
+            looks=int(rng.integers(3, 7)),
+            hull_displacement=False,
+        )
     else:
         imaging = OpticalModel(sun_azimuth_deg=float(rng.uniform(0, 360)), noise_std=float(rng.uniform(0.01, 0.04)))
     sea = None
     if rng.random() < 0.5:
-        sea = AmbientSea(peak_wavelength_m=float(lam * rng.uniform(1.5, 3.0)), direction_deg=float(rng.uniform(0, 360)),
-                         spreading_s=6.0, strength=float(rng.uniform(0.2, 0.6)))
-    depth = np.inf if depth_froude is None else u * u / (G * depth_froude ** 2)
+        sea = AmbientSea(
+            peak_wavelength_m=float(lam * rng.uniform(1.5, 3.0)),
+            direction_deg=float(rng.uniform(0, 360)),
+            spreading_s=6.0,
+            strength=float(rng.uniform(0.2, 0.6)),
+        )
+    depth = np.inf if depth_froude is None else u * u / (G * depth_froude**2)
     vessel = VesselSpec("Case", lon, lat, u, heading, Hull(length, length / 5))
     spec = vessel_scene("case", vessel, size, p, imaging=imaging, sea=sea, depth_m=depth, seed=seed)
     return Case(seed, spec, u, heading, None if np.isinf(depth) else depth)
@@ -66,8 +74,26 @@ def write_case(case: Case, folder) -> tuple:
     return write(render(case.spec), folder / f"case_{case.seed}.tif")
 
 
-TEXTURES = ("brick", "grass", "gravel", "camera", "moon", "text", "coins", "page", "horse", "cell", "clock",
-            "retina", "hubble_deep_field", "microaneurysms", "astronaut", "coffee", "rocket", "chelsea")
+TEXTURES = (
+    "brick",
+    "grass",
+    "gravel",
+    "camera",
+    "moon",
+    "text",
+    "coins",
+    "page",
+    "horse",
+    "cell",
+    "clock",
+    "retina",
+    "hubble_deep_field",
+    "microaneurysms",
+    "astronaut",
+    "coffee",
+    "rocket",
+    "chelsea",
+)
 
 
 def synthetic_null(seed: int, folder: Path, size: int = 640) -> Path:
@@ -75,12 +101,19 @@ def synthetic_null(seed: int, folder: Path, size: int = 640) -> Path:
     p = float(np.exp(rng.uniform(np.log(0.5), np.log(10.0))))
     lon, lat = float(rng.uniform(-170, 170)), float(rng.uniform(-55, 55))
     radar = seed % 2 == 0
-    imaging = RadarModel(looks=int(rng.integers(1, 7))) if radar else OpticalModel(
-        sun_azimuth_deg=float(rng.uniform(0, 360)), noise_std=float(rng.uniform(0.01, 0.05)))
+    imaging = (
+        RadarModel(looks=int(rng.integers(1, 7)))
+        if radar
+        else OpticalModel(sun_azimuth_deg=float(rng.uniform(0, 360)), noise_std=float(rng.uniform(0.01, 0.05)))
+    )
     sea = None
     if not radar or rng.random() < 0.7:
-        sea = AmbientSea(peak_wavelength_m=float(p * rng.uniform(8, 60)), direction_deg=float(rng.uniform(0, 360)),
-                         spreading_s=float(rng.uniform(2, 20)), strength=1.0)
+        sea = AmbientSea(
+            peak_wavelength_m=float(p * rng.uniform(8, 60)),
+            direction_deg=float(rng.uniform(0, 360)),
+            spreading_s=float(rng.uniform(2, 20)),
+            strength=1.0,
+        )
     spec = SceneSpec(size, size, p, lon, lat, (), imaging, sea=sea, seed=seed)
     tif, _ = write(render(spec), folder / f"null_{seed}.tif")
     return tif
@@ -97,7 +130,16 @@ def texture_null(name: str, folder: Path, pixel_m: float = 2.0, size: int = 640)
     img = resize(img.astype(float), (size, size), anti_aliasing=True)
     img = (255 * (img - img.min()) / (np.ptp(img) or 1)).astype(np.uint8)
     path = folder / f"texture_{name}.tif"
-    with rasterio.open(path, "w", driver="GTiff", width=size, height=size, count=1, dtype="uint8",
-                       crs="EPSG:32631", transform=Affine(pixel_m, 0, 500_000, 0, -pixel_m, 6_000_000)) as dst:
+    with rasterio.open(
+        path,
+        "w",
+        driver="GTiff",
+        width=size,
+        height=size,
+        count=1,
+        dtype="uint8",
+        crs="EPSG:32631",
+        transform=Affine(pixel_m, 0, 500_000, 0, -pixel_m, 6_000_000),
+    ) as dst:
         dst.write(img[None])
     return path

@@ -44,8 +44,10 @@ class OpticalModel:
         if self.dtype not in ("uint8", "uint16"):
             raise ParameterError(f"optical dtype must be 'uint8' or 'uint16', got {self.dtype!r}")
         if self.noise_std < 0 or self.foam < 0 or self.shading_gain <= 0:
-            raise ParameterError("noise_std and foam must be >= 0 and shading_gain > 0, got "
-                                 f"{self.noise_std!r}, {self.foam!r}, {self.shading_gain!r}")
+            raise ParameterError(
+                "noise_std and foam must be >= 0 and shading_gain > 0, got "
+                f"{self.noise_std!r}, {self.foam!r}, {self.shading_gain!r}"
+            )
 
 
 @dataclass(frozen=True)
@@ -80,8 +82,10 @@ class RadarModel:
         if self.slant_range_m <= 0 or self.platform_speed_mps <= 0:
             raise ParameterError("slant_range_m and platform_speed_mps must be > 0")
         if not 0 <= self.narrow_v_half_angle_deg < 15 or self.narrow_v_brightness < 0:
-            raise ParameterError("narrow_v_half_angle_deg must be within [0, 15) deg and narrow_v_brightness >= 0, "
-                                 f"got {self.narrow_v_half_angle_deg!r} and {self.narrow_v_brightness!r}")
+            raise ParameterError(
+                "narrow_v_half_angle_deg must be within [0, 15) deg and narrow_v_brightness >= 0, "
+                f"got {self.narrow_v_half_angle_deg!r} and {self.narrow_v_brightness!r}"
+            )
 
     @property
     def flight_bearing_deg(self) -> float:
@@ -103,8 +107,15 @@ class AmbientSea:
             raise ParameterError("ambient sea needs peak_wavelength_m > 0, spreading_s > 0 and strength >= 0")
 
 
-def ambient_slopes(shape: tuple[int, int], *, dx_m: float, dy_m: float, sea: AmbientSea,
-                   direction_xy: tuple[float, float], rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+def ambient_slopes(
+    shape: tuple[int, int],
+    *,
+    dx_m: float,
+    dy_m: float,
+    sea: AmbientSea,
+    direction_xy: tuple[float, float],
+    rng: np.random.Generator,
+) -> tuple[np.ndarray, np.ndarray]:
     """Slopes (d/dx, d/dy up) of a random sea with unit rms slope; x right, y up."""
     ny, nx = shape
     kx = 2 * np.pi * sfft.fftfreq(nx, dx_m)[None, :]
@@ -118,12 +129,13 @@ def ambient_slopes(shape: tuple[int, int], *, dx_m: float, dy_m: float, sea: Amb
     z = amp * phase
     sx = np.real(sfft.ifft2(1j * kx * z, workers=-1))
     sy = np.real(sfft.ifft2(1j * ky * z, workers=-1))
-    rms = np.sqrt(np.mean(sx ** 2 + sy ** 2)) or 1.0
+    rms = np.sqrt(np.mean(sx**2 + sy**2)) or 1.0
     return sx / rms, sy / rms
 
 
-def track_profile(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float], *, beam_m: float,
-                  length_m: float, decay_m: float) -> np.ndarray:
+def track_profile(
+    x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float], *, beam_m: float, length_m: float, decay_m: float
+) -> np.ndarray:
     """Turbulent-wake strength (0..1) behind a vessel at the origin: narrow, widening, fading."""
     ux, uy = heading_xy
     behind = -(x * ux + y * uy) - length_m / 2
@@ -133,21 +145,31 @@ def track_profile(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float],
     return np.where(behind > -length_m / 2, prof, 0.0) * np.clip((behind + length_m / 2) / length_m, 0, 1)
 
 
-def narrow_v_profile(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float], *, half_angle_deg: float,
-                     width_m: float, length_m: float, decay_m: float) -> np.ndarray:
+def narrow_v_profile(
+    x: np.ndarray,
+    y: np.ndarray,
+    heading_xy: tuple[float, float],
+    *,
+    half_angle_deg: float,
+    width_m: float,
+    length_m: float,
+    decay_m: float,
+) -> np.ndarray:
     """Strength (0..1) of a narrow V: two thin lines from the stern at +/- ``half_angle_deg``, fading."""
     ux, uy = heading_xy
     behind = -(x * ux + y * uy) - length_m / 2
     lateral = -x * uy + y * ux
     t = np.tan(np.radians(half_angle_deg))
     b = np.clip(behind, 0, None)
-    lines = np.maximum(np.exp(-0.5 * ((lateral - b * t) / width_m) ** 2),
-                       np.exp(-0.5 * ((lateral + b * t) / width_m) ** 2))
+    lines = np.maximum(
+        np.exp(-0.5 * ((lateral - b * t) / width_m) ** 2), np.exp(-0.5 * ((lateral + b * t) / width_m) ** 2)
+    )
     return np.where(behind > 0, lines * np.exp(-b / decay_m) * np.clip(b / length_m, 0, 1), 0.0)
 
 
-def optical_pixels(slope_sun: np.ndarray, foam: np.ndarray, hull: np.ndarray, model: OpticalModel,
-                   rng: np.random.Generator) -> np.ndarray:
+def optical_pixels(
+    slope_sun: np.ndarray, foam: np.ndarray, hull: np.ndarray, model: OpticalModel, rng: np.random.Generator
+) -> np.ndarray:
     """Quantised optical brightness from the slope along the sun direction (unit rms), foam and hull masks."""
     b = 0.35 + 0.12 * model.shading_gain * slope_sun + model.foam * 0.4 * foam + 0.5 * hull
     b = b + rng.normal(0.0, model.noise_std, b.shape)
@@ -155,8 +177,14 @@ def optical_pixels(slope_sun: np.ndarray, foam: np.ndarray, hull: np.ndarray, mo
     return np.clip(np.round(b * top), 0, top).astype(model.dtype)
 
 
-def radar_pixels(slope_look: np.ndarray, wake: np.ndarray, hull: np.ndarray, model: RadarModel,
-                 rng: np.random.Generator, narrow_v: np.ndarray | None = None) -> np.ndarray:
+def radar_pixels(
+    slope_look: np.ndarray,
+    wake: np.ndarray,
+    hull: np.ndarray,
+    model: RadarModel,
+    rng: np.random.Generator,
+    narrow_v: np.ndarray | None = None,
+) -> np.ndarray:
     """Float32 linear backscatter with speckle from the slope along the look direction (unit rms)."""
     sigma0 = 0.05
     s = sigma0 * np.clip(1.0 + 0.5 * model.tilt_gain * slope_look, 0.05, None)

@@ -55,8 +55,9 @@ class VesselSpec:
 
     def __post_init__(self) -> None:
         if not (-180 <= self.lon <= 180 and -80 <= self.lat <= 84):
-            raise ParameterError(f"vessel {self.name!r}: lon/lat must be within -180..180 / -80..84, "
-                                 f"got {self.lon!r}, {self.lat!r}")
+            raise ParameterError(
+                f"vessel {self.name!r}: lon/lat must be within -180..180 / -80..84, got {self.lon!r}, {self.lat!r}"
+            )
         if not np.isfinite(self.speed_mps) or not 0 < self.speed_mps <= 40:
             raise ParameterError(f"vessel {self.name!r}: speed_mps must be within (0, 40], got {self.speed_mps!r}")
         if not np.isfinite(self.heading_deg):
@@ -83,10 +84,14 @@ class SceneSpec:
 
     def __post_init__(self) -> None:
         if not (isinstance(self.width, int) and isinstance(self.height, int)) or self.width < 32 or self.height < 32:
-            raise ParameterError(f"width and height must be integers >= 32 pixels, got {self.width!r} x {self.height!r}")
+            raise ParameterError(
+                f"width and height must be integers >= 32 pixels, got {self.width!r} x {self.height!r}"
+            )
         if max(self.width, self.height) > 2048:
-            raise ParameterError(f"{self.width} x {self.height} pixels is too large for the renderer "
-                                 "(at most 2048 on a side: the wave field is computed on a 4x padded grid)")
+            raise ParameterError(
+                f"{self.width} x {self.height} pixels is too large for the renderer "
+                "(at most 2048 on a side: the wave field is computed on a 4x padded grid)"
+            )
         if not np.isfinite(self.pixel_m) or not 0.05 <= self.pixel_m <= 100:
             raise ParameterError(f"pixel_m must be within [0.05, 100] m, got {self.pixel_m!r}")
         if not (self.depth_m > 0):
@@ -138,7 +143,7 @@ def render(spec: SceneSpec) -> RenderedScene:
     centre = geodesy.local_frame(georef, spec.width / 2, spec.height / 2)
     dx, dy = centre.m_per_col, centre.m_per_row_up
     g = float(normal_gravity(spec.center_lat))
-    yy, xx = np.mgrid[0:spec.height, 0:spec.width].astype(float)
+    yy, xx = np.mgrid[0 : spec.height, 0 : spec.width].astype(float)
     xm, ym_up = (xx + 0.5) * dx, -(yy + 0.5) * dy
     sx = np.zeros(shape)
     sy = np.zeros(shape)
@@ -147,30 +152,57 @@ def render(spec: SceneSpec) -> RenderedScene:
     narrow = np.zeros(shape)
     vessels_truth = []
     is_radar = isinstance(spec.imaging, RadarModel)
+    radar_m = spec.imaging if isinstance(spec.imaging, RadarModel) else None
+    optical_m = spec.imaging if isinstance(spec.imaging, OpticalModel) else None
     for v in spec.vessels:
         col, row = (float(a) for a in geodesy.lonlat_to_pixel(georef, v.lon, v.lat))
         if not (0 <= col < spec.width and 0 <= row < spec.height):
             raise ParameterError(f"vessel {v.name!r} at {v.lon}, {v.lat} lies outside the scene")
         frame = geodesy.local_frame(georef, col, row)
         ux, uy = _grid_direction(frame, v.heading_deg)
-        _, gx, gy = kelvin_elevation(shape, dx_m=dx, dy_m=dy, vessel_xy_m=(col * dx, row * dy),
-                                     speed_mps=v.speed_mps, heading_xy=(ux, uy), hull=v.hull,
-                                     depth_m=spec.depth_m, g=g, with_slopes=True)
+        _, gx, gy = kelvin_elevation(
+            shape,
+            dx_m=dx,
+            dy_m=dy,
+            vessel_xy_m=(col * dx, row * dy),
+            speed_mps=v.speed_mps,
+            heading_xy=(ux, uy),
+            hull=v.hull,
+            depth_m=spec.depth_m,
+            g=g,
+            with_slopes=True,
+        )
         sx += gx
         sy += gy
         rel_x, rel_y = xm - col * dx, ym_up + row * dy
-        wake = np.maximum(wake, track_profile(rel_x, rel_y, (ux, uy), beam_m=v.hull.beam_m,
-                                              length_m=v.hull.length_m, decay_m=40 * v.hull.length_m))
-        if is_radar and spec.imaging.narrow_v_half_angle_deg > 0:
-            narrow = np.maximum(narrow, narrow_v_profile(
-                rel_x, rel_y, (ux, uy), half_angle_deg=spec.imaging.narrow_v_half_angle_deg,
-                width_m=max(0.7 * spec.pixel_m, v.hull.beam_m / 3), length_m=v.hull.length_m,
-                decay_m=25 * v.hull.length_m))
+        wake = np.maximum(
+            wake,
+            track_profile(
+                rel_x, rel_y, (ux, uy), beam_m=v.hull.beam_m, length_m=v.hull.length_m, decay_m=40 * v.hull.length_m
+            ),
+        )
+        if radar_m is not None and radar_m.narrow_v_half_angle_deg > 0:
+            narrow = np.maximum(
+                narrow,
+                narrow_v_profile(
+                    rel_x,
+                    rel_y,
+                    (ux, uy),
+                    half_angle_deg=radar_m.narrow_v_half_angle_deg,
+                    width_m=max(0.7 * spec.pixel_m, v.hull.beam_m / 3),
+                    length_m=v.hull.length_m,
+                    decay_m=25 * v.hull.length_m,
+                ),
+            )
         offset_m = 0.0
         hull_col, hull_row = col, row
-        if is_radar and spec.imaging.hull_displacement:
-            m = spec.imaging
-            vr = v.speed_mps * np.cos(np.radians(v.heading_deg - m.look_bearing_deg)) * np.sin(np.radians(m.incidence_deg))
+        if radar_m is not None and radar_m.hull_displacement:
+            m = radar_m
+            vr = (
+                v.speed_mps
+                * np.cos(np.radians(v.heading_deg - m.look_bearing_deg))
+                * np.sin(np.radians(m.incidence_deg))
+            )
             offset_m = float(radar_phys.azimuth_offset(vr, m.slant_range_m, m.platform_speed_mps))
             fx, fy = _grid_direction(frame, m.flight_bearing_deg)
             rel_x, rel_y = rel_x - offset_m * fx, rel_y - offset_m * fy
@@ -179,38 +211,68 @@ def render(spec: SceneSpec) -> RenderedScene:
         hulls = np.maximum(hulls, p / p.max() if p.max() > 0 else p)
         fr_h = v.speed_mps / np.sqrt(g * spec.depth_m) if np.isfinite(spec.depth_m) else 0.0
         lam_t = kelvin.transverse_wavelength(v.speed_mps, spec.depth_m, g=g)
-        vessels_truth.append({
-            "name": v.name, "lon": v.lon, "lat": v.lat, "pixel_col": col, "pixel_row": row,
-            "speed_mps": v.speed_mps, "speed_knots": v.speed_mps / KNOT_MPS, "heading_deg": v.heading_deg % 360,
-            "hull_length_m": v.hull.length_m, "hull_beam_m": v.hull.beam_m,
-            "depth_froude": float(fr_h), "hull_froude": float(v.speed_mps / np.sqrt(g * v.hull.length_m)),
-            "transverse_wavelength_m": None if np.isnan(lam_t) else float(lam_t),
-            "half_angle_deg": float(havelock.half_angle(fr_h)) if fr_h > 0 else kelvin.KELVIN_HALF_ANGLE_DEG,
-            "radar_azimuth_offset_m": offset_m, "hull_pixel_col": hull_col, "hull_pixel_row": hull_row,
-        })
-    wake_rms = float(np.sqrt(np.mean(sx ** 2 + sy ** 2))) or 1.0
+        vessels_truth.append(
+            {
+                "name": v.name,
+                "lon": v.lon,
+                "lat": v.lat,
+                "pixel_col": col,
+                "pixel_row": row,
+                "speed_mps": v.speed_mps,
+                "speed_knots": v.speed_mps / KNOT_MPS,
+                "heading_deg": v.heading_deg % 360,
+                "hull_length_m": v.hull.length_m,
+                "hull_beam_m": v.hull.beam_m,
+                "depth_froude": float(fr_h),
+                "hull_froude": float(v.speed_mps / np.sqrt(g * v.hull.length_m)),
+                "transverse_wavelength_m": None if np.isnan(lam_t) else float(lam_t),
+                "half_angle_deg": float(havelock.half_angle(fr_h)) if fr_h > 0 else kelvin.KELVIN_HALF_ANGLE_DEG,
+                "radar_azimuth_offset_m": offset_m,
+                "hull_pixel_col": hull_col,
+                "hull_pixel_row": hull_row,
+            }
+        )
+    wake_rms = float(np.sqrt(np.mean(sx**2 + sy**2))) or 1.0
     if not spec.vessels and spec.sea is None:
         wake_rms = 1.0
     sx, sy = sx / wake_rms, sy / wake_rms
     if spec.sea is not None:
-        ax, ay = ambient_slopes(shape, dx_m=dx, dy_m=dy, sea=spec.sea,
-                                direction_xy=_grid_direction(centre, spec.sea.direction_deg), rng=rng)
+        ax, ay = ambient_slopes(
+            shape, dx_m=dx, dy_m=dy, sea=spec.sea, direction_xy=_grid_direction(centre, spec.sea.direction_deg), rng=rng
+        )
         sx, sy = sx + spec.sea.strength * ax, sy + spec.sea.strength * ay
     # normalise so that the strongest wake slopes reach a few units of the rms
     scale = 1.0 / max(np.percentile(np.hypot(sx, sy), 99.5), 1e-9) * 3.0
-    if is_radar:
-        lx, ly = _grid_direction(centre, spec.imaging.look_bearing_deg)
-        pixels = radar_pixels((sx * lx + sy * ly) * scale, wake, hulls, spec.imaging, rng,
-                              narrow if spec.imaging.narrow_v_half_angle_deg > 0 else None)
+    if radar_m is not None:
+        lx, ly = _grid_direction(centre, radar_m.look_bearing_deg)
+        pixels = radar_pixels(
+            (sx * lx + sy * ly) * scale,
+            wake,
+            hulls,
+            radar_m,
+            rng,
+            narrow if radar_m.narrow_v_half_angle_deg > 0 else None,
+        )
     else:
-        lx, ly = _grid_direction(centre, spec.imaging.sun_azimuth_deg)
-        pixels = optical_pixels((sx * lx + sy * ly) * scale, wake, hulls, spec.imaging, rng)
+        assert optical_m is not None
+        lx, ly = _grid_direction(centre, optical_m.sun_azimuth_deg)
+        pixels = optical_pixels((sx * lx + sy * ly) * scale, wake, hulls, optical_m, rng)
     truth = {
-        "schema": TRUTH_SCHEMA, "generator": f"wakemeter {__version__}", "seed": spec.seed,
-        "description": spec.description, "acquisition_time": spec.acquisition_time or None, "width": spec.width, "height": spec.height, "pixel_m": spec.pixel_m,
-        "crs": georef.crs, "transform": list(georef.transform)[:6], "depth_m": None if np.isinf(spec.depth_m) else spec.depth_m,
-        "gravity_mps2": g, "imaging": {"kind": "radar" if is_radar else "optical", **asdict(spec.imaging)},
-        "ambient_sea": asdict(spec.sea) if spec.sea else None, "vessels": vessels_truth,
+        "schema": TRUTH_SCHEMA,
+        "generator": f"wakemeter {__version__}",
+        "seed": spec.seed,
+        "description": spec.description,
+        "acquisition_time": spec.acquisition_time or None,
+        "width": spec.width,
+        "height": spec.height,
+        "pixel_m": spec.pixel_m,
+        "crs": georef.crs,
+        "transform": list(georef.transform)[:6],
+        "depth_m": None if np.isinf(spec.depth_m) else spec.depth_m,
+        "gravity_mps2": g,
+        "imaging": {"kind": "radar" if is_radar else "optical", **asdict(spec.imaging)},
+        "ambient_sea": asdict(spec.sea) if spec.sea else None,
+        "vessels": vessels_truth,
     }
     return RenderedScene(pixels[None, ...], georef, truth)
 
@@ -232,10 +294,20 @@ def write(scene: RenderedScene, path: str | os.PathLike) -> tuple[Path, Path]:
     if not tif.parent.is_dir():
         raise SceneWriteError(f"cannot write {tif}: folder {tif.parent} does not exist")
     data = scene.data
-    profile = {"driver": "GTiff", "width": data.shape[2], "height": data.shape[1], "count": data.shape[0],
-               "dtype": data.dtype.name, "crs": scene.georef.crs, "transform": scene.georef.transform,
-               "compress": "deflate", "predictor": 3 if data.dtype.kind == "f" else 2, "tiled": True,
-               "blockxsize": 256, "blockysize": 256}
+    profile = {
+        "driver": "GTiff",
+        "width": data.shape[2],
+        "height": data.shape[1],
+        "count": data.shape[0],
+        "dtype": data.dtype.name,
+        "crs": scene.georef.crs,
+        "transform": scene.georef.transform,
+        "compress": "deflate",
+        "predictor": 3 if data.dtype.kind == "f" else 2,
+        "tiled": True,
+        "blockxsize": 256,
+        "blockysize": 256,
+    }
     tmp_files: list[str] = []
     try:
         fd, tmp_tif = _atomic_path(tif)

@@ -63,15 +63,26 @@ def hull_pressure(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float],
     ux, uy = heading_xy
     along = (x * ux + y * uy) / (hull.length_m / 2)
     across = (-x * uy + y * ux) / (hull.beam_m / 2)
-    taper = np.clip(1.0 - along ** 2, 0.0, None) ** 0.5  # elliptic waterline
+    taper = np.clip(1.0 - along**2, 0.0, None) ** 0.5  # elliptic waterline
     shape = _soft_box(along, hull.edge) * _soft_box(across / np.maximum(taper, 0.05), hull.edge)
     return RHO_SEAWATER * g * hull.draught_m * shape
 
 
-def kelvin_elevation(shape: tuple[int, int], *, dx_m: float, dy_m: float, vessel_xy_m: tuple[float, float],
-                     speed_mps: float, heading_xy: tuple[float, float], hull: Hull, depth_m: float = np.inf,
-                     g: float, pad: int = 4, damping: float = 0.5, with_slopes: bool = False
-                     ) -> np.ndarray | tuple[np.ndarray, np.ndarray, np.ndarray]:
+def kelvin_elevation(
+    shape: tuple[int, int],
+    *,
+    dx_m: float,
+    dy_m: float,
+    vessel_xy_m: tuple[float, float],
+    speed_mps: float,
+    heading_xy: tuple[float, float],
+    hull: Hull,
+    depth_m: float = np.inf,
+    g: float,
+    pad: int = 4,
+    damping: float = 0.5,
+    with_slopes: bool = False,
+) -> np.ndarray | tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Surface elevation (m) of the steady wake on a metric grid.
 
     Parameters
@@ -114,8 +125,8 @@ def kelvin_elevation(shape: tuple[int, int], *, dx_m: float, dy_m: float, vessel
     py, px = ny * pad, nx * pad
     py, px = sfft.next_fast_len(py), sfft.next_fast_len(px)
     # pressure on the padded grid, centred at the vessel, coordinates wrapped (periodic)
-    xs = (np.arange(px) - vessel_xy_m[0] / dx_m)
-    ys = (np.arange(py) - vessel_xy_m[1] / dy_m)
+    xs = np.arange(px) - vessel_xy_m[0] / dx_m
+    ys = np.arange(py) - vessel_xy_m[1] / dy_m
     xs = (xs + px / 2) % px - px / 2
     ys = (ys + py / 2) % py - py / 2
     X = xs[None, :] * dx_m

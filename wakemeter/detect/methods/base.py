@@ -57,5 +57,4 @@ class SpeedMethod(Protocol):
 
     name: str
 
-    def estimate(self, ctx: MethodContext) -> MethodOutput:
-        ...
+    def estimate(self, ctx: MethodContext) -> MethodOutput: ...

@@ -22,5 +22,6 @@ class HavelockPair:
             return NOTHING
         cond = inv.Conditions(g_mps2=ctx.gravity, pixel_scale_rel_std=ctx.request.pixel_rel_std)
         est, _depth = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
-            lam, inv.Uncertain(half, half_sd), cond, seed=ctx.rng)
+            lam, inv.Uncertain(half, half_sd), cond, seed=ctx.rng
+        )
         return MethodOutput((est,))

@@ -25,12 +25,18 @@ class RadarOffset:
         try:
             est = self._offset(ctx)
         except ParameterError as err:  # e.g. a track almost along the flight direction: no radial speed to read
-            return MethodOutput(cautions=(Caution(CautionCode.RADAR_OFFSET_MISSING,
-                                                  f"radar azimuth offset not usable: {err}"),))
+            return MethodOutput(
+                cautions=(Caution(CautionCode.RADAR_OFFSET_MISSING, f"radar azimuth offset not usable: {err}"),)
+            )
         if est is None:
-            return MethodOutput(cautions=(Caution(CautionCode.RADAR_OFFSET_MISSING,
-                                                  "radar azimuth offset not measured: no bright hull found near the "
-                                                  "given position"),))
+            return MethodOutput(
+                cautions=(
+                    Caution(
+                        CautionCode.RADAR_OFFSET_MISSING,
+                        "radar azimuth offset not measured: no bright hull found near the given position",
+                    ),
+                )
+            )
         return MethodOutput((est,))
 
     def _offset(self, ctx: MethodContext) -> inv.SpeedEstimate | None:
@@ -38,8 +44,13 @@ class RadarOffset:
         assert geo is not None
         chip = ctx.look.chip
         if ctx.hull_px is not None:  # the hull is not at the wake's start: use where it was seen
-            chip = replace(chip, hull_rc=((ctx.hull_px[1] - chip.origin_px[1]) / chip.step,
-                                          (ctx.hull_px[0] - chip.origin_px[0]) / chip.step))
+            chip = replace(
+                chip,
+                hull_rc=(
+                    (ctx.hull_px[1] - chip.origin_px[1]) / chip.step,
+                    (ctx.hull_px[0] - chip.origin_px[0]) / chip.step,
+                ),
+            )
         if chip.hull_rc is None:
             return None
         back = ctx.measures.back_deg
@@ -62,6 +73,10 @@ class RadarOffset:
         return inv.speed_from_radar_offset(
             inv.Uncertain(offset_m, t.radar_offset_std_px * chip.m_per_px),
             inv.Uncertain(geo.slant_range_m, geo.slant_range_std_m),
-            inv.Uncertain(geo.platform_speed_mps, geo.platform_speed_std_mps), incidence_deg=geo.incidence_deg,
+            inv.Uncertain(geo.platform_speed_mps, geo.platform_speed_std_mps),
+            incidence_deg=geo.incidence_deg,
             heading_deg=inv.Uncertain(ctx.heading_deg, t.radar_heading_std_deg),
-            look_bearing_deg=geo.look_bearing_deg, conditions=ctx.conditions, seed=ctx.rng)
+            look_bearing_deg=geo.look_bearing_deg,
+            conditions=ctx.conditions,
+            seed=ctx.rng,
+        )

@@ -14,9 +14,14 @@ class SpectralFit:
 
     def estimate(self, ctx: MethodContext) -> MethodOutput:
         m = ctx.model
-        est = inv.speed_from_spectral_fit(inv.Uncertain(m.speed_mps, ctx.spread.speed_std_mps), ctx.conditions,
-                                          seed=ctx.rng)
+        est = inv.speed_from_spectral_fit(
+            inv.Uncertain(m.speed_mps, ctx.spread.speed_std_mps), ctx.conditions, seed=ctx.rng
+        )
         if m.fitted:
-            est = replace(est, method="spectral fit (supercritical curve, depth fitted)" if m.supercritical
-                          else "spectral fit (finite-depth curve, depth fitted)")
+            est = replace(
+                est,
+                method="spectral fit (supercritical curve, depth fitted)"
+                if m.supercritical
+                else "spectral fit (finite-depth curve, depth fitted)",
+            )
         return MethodOutput((est,))
