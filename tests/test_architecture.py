@@ -1,4 +1,4 @@
-"""Layering rules (guide sec. 3): the core never imports Qt; detectors never import synth.
+"""Layering rules (DEVELOPERS.md, Layers): the core never imports Qt; detectors never import synth.
 
 Source: project architecture rule (DEVELOPERS.md), no external reference needed.
 """

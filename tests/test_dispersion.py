@@ -27,7 +27,7 @@ def test_finite_depth_wavelength_cem_example():
 
 
 def test_finite_depth_wavelength_sorensen():
-    # Source: computed from the exact dispersion relation (guide table: 86.50 m);
+    # Source: 86.50 m computed independently from the exact dispersion relation (not a published value);
     # Sorensen, Basic Coastal Engineering, Ex. 3.3-1 gives 87.6 m with the
     # shallow-water approximation L = T sqrt(g h), which must be the longer one.
     lam = d.wavelength_from_period(14.0, 4.0, g=G)

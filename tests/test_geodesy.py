@@ -15,7 +15,7 @@ def _dms(d, m, s):
 
 
 def test_vincenty_flinders_peak_to_buninyong():
-    # Source: Vincenty 1975, Survey Review 23(176), worked example (guide table): 54 972.271 m,
+    # Source: Vincenty 1975, Survey Review 23(176), worked example (Flinders Peak -> Buninyong): 54 972.271 m,
     # forward azimuth 306 deg 52' 05.37".  Pixels of a lon/lat raster with 1-degree pixels.
     georef = gd.GeoRef(Affine(1.0, 0, 0, 0, -1.0, 0), "EPSG:4326")
     lon1, lat1 = _dms(144, 25, 29.52440), -_dms(37, 57, 3.72030)

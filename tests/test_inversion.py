@@ -82,7 +82,8 @@ def test_coverage_of_95_percent_intervals():
 
 
 def test_finite_depth_speed_and_crest_angle():
-    # Source: guide table [computed]: U = 10 m/s, h = 11.295 m -> lambda_t = 123.32 m.
+    # Source: computed independently (not a published value): U = 10 m/s, h = 11.295 m; solving
+    # U^2 = (g/k) tanh(k h) (Lamb 1932 sec. 256 steady-wave condition, theta = 0) gives lambda_t = 123.32 m.
     est = speed_from_transverse_wavelength(
         Uncertain(123.32, 0.3), Conditions(g_mps2=Uncertain(G, 0), depth_m=Uncertain(11.295, 0.0))
     )
@@ -96,7 +97,8 @@ def test_finite_depth_speed_and_crest_angle():
 
 
 def test_joint_speed_and_depth():
-    # Self-consistency with the guide value: U = 10, Fr_h = 0.95 -> lambda_t = 123.32 m, half-angle 46.10 deg.
+    # Self-consistency with the computed values above: U = 10, Fr_h = 0.95 -> lambda_t = 123.32 m, half-angle
+    # 46.10 deg (Havelock 1908 stationarity condition, computed independently, not a published value).
     est, depth = speed_and_depth_from_transverse_wavelength_and_half_angle(
         Uncertain(123.32, 0.5), Uncertain(46.10, 0.3), FIXED_G, seed=4
     )

@@ -24,7 +24,7 @@ def test_kelvin_half_angle_and_cusp():
 
 
 def test_cusp_wavelength_two_thirds_of_transverse():
-    # Source: Lamb (1932) sec. 256 / guide sec. 1: lambda_c = (2/3) lambda_t (cos^2 35.26 deg).
+    # Source: Lamb (1932) sec. 256: lambda_c = (2/3) lambda_t (cos^2 35.26 deg); CEM EM 1110-2-1100 II-7 (35 deg 16').
     lt = kelvin.transverse_wavelength(10.0, g=G)
     lc = kelvin.crest_wavelength(10.0, kelvin.CUSP_PROPAGATION_DEG, g=G)
     assert lc / lt == pytest.approx(2 / 3, rel=1e-9)
@@ -32,13 +32,14 @@ def test_cusp_wavelength_two_thirds_of_transverse():
 
 @pytest.mark.parametrize("u, lam", [(5.0, 16.012), (10.0, 64.049), (15.0, 144.110)])
 def test_transverse_wavelengths(u, lam):
-    # Source: computed from lambda = 2 pi U^2 / g (Lamb 1932 sec. 256), guide table.
+    # Source: computed from lambda = 2 pi U^2 / g (Lamb 1932 sec. 256) with g = 9.81.
     assert kelvin.transverse_wavelength(u, g=G) == pytest.approx(lam, abs=1e-3)
     assert kelvin.speed_from_transverse_wavelength(lam, g=G) == pytest.approx(u, abs=1e-4)
 
 
 def test_finite_depth_transverse_wavelength():
-    # Source: guide table [computed]: U = 10 m/s, Fr_h = 0.95 (h = 11.295 m) -> 123.32 m.
+    # Source: computed independently (not a published value): U = 10 m/s, Fr_h = 0.95 (h = 11.295 m);
+    # U^2 = (g/k) tanh(k h) (Lamb 1932 sec. 256) gives 123.32 m.
     h = (10.0 / 0.95) ** 2 / G
     assert h == pytest.approx(11.295, abs=1e-3)
     assert kelvin.transverse_wavelength(10.0, h, g=G) == pytest.approx(123.32, abs=0.02)
@@ -61,8 +62,9 @@ def test_finite_depth_transverse_wavelength():
     ],
 )
 def test_havelock_half_angle(fr, angle):
-    # Source: guide table, computed independently from Havelock (1908) stationarity condition;
-    # supercritical values are arcsin(1/Fr_h).  Required agreement 0.05 deg.
+    # Source: computed independently from Havelock's (1908, Proc. R. Soc. A 81) stationarity condition with a
+    # separate root-finder (not a published table); supercritical values are arcsin(1/Fr_h); the limits
+    # 19 deg 28' and 90 deg at Fr_h = 1 are published (CEM EM 1110-2-1100 Part II-7).  Required agreement 0.05 deg.
     assert havelock.half_angle(fr) == pytest.approx(angle, abs=0.05)
 
 

@@ -109,7 +109,8 @@ def test_wedge_deep_water():
 
 @pytest.mark.parametrize("fr", [0.8, 0.9])
 def test_wedge_follows_havelock(fr):
-    # Source: Havelock 1908, half-angle at Fr_h (guide table: 24.32 and 34.62 deg); required within 2 deg.
+    # Source: Havelock 1908 half-angle at Fr_h (24.32 and 34.62 deg, computed from his stationarity
+    # condition, see test_kelvin_havelock); the rendered wedge must follow it within 2 deg.
     assert _wedge_angle((6.0 / fr) ** 2 / G) == pytest.approx(havelock.half_angle(fr), abs=2.0)
 
 

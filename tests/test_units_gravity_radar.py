@@ -30,8 +30,8 @@ def test_standard_and_normal_gravity():
 
 
 def test_radar_displacement():
-    # Source: Raney 1971 (IEEE TAES 7(3)): dx = -(R/V) v_r; guide: R/V ~ 105-125 s for a
-    # spaceborne C-band radar, so 5 m/s radial speed shifts the hull ~0.5 km.
+    # Source: Raney 1971 (IEEE TAES 7(3)): dx = -(R/V) v_r; R/V ~ 105-125 s for a spaceborne C-band radar
+    # (from memory: slant range ~850 km at ~7.5 km/s), so 5 m/s radial speed shifts the hull ~0.5 km.
     dx = radar.azimuth_offset(5.0, 850_000.0, 7_500.0)
     assert dx == pytest.approx(-566.7, abs=0.1)
     assert 450 < abs(dx) < 650
