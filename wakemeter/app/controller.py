@@ -4,58 +4,51 @@ background jobs and the document.  Numbers come from the core; this file only mo
 from __future__ import annotations
 
 import hashlib
+from collections.abc import Callable
 from pathlib import Path
+from typing import Protocol
 
-from PySide6.QtCore import QObject, Qt, QTimer
-from PySide6.QtGui import QKeySequence
-from PySide6.QtWidgets import QDockWidget, QFileDialog, QMessageBox, QScrollArea
+from PySide6.QtCore import QObject, QTimer
 
 from ..errors import WakemeterError
 from ..project import session as session_mod
-from .document import SetFinding, SetRejected
+from .document import Document, SetFinding, SetRejected
 from .results import ResultsPanel
 from .workers import Job
 
 
+class Host(Protocol):
+    """What the controller needs from the window: messages, jobs, opening scenes and asking the user."""
+
+    job: Job | None
+
+    def say(self, text: str) -> None: ...
+
+    def error(self, title: str, text: str) -> None: ...
+
+    def run_job(self, job: Job, on_done: Callable, on_fail: Callable | None = None) -> None: ...
+
+    def open_path(self, path: str) -> bool: ...
+
+    def confirm(self, title: str, text: str) -> bool: ...
+
+    def locate_scene(self, old: str | None, problem: str) -> str | None: ...
+
+
 class Controller(QObject):
-    def __init__(self, win) -> None:
-        super().__init__(win)
-        self.win = win
-        self.doc = win.doc
-        self.panel = ResultsPanel()
-        dock = QDockWidget("Results", win)
-        dock.setObjectName("results")
-        scroll = QScrollArea()
-        scroll.setWidgetResizable(True)
-        scroll.setFrameShape(QScrollArea.Shape.NoFrame)
-        scroll.setStyleSheet(
-            "QScrollArea { background: #1c2028; } QScrollArea > QWidget > QWidget { background: #1c2028; }"
-        )
-        scroll.setWidget(self.panel)
-        self.panel.setMinimumHeight(520)
-        dock.setWidget(scroll)
-        win.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, dock)
-        win.resizeDocks([win.items_dock, dock], [400, 400], Qt.Orientation.Horizontal)
-        win.resizeDocks([win.items_dock, dock], [160, 600], Qt.Orientation.Vertical)
-        self.dock = dock
+    """Analysis jobs, sessions and export for the program's document; it owns no widgets: the window
+    builds the panel and the menus and hands them over, and answers the controller's questions."""
+
+    def __init__(self, doc: Document, panel: ResultsPanel, host: Host, parent: QObject | None = None) -> None:
+        super().__init__(parent)
+        self.doc, self.panel, self.host = doc, panel, host
         self.queue: list[int] = []
         self.panel.analyse_one.connect(self.analyse_selected)
         self.panel.analyse_all.connect(self.analyse_all)
         self.panel.reject_toggled.connect(self._reject)
-        self.panel.export_requested.connect(self.export_dialog)
         self.doc.selection_changed.connect(lambda _i: self.refresh())
         self.doc.findings_changed.connect(lambda _i: self.refresh())
         self.doc.changed.connect(self.refresh)
-        fm = win.file_menu
-        first = fm.actions()[2] if len(fm.actions()) > 2 else None
-        a = fm.addAction("&Save session…", self.save_dialog)
-        a.setShortcut(QKeySequence.StandardKey.Save)
-        fm.addAction("Open &session…", self.open_session_dialog)
-        fm.addAction("&Export evidence…", self.export_dialog).setShortcut(QKeySequence("Ctrl+E"))
-        if first is not None:
-            for act in fm.actions()[-3:]:
-                fm.removeAction(act)
-                fm.insertAction(first, act)
         self.session_path: str | None = None
         self.autosave = QTimer(self)
         self.autosave.setInterval(60_000)
@@ -84,7 +77,7 @@ class Controller(QObject):
     def analyse_selected(self) -> None:
         vid = self.doc.vessel_of_selection()
         if vid is None:
-            self.win.say("mark and select a vessel first (Vessel tool)")
+            self.host.say("mark and select a vessel first (Vessel tool)")
             return
         self.queue = [vid]
         self._next()
@@ -92,11 +85,11 @@ class Controller(QObject):
     def analyse_all(self) -> None:
         self.queue = list(self.doc.vessels)
         if not self.queue:
-            self.win.say("mark vessels first (Vessel tool)")
+            self.host.say("mark vessels first (Vessel tool)")
         self._next()
 
     def _next(self) -> None:
-        if not self.queue or self.win.job is not None:
+        if not self.queue or self.host.job is not None:
             return
         vid = self.queue.pop(0)
         v = self.doc.vessels.get(vid)
@@ -107,7 +100,7 @@ class Controller(QObject):
             try:
                 self.doc.requests[vid] = self.panel.request(v.position, self.doc.requests.get(vid))
             except WakemeterError as err:
-                self.win.error("Cannot analyse", str(err))
+                self.host.error("Cannot analyse", str(err))
                 self.queue.clear()
                 return
         request = self.doc.project.request_for(vid)  # a frozen copy, taken on the GUI thread
@@ -119,7 +112,7 @@ class Controller(QObject):
 
         def done(result):
             self.doc.undo.push(SetFinding(self.doc, vid, result, f"analyse {v.name}"))
-            self.win.say(
+            self.host.say(
                 f"{v.name}: "
                 + (
                     f"{result.speed.speed_mps:.2f} m/s, 95 % {result.speed.ci95_low_mps:.2f}"
@@ -133,7 +126,7 @@ class Controller(QObject):
         def failed(_msg):
             self.queue.clear()
 
-        self.win.run_job(Job(work, f"analysing {v.name}"), done, failed)
+        self.host.run_job(Job(work, f"analysing {v.name}"), done, failed)
 
     def _reject(self, value: bool) -> None:
         vid = self.doc.vessel_of_selection()
@@ -148,30 +141,18 @@ class Controller(QObject):
         try:
             session_mod.save(path, self.session_data())
         except WakemeterError as err:
-            self.win.error("Could not save the session", str(err))
+            self.host.error("Could not save the session", str(err))
             return False
         self.session_path = path
-        self.win.say(f"session saved: {path}")
+        self.host.say(f"session saved: {path}")
         return True
-
-    def save_dialog(self) -> None:
-        path, _ = QFileDialog.getSaveFileName(
-            self.win, "Save session", self.session_path or "analysis.wakemeter.json", "wakemeter sessions (*.json)"
-        )
-        if path:
-            self.save_session(path)
-
-    def open_session_dialog(self) -> None:
-        path, _ = QFileDialog.getOpenFileName(self.win, "Open session", "", "wakemeter sessions (*.json)")
-        if path:
-            self.open_session(path)
 
     def open_session(self, path: str, *, locate=None) -> bool:
         """Reopen a session.  ``locate(old_path) -> new path or None`` is asked when the scene moved or changed."""
         try:
             data = session_mod.load(path)
         except WakemeterError as err:
-            self.win.error("Could not open the session", str(err))
+            self.host.error("Could not open the session", str(err))
             return False
         sc_info = data["scene"]
         scene_path = sc_info.get("resolved_path")
@@ -181,13 +162,13 @@ class Controller(QObject):
         elif sc_info.get("sha256") and _sha256(scene_path) != sc_info["sha256"]:
             problem = "the scene file has changed since the session was saved"
         if problem:
-            locate = locate or self._locate_dialog
+            locate = locate or self.host.locate_scene
             new = locate(sc_info.get("absolute_path"), problem)
             if not new:
-                self.win.error("Session not opened", problem)
+                self.host.error("Session not opened", problem)
                 return False
             scene_path = new
-        if not self.win.open_path(scene_path):
+        if not self.host.open_path(scene_path):
             return False
         doc = self.doc
         try:
@@ -202,19 +183,12 @@ class Controller(QObject):
         except (WakemeterError, KeyError, TypeError) as err:
             doc.project.clear()
             doc.loaded()
-            self.win.error("Could not open the session", str(err))
+            self.host.error("Could not open the session", str(err))
             return False
         doc.loaded()
         self.session_path = path
-        self.win.say(f"session opened: {path}")
+        self.host.say(f"session opened: {path}")
         return True
-
-    def _locate_dialog(self, old: str | None, problem: str) -> str | None:
-        ans = QMessageBox.question(self.win, "Scene not found", f"{problem}:\n{old}\n\nLocate the scene?")
-        if ans != QMessageBox.StandardButton.Yes:
-            return None
-        path, _ = QFileDialog.getOpenFileName(self.win, "Locate scene", str(Path(old or ".").parent))
-        return path or None
 
     def autosave_now(self) -> None:
         if self.doc.scene is None:
@@ -231,9 +205,7 @@ class Controller(QObject):
         p = session_mod.autosave_path()
         if not p.exists():
             return False
-        ask = ask or (
-            lambda text: QMessageBox.question(self.win, "Restore work?", text) == QMessageBox.StandardButton.Yes
-        )
+        ask = ask or (lambda text: self.host.confirm("Restore work?", text))
         if ask("wakemeter did not close normally last time. Restore the work saved automatically?"):
             return self.open_session(str(p))
         p.unlink(missing_ok=True)
@@ -245,32 +217,22 @@ class Controller(QObject):
         session_mod.autosave_path().unlink(missing_ok=True)
 
     # ---- evidence ---------------------------------------------------------
-    def export_dialog(self) -> None:
-        vid = self.doc.vessel_of_selection()
-        if vid is None or vid not in self.doc.findings:
-            self.win.say("analyse a vessel first, then export its evidence")
-            return
-        folder = QFileDialog.getExistingDirectory(self.win, "Export evidence to folder")
-        if folder:
-            self.export(vid, folder, ask=True)
-
     def export(self, vid: int, folder: str, *, ask: bool = False, force: bool = False, analyst: str | None = None):
         from ..evidence.export import default_basename, export_evidence
         from ..evidence.from_session import with_plots
 
         if vid in self.doc.rejected:
-            self.win.error("Not exported", "this finding was rejected")
+            self.host.error("Not exported", "this finding was rejected")
             return None
         try:  # a finding read from a session has no plot arrays: its own request is run again (deterministic)
             eff = with_plots(self.doc.project, vid)
         except WakemeterError as err:
-            self.win.error("Could not export", str(err))
+            self.host.error("Could not export", str(err))
             return None
         base = default_basename(self.doc.scene, eff)
         exists = any((Path(folder) / f"{base}{s}").exists() for s in (".png", ".pdf", ".json"))
         if exists and ask and not force:
-            ans = QMessageBox.question(self.win, "Replace files?", f"{base}.* already exist in {folder}. Replace them?")
-            force = ans == QMessageBox.StandardButton.Yes
+            force = self.host.confirm("Replace files?", f"{base}.* already exist in {folder}. Replace them?")
             if not force:
                 return None
         try:
@@ -283,9 +245,9 @@ class Controller(QObject):
                 parameters={"vessel": self.doc.vessels[vid].name},
             )
         except WakemeterError as err:
-            self.win.error("Could not export", str(err))
+            self.host.error("Could not export", str(err))
             return None
-        self.win.say(f"evidence written: {files.image.name}, {files.report.name}, {files.data.name}")
+        self.host.say(f"evidence written: {files.image.name}, {files.report.name}, {files.data.name}")
         return files
 
 

@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (
     QMessageBox,
     QProgressBar,
     QPushButton,
+    QScrollArea,
     QWidget,
 )
 
@@ -27,6 +28,7 @@ from ..errors import WakemeterError
 from ..scene import geodesy
 from .canvas import Canvas
 from .document import ChangeItem, Document, Measurement, RemoveItem, SetCalibration, Vessel
+from .results import ResultsPanel
 from .workers import Job, Relay
 
 ICONS = Path(__file__).resolve().parents[2] / "icons"
@@ -57,7 +59,8 @@ class MainWindow(QMainWindow):
         self._build_status()
         from .controller import Controller
 
-        self.controller = Controller(self)
+        self.controller = Controller(self.doc, self.panel, self, parent=self)
+        self.panel.export_requested.connect(self.export_dialog)
         self.setAcceptDrops(True)
         self.canvas.cursor_moved.connect(self._readout)
         self.canvas.message.connect(self.say)
@@ -86,6 +89,9 @@ class MainWindow(QMainWindow):
         a.setShortcut(QKeySequence.StandardKey.Open)
         self.recent_menu = fm.addMenu("Open &recent")
         self._fill_recent()
+        fm.addAction("&Save session…", self.save_dialog).setShortcut(QKeySequence.StandardKey.Save)
+        fm.addAction("Open &session…", self.open_session_dialog)
+        fm.addAction("&Export evidence…", self.export_dialog).setShortcut(QKeySequence("Ctrl+E"))
         self.file_menu = fm
         fm.addSeparator()
         fm.addAction("&Quit", self.close).setShortcut(QKeySequence.StandardKey.Quit)
@@ -154,6 +160,22 @@ class MainWindow(QMainWindow):
         self.hand_summary = QLabel("")
         self.hand_summary.setWordWrap(True)
         self.items_dock = dock
+        self.panel = ResultsPanel()
+        results = QDockWidget("Results", self)
+        results.setObjectName("results")
+        scroll = QScrollArea()
+        scroll.setWidgetResizable(True)
+        scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+        scroll.setStyleSheet(
+            "QScrollArea { background: #1c2028; } QScrollArea > QWidget > QWidget { background: #1c2028; }"
+        )
+        scroll.setWidget(self.panel)
+        self.panel.setMinimumHeight(520)
+        results.setWidget(scroll)
+        self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, results)
+        self.resizeDocks([dock, results], [400, 400], Qt.Orientation.Horizontal)
+        self.resizeDocks([dock, results], [160, 600], Qt.Orientation.Vertical)
+        self.results_dock = results
 
     def _build_status(self) -> None:
         sb = self.statusBar()
@@ -346,6 +368,40 @@ class MainWindow(QMainWindow):
     # ---- status, jobs, errors --------------------------------------------
     def say(self, text: str) -> None:
         self.message.setText(text)
+
+    # ---- questions the controller asks (modal dialogs live here, not in the controller) ----
+    def confirm(self, title: str, text: str) -> bool:
+        return QMessageBox.question(self, title, text) == QMessageBox.StandardButton.Yes
+
+    def locate_scene(self, old: str | None, problem: str) -> str | None:
+        if not self.confirm("Scene not found", f"{problem}:\n{old}\n\nLocate the scene?"):
+            return None
+        path, _ = QFileDialog.getOpenFileName(self, "Locate scene", str(Path(old or ".").parent))
+        return path or None
+
+    def save_dialog(self) -> None:
+        path, _ = QFileDialog.getSaveFileName(
+            self,
+            "Save session",
+            self.controller.session_path or "analysis.wakemeter.json",
+            "wakemeter sessions (*.json)",
+        )
+        if path:
+            self.controller.save_session(path)
+
+    def open_session_dialog(self) -> None:
+        path, _ = QFileDialog.getOpenFileName(self, "Open session", "", "wakemeter sessions (*.json)")
+        if path:
+            self.controller.open_session(path)
+
+    def export_dialog(self) -> None:
+        vid = self.doc.vessel_of_selection()
+        if vid is None or vid not in self.doc.findings:
+            self.say("analyse a vessel first, then export its evidence")
+            return
+        folder = QFileDialog.getExistingDirectory(self, "Export evidence to folder")
+        if folder:
+            self.controller.export(vid, folder, ask=True)
 
     def error(self, title: str, text: str) -> None:
         self.last_error = f"{title}: {text}"

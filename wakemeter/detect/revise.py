@@ -92,7 +92,6 @@ def revise(
     if not combined.consistent:
         cautions.append(Caution(CautionCode.METHODS_DISAGREE, combined.verdict))
     revised = hand_crest is not None or hand_half_angle is not None
-    decision = analysis.decision.split(" (revised")[0]
     return replace(
         analysis,
         methods=tuple(methods),
@@ -102,7 +101,6 @@ def revise(
         regime=regime,
         cautions=tuple(cautions),
         revised=revised,
-        decision=decision + " (revised with hand measurements)" if revised else decision,
     )
 
 

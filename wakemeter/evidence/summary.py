@@ -73,6 +73,8 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
             ),
             ("Consistency of methods", r["consistency"] or ""),
         ]
+        if r.get("revised"):
+            rows.append(("Hand measurements", "included: the result was revised with the analyst's hand measurements"))
     rows.append(
         (
             "Vessel position",
