@@ -28,12 +28,26 @@ import scipy.fft as sfft
 from scipy import ndimage, optimize, stats
 
 from ..physics.dispersion import steady_wavenumber, steady_wavenumber_fast
+from .robust import median_spread
 
 #: The reference (ahead) spectrum is an upper envelope (3x3 maximum, then smoothing), so a sharp swell
 #: peak present on both sides cancels instead of leaving an excess where plain smoothing would lower it.
 SMOOTH_BINS = 1.0
+#: whitened values are clipped at +/- this many ring spreads: a wake raises the whole curve, a blob a few points
 Z_CLIP = 4.0
 _THETA = np.radians(np.arange(-84.0, 84.5, 1.0))
+#: fitting band: at least this many wavelengths across the box ...
+BAND_MIN_WAVES_PER_BOX = 4.0
+#: ... and crests at least this many pixels apart (below ~2.5 px a crest train aliases)
+BAND_MIN_PIXELS_PER_WAVE = 2.6
+#: bins either side of k_u = 0 masked: the turbulent-wake ridge along the track is not part of the wave pattern
+TRACK_RIDGE_BINS = 1.5
+#: a |k| ring is standardised by its own median and spread when it has at least this many bins
+RING_MIN_BINS = 8
+#: correlated samples per independent spectral estimate under a Hann window (common practice, no source)
+HANN_SAMPLES_PER_ESTIMATE = 3.0
+#: a curve is scored when at least this many of its points fall in the band
+CURVE_MIN_POINTS = 12
 
 
 def _hann2(n_v: int, n_u: int) -> np.ndarray:
@@ -80,14 +94,13 @@ def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) ->
     spread = np.ones(rs.max() + 1)
     for r in range(rs.max() + 1):
         seg = ws[bounds[r] : bounds[r + 1]]
-        if seg.size >= 8:
-            med[r] = np.median(seg)
-            spread[r] = 1.4826 * np.median(np.abs(seg - med[r])) or 1.0
+        if seg.size >= RING_MIN_BINS:
+            med[r], spread[r] = median_spread(seg, floor=1.0)
     white = (white - med[ring]) / spread[ring]
     # the turbulent-wake ridge (along the track: k_u ~ 0) is not part of the wave pattern
-    white[:, np.abs(ku) <= 1.5 * dk_u] = 0.0
-    k_lo = 4.0 * max(dk_u, dk_v)  # at least four wavelengths across the box
-    k_hi = 2 * np.pi / (2.6 * m_per_px)  # crests at least 2.6 pixels apart
+    white[:, np.abs(ku) <= TRACK_RIDGE_BINS * dk_u] = 0.0
+    k_lo = BAND_MIN_WAVES_PER_BOX * max(dk_u, dk_v)
+    k_hi = 2 * np.pi / (BAND_MIN_PIXELS_PER_WAVE * m_per_px)
     return SpectrumPair(white, dk_u, dk_v, k_lo, k_hi, m_per_px)
 
 
@@ -120,21 +133,20 @@ def _scores(
     return _sum_along(sp, k, th + np.radians(delta_deg), ok)
 
 
-def _sum_along(sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray, min_points: int = 12) -> np.ndarray:
+def _sum_along(
+    sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray, min_points: int = CURVE_MIN_POINTS
+) -> np.ndarray:
     """z-like score of curves given as wavenumbers ``k`` at image angles ``angle`` (last axis: points)."""
     ku, kv = k * np.cos(angle), k * np.sin(angle)
     n_v, n_u = sp.white.shape
     cu = n_u // 2 + np.where(ok, ku, 0) / sp.dk_u
     cv = n_v // 2 + np.where(ok, kv, 0) / sp.dk_v
     vals = ndimage.map_coordinates(sp.white, [cv.ravel(), cu.ravel()], order=1, mode="nearest").reshape(k.shape)
-    # winsorise: a wake raises the whole curve, a compact blob (swell, a slick) only a few points
-    vals = np.clip(vals, -Z_CLIP, Z_CLIP)
+    vals = np.clip(vals, -Z_CLIP, Z_CLIP)  # winsorise (see Z_CLIP)
     cnt = ok.sum(axis=-1)
-    # mean standardised power along the curve, scaled to a z-like figure (about 3 correlated
-    # samples per independent spectral estimate under the Hann window)
-    return np.where(
-        cnt >= min_points, np.sum(np.where(ok, vals, 0), axis=-1) / np.sqrt(np.maximum(cnt, 1) * 3.0), np.nan
-    )
+    # mean standardised power along the curve, scaled to a z-like figure
+    total = np.sum(np.where(ok, vals, 0), axis=-1)
+    return np.where(cnt >= min_points, total / np.sqrt(np.maximum(cnt, 1) * HANN_SAMPLES_PER_ESTIMATE), np.nan)
 
 
 @dataclass(frozen=True)
