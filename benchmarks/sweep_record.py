@@ -68,7 +68,11 @@ def record(
         old = None if last is None else last["summary"].get(k)
         print(f"{k:<36} {_fmt(v):>14} {_fmt(old):>14}")
     if last is not None:
-        print(f"(last record: commit {last['commit'][:10]}, {last['date']})")
+        changed = _changed_cases(last["cases"], cases)
+        print(
+            f"(last record: commit {last['commit'][:10]}, {last['date']}; {changed} of {len(cases)} cases "
+            "differ from it, timings aside)"
+        )
     if not write:
         return None
     sha, dirty = _commit()
@@ -90,6 +94,17 @@ def record(
     os.replace(tmp, path)
     print(f"recorded {path.relative_to(RESULTS.parent.parent)}")
     return path
+
+
+def _changed_cases(old: list[dict], new: list[dict]) -> int:
+    """Cases whose figures differ from the last record's (wall times are left out)."""
+
+    def strip(c: dict) -> str:
+        return json.dumps({k: v for k, v in c.items() if k != "time_s"}, sort_keys=True, default=_plain)
+
+    if len(old) != len(new):
+        return max(len(old), len(new))
+    return sum(strip(a) != strip(b) for a, b in zip(old, new))
 
 
 def _fmt(v: object) -> str:

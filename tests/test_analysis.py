@@ -318,3 +318,29 @@ def test_radar_hull_displaced_from_its_wake(tmp_path, seed):
     assert a.drawing.first(SegmentKind.HULL_SHIFT).points[0] == pytest.approx(
         (truth["hull_pixel_col"], truth["hull_pixel_row"]), abs=3
     )
+
+
+def test_radar_geometry_along_the_track_leaves_the_offset_method_out(tmp_path):
+    # Synthetic truth (seed 3, radar, hull shifted): with a look bearing of 100 deg the flight direction is
+    # 10 deg, almost along this vessel's track (heading 359.5 deg), so the azimuth offset holds no radial speed
+    # (Raney 1971: the offset is proportional to the radial component).  The analysis must still give its
+    # finding, without that method, and say why (it raised before).
+    from dataclasses import replace
+
+    from wakemeter.synth import render, write
+
+    case = make_case(3, radar=True)
+    spec = replace(case.spec, imaging=replace(case.spec.imaging, hull_displacement=True))
+    tif, sidecar = write(render(spec), tmp_path / "along.tif")
+    truth = json.loads(sidecar.read_text())["vessels"][0]
+    with open_scene(tif) as sc:
+        a = analyze(
+            sc,
+            AnalysisRequest(
+                vessel_px=(truth["hull_pixel_col"], truth["hull_pixel_row"]),
+                radar_geometry=RadarGeometry(850_000.0, 7_500.0, 100.0, 33.0),
+            ),
+        )
+    assert a.wake_found
+    assert not any(m.method == "radar azimuth offset" for m in a.methods)
+    assert a.has_caution(CautionCode.RADAR_OFFSET_MISSING)
