@@ -59,7 +59,12 @@ class ResultsPanel(QWidget):
         form = QFormLayout(box)
         self.depth_input = _spin(0.0, 5000.0, 1, "m", "Known water depth; leave at 'unknown' to let the wake tell")
         self.hull = _spin(0.0, 500.0, 1, "m", "Hull length, for the check of narrow arms of fast hulls")
+        self.depth_std = _spin(
+            0.0, 500.0, 1, "m", "Standard uncertainty of the depth (chart accuracy, tide); 0 treats it as exact", ""
+        )
+        self.depth_std.setPrefix("± ")
         form.addRow("Water depth", self.depth_input)
+        form.addRow("Depth uncertainty", self.depth_std)
         form.addRow("Hull length", self.hull)
         self.use_radar = QCheckBox("Radar geometry (hull offset from its wake)")
         self.use_radar.setToolTip("Enables the azimuth-offset method for radar scenes (Raney 1971)")
@@ -144,6 +149,7 @@ class ResultsPanel(QWidget):
         """What the panel shows, as plain numbers (None: not given)."""
         out = {
             "depth_m": self.depth_input.value() or None,
+            "depth_std_m": self.depth_std.value(),
             "hull_length_m": self.hull.value() or None,
             "radar_geometry": None,
         }
@@ -158,13 +164,12 @@ class ResultsPanel(QWidget):
 
     def request(self, position: tuple[float, float], base: AnalysisRequest | None = None) -> AnalysisRequest:
         """The analysis request for a vessel at ``position``: the panel's values over ``base`` (which keeps
-        what the panel does not show: depth uncertainty, radar uncertainties, seed)."""
+        what the panel does not show: radar uncertainties, pixel-size uncertainty, seed)."""
         base = (base or AnalysisRequest(vessel_px=position)).at_pixel(position)
         d = self.inputs()
         depth = None
         if d["depth_m"]:
-            std = base.depth.std if base.depth is not None and base.depth.value == d["depth_m"] else 0.0
-            depth = Uncertain(d["depth_m"], std)
+            depth = Uncertain(d["depth_m"], d["depth_std_m"])
         rg = None
         if d["radar_geometry"]:
             r, v, look, inc = d["radar_geometry"]
@@ -178,6 +183,7 @@ class ResultsPanel(QWidget):
 
     def set_request(self, req: AnalysisRequest | None) -> None:
         self.depth_input.setValue(req.depth.value if req is not None and req.depth is not None else 0.0)
+        self.depth_std.setValue(req.depth.std if req is not None and req.depth is not None else 0.0)
         self.hull.setValue(req.hull_length_m or 0.0 if req is not None else 0.0)
         rg = None if req is None else req.radar_geometry
         self.use_radar.setChecked(rg is not None)

@@ -117,7 +117,7 @@ def _apex_on_line(
     good = np.isfinite(prof)
     if good.sum() < 60:
         return None
-    spread = float(1.4826 * np.nanmedian(np.abs(prof - np.nanmedian(prof)))) or 1e-9
+    spread = median_spread(prof[good])[1]
     win = int(min(120, t.size // 3))
     csum = np.concatenate([[0.0], np.cumsum(np.where(good, prof, 0.0))])
     cnt = np.concatenate([[0], np.cumsum(good)])
