@@ -38,7 +38,7 @@ def check_finite(name: str, value: object) -> None:
 
     arr = np.asarray(value, dtype=float)
     if not np.all(np.isfinite(arr)):
-        raise ParameterError(f"{name} must be finite, got {value!r}")
+        raise ParameterError(f"{name} must be finite, got {_show(arr, ~np.isfinite(arr))}")
 
 
 def check_positive(name: str, value: object, *, allow_inf: bool = False, allow_zero: bool = False) -> None:
@@ -47,10 +47,21 @@ def check_positive(name: str, value: object, *, allow_inf: bool = False, allow_z
 
     arr = np.asarray(value, dtype=float)
     if np.any(np.isnan(arr)):
-        raise ParameterError(f"{name} must be a number, got NaN ({value!r})")
+        raise ParameterError(f"{name} must be a number, got {_show(arr, np.isnan(arr))}")
     if not allow_inf and np.any(np.isinf(arr)):
-        raise ParameterError(f"{name} must be finite, got {value!r}")
+        raise ParameterError(f"{name} must be finite, got {_show(arr, np.isinf(arr))}")
     bad = arr < 0 if allow_zero else arr <= 0
     if np.any(bad):
         rel = ">= 0" if allow_zero else "> 0"
-        raise ParameterError(f"{name} must be {rel}, got {value!r}")
+        raise ParameterError(f"{name} must be {rel}, got {_show(arr, bad)}")
+
+
+def _show(arr, bad) -> str:
+    """The offending value(s) in plain numbers (never an array repr)."""
+    import numpy as np
+
+    if arr.ndim == 0:
+        return f"{float(arr):g}"
+    values = ", ".join(f"{float(v):g}" for v in np.asarray(arr)[bad].ravel()[:3])
+    n = int(np.count_nonzero(bad))
+    return values if n <= 3 else f"{values} and {n - 3} more of {arr.size} values"

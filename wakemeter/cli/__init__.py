@@ -11,6 +11,7 @@ from __future__ import annotations
 import argparse
 import sys
 from collections.abc import Sequence
+from typing import NoReturn
 
 from .. import __version__
 from ..errors import WakemeterError
@@ -23,14 +24,21 @@ COMMANDS: dict[str, Command] = {
 }
 
 
+class _Parser(argparse.ArgumentParser):
+    """Usage errors in one line (the command, what is wrong, where to look), exit status 2."""
+
+    def error(self, message: str) -> NoReturn:
+        self.exit(2, f"{self.prog}: {message} (see '{self.prog} --help')\n")
+
+
 def build_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(
+    p = _Parser(
         prog="wakemeter",
         description="Measure ship wakes on georeferenced imagery. "
         "'wakemeter SCENE' opens the desktop program on a scene.",
     )
     p.add_argument("--version", action="version", version=f"wakemeter {__version__}")
-    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name, c in sorted(COMMANDS.items()):
         # argparse %-formats help texts: a literal percent sign must be doubled
         sp = sub.add_parser(name, help=c.help.replace("%", "%%"), description=c.help)

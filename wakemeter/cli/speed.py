@@ -3,7 +3,9 @@
 from __future__ import annotations
 
 import argparse
+import math
 
+from ..errors import ParameterError
 from ..physics import inversion as inv
 from ..physics.gravity import normal_gravity
 from .base import CAUTION_LINE, Command
@@ -44,7 +46,33 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--seed", type=int, default=0)
 
 
+#: (option, allowed, test): every number the user types is checked here, in the option's own name
+_CHECKS = (
+    ("transverse_wavelength", "a number > 0 m", lambda v: v > 0),
+    ("crest_wavelength", "a number > 0 m", lambda v: v > 0),
+    ("crest_angle", "an angle from 0 to 80 deg", lambda v: 0 <= v <= 80),
+    ("crest_angle_std", "a number >= 0 deg", lambda v: v >= 0),
+    ("wavelength_std", "a number >= 0 m", lambda v: v >= 0),
+    ("half_angle", "an angle between 0 and 90 deg", lambda v: 0 < v < 90),
+    ("half_angle_std", "a number >= 0 deg", lambda v: v >= 0),
+    ("depth", "a number > 0 m", lambda v: v > 0),
+    ("depth_std", "a number >= 0 m", lambda v: v >= 0),
+    ("latitude", "a latitude from -90 to 90 deg", lambda v: -90 <= v <= 90),
+    ("pixel_rel_std", "a fraction from 0 to 0.5", lambda v: 0 <= v < 0.5),
+)
+
+
+def _check(args: argparse.Namespace) -> None:
+    for name, allowed, ok in _CHECKS:
+        v = getattr(args, name)
+        if v is not None and not (math.isfinite(v) and ok(v)):
+            raise ParameterError(f"--{name.replace('_', '-')} must be {allowed}, got {v:g}")
+    if args.seed < 0:
+        raise ParameterError(f"--seed must be a whole number >= 0, got {args.seed}")
+
+
 def run(args: argparse.Namespace) -> int:
+    _check(args)
     if args.latitude is not None:
         g = inv.Uncertain(float(normal_gravity(args.latitude)), 0.0005)
     else:

@@ -110,10 +110,17 @@ def analyze(
 
 
 def _start_px(scene: Scene, request: AnalysisRequest) -> tuple[float, float]:
+    """The vessel's pixel position; one that lies outside the scene is reported as the user gave it."""
     if request.vessel_px is not None:
-        return request.vessel_px
-    assert request.vessel_lonlat is not None
-    c, r = geodesy.lonlat_to_pixel(scene.georef, *request.vessel_lonlat)
+        c, r = request.vessel_px
+        where = f"pixel (column {c:.1f}, row {r:.1f})"
+    else:
+        assert request.vessel_lonlat is not None
+        lon, lat = request.vessel_lonlat
+        c, r = (float(x) for x in geodesy.lonlat_to_pixel(scene.georef, lon, lat))
+        where = f"longitude {lon:.6f}, latitude {lat:.6f}"
+    if not (np.isfinite(c) and np.isfinite(r) and 0 <= c < scene.width and 0 <= r < scene.height):
+        raise ParameterError(f"the vessel at {where} lies outside the scene ({scene.width} x {scene.height} pixels)")
     return float(c), float(r)
 
 

@@ -6,6 +6,7 @@ when every one succeeded; an existing file is never replaced unless ``force`` is
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import tempfile
@@ -31,9 +32,25 @@ class EvidenceFiles:
     data: Path
 
 
+#: output names are kept this short (file systems allow 255 bytes; temporary names add about 20)
+MAX_STEM_CHARS = 96
+
+
+def safe_stem(text: str) -> str:
+    """A file-name stem from any text: letters, digits, '-', '_' and '.' kept, the rest '_'; a long one is
+    cut and given a short hash of the whole text so that different long names stay different.  The whole
+    text is kept inside the files (provenance), never lost."""
+    stem = "".join(ch if (ch.isalnum() or ch in "-_.") and ch.isascii() else "_" for ch in text).strip("._")
+    stem = "_".join(part for part in stem.split("_") if part) or "wakemeter"
+    if len(stem) > MAX_STEM_CHARS:
+        digest = hashlib.sha1(text.encode("utf-8", "surrogateescape")).hexdigest()[:8]
+        stem = f"{stem[: MAX_STEM_CHARS - 9]}_{digest}"
+    return stem
+
+
 def default_basename(scene: Scene, analysis: WakeAnalysis) -> str:
     c, r = analysis.vessel_px
-    return f"{scene.info.path.stem}_wake_{int(round(c))}_{int(round(r))}"
+    return safe_stem(f"{scene.info.path.stem}_wake_{int(round(c))}_{int(round(r))}")
 
 
 def export_evidence(
@@ -54,7 +71,7 @@ def export_evidence(
         raise SceneWriteError(f"cannot export: folder {folder} does not exist")
     if not os.access(folder, os.W_OK):
         raise SceneWriteError(f"cannot export: folder {folder} is not writable")
-    base = basename or default_basename(scene, analysis)
+    base = safe_stem(basename) if basename else default_basename(scene, analysis)
     targets = EvidenceFiles(folder / f"{base}.png", folder / f"{base}.pdf", folder / f"{base}.json")
     existing = [p.name for p in (targets.image, targets.report, targets.data) if p.exists()]
     if existing and not force:

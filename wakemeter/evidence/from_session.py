@@ -66,7 +66,6 @@ def report_from_session(
             if v.id not in project.findings:  # marked but never analysed: analyse it now, with its request
                 project.findings[v.id] = analyze(scene, project.request_for(v.id))
             a = with_plots(project, v.id)
-            safe = "".join(ch if ch.isalnum() else "_" for ch in v.name).strip("_")[:60] or f"vessel_{v.id}"
             out.append(
                 export_evidence(
                     scene,
@@ -74,7 +73,7 @@ def report_from_session(
                     out_dir,
                     analyst=analyst,
                     force=force,
-                    basename=f"{scene.info.path.stem[:60]}_{safe}",
+                    basename=f"{scene.info.path.stem}_{v.name or f'vessel_{v.id}'}",
                     parameters={"session": Path(path).name, "vessel": v.name},
                 )
             )
@@ -82,12 +81,6 @@ def report_from_session(
 
 
 def is_session(path: str | Path) -> bool:
+    """A ``.json`` file is taken for a session (rasters are never JSON): reading it then says what is wrong."""
     p = Path(path)
-    if p.suffix.lower() != ".json" or not p.is_file():
-        return False
-    try:
-        import json
-
-        return str(json.loads(p.read_text()).get("schema", "")).startswith("wakemeter.session/")
-    except (OSError, ValueError, AttributeError, RecursionError):
-        return False
+    return p.suffix.lower() == ".json" and p.is_file()

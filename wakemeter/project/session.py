@@ -66,29 +66,165 @@ def _plain(x: object) -> object:
     raise TypeError(f"cannot store {type(x).__name__} in a session")
 
 
+#: a session larger than this is refused before it is read (a real one is a few hundred kB)
+MAX_SESSION_BYTES = 64 << 20
+#: sessions are shallow (about 8 levels); deeper nesting is refused before validation
+MAX_DEPTH = 32
+
+
 def load(path: str | os.PathLike) -> dict:
-    """Read and check a session file; resolves the scene path relative to the file."""
+    """Read and check a session file; resolves the scene path relative to the file.
+
+    The file is bounded in size and nesting, numbers must be finite, and the content must follow the
+    schema ``session.schema.json``; anything else raises :class:`SessionError` with one line naming the
+    field and what was expected.  The file is never changed.
+    """
     p = Path(path)
     try:
-        data = json.loads(p.read_text())
+        size = p.stat().st_size
+        if size > MAX_SESSION_BYTES:
+            raise SessionError(
+                f"{p.name}: {size / 2**20:.0f} MB is too large for a session file "
+                f"(at most {MAX_SESSION_BYTES >> 20} MB)"
+            )
+        text = p.read_bytes().decode("utf-8")
     except FileNotFoundError as err:
         raise SessionError(f"{p}: no such session file") from err
-    except (OSError, UnicodeDecodeError) as err:
-        raise SessionError(f"{p}: cannot be read ({err})") from err
+    except UnicodeDecodeError as err:
+        raise SessionError(f"{p.name}: not a valid session file (not UTF-8 text at byte {err.start})") from err
+    except OSError as err:
+        raise SessionError(f"{p}: cannot be read ({err.strerror or err})") from err
+    try:
+        data = json.loads(text, parse_constant=_reject_constant)
     except json.JSONDecodeError as err:
-        raise SessionError(f"{p}: not a valid session file (damaged or truncated JSON at line {err.lineno})") from err
+        raise SessionError(
+            f"{p.name}: not a valid session file (damaged or truncated JSON at line {err.lineno})"
+        ) from err
+    except RecursionError as err:
+        raise SessionError(f"{p.name}: not a valid session file (nested deeper than a session can be)") from err
+    except ValueError as err:  # NaN or Infinity
+        raise SessionError(f"{p.name}: not a valid session file ({err})") from err
     if not isinstance(data, dict) or not str(data.get("schema", "")).startswith("wakemeter.session/"):
-        raise SessionError(f"{p}: not a wakemeter session file")
+        raise SessionError(f"{p.name}: not a wakemeter session file")
     if data["schema"] not in READABLE:
-        raise SessionError(f"{p}: written by a newer wakemeter ({data['schema']}); this version reads {SCHEMA}")
+        raise SessionError(
+            f"{p.name}: written by a newer wakemeter ({str(data['schema'])[:40]}); this version reads {SCHEMA}"
+        )
     for key in ("scene", "vessels", "measurements"):
         if key not in data:
-            raise SessionError(f"{p}: the session is incomplete (no '{key}')")
+            raise SessionError(f"{p.name}: the session is incomplete (no '{key}')")
+    if _depth(data) > MAX_DEPTH:
+        raise SessionError(f"{p.name}: not a valid session file (nested deeper than {MAX_DEPTH} levels)")
+    problem = schema_problem(data)
+    if problem:
+        raise SessionError(f"{p.name}: {problem}")
     scene = data["scene"]
     rel = Path(scene.get("path") or "")
     candidate = (p.parent / rel) if not rel.is_absolute() else rel
     scene["resolved_path"] = str(candidate.resolve()) if candidate.exists() else scene.get("absolute_path")
     return data
+
+
+def schema() -> dict:
+    """The session's JSON Schema (draft 2020-12)."""
+    from importlib import resources
+
+    return json.loads(resources.files(__package__).joinpath("session.schema.json").read_text())
+
+
+def schema_problem(data: dict) -> str | None:
+    """The first way ``data`` departs from the schema, in one line naming the field; None when it follows it."""
+    import jsonschema
+    from jsonschema.exceptions import best_match
+
+    validator = jsonschema.Draft202012Validator(_schema_cached())
+    err = best_match(validator.iter_errors(data))
+    if err is None:
+        return None
+    nullable = False
+    while err.context:  # anyOf: the cause in the branch meant for this kind of value (not the "null" one)
+        branches = err.validator_value
+        nullable = nullable or {"type": "null"} in branches
+        useful = [e for e in err.context if branches[e.schema_path[0]] != {"type": "null"}]
+        err = best_match(useful or err.context) or err
+    where = (
+        "".join(f"[{k}]" if isinstance(k, int) else (f".{k}" if i else str(k)) for i, k in enumerate(err.absolute_path))
+        or "the session"
+    )
+    return f"{where} {_expected(err, nullable)}"
+
+
+_SCHEMA: dict | None = None
+
+
+def _schema_cached() -> dict:
+    global _SCHEMA
+    if _SCHEMA is None:
+        _SCHEMA = schema()
+    return _SCHEMA
+
+
+def _expected(err: Any, nullable: bool = False) -> str:
+    v, got = err.validator, _short(err.instance)
+    if v == "type":
+        want = err.validator_value if isinstance(err.validator_value, list) else [err.validator_value]
+        want = [*want, "null"] if nullable and "null" not in want else want
+        return f"must be {' or '.join(_TYPE_WORDS.get(str(t), str(t)) for t in want)}, got {got}"
+    if v == "required":
+        missing = [k for k in err.validator_value if isinstance(err.instance, dict) and k not in err.instance]
+        return f"lacks '{missing[0] if missing else err.validator_value[0]}'"
+    if v in ("enum", "const"):
+        options = err.validator_value if v == "enum" else [err.validator_value]
+        return f"must be one of {', '.join(repr(o) for o in options)}, got {got}"
+    if v in ("minimum", "exclusiveMinimum", "maximum", "exclusiveMaximum"):
+        op = {"minimum": ">=", "exclusiveMinimum": ">", "maximum": "<=", "exclusiveMaximum": "<"}[v]
+        return f"must be {op} {err.validator_value}, got {got}"
+    if v in ("minItems", "maxItems"):
+        return f"has the wrong number of items ({len(err.instance)}; {v} {err.validator_value})"
+    if v == "pattern":
+        return f"is not in the expected form, got {got}"
+    if v == "propertyNames":
+        return "uses a key that is not a vessel id (a whole number from 1)"
+    if v == "minLength":
+        return "must not be empty"
+    return err.message[:120]
+
+
+_TYPE_WORDS = {
+    "integer": "a whole number",
+    "number": "a number",
+    "string": "text",
+    "object": "an object",
+    "array": "a list",
+    "boolean": "true or false",
+    "null": "null",
+}
+
+
+def _short(x: Any) -> str:
+    if isinstance(x, (dict, list)):
+        return f"{'an object' if isinstance(x, dict) else 'a list'} of {len(x)}"
+    text = json.dumps(x) if not isinstance(x, str) else repr(x)
+    return text if len(text) <= 40 else text[:37] + "..."
+
+
+def _reject_constant(name: str) -> float:
+    raise ValueError(f"{name} is not a number a session can hold")
+
+
+def _depth(node: Any) -> int:
+    """Nesting depth, without recursion."""
+    deepest, stack = 0, [(node, 1)]
+    while stack:
+        item, d = stack.pop()
+        deepest = max(deepest, d)
+        if d > MAX_DEPTH:
+            return d
+        if isinstance(item, dict):
+            stack.extend((v, d + 1) for v in item.values())
+        elif isinstance(item, list):
+            stack.extend((v, d + 1) for v in item)
+    return deepest
 
 
 def autosave_path() -> Path:
