@@ -180,3 +180,32 @@ def test_band_choice_on_a_multiband_scene(win, tmp_path):
     assert win.choose_bands("4,3,2") and win.canvas.loader.contrast.bands == (4, 3, 2)
     assert win.choose_bands("4") and not win.canvas.loader.contrast.rgb
     assert not win.choose_bands("1,2") and "three" in win.last_error
+
+
+def test_recent_scenes_survive_two_launches(tmp_path):
+    # QSettings gives a one-item list back as a plain string after a restart; the menu must still list the
+    # scene, not its letters (found by a tester: "s", "a", "m" from the second launch on).
+    import os
+    import subprocess
+    import sys
+
+    env = {**os.environ, "XDG_CONFIG_HOME": str(tmp_path / "config"), "QT_QPA_PLATFORM": "offscreen"}
+    scene = str(ROOT / "sample_scenes" / "calm_no_wake.tif")
+    for i in range(2):
+        shot = tmp_path / f"shot{i}.png"
+        subprocess.run(
+            [sys.executable, "-m", "wakemeter", scene, "--screenshot", str(shot)],
+            env=env,
+            check=True,
+            capture_output=True,
+            timeout=120,
+        )
+    code = (
+        "from PySide6.QtWidgets import QApplication; app = QApplication([]); "
+        "from wakemeter.app.window import MainWindow; w = MainWindow(); "
+        "print('|'.join(a.text() for a in w.recent_menu.actions()))"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], env=env, check=True, capture_output=True, text=True, timeout=120
+    ).stdout.strip()
+    assert out.split("|") == [scene]

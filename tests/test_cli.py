@@ -28,3 +28,16 @@ def test_bad_options_are_one_plain_line(capsys):
     assert main(["analyze", "no_such_scene.tif", "--vessel", "-35,36", "--radar-geometry", "1,2,3"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--radar-geometry" in err[0] and "needs 4 numbers" in err[0]
+
+
+def test_messages_use_the_users_own_terms(capsys):
+    # a position given as longitude and latitude is reported as such (not in map coordinates), a NaN as "nan"
+    scene = "sample_scenes/harbour_approach_optical.tif"
+    assert main(["analyze", scene, "--vessel", "10,10"]) == 2
+    err = capsys.readouterr().err
+    assert "longitude 10.000000, latitude 10.000000 lies outside the scene" in err
+    assert main(["speed", "--transverse-wavelength", "nan"]) == 2
+    err = capsys.readouterr().err
+    assert "--transverse-wavelength must be a number > 0 m, got nan" in err and "array" not in err
+    assert main(["analyze", scene]) == 2
+    assert "--vessel LON,LAT or --vessel-px COL,ROW" in capsys.readouterr().err

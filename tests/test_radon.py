@@ -78,3 +78,23 @@ def test_bad_input():
         radon(np.zeros(10))
     with pytest.raises(ParameterError, match="NaN"):
         radon(np.full((8, 8), np.nan))
+
+
+def test_interpolation_matrix_cache_gives_the_same_transform(tmp_path, monkeypatch):
+    # Self-consistency: the matrix read back from the cache folder must give exactly the transform built in
+    # memory; a damaged cache file is ignored and replaced.
+    from wakemeter.detect import radon as radon_mod
+
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path))
+    img = np.random.default_rng(3).random((96, 96))
+    radon_mod._interpolation_matrix.cache_clear()
+    built = radon_mod.radon(img)
+    files = list((tmp_path / "wakemeter" / "radon").glob("*.npz"))
+    assert len(files) == 1
+    radon_mod._interpolation_matrix.cache_clear()
+    assert np.array_equal(radon_mod.radon(img), built)  # read from the file
+    files[0].write_bytes(b"not a matrix")
+    radon_mod._interpolation_matrix.cache_clear()
+    assert np.array_equal(radon_mod.radon(img), built)  # rebuilt
+    assert files[0].stat().st_size > 1000
+    radon_mod._interpolation_matrix.cache_clear()

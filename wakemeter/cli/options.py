@@ -4,10 +4,12 @@ from __future__ import annotations
 
 import argparse
 import re
+from typing import TYPE_CHECKING
 
-from ..detect.request import AnalysisRequest, RadarGeometry
 from ..errors import ParameterError
-from ..physics.inversion import Uncertain
+
+if TYPE_CHECKING:  # the analysis is imported when a command runs, not when the CLI starts
+    from ..detect.request import AnalysisRequest
 
 #: options whose value is a comma-separated list that may start with a minus sign (``--vessel -35,36``)
 LIST_OPTIONS = ("--vessel", "--vessel-px", "--radar-geometry")
@@ -55,6 +57,9 @@ def add_request_options(p: argparse.ArgumentParser) -> None:
 
 def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
     """The one request the options describe; errors in the options' own words."""
+    from ..detect.request import AnalysisRequest, RadarGeometry
+    from ..physics.inversion import Uncertain
+
     if (args.vessel is None) == (args.vessel_px is None):
         raise ParameterError("give the vessel position with --vessel LON,LAT or --vessel-px COL,ROW (one of them)")
     if args.depth is None and args.depth_std:

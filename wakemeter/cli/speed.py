@@ -6,8 +6,6 @@ import argparse
 import math
 
 from ..errors import ParameterError
-from ..physics import inversion as inv
-from ..physics.gravity import normal_gravity
 from .base import CAUTION_LINE, Command
 
 
@@ -72,6 +70,9 @@ def _check(args: argparse.Namespace) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..physics import inversion as inv
+    from ..physics.gravity import normal_gravity
+
     _check(args)
     if args.latitude is not None:
         g = inv.Uncertain(float(normal_gravity(args.latitude)), 0.0005)

@@ -5,7 +5,6 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from ..physics.units import knots_to_mps
 from .base import Command
 
 
@@ -38,6 +37,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..physics.units import knots_to_mps
     from ..synth import AmbientSea, Hull, OpticalModel, RadarModel, VesselSpec, render, write
     from ..synth.demo import vessel_scene, write_demo_scenes
 

@@ -24,13 +24,17 @@ References
 
 from __future__ import annotations
 
+import hashlib
+import io
 from functools import lru_cache
+from pathlib import Path
 
 import numpy as np
 import scipy.fft as sfft
 from scipy import sparse
 
 from ..errors import ParameterError
+from ..fileio import atomic_write_bytes
 
 _A = 3  # Lanczos kernel half-width
 
@@ -93,9 +97,57 @@ def _extend(spec: np.ndarray, m: int) -> np.ndarray:
     return np.concatenate([left, spec, np.zeros((m, _A), spec.dtype)], axis=1)
 
 
+#: version of the matrices stored in the cache folder (change it when _build_matrix changes)
+MATRIX_CACHE_VERSION = 1
+
+
 @lru_cache(maxsize=8)
 def _interpolation_matrix(m: int, nf: int, theta: tuple[float, ...]):
-    """Sparse Lanczos-3 weights from the extended half spectrum to the radial samples (cached).
+    """The interpolation matrix, from memory, else from the user's cache folder, else built and stored there
+    (building one takes ~0.6 s; a new process reads it back in a few tens of ms)."""
+    path = _cache_path(m, nf, theta)
+    found = _read_matrix(path, m, nf, len(theta))
+    if found is not None:
+        return found
+    mat, neg = _build_matrix(m, nf, theta)
+    _write_matrix(path, mat, neg)
+    return mat, neg
+
+
+def _cache_path(m: int, nf: int, theta: tuple[float, ...]) -> Path:
+    from ..scene.pyramid import cache_dir
+
+    digest = hashlib.sha1(np.asarray(theta, np.float64).tobytes()).hexdigest()[:12]
+    return cache_dir() / "radon" / f"lanczos{_A}-v{MATRIX_CACHE_VERSION}-{m}-{nf}-{digest}.npz"
+
+
+def _read_matrix(path: Path, m: int, nf: int, n_theta: int):
+    """A stored matrix, or None when there is none or it does not fit (then it is simply built again)."""
+    try:
+        with np.load(path, allow_pickle=False) as z:
+            mat = sparse.csr_matrix((z["data"], z["indices"], z["indptr"]), shape=tuple(z["shape"]))
+            neg = z["neg"]
+    except (OSError, KeyError, ValueError, EOFError):
+        return None
+    width = m // 2 + 1 + 2 * _A
+    if mat.shape != (n_theta * nf, m * width) or neg.shape != (n_theta, nf) or neg.dtype != bool:
+        return None
+    return mat, neg
+
+
+def _write_matrix(path: Path, mat, neg: np.ndarray) -> None:
+    """Store a matrix for the next process; the cache is optional, so a failure to write is ignored."""
+    buf = io.BytesIO()
+    np.savez(buf, data=mat.data, indices=mat.indices, indptr=mat.indptr, shape=np.array(mat.shape), neg=neg)
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        atomic_write_bytes(path, buf.getvalue())
+    except OSError:
+        pass
+
+
+def _build_matrix(m: int, nf: int, theta: tuple[float, ...]):
+    """Sparse Lanczos-3 weights from the extended half spectrum to the radial samples.
 
     Radial sample k of angle theta sits at frequency index j = k m / nf (an integer, so
     0 and 90 deg fall on grid points): column j cos(theta), row -j sin(theta).  Points

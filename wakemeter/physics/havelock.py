@@ -24,10 +24,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 from numpy.typing import ArrayLike
-from scipy.interpolate import PchipInterpolator
 
 from ..errors import ParameterError, check_positive
 from .dispersion import group_factor, tanh_ratio, wavenumber_from_phase_speed
@@ -99,8 +99,11 @@ def half_angle(froude_depth: ArrayLike) -> np.ndarray | float:
 
 
 @lru_cache(maxsize=1)
-def _subcritical_table() -> tuple[PchipInterpolator, float, float]:
-    """Monotone interpolant Fr_h(half-angle) on the subcritical branch."""
+def _subcritical_table() -> tuple[Any, float, float]:
+    """Monotone interpolant Fr_h(half-angle) on the subcritical branch (scipy.interpolate imported here: it
+    costs ~0.5 s at start-up and only the inverse needs it)."""
+    from scipy.interpolate import PchipInterpolator
+
     fr = np.concatenate([np.linspace(0.45, 0.9, 181), np.linspace(0.9005, 0.99999, 400)])
     ang = np.asarray(half_angle(fr))
     keep = np.concatenate([[True], np.diff(ang) > 1e-9])  # strictly increasing for inversion
