@@ -344,3 +344,22 @@ def test_radar_geometry_along_the_track_leaves_the_offset_method_out(tmp_path):
     assert a.wake_found
     assert not any(m.method == "radar azimuth offset" for m in a.methods)
     assert a.has_caution(CautionCode.RADAR_OFFSET_MISSING)
+
+
+def test_no_speed_for_a_point_without_a_vessel():
+    # Synthetic truth (harbour_approach_optical.truth.json): one vessel at pixel (789, 373).  At (200, 200), open
+    # water inside that vessel's wave field, and at (700, 330), on its wake 190 m behind it, the waves stand
+    # out but no vessel is there: no speed may be credited to the click.  The analyst may insist; the result
+    # then says so.  At the vessel itself the hull is the evidence.
+    with open_scene(ROOT / "sample_scenes" / "harbour_approach_optical.tif") as sc:
+        for px in ((200.0, 200.0), (700.0, 330.0)):
+            a = analyze(sc, AnalysisRequest(vessel_px=px))
+            assert not a.wake_found and a.speed is None and a.diagnostics.vessel_evidence == "none"
+            assert a.decision.startswith("no vessel at this point")
+        forced = analyze(sc, AnalysisRequest(vessel_px=(200.0, 200.0), force=True))
+        assert forced.wake_found and forced.has_caution(CautionCode.FORCED)
+        assert forced.diagnostics.vessel_evidence == "forced"
+        real = analyze(sc, AnalysisRequest(vessel_px=(789.0, 373.0)))
+        assert (
+            real.wake_found and real.diagnostics.vessel_evidence == "hull" and not real.has_caution(CautionCode.FORCED)
+        )

@@ -59,6 +59,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("wakemeter: interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:  # output piped into a command that stopped reading (| head): not an error of ours
+        sys.stderr.close()
+        return 0
 
 
 def _open_program(argv: list[str]) -> int:

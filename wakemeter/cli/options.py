@@ -53,6 +53,12 @@ def add_request_options(p: argparse.ArgumentParser) -> None:
         help="radar: slant range m, platform speed m/s, look bearing deg, incidence deg",
     )
     p.add_argument("--seed", type=int, default=0, help="seed of the Monte Carlo draws")
+    p.add_argument(
+        "--assume-vessel",
+        action="store_true",
+        help="give the speed of the waves here even when no hull or wake line marks a vessel at the point "
+        "(the result says so)",
+    )
 
 
 def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
@@ -87,6 +93,7 @@ def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
         hull_length_m=args.hull_length,
         radar_geometry=rg,
         seed=args.seed,
+        force=args.assume_vessel,
     )
 
 

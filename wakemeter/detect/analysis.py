@@ -24,10 +24,10 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from .apex import find_displaced_apex
 from .chip_measures import chip_outline
-from .decision import Decision, decide, decision_text
+from .decision import Decision, decide, decision_text, vessel_evidence
 from .depth_model import choose_depth_model
 from .explain import closing_cautions, depth_regime, interval_cover, opening_cautions, widen
-from .findings import Diagnostics, Drawing, PlotData, Segment, SegmentKind
+from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segment, SegmentKind
 from .look import Look, choose_look
 from .methods import SPEED_METHODS, MethodContext
 from .request import AnalysisRequest, RadarGeometry
@@ -175,15 +175,24 @@ def _from_displaced_apex(scene: Scene, request: AnalysisRequest, first: _Attempt
         return None
 
 
-def _no_wake(scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning) -> WakeAnalysis:
+def _no_wake(
+    scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning, *, no_vessel: bool = False
+) -> WakeAnalysis:
     frame = scene.local_frame(*a.vessel_px)
+    decision = decision_text(a.decision, a.look, tuning)
+    if no_vessel:
+        decision = (
+            f"no vessel at this point: waves stand out here (spectral significance "
+            f"{a.decision.significance:.1f}) but neither a hull nor a wake line starts at the point, so they "
+            "belong to a wake whose vessel is elsewhere; mark that vessel instead, or ask again assuming a vessel here"
+        )
     cautions = opening_cautions(
         hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
     )
     regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no wake: nothing to judge")
     return WakeAnalysis(
         False,
-        decision_text(a.decision, a.look, tuning),
+        decision,
         a.decision.significance,
         a.vessel_px,
         a.vessel_lonlat,
@@ -203,7 +212,10 @@ def _no_wake(scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning
         tuple(cautions),
         drawing=Drawing((chip_outline(a.look.chip),)),
         diagnostics=Diagnostics(
-            side_contrast=a.look.side_contrast, fit_speed_mps=a.look.fit.speed_mps, look_step=a.look.step
+            side_contrast=a.look.side_contrast,
+            fit_speed_mps=a.look.fit.speed_mps,
+            look_step=a.look.step,
+            vessel_evidence="none" if no_vessel else "",
         ),
         request=request,
     )
@@ -216,6 +228,11 @@ def _measure(
     model = choose_depth_model(look, a.decision, g=g, depth_m=request.depth_m, tuning=tuning)
     stage(0.45, "measuring crests and arms")
     measures = measure_wake(look, model, g=g, tuning=tuning)
+    evidence = vessel_evidence(
+        look, measures.lines, hull_elsewhere=a.hull_px is not None, forced=request.force, tuning=tuning
+    )
+    if evidence == "none":
+        return _no_wake(scene, request, a, tuning, no_vessel=True)
     stage(0.65, "estimating uncertainty")
     spread = estimate_spread(look, model, g=g, tuning=tuning)
     frame = scene.local_frame(*a.vessel_px)
@@ -268,6 +285,15 @@ def _measure(
             tuning=tuning,
         )
     )
+    if evidence == "forced":
+        cautions.insert(
+            1,
+            Caution(
+                CautionCode.FORCED,
+                "analysed at the analyst's insistence: neither a hull nor a "
+                "wake line starts at this point, so these waves may belong to another vessel",
+            ),
+        )
     drawing = measures.drawing.plus(s for o in outputs for s in o.segments)
     if a.hull_px is not None:  # from the hull as imaged to where its wake starts
         drawing = drawing.plus([Segment(SegmentKind.HULL_SHIFT, (a.hull_px, a.vessel_px))])
@@ -313,7 +339,13 @@ def _measure(
         tuple(cautions),
         drawing=drawing,
         diagnostics=Diagnostics(
-            look.side_contrast, look.fit.speed_mps, model.depth_gain, model.rule_out, spread.boot_speeds_mps, look.step
+            look.side_contrast,
+            look.fit.speed_mps,
+            model.depth_gain,
+            model.rule_out,
+            spread.boot_speeds_mps,
+            look.step,
+            evidence,
         ),
         lines=measures.lines,
         interval_cover=cover,

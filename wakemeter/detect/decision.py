@@ -13,6 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .findings import LineKind
 from .look import Look
 from .spectral import DepthFit, SpectrumPair, fit_speed_depth, fit_supercritical
 from .tuning import Tuning
@@ -64,3 +65,19 @@ def decision_text(decision: Decision, look: Look, tuning: Tuning) -> str:
         f"wake-side contrast {look.side_contrast:.1f} (needs {t.side_contrast_min}); thresholds set for "
         f"{t.false_alarm_note}"
     )
+
+
+def vessel_evidence(look: Look, lines: tuple, *, hull_elsewhere: bool, forced: bool, tuning: Tuning) -> str:
+    """What shows a vessel at the analysed point: its hull (a bright blob at the click, or the radar hull seen
+    shifted off this wake's start), or the apex of a V there: the radar narrow V, or Kelvin arms on both sides.
+    A turbulent wake alone does not count (it runs through every point ahead of the vessel on its track), nor
+    does one arm (a ray from a point beside the hull can run along the real arm).  Without any of these the
+    waves may be real but belong to a wake whose apex is elsewhere: "none" (or "forced" when the analyst
+    insisted).  Measured with benchmarks/phantom_sweep.py."""
+    if look.chip.hull_rc is not None or hull_elsewhere:
+        return "hull"
+    strong = [ln for ln in lines if ln.significance >= tuning.presence_line_min]
+    arms = {ln.angle_from_track_deg > 0 for ln in strong if ln.kind == LineKind.KELVIN_ARM}
+    if any(ln.kind == LineKind.NARROW_V for ln in strong) or arms == {True, False}:
+        return "wake lines"
+    return "forced" if forced else "none"

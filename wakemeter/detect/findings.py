@@ -33,6 +33,7 @@ class CautionCode(StrEnum):
     THROUGH_WATER = "through-water"  #: the speed is through the water, not over ground
     HAND_CREST = "hand-crest"  #: a crest spacing measured by hand is included
     HAND_ARM = "hand-arm"  #: the half-angle was corrected by hand
+    FORCED = "forced"  #: analysed at the analyst's insistence although no vessel was seen at the point
     NOTE = "note"  #: a caution read from an older record that names no code
 
 
@@ -179,6 +180,7 @@ class Diagnostics:
     shallow_rule_out: float = float("nan")  #: best score minus the score at Fr_h fr_rule_out
     boot_speeds_mps: tuple[float, ...] = ()  #: quarter-box speeds behind the uncertainty
     look_step: int = 1  #: decimation of the look used (1: full resolution)
+    vessel_evidence: str = ""  #: what shows a vessel at the point: "hull", "wake lines", "forced" or "none"
 
     def to_json(self) -> dict:
         return {
@@ -188,6 +190,7 @@ class Diagnostics:
             "shallow_rule_out": _num(self.shallow_rule_out),
             "boot_speeds_mps": [_num(v) for v in self.boot_speeds_mps],
             "look_step": self.look_step,
+            "vessel_evidence": self.vessel_evidence,
         }
 
     @classmethod
@@ -207,6 +210,7 @@ class Diagnostics:
             f("shallow_rule_out"),
             tuple(nan if v is None else float(v) for v in data.get("boot_speeds_mps") or ()),
             int(data.get("look_step") or 1),
+            str(data.get("vessel_evidence") or ""),
         )
 
 

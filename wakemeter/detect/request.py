@@ -115,6 +115,9 @@ class AnalysisRequest:
         Relative standard uncertainty of the pixel size.
     seed : int
         Seed of the Monte Carlo draws (results are reproducible).
+    force : bool
+        Give the waves' speed even when neither a hull nor a wake line marks a vessel at the point (the
+        result then says so); by default such waves are credited to no vessel.
     """
 
     vessel_px: Point | None = None
@@ -125,6 +128,7 @@ class AnalysisRequest:
     radar: bool | None = None
     pixel_rel_std: float = 0.005
     seed: int = 0
+    force: bool = False  #: analyse the waves here even when no vessel is seen at the point (said in the result)
 
     def __post_init__(self) -> None:
         if (self.vessel_px is None) == (self.vessel_lonlat is None):
@@ -148,6 +152,8 @@ class AnalysisRequest:
         rel = _finite(self.pixel_rel_std, "the pixel size uncertainty")
         if not 0 <= rel < 0.5:
             raise ParameterError(f"the pixel size uncertainty must be within 0-50 %, got {100 * rel:.1f} %")
+        if not isinstance(self.force, bool):
+            raise ParameterError(f"'force' must be true or false, got {self.force!r}")
         if isinstance(self.seed, bool) or not isinstance(self.seed, int) or self.seed < 0:
             raise ParameterError(f"the random seed must be a whole number >= 0, got {self.seed!r}")
 
@@ -170,6 +176,7 @@ class AnalysisRequest:
             "radar": self.radar,
             "pixel_rel_std": self.pixel_rel_std,
             "seed": self.seed,
+            "force": self.force,
         }
 
     @classmethod
@@ -211,6 +218,7 @@ class AnalysisRequest:
             radar=radar,
             pixel_rel_std=_finite(data.get("pixel_rel_std", 0.005), "the pixel size uncertainty"),
             seed=seed,
+            force=data.get("force", False),
         )
 
     @classmethod

@@ -24,6 +24,8 @@ class Tuning:
     """Thresholds and sizes of the analysis (units in the names; scores are standardised spectral power)."""
 
     # ---- the wake decision (benchmarks/null_sweep.py: 0 alarms in 354 trials at 640 px, 234 at 1024 px) ----
+    presence_line_min: float = 6.0  #: a wake line this significant through the point shows a vessel there
+    #: (without one and without a hull the waves belong to a wake whose apex is elsewhere: phantom_sweep.py)
     significance_min: float = 7.0  #: spectral significance needed to call a wake
     side_contrast_min: float = 8.0  #: wake-side contrast needed to call a wake
     wake_free_trials: int = 588  #: wake-free trials behind the two thresholds (null sweeps, 640 and 1024 px)
