@@ -118,6 +118,13 @@ def test_session_round_trip_and_damaged_file(win, qtbot, tmp_path):
     fut.write_text(json.dumps(future))
     assert not w2.controller.open_session(str(fut))
     assert "newer" in w2.last_error
+    # a field of the wrong type: one line naming it, the window keeps what it had
+    wrong = json.loads(saved)
+    wrong["vessels"][0]["id"] = "text"
+    wr = tmp_path / "wrong.json"
+    wr.write_text(json.dumps(wrong))
+    assert not w2.controller.open_session(str(wr))
+    assert "vessels[0].id must be a whole number" in w2.last_error and w2.doc.scene is not None
     # moved scene: the session asks where it is
     moved = json.loads(saved)
     moved["scene"]["path"] = "nowhere/scene.tif"
