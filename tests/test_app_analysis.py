@@ -235,3 +235,35 @@ def test_export_from_a_reopened_session_keeps_every_input(qtbot, tmp_path, monke
     assert main(["report", str(session), "--out", str(headless)]) == 0
     rec2 = json.loads(next(headless.glob("*.json")).read_text())["result"]
     assert rec2["speed_mps"] == rec["speed_mps"] and rec2["request"] == rec["request"]
+
+
+def test_quit_asks_before_discarding_and_keeps_the_autosave(qtbot, tmp_path, monkeypatch):
+    # unsaved vessels: cancel keeps the window; closing without saving keeps the autosave for the next start;
+    # discarding removes it; saved work closes without a question
+    from wakemeter.project.session import autosave_path
+
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+
+    def window():
+        w = MainWindow()
+        qtbot.addWidget(w)
+        w.show()
+        assert w.open_path(str(SCENE))
+        w.doc.undo.push(AddItem(w.doc, Vessel(w.doc.new_id(), "Saltmarsh Wren", (100.0, 100.0)), "mark vessel"))
+        return w
+
+    w = window()
+    asked = []
+    monkeypatch.setattr(w, "ask_unsaved", lambda: asked.append(1) or "cancel")
+    assert not w.close() and w.isVisible() and asked  # cancelled: nothing closed
+    monkeypatch.setattr(w, "ask_unsaved", lambda: "keep")
+    assert w.close()
+    assert autosave_path().exists()  # the unsaved work is still recoverable
+    w = window()
+    monkeypatch.setattr(w, "ask_unsaved", lambda: "discard")
+    assert w.close() and not autosave_path().exists()
+    w = window()
+    assert w.controller.save_session(str(tmp_path / "saved.json"))
+    monkeypatch.setattr(w, "ask_unsaved", lambda: pytest.fail("saved work must close without a question"))
+    assert w.close()

@@ -41,3 +41,28 @@ def test_messages_use_the_users_own_terms(capsys):
     assert "--transverse-wavelength must be a number > 0 m, got nan" in err and "array" not in err
     assert main(["analyze", scene]) == 2
     assert "--vessel LON,LAT or --vessel-px COL,ROW" in capsys.readouterr().err
+
+
+def test_mistyped_command_and_missing_folder_are_said_at_once(capsys, tmp_path):
+    assert main(["analyse", "scene.tif"]) == 2  # British spelling: a suggestion, not the program
+    assert "did you mean 'wakemeter analyze'?" in capsys.readouterr().err
+    missing = tmp_path / "no_such_folder"
+    assert main(["report", "sample_scenes/calm_no_wake.tif", "--vessel-px", "384,384", "--out", str(missing)]) == 2
+    assert "does not exist (create it first)" in capsys.readouterr().err
+
+
+def test_missing_window_libraries_are_named_in_one_line(monkeypatch, capsys):
+    # libxcb-cursor0, -icccm4 and -keysyms1 were missing on a fresh Debian-like machine (Qt then aborts with a
+    # long message); the program names them and the package to install instead
+    import ctypes.util
+
+    from wakemeter.app import main as app_main
+
+    monkeypatch.setenv("DISPLAY", ":0")
+    monkeypatch.setenv("QT_QPA_PLATFORM", "")
+    monkeypatch.delenv("WAKEMETER_SKIP_LIBRARY_CHECK", raising=False)
+    monkeypatch.setattr(ctypes.util, "find_library", lambda name: None if name == "xcb-cursor" else f"lib{name}.so")
+    assert app_main.missing_system_libraries() == ["libxcb-cursor0"]
+    assert app_main.run_program([]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "sudo apt install libxcb-cursor0" in err[0]

@@ -144,6 +144,7 @@ class Controller(QObject):
             self.host.error("Could not save the session", str(err))
             return False
         self.session_path = path
+        self.doc.undo.setClean()
         self.host.say(f"session saved: {path}")
         return True
 
@@ -211,10 +212,18 @@ class Controller(QObject):
         p.unlink(missing_ok=True)
         return False
 
-    def closing(self) -> None:
-        """A clean exit: the autosave is no longer needed."""
+    def has_unsaved_work(self) -> bool:
+        """Vessels or measurements changed since the session was last saved or opened."""
+        return bool(self.doc.vessels or self.doc.measurements) and not self.doc.undo.isClean()
+
+    def closing(self, *, discard: bool = False) -> None:
+        """The window closes: the autosave is removed only when nothing would be lost (the work was saved,
+        or the analyst chose to discard it); otherwise it is kept and offered at the next start."""
         self.autosave.stop()
-        session_mod.autosave_path().unlink(missing_ok=True)
+        if discard or not self.has_unsaved_work():
+            session_mod.autosave_path().unlink(missing_ok=True)
+        else:
+            self.autosave_now()
 
     # ---- evidence ---------------------------------------------------------
     def export(self, vid: int, folder: str, *, ask: bool = False, force: bool = False, analyst: str | None = None):

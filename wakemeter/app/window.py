@@ -7,7 +7,7 @@ from pathlib import Path
 
 import numpy as np
 from PySide6.QtCore import QSettings, Qt, QTimer
-from PySide6.QtGui import QAction, QActionGroup, QIcon, QKeySequence
+from PySide6.QtGui import QAction, QActionGroup, QGuiApplication, QIcon, QKeySequence
 from PySide6.QtWidgets import (
     QDockWidget,
     QFileDialog,
@@ -117,6 +117,8 @@ class MainWindow(QMainWindow):
             act = vm.addAction(text, fn)
             act.setShortcut(QKeySequence(key))
         vm.addSeparator()
+        self.panels_menu = vm.addMenu("&Panels")  # docks closed by the user come back from here
+        vm.addSeparator()
         vm.addAction("Brighter (gamma up)", lambda: self._contrast(1.25))
         vm.addAction("Darker (gamma down)", lambda: self._contrast(0.8))
         vm.addAction("Choose &bands…", self.choose_bands)
@@ -176,6 +178,8 @@ class MainWindow(QMainWindow):
         self.resizeDocks([dock, results], [400, 400], Qt.Orientation.Horizontal)
         self.resizeDocks([dock, results], [160, 600], Qt.Orientation.Vertical)
         self.results_dock = results
+        self.panels_menu.addAction(dock.toggleViewAction())
+        self.panels_menu.addAction(results.toggleViewAction())
 
     def _build_status(self) -> None:
         sb = self.statusBar()
@@ -515,12 +519,40 @@ class MainWindow(QMainWindow):
         c = self.canvas.loader.contrast
         self.canvas.set_contrast(db=self.db_action.isChecked(), bands=c.bands if c else None)
 
+    def ask_unsaved(self) -> str:
+        """'save', 'discard', 'cancel', or 'keep' (close and keep the autosave: nobody to ask offscreen)."""
+        if QGuiApplication.platformName() == "offscreen":
+            return "keep"
+        box = QMessageBox(
+            QMessageBox.Icon.Question,
+            "Unsaved work",
+            "The vessels and measurements have changed since they were last saved.",
+            parent=self,
+        )
+        save = box.addButton("Save session…", QMessageBox.ButtonRole.AcceptRole)
+        discard = box.addButton("Discard", QMessageBox.ButtonRole.DestructiveRole)
+        box.addButton(QMessageBox.StandardButton.Cancel)
+        box.exec()
+        return "save" if box.clickedButton() is save else "discard" if box.clickedButton() is discard else "cancel"
+
     def closeEvent(self, ev) -> None:
+        discard = False
+        if self.controller.has_unsaved_work():
+            answer = self.ask_unsaved()
+            if answer == "save":
+                self.save_dialog()
+                if self.controller.has_unsaved_work():  # not saved after all
+                    ev.ignore()
+                    return
+            elif answer == "cancel":
+                ev.ignore()
+                return
+            discard = answer == "discard"
         if self.job is not None:
             self.job.cancel()
             self.job.worker_thread.wait(5000)
         self.canvas.loader.shutdown()
-        self.controller.closing()
+        self.controller.closing(discard=discard)
         super().closeEvent(ev)
 
 

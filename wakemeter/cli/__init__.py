@@ -9,8 +9,10 @@ traceback.
 from __future__ import annotations
 
 import argparse
+import difflib
 import sys
 from collections.abc import Sequence
+from pathlib import Path
 from typing import NoReturn
 
 from .. import __version__
@@ -48,6 +50,11 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     argv = join_negative_lists(list(sys.argv[1:] if argv is None else argv))
+    if argv and argv[0] not in COMMANDS and _looks_like_a_command(argv[0]):
+        close = difflib.get_close_matches(argv[0], COMMANDS, n=1, cutoff=0.6)
+        hint = f"; did you mean 'wakemeter {close[0]}'?" if close else "; 'wakemeter --help' lists the commands"
+        print(f"wakemeter: '{argv[0]}' is neither a command nor a file{hint}", file=sys.stderr)
+        return 2
     if not argv or (argv[0] not in COMMANDS and argv[0] not in ("-h", "--help", "--version")):
         return _open_program(argv)
     args = build_parser().parse_args(argv)
@@ -62,6 +69,11 @@ def main(argv: Sequence[str] | None = None) -> int:
     except BrokenPipeError:  # output piped into a command that stopped reading (| head): not an error of ours
         sys.stderr.close()
         return 0
+
+
+def _looks_like_a_command(word: str) -> bool:
+    """A bare word that is not a file (``wakemeter analyse``): a mistyped command, not a scene to open."""
+    return word.isalpha() and not Path(word).exists()
 
 
 def _open_program(argv: list[str]) -> int:

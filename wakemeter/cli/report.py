@@ -23,6 +23,7 @@ def run(args: argparse.Namespace) -> int:
     from ..evidence.from_session import is_session, report_from_session
     from ..scene.raster import open_scene
 
+    _check_folder(args.out)  # before any analysis: a missing folder is said at once
     if is_session(args.scene):  # a saved session instead of a scene: every vessel not rejected
         for files in report_from_session(args.scene, args.out, analyst=args.analyst, force=args.force):
             print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
@@ -42,6 +43,19 @@ def run(args: argparse.Namespace) -> int:
         print("no wake found: the report says so and gives no speed")
     print(CAUTION_LINE)
     return 0
+
+
+def _check_folder(folder: str) -> None:
+    import os
+    from pathlib import Path
+
+    from ..errors import SceneWriteError
+
+    p = Path(folder)
+    if not p.is_dir():
+        raise SceneWriteError(f"the output folder {folder} does not exist (create it first)")
+    if not os.access(p, os.W_OK):
+        raise SceneWriteError(f"the output folder {folder} is not writable")
 
 
 COMMAND = Command(
