@@ -363,3 +363,22 @@ def test_no_speed_for_a_point_without_a_vessel():
         assert (
             real.wake_found and real.diagnostics.vessel_evidence == "hull" and not real.has_caution(CautionCode.FORCED)
         )
+
+
+def test_a_given_depth_that_the_waves_contradict_is_said():
+    # Synthetic truth: the harbour demo is deep water (7.202 m/s), the shoal demo 5.0 m deep
+    # (tallow_shoal_shallow.truth.json).  A wrong depth (3 m on the deep demo, 8 m on the 5 m shoal) must be
+    # called out with the fit without it; the true depth (or 200 m of deep water) must not.
+    shoal = json.loads((ROOT / "sample_scenes" / "tallow_shoal_shallow.truth.json").read_text())["vessels"][0]
+    for scene, px, depth, contradicted in (
+        ("harbour_approach_optical.tif", (789.0, 373.0), 3.0, True),
+        ("harbour_approach_optical.tif", (789.0, 373.0), 200.0, False),
+        ("tallow_shoal_shallow.tif", (shoal["pixel_col"], shoal["pixel_row"]), 8.0, True),
+        ("tallow_shoal_shallow.tif", (shoal["pixel_col"], shoal["pixel_row"]), 5.0, False),
+    ):
+        with open_scene(ROOT / "sample_scenes" / scene) as sc:
+            a = analyze(sc, AnalysisRequest(vessel_px=px, depth=Uncertain(depth, 0.5)))
+        assert a.wake_found
+        assert a.has_caution(CautionCode.DEPTH_CONTRADICTED) is contradicted, (scene, depth)
+    with pytest.raises(ParameterError, match="deeper than any ocean"):
+        AnalysisRequest(vessel_px=(1.0, 1.0), depth=Uncertain(100_000.0, 0.0))

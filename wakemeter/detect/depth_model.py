@@ -15,8 +15,22 @@ import numpy as np
 
 from .decision import Decision
 from .look import Look
-from .spectral import DepthFit, fit_at_froude
+from .spectral import DepthFit, fit_at_froude, fit_curve, fit_speed_depth
 from .tuning import Tuning
+
+
+@dataclass(frozen=True)
+class DepthCheck:
+    """The given depth against what the waves say without it."""
+
+    alternative: str  #: "deep water" or "water about N m deep"
+    speed_mps: float  #: the speed the alternative fit reads
+    score: float  #: its score
+    given_score: float  #: the score at the given depth
+
+    @property
+    def gain(self) -> float:
+        return self.score - self.given_score
 
 
 @dataclass(frozen=True, eq=False)
@@ -33,6 +47,7 @@ class DepthModel:
     shallow_alt: DepthFit | None  #: the fit at Fr_h fr_rule_out
     open_alts: tuple[tuple[float, DepthFit], ...]  #: shallower fits not ruled out: (Fr_h, fit)
     deep_score: float  #: score of the deep-water (or given-depth) fit
+    depth_check: DepthCheck | None = None  #: with a given depth: the best fit without it
 
     def shallow_open(self, tuning: Tuning) -> bool:
         """Shallow water (Fr_h fr_rule_out) fits almost as well as the best: the regime stays unknown."""
@@ -46,7 +61,19 @@ def choose_depth_model(
     fit, joint, sup = look.fit, decision.joint, decision.sup
     if depth_m is not None:
         return DepthModel(
-            fit.speed_mps, float(depth_m), fit.delta_deg, True, False, False, "", np.nan, np.nan, None, (), fit.score
+            fit.speed_mps,
+            float(depth_m),
+            fit.delta_deg,
+            True,
+            False,
+            False,
+            "",
+            np.nan,
+            np.nan,
+            None,
+            (),
+            fit.score,
+            check_given_depth(look, decision, g=g, tuning=t),
         )
     gain = joint.score - fit.score if np.isfinite(joint.score) else np.nan
     if decision.supercritical:
@@ -107,3 +134,19 @@ def choose_depth_model(
         tuple(open_alts),
         fit.score,
     )
+
+
+def check_given_depth(look: Look, decision: Decision, *, g: float, tuning: Tuning) -> DepthCheck | None:
+    """Fit the waves without the given depth (deep water, and speed, depth and track together) and return the
+    better of the two, so that a wrong chart depth or tide shows (the result then says so)."""
+    t = tuning
+    fit, sp = look.fit, decision.spectrum
+    deep = fit_curve(sp, g=g, depth_m=np.inf, delta_max_deg=t.delta_max_deg, delta_step_deg=t.delta_step_deg)
+    best = None
+    if np.isfinite(deep.score):
+        best = DepthCheck("deep water", deep.speed_mps, deep.score, fit.score)
+    if np.isfinite(fit.speed_mps):
+        joint = fit_speed_depth(sp, fit.speed_mps, fit.delta_deg, g=g)
+        if np.isfinite(joint.score) and (best is None or joint.score > best.score):
+            best = DepthCheck(f"water about {joint.depth_m:.1f} m deep", joint.speed_mps, joint.score, fit.score)
+    return best

@@ -173,6 +173,17 @@ def closing_cautions(
         out.append(Caution(CautionCode.NARROW_ARMS, msg))
     if not combined.consistent:
         out.append(Caution(CautionCode.METHODS_DISAGREE, combined.verdict))
+    check = model.depth_check
+    if depth_given and check is not None and check.gain >= t.depth_check_gain_min:
+        out.append(
+            Caution(
+                CautionCode.DEPTH_CONTRADICTED,
+                f"the waves contradict the given depth of {model.depth_m:.1f} m: {check.alternative} fits them "
+                f"clearly better (score {check.score:.1f} against {check.given_score:.1f}) and reads "
+                f"{check.speed_mps:.2f} m/s, against {combined.speed_mps:.2f} m/s at the given depth; check the depth "
+                "(chart datum, tide)",
+            )
+        )
     h_alt = model.speed_mps**2 / (g * t.fr_rule_out**2)
     if model.fitted:
         out.append(

@@ -30,6 +30,7 @@ class CautionCode(StrEnum):
     DEPTH_FITTED = "depth-fitted"  #: depth not given, fitted to the waves
     DEPTH_OPEN = "depth-open"  #: depth not given, deep and shallow water both fit
     DEEP_ASSUMED = "deep-assumed"  #: depth not given, deep water assumed
+    DEPTH_CONTRADICTED = "depth-contradicted"  #: the waves fit another depth clearly better than the given one
     THROUGH_WATER = "through-water"  #: the speed is through the water, not over ground
     HAND_CREST = "hand-crest"  #: a crest spacing measured by hand is included
     HAND_ARM = "hand-arm"  #: the half-angle was corrected by hand

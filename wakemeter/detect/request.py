@@ -17,6 +17,8 @@ from ..errors import ParameterError
 from ..physics.inversion import Uncertain
 
 REQUEST_SCHEMA = "wakemeter.request/1"
+#: the deepest ocean trench is about 11 km (Challenger Deep, from memory); a larger depth is a typing error
+MAX_DEPTH_M = 12_000.0
 Point = tuple[float, float]
 
 
@@ -145,8 +147,11 @@ class AnalysisRequest:
                     "(longitude -180 to 360, latitude -90 to 90)"
                 )
             object.__setattr__(self, "vessel_lonlat", (lon, lat))
-        if self.depth is not None and not self.depth.value > 0:
-            raise ParameterError(f"the water depth must be > 0 m, got {self.depth.value!r}")
+        if self.depth is not None and not 0 < self.depth.value <= MAX_DEPTH_M:
+            raise ParameterError(
+                f"the water depth must be > 0 m and at most {MAX_DEPTH_M:.0f} m (deeper than any "
+                f"ocean), got {self.depth.value:g} m"
+            )
         if self.hull_length_m is not None and not _finite(self.hull_length_m, "the hull length") > 0:
             raise ParameterError(f"the hull length must be > 0 m, got {self.hull_length_m!r}")
         rel = _finite(self.pixel_rel_std, "the pixel size uncertainty")

@@ -49,6 +49,9 @@ class Tuning:
     fr_rule_out: float = 0.9  #: Fr_h whose fit must score rule_out_min below the best to call deep water
     rule_out_min: float = 1.5  #: score drop that rules a depth out
     fr_open_check: tuple[float, ...] = (0.75, 0.9)  #: Fr_h tried against the best fit for the interval's cover
+    #: a given depth is contradicted when deep water or a fitted depth scores this much better (24 cases with the
+    #: true depth given, seeds 300-311, 420-425, 430-435: largest gain 0.43; with a wrong depth 19 of 24 above)
+    depth_check_gain_min: float = 1.5
     super_gain_min: float = 2.0  #: supercritical curve must beat the others by this (seeds 470-477, Fr_h 1.3)
     super_significance_min: float = 9.0  #: a wake seen only through the supercritical curve needs this
     # ---- crests and arms ----
