@@ -209,3 +209,12 @@ def test_recent_scenes_survive_two_launches(tmp_path):
         [sys.executable, "-c", code], env=env, check=True, capture_output=True, text=True, timeout=120
     ).stdout.strip()
     assert out.split("|") == [scene]
+
+
+def test_help_menu_opens_its_texts(win):
+    titles = [a.text().replace("&", "") for a in win.help_menu.actions()]
+    assert titles == ["Keys and tools", "How the speed is measured", "About wakemeter"]
+    for act in win.help_menu.actions():
+        act.trigger()
+        assert win.last_help
+    assert "wakemeter 0." in win.last_help and "GDAL" in win.last_help  # About: versions

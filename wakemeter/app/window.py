@@ -26,6 +26,7 @@ from PySide6.QtWidgets import (
 
 from ..errors import WakemeterError
 from ..scene import geodesy
+from . import help_texts
 from .canvas import Canvas
 from .document import ChangeItem, Document, Measurement, RemoveItem, SetCalibration, Vessel
 from .results import ResultsPanel
@@ -148,6 +149,13 @@ class MainWindow(QMainWindow):
         run.triggered.connect(lambda: self.controller.analyse_selected())
         tb.addAction(run)
         self.toolbar = tb
+        hm = mb.addMenu("&Help")
+        hm.addAction("&Keys and tools", lambda: self._show_text("Keys and tools", help_texts.keys_text(TOOL_INFO)))
+        hm.addAction(
+            "&How the speed is measured", lambda: self._show_text("How the speed is measured", help_texts.METHODS)
+        )
+        hm.addAction("&About wakemeter", lambda: self._show_text("About wakemeter", help_texts.about_text()))
+        self.help_menu = hm
 
     def _build_panels(self) -> None:
         self.items = QListWidget()
@@ -514,6 +522,12 @@ class MainWindow(QMainWindow):
             self.error("Bands not changed", str(err))
             return False
         return True
+
+    def _show_text(self, title: str, text: str) -> None:
+        box = QMessageBox(QMessageBox.Icon.NoIcon, title, text, QMessageBox.StandardButton.Close, self)
+        box.setModal(False)
+        box.open()
+        self.last_help = text
 
     def _toggle_db(self) -> None:
         c = self.canvas.loader.contrast

@@ -364,16 +364,20 @@ def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) ->
     outlier = None
     methods = tuple(e.method for e in estimates)
     if dof == 0:
-        verdict = "single method: no consistency check possible"
+        verdict = "one method only: no cross-check possible"
     elif consistent:
-        verdict = f"methods agree (chi2 = {chi2:.2f} on {dof} dof, p = {p:.2f})"
+        verdict = (
+            f"the methods agree within their uncertainties (chance of a spread this large or larger: "
+            f"{100 * p:.0f} %, chi-square test)"
+        )
     else:
         resid = np.abs(x - mean) / s
         outlier = methods[int(np.argmax(resid))]
         std *= float(np.sqrt(chi2 / dof))
         verdict = (
-            f"methods DISAGREE (chi2 = {chi2:.2f} on {dof} dof, p = {p:.3f}); "
-            f"'{outlier}' stands out; uncertainty inflated by the Birge ratio"
+            f"methods DISAGREE: their spread has a chance of only {100 * p:.1f} % (chi-square test); "
+            f"'{outlier}' stands out; the uncertainty was widened by the excess spread (x {np.sqrt(chi2 / dof):.2f}, "
+            "Birge ratio)"
         )
     return CombinedSpeed(
         mean, std, mean - 1.959964 * std, mean + 1.959964 * std, chi2, dof, p, consistent, outlier, methods, verdict
