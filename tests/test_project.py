@@ -8,6 +8,7 @@ import json
 from dataclasses import replace
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 from wakemeter.detect import methods as methods_mod
@@ -160,3 +161,26 @@ def test_session_round_trip_and_older_sessions(demo, tmp_path):
     bad["vessels"][0]["position_px"] = {"a": 1}
     with pytest.raises(session_mod.SessionError, match="damaged"):
         session_mod.fill_project(Project(), bad)
+
+
+def test_hand_uncertainty_follows_the_zoom_and_arms_use_the_analysed_track(demo):
+    # Placement: a point is uncertain by about 2 screen pixels (common practice, no source), so a 300-px track
+    # drawn at zoom 0.5 is uncertain by sqrt(2) * 4 / 300 rad = 1.1 deg, not the 0.1 deg of a full-zoom point.
+    from wakemeter.detect import handmeasure as hm
+
+    sc, a = demo
+    assert hm.placement_px(0.5) == pytest.approx(4.0) and hm.placement_px(8.0) == hm.PLACEMENT_PX
+    far = (POS[0] - 268.0, POS[1] + 134.0)  # about 300 px back along the wake
+    coarse = hm.track_heading(sc, POS, far, placement=hm.placement_px(0.5))
+    fine = hm.track_heading(sc, POS, far)
+    assert coarse.bearing_std_deg == pytest.approx(np.degrees(np.sqrt(2) * 4.0 / np.hypot(268.0, 134.0)), rel=1e-6)
+    assert coarse.bearing_std_deg > 5 * fine.bearing_std_deg
+    # an arm with no hand track is measured against the track the analysis found (with its heading uncertainty)
+    p = Project()
+    p.scene = sc
+    p.put(Vessel(1, "Saltmarsh Wren", POS))
+    p.findings[1] = a
+    p.put(Measurement(2, "arm", (POS, (POS[0] - 250.0, POS[1] + 40.0)), 1))
+    arm = p.measurements[2]
+    assert not arm.error and "to the analysed track" in arm.text
+    assert arm.values["half_angle_std_deg"] >= a.heading_std_deg

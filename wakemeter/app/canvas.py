@@ -8,6 +8,7 @@ undoable commands on the document.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt, Signal
@@ -15,6 +16,7 @@ from PySide6.QtGui import QBrush, QColor, QFont, QPainter, QPainterPath, QPen, Q
 from PySide6.QtWidgets import QWidget
 
 from ..detect.findings import SegmentKind
+from ..detect.handmeasure import placement_px
 from ..errors import WakemeterError
 from .document import AddItem, ChangeItem, Document, Measurement, Vessel
 from .tiles import TILE, TileLoader, estimate_contrast
@@ -387,8 +389,8 @@ class Canvas(QWidget):
             else:
                 pts = list(cur.points)
                 pts[idx] = (sp.x(), sp.y())
-                self.doc.measurements[cur.id] = Measurement(
-                    cur.id, cur.kind, tuple(pts), cur.vessel_id, cur.text, cur.values, cur.error
+                self.doc.measurements[cur.id] = replace(
+                    cur, points=tuple(pts), placement_px=max(cur.placement_px, placement_px(self.zoom))
                 )
             self.update()
 
@@ -420,7 +422,8 @@ class Canvas(QWidget):
             v = self.doc.vessels[vid]
             if math.dist(v.position, p1) < math.dist(v.position, p0):
                 p0, p1 = p1, p0
-        m = Measurement(self.doc.new_id(), kind, (p0, p1), vid)
+        # each point is as uncertain as the zoom it was placed at (a few screen pixels)
+        m = Measurement(self.doc.new_id(), kind, (p0, p1), vid, placement_px=placement_px(self.zoom))
         self.doc.undo.push(AddItem(self.doc, m, f"draw {kind}"))
 
     def wheelEvent(self, ev) -> None:

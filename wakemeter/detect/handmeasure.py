@@ -18,8 +18,19 @@ from ..scene import display
 from ..scene.raster import Scene
 from .spectral import crest_spacing
 
-#: Standard uncertainty of placing a point by hand, in pixels (common practice, no source).
+#: Standard uncertainty of placing a point by hand, in scene pixels, at full zoom (common practice, no source).
 PLACEMENT_PX = 0.5
+#: ... and in screen pixels: a point placed on a zoomed-out view is uncertain by this many screen pixels
+#: (common practice, no source); see :func:`placement_px`.
+PLACEMENT_SCREEN_PX = 2.0
+
+
+def placement_px(zoom: float) -> float:
+    """Standard uncertainty (scene pixels) of a point placed at ``zoom`` screen pixels per scene pixel."""
+    if not (np.isfinite(zoom) and zoom > 0):
+        raise ParameterError(f"zoom must be > 0, got {zoom!r}")
+    return max(PLACEMENT_PX, PLACEMENT_SCREEN_PX / zoom)
+
 
 Point = tuple[float, float]
 
@@ -39,8 +50,9 @@ class Ruler:
     bearing_std_deg: float
 
 
-def ruler(scene: Scene, p0: Point, p1: Point) -> Ruler:
-    """Ground length and true bearing of a line (first point to second)."""
+def ruler(scene: Scene, p0: Point, p1: Point, *, placement: float = PLACEMENT_PX) -> Ruler:
+    """Ground length and true bearing of a line (first point to second); ``placement`` is the standard
+    uncertainty of each point in scene pixels."""
     d_px = _check(p0, p1)
     mid = ((p0[0] + p1[0]) / 2, (p0[1] + p1[1]) / 2)
     f = scene.local_frame(*mid)
@@ -53,23 +65,31 @@ def ruler(scene: Scene, p0: Point, p1: Point) -> Ruler:
         length, bearing = float(f.length_of(dc, dr)), float(f.bearing_of(dc, dr))
     m_px = length / d_px
     return Ruler(
-        length, np.sqrt(2) * PLACEMENT_PX * m_px, bearing % 360.0, float(np.degrees(np.sqrt(2) * PLACEMENT_PX / d_px))
+        length, np.sqrt(2) * placement * m_px, bearing % 360.0, float(np.degrees(np.sqrt(2) * placement / d_px))
     )
 
 
-def track_heading(scene: Scene, vessel: Point, wake_end: Point) -> Ruler:
+def track_heading(scene: Scene, vessel: Point, wake_end: Point, *, placement: float = PLACEMENT_PX) -> Ruler:
     """Heading of a vessel from a line drawn from it back along its wake: travel is away from the wake."""
-    r = ruler(scene, wake_end, vessel)
-    return r
+    return ruler(scene, wake_end, vessel, placement=placement)
 
 
-def angle_to_track(scene: Scene, track: tuple[Point, Point], arm: tuple[Point, Point]) -> tuple[float, float]:
-    """Angle (deg) between an arm line and the track, folded into [0, 90], and its standard uncertainty."""
-    t = ruler(scene, *track)
-    a = ruler(scene, *arm)
+def angle_to_track(
+    scene: Scene,
+    track: tuple[Point, Point],
+    arm: tuple[Point, Point],
+    *,
+    placement: float = PLACEMENT_PX,
+    track_std_deg: float | None = None,
+) -> tuple[float, float]:
+    """Angle (deg) between an arm line and the track, folded into [0, 90], and its standard uncertainty.
+
+    ``track_std_deg`` replaces the drawn track's own uncertainty when the track comes from the analysis."""
+    t = ruler(scene, *track, placement=placement)
+    a = ruler(scene, *arm, placement=placement)
     d = abs(((a.bearing_deg - t.bearing_deg) + 180.0) % 360.0 - 180.0)
     d = min(d, 180.0 - d)
-    return float(d), float(np.hypot(t.bearing_std_deg, a.bearing_std_deg))
+    return float(d), float(np.hypot(t.bearing_std_deg if track_std_deg is None else track_std_deg, a.bearing_std_deg))
 
 
 @dataclass(frozen=True)
@@ -82,7 +102,14 @@ class CrestRuler:
     step_m: float  #: ground distance between profile samples
 
 
-def crest_ruler(scene: Scene, p0: Point, p1: Point, *, band_m: tuple[float, float] | None = None) -> CrestRuler:
+def crest_ruler(
+    scene: Scene,
+    p0: Point,
+    p1: Point,
+    *,
+    band_m: tuple[float, float] | None = None,
+    placement: float = PLACEMENT_PX,
+) -> CrestRuler:
     """Crest spacing along a line drawn across a train of crests (profile FFT, sub-bin peak).
 
     Draw the line perpendicular to the crests; the spacing is then the wavelength.
@@ -90,7 +117,7 @@ def crest_ruler(scene: Scene, p0: Point, p1: Point, *, band_m: tuple[float, floa
     d_px = _check(p0, p1)
     if d_px < 16:
         raise ParameterError("the crest ruler needs at least 16 pixels (a few crests) to measure a spacing")
-    r = ruler(scene, p0, p1)
+    r = ruler(scene, p0, p1, placement=placement)
     c0, r0 = int(np.floor(min(p0[0], p1[0]))) - 2, int(np.floor(min(p0[1], p1[1]))) - 2
     c1, r1 = int(np.ceil(max(p0[0], p1[0]))) + 3, int(np.ceil(max(p0[1], p1[1]))) + 3
     c0, r0 = max(c0, 0), max(r0, 0)

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field, replace
 from enum import StrEnum
 
 from ..detect import handmeasure as hm
+from ..detect.findings import SegmentKind
 from ..detect.request import AnalysisRequest
 from ..detect.result import WakeAnalysis
 from ..detect.revise import revise, with_crest_lines
@@ -56,6 +57,7 @@ class Measurement:
     text: str = ""  #: value and standard uncertainty, for display
     values: dict = field(default_factory=dict, compare=False)
     error: str = ""
+    placement_px: float = hm.PLACEMENT_PX  #: standard uncertainty of each point (scene px), from the zoom used
 
 
 @dataclass(frozen=True)
@@ -159,6 +161,19 @@ class Project:
         ]
         return tracks[-1] if tracks else None
 
+    def reference_track(self, vessel_id: int | None) -> tuple[tuple[Point, Point], float | None, str] | None:
+        """The track arms and crest rulers are measured against: the vessel's hand-drawn track, else the track
+        its analysis found (with the analysis' heading uncertainty); (points, std deg or None, source)."""
+        hand = self.track_of(vessel_id)
+        if hand is not None:
+            return hand.points, None, "hand"
+        finding = self.findings.get(vessel_id) if vessel_id is not None else None
+        seg = finding.drawing.first(SegmentKind.TRACK) if finding is not None and finding.wake_found else None
+        if seg is None:
+            return None
+        std = finding.heading_std_deg if finding is not None else None
+        return (seg.points[0], seg.points[-1]), std, "analysis"
+
     def evaluate(self, m: Measurement) -> Measurement:
         """Recompute a measurement's value with the core; errors become a message, not an exception."""
         sc = self.scene
@@ -171,7 +186,7 @@ class Project:
             if not sc.info.georeferenced and sc.calibration is None:
                 return replace(m, text="", error="calibrate the image first (pixel size or two points)")
             if m.kind == MeasureKind.RULER:
-                r = hm.ruler(sc, *m.points)
+                r = hm.ruler(sc, *m.points, placement=m.placement_px)
                 return replace(
                     m,
                     values={"length_m": r.length_m, "length_std_m": r.length_std_m, "bearing_deg": r.bearing_deg},
@@ -179,7 +194,7 @@ class Project:
                     error="",
                 )
             if m.kind == MeasureKind.TRACK:
-                t = hm.track_heading(sc, m.points[0], m.points[1])
+                t = hm.track_heading(sc, m.points[0], m.points[1], placement=m.placement_px)
                 return replace(
                     m,
                     values={"heading_deg": t.bearing_deg, "heading_std_deg": t.bearing_std_deg},
@@ -188,18 +203,19 @@ class Project:
                     error="",
                 )
             if m.kind == MeasureKind.ARM:
-                track = self.track_of(m.vessel_id)
-                if track is None:
-                    return replace(m, text="", error="draw the vessel's track first")
-                a, sd = hm.angle_to_track(sc, track.points, m.points)
+                ref = self.reference_track(m.vessel_id)
+                if ref is None:
+                    return replace(m, text="", error="draw the vessel's track first, or analyse the vessel")
+                points, track_std, source = ref
+                a, sd = hm.angle_to_track(sc, points, m.points, placement=m.placement_px, track_std_deg=track_std)
                 return replace(
                     m,
                     values={"half_angle_deg": a, "half_angle_std_deg": sd},
-                    text=f"half-angle {a:.1f} ± {sd:.1f}°",
+                    text=f"half-angle {a:.1f} ± {sd:.1f}°" + ("" if source == "hand" else " (to the analysed track)"),
                     error="",
                 )
             if m.kind == MeasureKind.CREST:
-                c = hm.crest_ruler(sc, *m.points)
+                c = hm.crest_ruler(sc, *m.points, placement=m.placement_px)
                 values = {
                     "spacing_m": c.spacing_m,
                     "spacing_std_m": c.spacing_std_m,
@@ -208,9 +224,9 @@ class Project:
                     "step_m": c.step_m,
                 }
                 text = f"crests {c.spacing_m:.1f} ± {c.spacing_std_m:.1f} m"
-                track = self.track_of(m.vessel_id)
-                if track is not None:
-                    ang, _ = hm.angle_to_track(sc, track.points, m.points)
+                ref = self.reference_track(m.vessel_id)
+                if ref is not None:
+                    ang, _ = hm.angle_to_track(sc, ref[0], m.points, placement=m.placement_px, track_std_deg=ref[1])
                     values["angle_to_track_deg"] = ang
                     text += f", {ang:.0f}° to track"
                 return replace(m, values=values, text=text, error="")

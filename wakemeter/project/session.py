@@ -258,6 +258,7 @@ def to_session(project: Project) -> dict:
                 "kind": str(m.kind),
                 "points_px": [list(p) for p in m.points],
                 "vessel_id": m.vessel_id,
+                "placement_px": m.placement_px,
                 "values": {k: v for k, v in m.values.items() if k in ("distance_m",)},
             }
             for m in project.measurements.values()
@@ -287,6 +288,7 @@ def fill_project(project: Project, data: dict) -> None:
                 (_point(pts[0]), _point(pts[1])),
                 None if m.get("vessel_id") is None else int(m["vessel_id"]),
                 values=dict(m.get("values") or {}),
+                placement_px=float(m.get("placement_px") or Measurement.placement_px),
             )
             project.measurements[item.id] = item
         requests = data.get("requests")
