@@ -267,3 +267,24 @@ def test_quit_asks_before_discarding_and_keeps_the_autosave(qtbot, tmp_path, mon
     assert w.controller.save_session(str(tmp_path / "saved.json"))
     monkeypatch.setattr(w, "ask_unsaved", lambda: pytest.fail("saved work must close without a question"))
     assert w.close()
+
+
+def test_assume_a_vessel_from_the_panel(qtbot, tmp_path, monkeypatch):
+    # open water inside the demo vessel's wave field (pixel 200, 200; harbour_approach_optical.truth.json has
+    # the only vessel at 789, 373): no speed unless the analyst ticks "assume a vessel here"
+    from wakemeter.detect.findings import CautionCode
+
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    w = MainWindow()
+    qtbot.addWidget(w)
+    w.show()
+    assert w.open_path(str(SCENE))
+    w.doc.undo.push(AddItem(w.doc, Vessel(w.doc.new_id(), "Nobody", (200.0, 200.0)), "mark vessel"))
+    vid = next(iter(w.doc.vessels))
+    _analyse(w, qtbot)
+    assert not w.doc.findings[vid].wake_found and "no vessel at this point" in w.controller.panel.text.toHtml()
+    w.controller.panel.assume_vessel.setChecked(True)
+    _analyse(w, qtbot)
+    forced = w.doc.findings[vid]
+    assert forced.wake_found and forced.has_caution(CautionCode.FORCED) and forced.request.force
+    w.close()

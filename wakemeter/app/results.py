@@ -66,6 +66,12 @@ class ResultsPanel(QWidget):
         form.addRow("Water depth", self.depth_input)
         form.addRow("Depth uncertainty", self.depth_std)
         form.addRow("Hull length", self.hull)
+        self.assume_vessel = QCheckBox("Assume a vessel here (no hull or V seen)")
+        self.assume_vessel.setToolTip(
+            "Give the speed of the waves at this point even when neither a hull nor the apex of a V shows a "
+            "vessel there; the result then says so. Leave off unless you know the vessel is there."
+        )
+        form.addRow(self.assume_vessel)
         self.use_radar = QCheckBox("Radar geometry (hull offset from its wake)")
         self.use_radar.setToolTip("Enables the azimuth-offset method for radar scenes (Raney 1971)")
         form.addRow(self.use_radar)
@@ -179,7 +185,9 @@ class ResultsPanel(QWidget):
                 if old is None
                 else replace(old, slant_range_m=r, platform_speed_mps=v, look_bearing_deg=look, incidence_deg=inc)
             )
-        return replace(base, depth=depth, hull_length_m=d["hull_length_m"], radar_geometry=rg)
+        return replace(
+            base, depth=depth, hull_length_m=d["hull_length_m"], radar_geometry=rg, force=self.assume_vessel.isChecked()
+        )
 
     def set_request(self, req: AnalysisRequest | None) -> None:
         self.depth_input.setValue(req.depth.value if req is not None and req.depth is not None else 0.0)
@@ -187,6 +195,7 @@ class ResultsPanel(QWidget):
         self.hull.setValue(req.hull_length_m or 0.0 if req is not None else 0.0)
         rg = None if req is None else req.radar_geometry
         self.use_radar.setChecked(rg is not None)
+        self.assume_vessel.setChecked(bool(req is not None and req.force))
         values = (
             (0, 0, -1, 0)
             if rg is None
