@@ -15,7 +15,7 @@ from ..detect import handmeasure as hm
 from ..detect.findings import SegmentKind
 from ..detect.request import AnalysisRequest
 from ..detect.result import WakeAnalysis
-from ..detect.revise import revise, with_crest_lines
+from ..detect.revise import HAND_ANGLE_MAX_DEG, HAND_ANGLE_STD_DEG, revise, with_crest_lines
 from ..errors import WakemeterError
 from ..physics import inversion as inv
 from ..physics import units
@@ -35,8 +35,6 @@ class MeasureKind(StrEnum):
 KINDS = tuple(k.value for k in MeasureKind)
 #: smallest standard uncertainty of a hand-drawn arm angle (common practice, no source)
 HAND_ARM_STD_MIN_DEG = 0.5
-#: crest rulers more oblique than this to the track are inverted at this angle (cos^2 theta -> 0)
-HAND_CREST_ANGLE_MAX_DEG = 80.0
 
 
 @dataclass(frozen=True)
@@ -253,7 +251,7 @@ class Project:
             hand_crest = (
                 v["spacing_m"],
                 v["spacing_std_m"],
-                min(v.get("angle_to_track_deg", 0.0), HAND_CREST_ANGLE_MAX_DEG),
+                min(v.get("angle_to_track_deg", 0.0), HAND_ANGLE_MAX_DEG),
             )
         if arm:
             v = arm[-1].values
@@ -287,7 +285,9 @@ class Project:
             return ""
         lam, sd, theta = hand.crest
         try:
-            est = inv.speed_from_crest_wavelength(inv.Uncertain(lam, sd), inv.Uncertain(theta, 2.0), draws=20_000)
+            est = inv.speed_from_crest_wavelength(
+                inv.Uncertain(lam, sd), inv.Uncertain(theta, HAND_ANGLE_STD_DEG), draws=20_000
+            )
         except WakemeterError as err:
             return str(err)
         return (
