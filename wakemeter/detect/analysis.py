@@ -28,6 +28,7 @@ from .decision import Decision, decide, decision_text, vessel_evidence
 from .depth_model import choose_depth_model
 from .explain import closing_cautions, depth_regime, interval_cover, opening_cautions, widen
 from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segment, SegmentKind
+from .line_finding import LineLook, line_finding, look_for_lines
 from .look import Look, choose_look
 from .methods import SPEED_METHODS, MethodContext
 from .request import AnalysisRequest, RadarGeometry
@@ -98,15 +99,32 @@ def analyze(
             progress(fraction, what)
 
     stage(0.05, "reading the vessel's surroundings")
-    attempt = _attempt(scene, request, _start_px(scene, request), radar=request.radar, hull_px=None, tuning=tuning)
-    if not attempt.decision.found and attempt.look.chip.radar and attempt.look.chip.hull_rc is not None:
-        stage(0.3, "looking for a wake displaced from the hull")
-        shifted = _from_displaced_apex(scene, request, attempt, tuning)
-        if shifted is not None and shifted.decision.found:
-            attempt = shifted
-    if not attempt.decision.found:
-        return _no_wake(scene, request, attempt, tuning)
-    return _measure(scene, request, attempt, tuning, stage)
+    start = _start_px(scene, request)
+    try:
+        attempt: _Attempt | None = _attempt(scene, request, start, radar=request.radar, hull_px=None, tuning=tuning)
+    except ParameterError as err:
+        if "valid pixels" not in str(err):
+            raise
+        attempt = None  # too little open water for the wave spectrum's box: the line search uses what is there
+        spectral_note = "too little open water around the vessel for the wave spectrum"
+    if attempt is not None:
+        if not attempt.decision.found and attempt.look.chip.radar and attempt.look.chip.hull_rc is not None:
+            stage(0.3, "looking for a wake displaced from the hull")
+            shifted = _from_displaced_apex(scene, request, attempt, tuning)
+            if shifted is not None and shifted.decision.found:
+                attempt = shifted
+        if attempt.decision.found:
+            return _measure(scene, request, attempt, tuning, stage)
+        spectral_note = f"spectral significance {attempt.decision.significance:.1f}, needs {tuning.significance_min:g}"
+    # no wave pattern: look for the wake as lines (foam, calm band, radar arms), as real scenes mostly show it
+    stage(0.5, "looking for wake lines")
+    lines = look_for_lines(scene, start, request, tuning)
+    g = attempt.g if attempt is not None else _gravity(scene, start)[0]
+    if lines.found:
+        return line_finding(scene, request, lines, g=g, spectral_note=spectral_note, tuning=tuning)
+    if attempt is None:
+        return _no_wake_lines(scene, request, start, lines, g, spectral_note)
+    return _no_wake(scene, request, attempt, tuning, lines_note=lines.why_not)
 
 
 def _start_px(scene: Scene, request: AnalysisRequest) -> tuple[float, float]:
@@ -175,11 +193,56 @@ def _from_displaced_apex(scene: Scene, request: AnalysisRequest, first: _Attempt
         return None
 
 
+def _no_wake_lines(
+    scene: Scene, request: AnalysisRequest, px: tuple[float, float], lines: LineLook, g: float, spectral_note: str
+) -> WakeAnalysis:
+    """No wake, when only the line search could look (too little open water for the spectrum's box)."""
+    frame = scene.local_frame(*px)
+    lonlat = None
+    if scene.info.georeferenced:
+        lon, lat = geodesy.pixel_to_lonlat(scene.georef, px[0], px[1])
+        lonlat = (float(lon), float(lat))
+    regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no wake: nothing to judge")
+    m_px = lines.chip.m_per_px if lines.chip is not None else float(np.sqrt(frame.m_per_col * frame.m_per_row_up))
+    return WakeAnalysis(
+        False,
+        f"no wake found: {spectral_note}; {lines.why_not}",
+        float("nan") if lines.wake is None else lines.wake.significance,
+        px,
+        lonlat,
+        None,
+        None,
+        None,
+        (),
+        None,
+        None,
+        None,
+        None,
+        regime,
+        None,
+        None,
+        g,
+        m_px,
+        tuple(
+            opening_cautions(hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known)
+        ),
+        request=request,
+    )
+
+
 def _no_wake(
-    scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning, *, no_vessel: bool = False
+    scene: Scene,
+    request: AnalysisRequest,
+    a: _Attempt,
+    tuning: Tuning,
+    *,
+    no_vessel: bool = False,
+    lines_note: str = "",
 ) -> WakeAnalysis:
     frame = scene.local_frame(*a.vessel_px)
     decision = decision_text(a.decision, a.look, tuning)
+    if lines_note:
+        decision += f"; as lines: {lines_note}"
     if no_vessel:
         decision = (
             f"no vessel at this point: waves stand out here (spectral significance "

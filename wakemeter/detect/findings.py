@@ -35,6 +35,9 @@ class CautionCode(StrEnum):
     HAND_CREST = "hand-crest"  #: a crest spacing measured by hand is included
     HAND_ARM = "hand-arm"  #: the half-angle was corrected by hand
     FORCED = "forced"  #: analysed at the analyst's insistence although no vessel was seen at the point
+    LINES_ONLY = "lines-only"  #: the wake was seen as lines only: no wave crests, and why no speed from waves
+    OVER_GROUND = "over-ground"  #: a speed over ground (hull shift between bands), not through the water
+    SHIFT_OFF_TRACK = "shift-off-track"  #: the hull's shift between bands does not follow its wake
     NOTE = "note"  #: a caution read from an older record that names no code
 
 

@@ -76,6 +76,14 @@ class Tuning:
     heading_std_floor_deg: float = 0.3  #: smallest stated heading uncertainty
     fitted_depth_std_floor: float = 0.05  #: smallest relative uncertainty of a fitted depth
     fitted_depth_std_cap: float = 0.5  #: largest relative uncertainty of a fitted depth
+    # ---- wake lines on real imagery (benchmarks/real_sweep.py: Sentinel-2 crops, sea tiles, port vessels) ----
+    #: a line from a hull this significant against the scene's other lines is a wake; clean real sea tiles
+    #: gave at most 5.8 at hull-like specks, the three wake crops 15-65 (see README, real scenes)
+    line_significance_min: float = 8.0
+    line_chip_px: int = 320  #: side of the square read around the vessel for the line search
+    line_reach_m: float = 1200.0  #: longest wake line scored, ground metres
+    line_snap_radius_m: float = 60.0  #: a hull this close to the click is taken as the vessel
+    band_shift_course_max_deg: float = 30.0  #: the hull's shift between bands must follow the wake this closely
     # ---- radar azimuth offset (Raney 1971) ----
     radar_max_radial_mps: float = 20.0  #: largest radial speed searched for the wake line
     radar_wake_line_min: float = 5.0  #: significance of the wake line used for the offset

@@ -48,9 +48,14 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
     if not r["wake_found"]:
         rows = [("Result", "No wake found: no speed estimate is given"), ("Decision", r["decision"])]
     else:
-        speed, interval = speed_text(r)
+        codes = {c.get("code") for c in r["cautions"] if isinstance(c, dict)}
+        if r["speed_mps"] is None:
+            speed, interval = "not estimated (see the cautions for why)", "none"
+        else:
+            speed, interval = speed_text(r)
+        label = "Speed over ground" if "over-ground" in codes else "Speed through water"
         rows = [
-            ("Speed through water", speed),
+            (label, speed),
             ("95 % interval", interval),
             ("Heading (true bearing)", f"{r['heading_deg']:.1f} deg (+/- {r['heading_std_deg']:.1f})"),
             (
@@ -71,7 +76,7 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
                 if r["depth_m"] is None
                 else f"{r['depth_m']:.1f} m (95 %: {r['depth_ci95_m'][0]:.1f} - {r['depth_ci95_m'][1]:.1f} m)",
             ),
-            ("Consistency of methods", r["consistency"] or ""),
+            ("Consistency of methods", r["consistency"] or "no speed: nothing to cross-check"),
         ]
         if r.get("revised"):
             rows.append(("Hand measurements", "included: the result was revised with the analyst's hand measurements"))

@@ -287,8 +287,15 @@ def _atomic_path(target: Path) -> tuple[int, str]:
     return tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
 
 
-def write(scene: RenderedScene, path: str | os.PathLike) -> tuple[Path, Path]:
-    """Write the GeoTIFF and its truth sidecar (``<name>.truth.json``) atomically."""
+def write(
+    scene: RenderedScene,
+    path: str | os.PathLike,
+    *,
+    band_names: tuple[str, ...] | None = None,
+    tags: dict[str, str] | None = None,
+) -> tuple[Path, Path]:
+    """Write the GeoTIFF and its truth sidecar (``<name>.truth.json``) atomically; ``band_names`` become the
+    bands' descriptions and ``tags`` extra metadata items."""
     tif = Path(path)
     sidecar = tif.with_suffix(".truth.json")
     if not tif.parent.is_dir():
@@ -320,6 +327,10 @@ def write(scene: RenderedScene, path: str | os.PathLike) -> tuple[Path, Path]:
                 dst.update_tags(ACQUISITION_START_TIME=scene.truth["acquisition_time"])
             if data.dtype.kind == "f":
                 dst.update_tags(1, UNITS="linear backscatter (sigma0, synthetic)")
+            for i, name in enumerate(band_names or ()):
+                dst.set_band_description(i + 1, name)
+            if tags:
+                dst.update_tags(**tags)
         fd, tmp_json = _atomic_path(sidecar)
         tmp_files.append(tmp_json)
         with os.fdopen(fd, "w") as fh:

@@ -1,0 +1,243 @@
+"""The wake seen as lines: the finding when the Kelvin crests are not resolved (most real scenes).
+
+Runs when the spectral look finds no wave pattern, or cannot be taken (too little open water in its
+box).  A line that starts at a hull and stands out against the scene's other lines
+(:mod:`.wakeline`) is a wake: the finding gives the heading from the line with its uncertainty, lists
+the lines, and gives a speed only from what the scene allows:
+
+* the hull's shift between two bands recorded a known time apart (:mod:`.band_shift`; Sentinel-2),
+  a speed over ground;
+* otherwise none, with the reason (for example the transverse wavelength for 3-20 kn in pixels here).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import ParameterError
+from ..physics import inversion as inv
+from ..physics import kelvin
+from ..physics.units import KNOT_MPS
+from ..scene import geodesy
+from ..scene.raster import Scene
+from ..scene.sensor import band_timing
+from .band_shift import BandShift, measure_band_shift
+from .explain import opening_cautions
+from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, Segment, SegmentKind
+from .line_chip import LineChip, prepare_line_chip
+from .request import AnalysisRequest
+from .result import WakeAnalysis
+from .tuning import Tuning
+from .wakeline import LineWake, find_wake_line
+
+#: speeds for which the "why no speed" note gives the transverse wavelength in pixels (knots)
+NOTE_SPEEDS_KN = (3.0, 20.0)
+#: fewer pixels per transverse wave than this cannot show crests (two samples per crest and some margin;
+#: common practice, no source)
+RESOLVABLE_WAVE_PX = 4.0
+
+
+@dataclass(frozen=True, eq=False)
+class LineLook:
+    """What the line search saw at a point (also when it found no wake)."""
+
+    chip: LineChip | None
+    wake: LineWake | None
+    found: bool
+    why_not: str  #: empty when found
+
+
+def look_for_lines(scene: Scene, px: tuple[float, float], request: AnalysisRequest, tuning: Tuning) -> LineLook:
+    """Search the vessel's surroundings for a wake line; never raises for a poor area (says why instead)."""
+    try:
+        chip = prepare_line_chip(scene, px, size_px=tuning.line_chip_px, snap_radius_m=tuning.line_snap_radius_m)
+    except ParameterError as err:
+        return LineLook(None, None, False, str(err))
+    wake = find_wake_line(chip, reach_m=tuning.line_reach_m, rng_seed=request.seed)
+    if wake is None:
+        return LineLook(chip, None, False, "too little open water around the vessel to compare lines")
+    if wake.significance < tuning.line_significance_min:
+        return LineLook(
+            chip,
+            wake,
+            False,
+            f"no line starts at the vessel: best line significance {wake.significance:.1f} against the scene's "
+            f"other lines (needs {tuning.line_significance_min:g})",
+        )
+    if chip.hull is None and not request.force and not _radar_v(wake):
+        return LineLook(
+            chip,
+            wake,
+            False,
+            f"a line stands out here (significance {wake.significance:.1f}) but no hull is seen at the point: it "
+            "may be the wake of a vessel elsewhere; mark that vessel, or ask again assuming a vessel here",
+        )
+    return LineLook(chip, wake, True, "")
+
+
+def _radar_v(wake: LineWake) -> bool:
+    arms = {ln.angle_from_track_deg > 0 for ln in wake.lines if ln.kind == LineKind.NARROW_V}
+    return arms == {True, False}
+
+
+def _heading(chip: LineChip, back_deg: float) -> float:
+    b = np.radians(back_deg + 180.0)
+    return float(chip.frame.bearing_of(np.cos(b), -np.sin(b))) % 360.0
+
+
+def _no_speed_reason(chip: LineChip, g: float, spectral_note: str) -> str:
+    lam_px = [float(kelvin.transverse_wavelength(k * KNOT_MPS, g=g)) / chip.m_per_px for k in NOTE_SPEEDS_KN]
+    resolvable = RESOLVABLE_WAVE_PX * chip.m_per_px
+    u_min = float(np.sqrt(g * resolvable / (2 * np.pi))) / KNOT_MPS
+    return (
+        f"no speed from waves: no Kelvin crests are seen here ({spectral_note}); at {chip.m_per_px:.1f} m per "
+        f"pixel the transverse wavelength for {NOTE_SPEEDS_KN[0]:g}-{NOTE_SPEEDS_KN[1]:g} kn is "
+        f"{lam_px[0]:.1f}-{lam_px[1]:.1f} pixels, and crests need about {RESOLVABLE_WAVE_PX:g} pixels, so the "
+        f"waves of a vessel slower than about {u_min:.0f} kn cannot show at this pixel size"
+    )
+
+
+def line_finding(
+    scene: Scene,
+    request: AnalysisRequest,
+    look: LineLook,
+    *,
+    g: float,
+    spectral_note: str,
+    tuning: Tuning,
+) -> WakeAnalysis:
+    """The finding of a wake seen as a line (``look.found`` must be true)."""
+    chip, wake = look.chip, look.wake
+    assert chip is not None and wake is not None and look.found
+    vessel_px = chip.to_scene(*wake.vessel_rc)
+    lonlat = None
+    if scene.info.georeferenced:
+        lon, lat = geodesy.pixel_to_lonlat(scene.georef, vessel_px[0], vessel_px[1])
+        lonlat = (float(lon), float(lat))
+    heading = _heading(chip, wake.back_deg)
+    frame = chip.frame
+    cautions = opening_cautions(
+        hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
+    )
+    rng = np.random.default_rng(request.seed)
+    shift = _band_shift(scene, vessel_px, wake, rng)
+    methods: tuple[inv.SpeedEstimate, ...] = ()
+    segments = [_ray(chip, wake.vessel_rc, wake.back_deg, 2 * wake.length_px, SegmentKind.TRACK)]
+    for ln in wake.lines:
+        if ln.kind in (LineKind.NARROW_V, LineKind.KELVIN_ARM):
+            left = ln.angle_from_track_deg > 0
+            seg_kind = {
+                (LineKind.NARROW_V, True): SegmentKind.NARROW_V_LEFT,
+                (LineKind.NARROW_V, False): SegmentKind.NARROW_V_RIGHT,
+                (LineKind.KELVIN_ARM, True): SegmentKind.ARM_LEFT,
+                (LineKind.KELVIN_ARM, False): SegmentKind.ARM_RIGHT,
+            }[(ln.kind, left)]
+            segments.append(_ray(chip, wake.vessel_rc, wake.back_deg + ln.angle_from_track_deg, ln.length_px, seg_kind))
+    reason = _no_speed_reason(chip, g, spectral_note)
+    if shift is not None:
+        off = abs((shift.course_deg - heading + 180.0) % 360.0 - 180.0)
+        if off <= tuning.band_shift_course_max_deg and shift.along_px > 0:
+            methods = (shift.estimate,)
+            cautions.append(
+                Caution(
+                    CautionCode.OVER_GROUND,
+                    f"the speed is over ground, from the hull's shift of {np.hypot(*shift.shift_px):.2f} pixels "
+                    f"between bands recorded {shift.timing.delay_s:.3f} s apart ({shift.timing.source}); it "
+                    f"equals the speed through the water only in still water. Course over ground "
+                    f"{shift.course_deg:.0f}\N{DEGREE SIGN}, {off:.0f}\N{DEGREE SIGN} from the wake's heading",
+                )
+            )
+        else:
+            cautions.append(
+                Caution(
+                    CautionCode.SHIFT_OFF_TRACK,
+                    f"the hull's shift between bands (course {shift.course_deg:.0f}\N{DEGREE SIGN}) does not follow "
+                    f"its wake (heading {heading:.0f}\N{DEGREE SIGN}): foam or a neighbour moved the hull's edge, "
+                    "so no speed is taken from it",
+                )
+            )
+    elif (
+        scene.info.count > 1
+        and band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags) is None
+    ):
+        reason += (
+            "; the time between this sensor's bands is not known to the program (recognised: Sentinel-2 with "
+            "named bands B02 and B04), so no speed over ground from the hull's shift between bands"
+        )
+    cautions.insert(1, Caution(CautionCode.LINES_ONLY, reason))
+    combined = (
+        _one_method(methods[0]) if len(methods) == 1 else (inv.combine_estimates(list(methods)) if methods else None)
+    )
+    kind = "dark calm band" if wake.dark else "bright foam line"
+    decision = (
+        f"wake found as a line from the vessel ({kind}): significance {wake.significance:.1f} against the scene's "
+        f"other lines (needs {tuning.line_significance_min:g}); "
+        + ("speed from the hull's shift between bands" if combined else "no speed: see the cautions")
+    )
+    regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no waves resolved: depth regime not judged")
+    n = chip.img.shape[0]
+    outline = Segment(SegmentKind.AREA, tuple(chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))))
+    hull = chip.hull
+    return WakeAnalysis(
+        True,
+        decision,
+        wake.significance,
+        vessel_px,
+        lonlat,
+        heading,
+        wake.back_std_deg,
+        combined,
+        methods,
+        None,
+        None,
+        None,
+        None,
+        regime,
+        None,
+        None,
+        g,
+        chip.m_per_px,
+        tuple(cautions),
+        drawing=Drawing((outline, *segments)),
+        diagnostics=Diagnostics(vessel_evidence="hull" if hull is not None else ("forced" if request.force else "")),
+        lines=wake.lines,
+        request=request,
+    )
+
+
+def _one_method(e: inv.SpeedEstimate) -> inv.CombinedSpeed:
+    """A single method's own Monte Carlo interval (a speed from a shift's length is not symmetric about its
+    median, so the normal interval of the combination would misstate it)."""
+    return inv.CombinedSpeed(
+        e.speed_mps,
+        e.std_mps,
+        e.ci95_low_mps,
+        e.ci95_high_mps,
+        0.0,
+        0,
+        1.0,
+        True,
+        None,
+        (e.method,),
+        "one method only: no cross-check possible",
+    )
+
+
+def _band_shift(
+    scene: Scene, vessel_px: tuple[float, float], wake: LineWake, rng: np.random.Generator
+) -> BandShift | None:
+    timing = band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags)
+    if timing is None:
+        return None
+    try:
+        return measure_band_shift(scene, vessel_px, wake.back_deg, timing, rng=rng)
+    except ParameterError:
+        return None
+
+
+def _ray(chip: LineChip, origin_rc: tuple[float, float], angle_deg: float, length: float, kind: SegmentKind) -> Segment:
+    a = np.radians(angle_deg)
+    r0, c0 = origin_rc
+    return Segment(kind, (chip.to_scene(r0, c0), chip.to_scene(r0 - length * np.sin(a), c0 + length * np.cos(a))))

@@ -1,0 +1,280 @@
+"""Wake lines from the vessel on real imagery: the turbulent wake, foam, calm bands and narrow arms.
+
+In most real scenes the strongest trace of a moving vessel is not its Kelvin crests but a line that
+starts at the hull and runs back along the track: bright foam or a dark calm band (optical, and dark
+in sun glint), a dark turbulent wake with bright narrow arms (radar).  This is a localised Radon
+transform restricted to the rays from the vessel (Copeland et al. 1995), scored one-sidedly:
+
+    score(theta) = mean along the ray at theta  -  max(mean along the opposite ray, mean of the rays beside it)
+
+A line that only passes through the point (a quay, a detector seam, a slick, an old wake, a sediment
+front) is as bright on the opposite ray and scores nothing; a line that *starts* at the vessel does.
+Dark lines are scored with the sign turned.
+
+The significance is measured against the lines elsewhere in the same scene: the same best score is
+computed from many water points of the chip, and the vessel's score is compared with the median and
+robust spread of theirs.  Its heading is refined by a straight-line fit to the line's lateral centroid
+near the vessel, with the fit's standard error.
+
+References
+----------
+1. Copeland, A. C., Ravichandran, G. & Trivedi, M. M. (1995). Localized Radon transform-based detection
+   of ship wakes in SAR images. *IEEE Trans. Geosci. Remote Sens.* 33(1), 35-45.
+2. Murphy, L. M. (1986). Linear feature detection and enhancement in noisy images via the Radon
+   transform. *Pattern Recognit. Lett.* 4(4), 279-284.
+"""
+
+from __future__ import annotations
+
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import ndimage
+
+from .findings import LineKind
+from .line_chip import LineChip
+from .lines import WakeLine
+from .robust import median_spread
+
+#: directions searched (image angles, degrees)
+ANGLE_STEP_DEG = 1.0
+#: rays start this far beyond the hull's edge (chip pixels)
+HULL_CLEARANCE_PX = 1.5
+#: lines are scored over these lengths (fractions of the longest): short bright wakes and long faint ones
+LENGTH_FRACTIONS = (0.125, 0.25, 0.5, 1.0)
+#: the rays beside the line that give its local background start this far to its side at mid-length (px)
+#: and span this many degrees
+SIDE_GAP_PX = 6.0
+SIDE_SPAN_DEG = 10.0
+#: half-width of the strip across the line in which its ridge is followed (px), and the largest correction
+REFINE_HALF_PX = 8.0
+REFINE_MAX_DEG = 12.0
+#: number of water points whose best lines make the scene's own background
+NULL_POINTS = 160
+#: standardised values are clipped here so one very bright spot cannot make a line
+CLIP_Z = 12.0
+
+
+@dataclass(frozen=True)
+class LineWake:
+    """The best line from the vessel and its significance against the scene's other lines."""
+
+    back_deg: float  #: image angle (counter-clockwise from the column axis) of the line, vessel -> wake
+    back_std_deg: float  #: standard uncertainty of that angle (line fit; floor 0.5)
+    score: float  #: the one-sided contrast of the line (standardised units)
+    significance: float  #: best standardised score over the scene's other lines' (median, robust spread)
+    null_median: float  #: of the background points' best standardised scores
+    null_spread: float
+    dark: bool  #: a dark line (calm band, radar turbulent wake) rather than bright foam
+    length_px: float  #: length scored
+    near_far_ratio: float  #: mean of the first half of the line over the second half (a wake fades away)
+    lines: tuple[WakeLine, ...]  #: the main line and any arms (angles from the main line)
+    vessel_rc: tuple[float, float]  #: where the line starts (chip row, col): the bow end of the hull's blob
+
+
+def _rays(img: np.ndarray, valid: np.ndarray, origin_rc, angles_deg: np.ndarray, r: np.ndarray):
+    """Samples (angles, r) along rays and their validity."""
+    a = np.radians(angles_deg)[:, None]
+    rows = origin_rc[0] - r[None, :] * np.sin(a)
+    cols = origin_rc[1] + r[None, :] * np.cos(a)
+    coords = [rows.ravel(), cols.ravel()]
+    vals = ndimage.map_coordinates(img, coords, order=1, mode="constant", cval=0.0).reshape(rows.shape)
+    ok = ndimage.map_coordinates(valid.astype(np.float32), coords, order=0, mode="constant", cval=0.0).reshape(
+        rows.shape
+    )
+    return vals, ok > 0.5
+
+
+def _nanmedian_last(a: np.ndarray) -> np.ndarray:
+    """Median over the last axis ignoring NaN (NaN where all are NaN): a sort instead of numpy's masked path."""
+    srt = np.sort(a, axis=-1)  # NaN sort to the end
+    cnt = np.sum(~np.isnan(a), axis=-1)
+    lo = np.clip((cnt - 1) // 2, 0, None)
+    hi = np.clip(cnt // 2, 0, None)
+    m = 0.5 * (np.take_along_axis(srt, lo[..., None], -1)[..., 0] + np.take_along_axis(srt, hi[..., None], -1)[..., 0])
+    return np.where(cnt > 0, m, np.nan)
+
+
+def _profiles(vals: np.ndarray, ok: np.ndarray, n_r: int) -> np.ndarray:
+    """Median along each ray over its first ``n_r`` samples (NaN when fewer than half are valid): a line
+    crossing the ray adds a few bright samples and moves the median little; a line along it moves it."""
+    v = np.where(ok[:, :n_r], vals[:, :n_r], np.nan)
+    cnt = ok[:, :n_r].sum(axis=1)
+    return np.where(cnt >= 0.5 * n_r, _nanmedian_last(v), np.nan)
+
+
+def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float) -> np.ndarray:
+    """One-sided line score for every direction (bright sign); ``prof`` covers 0-360 degrees evenly.  The
+    rays beside the line lie ``SIDE_GAP_PX`` and more to either side of it at mid-length."""
+    m = angles.size
+    step = 360.0 / m
+    opp = np.roll(prof, -m // 2)
+    lo_deg = max(np.degrees(np.arctan(SIDE_GAP_PX / max(r_mid, 1.0))), 3.0)
+    lo = int(np.ceil(lo_deg / step))
+    hi = lo + int(round(SIDE_SPAN_DEG / step))
+    shifts = np.array(list(range(lo, hi + 1)) + list(range(-hi, -lo + 1)))
+    stack = prof[(np.arange(m)[:, None] - shifts[None, :]) % m]  # column k: the profile turned by shifts[k]
+    side = _nanmedian_last(stack)  # directions with no valid ray beside them: NaN, as wanted
+    return prof - np.fmax(opp, side)
+
+
+def _line_scores(img: np.ndarray, valid: np.ndarray, origin_rc, r0: float, r_max: float) -> np.ndarray:
+    """Best one-sided score for each length of ``LENGTH_FRACTIONS`` and each sign: shape (lengths, 2), with
+    the angle of each best: (scores, angles)."""
+    angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
+    r = np.arange(r0, r_max, 1.0)
+    vals, ok = _rays(img, valid, origin_rc, angles, r)
+    out = np.full((len(LENGTH_FRACTIONS), 2), -np.inf)
+    where = np.full((len(LENGTH_FRACTIONS), 2), np.nan)
+    for i, frac in enumerate(LENGTH_FRACTIONS):
+        n_r = max(int(frac * r.size), 6)
+        full, near = _profiles(vals, ok, n_r), _profiles(vals, ok, max(n_r // 2, 4))
+        for j, sign in enumerate((1.0, -1.0)):
+            # a wake is there from its start: the line's value is the lesser of its whole and its first half
+            prof = np.fmin(sign * full, sign * near)
+            s = _scores(prof, angles, r0 + n_r / 2)
+            if np.isfinite(s).any():
+                k = int(np.nanargmax(s))
+                out[i, j], where[i, j] = s[k], angles[k]
+    return np.stack([out, where])
+
+
+def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0) -> LineWake | None:
+    """The most significant line starting at the vessel, or None when the chip has no room for one.
+
+    Parameters
+    ----------
+    chip : LineChip
+        The prepared surroundings (:func:`~.line_chip.prepare_line_chip`).
+    reach_m : float
+        Longest line scored, ground metres (capped by the chip).
+    rng_seed : int
+        Seed of the background points (the result is deterministic for a given seed).
+    """
+    img = np.clip(ndimage.gaussian_filter(chip.img, 0.7), -CLIP_Z, CLIP_Z)
+    valid = chip.valid
+    r0 = HULL_CLEARANCE_PX
+    img = np.where(valid, img, 0.0)
+    n = img.shape[0]
+    r_max = float(min(reach_m / chip.m_per_px, 0.42 * n))
+    if r_max < r0 + 12:
+        return None
+    # the vessel: the hull's centre or either end of its blob (hull and attached foam: the bow is the end the
+    # line leaves from one side only); the click when no hull was seen
+    origins = [chip.vessel_rc] if chip.hull is None else [chip.hull.rc, *chip.hull.ends_rc]
+    tries = [_line_scores(img, valid, o, r0, r_max) for o in origins]
+    # the scene's own lines: the same scores from water points away from the vessel
+    rng = np.random.default_rng(rng_seed)
+    wr, wc = np.nonzero(chip.valid)
+    far = (wr - chip.vessel_rc[0]) ** 2 + (wc - chip.vessel_rc[1]) ** 2 > (r0 + 8) ** 2
+    wr, wc = wr[far], wc[far]
+    if wr.size < 50:
+        return None
+    pick = rng.choice(wr.size, size=min(NULL_POINTS, wr.size), replace=False)
+    null = np.stack([_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max)[0] for k in pick])
+    # standardise each length and sign on the background points, then take the best: the background's best
+    # standardised scores are the reference for the vessel's best
+    ok_null = np.isfinite(null).all(axis=(1, 2))
+    null = null[ok_null]
+    if null.shape[0] < 20:
+        return None
+    centre = np.median(null, axis=0)
+    spread = np.maximum(1.4826 * np.median(np.abs(null - centre), axis=0), 1e-3)
+    z_null = ((null - centre) / spread).reshape(null.shape[0], -1).max(axis=1)
+    med, sp = median_spread(z_null, floor=1e-3)
+    z_tries = [np.nan_to_num((t[0] - centre) / spread, nan=-np.inf) for t in tries]
+    best = int(np.argmax([z.max() for z in z_tries]))
+    vessel = origins[best]
+    z_own, own, own_angle = z_tries[best], tries[best][0], tries[best][1]
+    i, j = np.unravel_index(int(np.nanargmax(z_own)), z_own.shape)
+    sig = float((z_own[i, j] - med) / sp)
+    score, angle, dark = float(own[i, j]), float(own_angle[i, j]), bool(j == 1)
+    n_r = max(int(LENGTH_FRACTIONS[i] * np.arange(r0, r_max, 1.0).size), 6)
+    back, back_std = _refine(img, valid, vessel, angle, r0, min(r0 + 2 * n_r, r_max), dark)
+    near_far = _near_far(img, valid, vessel, back, r0, r0 + n_r, dark)
+    main_kind = LineKind.TURBULENT_DARK if dark else LineKind.TURBULENT_BRIGHT
+    lines = [WakeLine(main_kind, 0.0, float(sig), float(n_r))]
+    lines += _arms(img, valid, vessel, back, r0, r_max, centre[-1, 0], spread[-1, 0], radar=chip.radar)
+    return LineWake(float(back), float(back_std), score, sig, med, sp, dark, float(n_r), near_far, tuple(lines), vessel)
+
+
+def _refine(img, valid, origin_rc, angle_deg: float, r0: float, r1: float, dark: bool) -> tuple[float, float]:
+    """Angle of the line from a weighted straight-line fit, through the vessel, of the ridge's lateral
+    centroid against distance; its standard uncertainty from the fit's residuals, with the vessel position
+    (one pixel) over the fit's length and a floor of half a degree."""
+    sign = -1.0 if dark else 1.0
+    r = np.arange(r0, r1, 1.0)
+    lat = np.arange(-REFINE_HALF_PX, REFINE_HALF_PX + 1e-9, 0.5)
+    a = np.radians(angle_deg)
+    ur, uc = -np.sin(a), np.cos(a)  # along the line (row, col)
+    pr, pc = -uc, ur  # lateral unit vector (row, col): to the left of the line
+    rows = origin_rc[0] + r[:, None] * ur + lat[None, :] * pr
+    cols = origin_rc[1] + r[:, None] * uc + lat[None, :] * pc
+    coords = [rows.ravel(), cols.ravel()]
+    v = sign * ndimage.map_coordinates(img, coords, order=1, mode="constant").reshape(rows.shape)
+    ok = ndimage.map_coordinates(valid.astype(np.float32), coords, order=0, mode="constant").reshape(rows.shape) > 0.5
+    edge = np.abs(lat) >= REFINE_HALF_PX - 2
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)
+        level = np.nanmedian(np.where(ok[:, edge], v[:, edge], np.nan), axis=1)
+    level = np.where(np.isfinite(level), level, 0.0)
+    w = np.where(ok & (np.abs(lat)[None, :] <= REFINE_HALF_PX - 2), np.clip(v - level[:, None], 0, None), 0.0)
+    tot = w.sum(axis=1)
+    use = tot > 0.05 * max(float(tot.max()), 1e-9)
+    if use.sum() < 6:
+        return angle_deg, 2.0 * ANGLE_STEP_DEG
+    centroid = (w[use] * lat[None, :]).sum(axis=1) / tot[use]
+    rr, wt = r[use], tot[use] / tot[use].max()
+    slope = float(np.sum(wt * rr * centroid) / np.sum(wt * rr**2))
+    resid = centroid - slope * rr
+    n_eff = float(np.sum(wt) ** 2 / np.sum(wt**2))
+    s2 = float(np.sum(wt * resid**2) / np.sum(wt)) * n_eff / max(n_eff - 1, 1.0)
+    slope_se = float(np.sqrt(s2 / (np.sum(wt * rr**2) / np.sum(wt) * n_eff)))
+    corr = float(np.degrees(np.arctan(slope)))  # a centroid to the left turns the line counter-clockwise
+    if abs(corr) > REFINE_MAX_DEG:  # the fit left the line: keep the fan's angle
+        return angle_deg, 2.0 * ANGLE_STEP_DEG
+    fit_std = float(np.degrees(np.arctan(slope_se)))
+    place_std = float(np.degrees(np.arctan(1.0 / max(float(np.average(rr, weights=wt)), 1.0))))
+    return angle_deg + corr, float(np.sqrt(fit_std**2 + place_std**2 + 0.5**2))
+
+
+def _near_far(img, valid, origin_rc, angle_deg: float, r0: float, r1: float, dark: bool) -> float:
+    sign = -1.0 if dark else 1.0
+    r = np.arange(r0, r1, 1.0)
+    vals, ok = _rays(sign * img, valid, origin_rc, np.array([angle_deg]), r)
+    half = r.size // 2
+    near = vals[0, :half][ok[0, :half]]
+    far = vals[0, half:][ok[0, half:]]
+    if near.size < 3 or far.size < 3:
+        return float("nan")
+    return float(np.mean(near) / max(np.mean(far), 0.05))
+
+
+def _arms(img, valid, origin_rc, back_deg, r0, r_max, med, spread, *, radar: bool) -> list[WakeLine]:
+    """Bright lines from the vessel on each side of the main one: radar narrow-V arms (1-6 degrees) and
+    foam or texture lines along Kelvin arms (8-25 degrees), each scored like the main line."""
+    out: list[WakeLine] = []
+    angles = np.arange(0.0, 360.0, 0.5)
+    r = np.arange(r0, r_max, 1.0)
+    vals, ok = _rays(img, valid, origin_rc, angles, r)
+    prof = _profiles(vals, ok, r.size)
+    opp = np.roll(prof, -angles.size // 2)
+    rel = (angles - back_deg + 180.0) % 360.0 - 180.0
+    for lo, hi, kind in ((1.0, 6.0, LineKind.NARROW_V), (8.0, 25.0, LineKind.KELVIN_ARM)):
+        if kind == LineKind.NARROW_V and not radar:
+            continue
+        for side in (1.0, -1.0):
+            sel = (side * rel >= lo) & (side * rel <= hi) & np.isfinite(prof)
+            if not sel.any():
+                continue
+            idx = np.nonzero(sel)[0]
+            j = idx[int(np.argmax(prof[idx]))]
+            # local background: the rays just outside the search on the same side, and the opposite ray
+            out_sel = (side * rel > hi) & (side * rel <= hi + 10) & np.isfinite(prof)
+            bg = np.nanmedian(prof[out_sel]) if out_sel.any() else 0.0
+            s = float(prof[j] - max(bg, opp[j] if np.isfinite(opp[j]) else -np.inf))
+            sig = (s - med) / spread
+            if sig >= 6.0 and 0 < np.searchsorted(idx, j) < idx.size - 1:
+                out.append(WakeLine(kind, float(rel[j]), float(sig), float(r.size)))
+    return out
