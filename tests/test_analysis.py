@@ -173,8 +173,11 @@ def test_bad_positions():
             analyze(sc, AnalysisRequest(vessel_px=(5000.0, 10.0)))
         with pytest.raises(ParameterError, match="position once"):
             analyze(sc, AnalysisRequest())
-        with pytest.raises(ParameterError, match="edge"):
-            analyze(sc, AnalysisRequest(vessel_px=(0.5, 0.5)))
+        # a vessel in the scene's corner: the area is shrunk to what the scene holds instead of refused (issue 13);
+        # there is no vessel there, so no wake, and the decision says the spectrum had too little water
+        corner = analyze(sc, AnalysisRequest(vessel_px=(0.5, 0.5)))
+        assert not corner.wake_found and corner.speed is None
+        assert "too little open water" in corner.decision
 
 
 @pytest.mark.parametrize("seed", range(430, 436))
