@@ -47,7 +47,9 @@ def run(n: int, first: int, tuning, **kw) -> list[dict]:
                 "sig": round(a.significance, 1),
                 "side": round(d.side_contrast, 1),
             }
-            if j["wake_found"]:
+            if j["wake_found"] and j["speed_mps"] is None:  # seen as lines only: a heading, no speed
+                row.update(lines_only=True, hdg_err=((j["heading_deg"] - case.heading_deg + 180) % 360) - 180)
+            elif j["wake_found"]:
                 lo, hi = j["speed_ci95_mps"]
                 row.update(
                     est=j["speed_mps"],
@@ -73,8 +75,12 @@ def run(n: int, first: int, tuning, **kw) -> list[dict]:
 
 
 def summarise(rows: list[dict]) -> dict:
-    found = [r for r in rows if r["found"]]
-    out: dict = {"cases": len(rows), "found": len(found)}
+    found = [r for r in rows if r["found"] and not r.get("lines_only")]
+    out: dict = {
+        "cases": len(rows),
+        "found": len(found),
+        "found_lines_only": sum(bool(r.get("lines_only")) for r in rows),
+    }
     if not found:
         return out
     err = np.array([abs(r["rel_err"]) for r in found])

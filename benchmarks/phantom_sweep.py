@@ -71,7 +71,11 @@ def summarise(rows: list[dict]) -> dict:
         out[f"{mode}_near_misses"] = len(near)
         out[f"{mode}_near_misses_found"] = sum(r[mode]["found"] and r[mode]["at_vessel"] for r in near)
         out[f"{mode}_near_misses_within_3pct"] = sum(
-            r[mode]["found"] and r[mode]["at_vessel"] and abs(r[mode]["speed_mps"] / r["u"] - 1) <= 0.03 for r in near
+            r[mode]["found"]
+            and r[mode]["at_vessel"]
+            and r[mode]["speed_mps"] is not None
+            and abs(r[mode]["speed_mps"] / r["u"] - 1) <= 0.03
+            for r in near
         )
     return out
 

@@ -19,6 +19,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from ..detect.analysis import analyze
+    from ..detect.findings import CautionCode
     from ..evidence.export import export_evidence
     from ..evidence.from_session import is_session, report_from_session
     from ..scene.raster import open_scene
@@ -35,9 +36,15 @@ def run(args: argparse.Namespace) -> int:
         files = export_evidence(scene, a, args.out, analyst=args.analyst, force=args.force, paper=args.paper)
     print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
     if a.speed is not None:
+        kind = "speed over ground" if a.has_caution(CautionCode.OVER_GROUND) else "speed through the water"
         print(
-            f"speed {a.speed.speed_mps:.2f} m/s, 95 % interval {a.speed.ci95_low_mps:.2f}-"
+            f"{kind} {a.speed.speed_mps:.2f} m/s, 95 % interval {a.speed.ci95_low_mps:.2f}-"
             f"{a.speed.ci95_high_mps:.2f} m/s; heading {a.heading_deg:.1f} deg"
+        )
+    elif a.wake_found:
+        print(
+            f"wake found as lines: heading {a.heading_deg:.1f} deg (+/- {a.heading_std_deg:.1f}); no speed, and the "
+            "report says why"
         )
     else:
         print("no wake found: the report says so and gives no speed")

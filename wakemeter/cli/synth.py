@@ -4,8 +4,12 @@ from __future__ import annotations
 
 import argparse
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .base import Command
+
+if TYPE_CHECKING:
+    from ..synth import VesselSpec
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
@@ -22,7 +26,13 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--depth", type=float, default=float("inf"), help="water depth, m (default deep)")
     p.add_argument("--pixel", type=float, default=2.0, help="pixel size on the ground, m")
     p.add_argument("--size", type=int, default=1024, help="width and height, pixels (<= 2048)")
-    p.add_argument("--kind", choices=["optical", "radar"], default="optical")
+    p.add_argument(
+        "--kind",
+        choices=["optical", "radar", "multispectral"],
+        default="optical",
+        help="multispectral: four bands B02 B03 B04 B08 as a Sentinel-2-like sensor records them (reflectance x "
+        "10 000, sensor blur, wind sea, foam band, the hull moving between bands)",
+    )
     p.add_argument("--dtype", choices=["uint8", "uint16"], default="uint8", help="optical pixel type")
     p.add_argument("--sun-azimuth", type=float, default=135.0, help="optical: true azimuth of the sun, deg")
     p.add_argument("--looks", type=int, default=4, help="radar: number of looks (speckle)")
@@ -32,6 +42,14 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--sea-wavelength", type=float, help="ambient sea peak wavelength, m (default: no sea)")
     p.add_argument("--sea-direction", type=float, default=30.0, help="true direction the sea travels toward, deg")
     p.add_argument("--sea-strength", type=float, default=0.5, help="sea rms slope relative to the wake's")
+    p.add_argument("--wind", type=float, default=7.0, help="multispectral: wind speed of the JONSWAP sea, m/s")
+    p.add_argument("--wind-direction", type=float, default=60.0, help="multispectral: true direction the sea travels")
+    p.add_argument(
+        "--coast-distance",
+        type=float,
+        help="multispectral: a straight coast this far from the vessel, m (default none)",
+    )
+    p.add_argument("--coast-bearing", type=float, default=90.0, help="multispectral: true bearing to the coast, deg")
     p.add_argument("--crs", choices=["utm", "EPSG:4326"], default="utm")
     p.add_argument("--seed", type=int, default=0)
 
@@ -48,6 +66,8 @@ def run(args: argparse.Namespace) -> int:
     speed = args.speed if args.speed is not None else float(knots_to_mps(args.speed_knots or 12.0))
     vessel = VesselSpec("Synthetic vessel", args.lon, args.lat, speed, args.heading, Hull(args.hull_length, args.beam))
     imaging: OpticalModel | RadarModel
+    if args.kind == "multispectral":
+        return _multispectral(args, vessel)
     if args.kind == "optical":
         imaging = OpticalModel(sun_azimuth_deg=args.sun_azimuth, dtype=args.dtype)
     else:
@@ -73,6 +93,29 @@ def run(args: argparse.Namespace) -> int:
     if out.suffix.lower() not in (".tif", ".tiff"):
         out = out.with_suffix(".tif")
     tif, sidecar = write(render(spec), out)
+    print(f"wrote {tif} and {sidecar}")
+    return 0
+
+
+def _multispectral(args: argparse.Namespace, vessel: VesselSpec) -> int:
+    from ..synth import write
+    from ..synth.demo import vessel_scene
+    from ..synth.multispectral import BANDS, MultispectralLook, render_multispectral
+
+    look = MultispectralLook(
+        wind_mps=args.wind,
+        wind_direction_deg=args.wind_direction,
+        sun_azimuth_deg=args.sun_azimuth,
+        coast_distance_m=args.coast_distance,
+        coast_bearing_deg=args.coast_bearing,
+    )
+    spec = vessel_scene("custom", vessel, args.size, args.pixel, depth_m=args.depth, crs=args.crs, seed=args.seed)
+    out = Path(args.out)
+    if out.suffix.lower() not in (".tif", ".tiff"):
+        out = out.with_suffix(".tif")
+    # the platform tag says whose band timing the hull's motion follows (the analysis reads it)
+    tags = {"PLATFORM": "Sentinel-2-like (synthetic)"}
+    tif, sidecar = write(render_multispectral(spec, look).rendered, out, band_names=BANDS, tags=tags)
     print(f"wrote {tif} and {sidecar}")
     return 0
 

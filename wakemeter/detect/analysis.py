@@ -122,6 +122,22 @@ def analyze(
     g = attempt.g if attempt is not None else _gravity(scene, start)[0]
     if lines.found:
         return line_finding(scene, request, lines, g=g, spectral_note=spectral_note, tuning=tuning)
+    chip = lines.chip
+    if chip is not None and chip.radar and chip.hull is not None:
+        # a radar hull whose wake does not start at it: moving targets are imaged shifted in azimuth
+        # (Raney 1971); look for the line from where the dark wake begins
+        stage(0.7, "looking for a wake displaced from the hull")
+        hull_px = chip.to_scene(*chip.hull.rc)
+        try:
+            apex = find_displaced_apex(scene, hull_px, size_px=tuning.chip_px, radar=True)
+        except ParameterError:
+            apex = None
+        if apex is not None:
+            moved = look_for_lines(scene, apex.apex_px, request, tuning, hull_elsewhere=True)
+            if moved.found:
+                return line_finding(
+                    scene, request, moved, g=g, spectral_note=spectral_note, tuning=tuning, hull_px=hull_px
+                )
     if attempt is None:
         return _no_wake_lines(scene, request, start, lines, g, spectral_note)
     return _no_wake(scene, request, attempt, tuning, lines_note=lines.why_not)

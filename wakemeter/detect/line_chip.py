@@ -36,8 +36,11 @@ from .robust import median_spread
 #: a bright structure that holds a disk of this radius (chip pixels) is land, cloud or a quay, not a hull
 #: or a wake line (hulls and foam lines at 3-10 m pixels are a few pixels wide; common practice, no source)
 LAND_DISK_RADIUS_PX = 3
-#: ... or of this radius in metres when that is more pixels (wider than a hull with its foam); capped at 10 px
+#: ... or of this radius in metres when that is more pixels (wider than a hull); capped at 10 px; for dry areas
+#: by the water index
 LAND_DISK_M = 60.0
+#: for bright areas without a water index: wider than a broad foam wake (common practice, no source); capped 20 px
+LAND_BRIGHT_DISK_M = 150.0
 #: and covers at least this area: larger than a hull with its foam (60 000 m^2 is a 1.2 km x 50 m band;
 #: common practice, no source)
 LAND_AREA_M2 = 60_000.0
@@ -53,8 +56,19 @@ class Hull:
     width_m: float
     axis_deg: float  #: image angle of the long axis (counter-clockwise from the column axis), 0-180
     peak_z: float
-    mask: np.ndarray  #: bool, the blob
-    ends_rc: tuple[tuple[float, float], tuple[float, float]]  #: the blob's two ends along its long axis
+    mask: np.ndarray  #: bool, the blob (the hull with the foam attached to it, above a quarter of the peak)
+    core: np.ndarray  #: bool, its brightest part (above half the peak): the hull, and foam as bright as it
+
+    def extent_px(self, angles_deg: np.ndarray) -> np.ndarray:
+        """How far the core reaches from the centre in each image direction (chip pixels): the largest
+        projection of its pixels within a pixel of the ray."""
+        rr, cc = np.nonzero(self.core)
+        dr, dc = rr - self.rc[0], cc - self.rc[1]
+        a = np.radians(np.asarray(angles_deg, float))[:, None]
+        along = dc[None, :] * np.cos(a) - dr[None, :] * np.sin(a)
+        across = dc[None, :] * np.sin(a) + dr[None, :] * np.cos(a)
+        reach = np.where(np.abs(across) <= 1.0, along, 0.0)
+        return np.clip(reach.max(axis=1, initial=0.0), 0.0, None)
 
 
 @dataclass(frozen=True, eq=False)
@@ -128,10 +142,8 @@ def prepare_line_chip(
     inside[sl] = True
     if valid.sum() < 64:
         raise ParameterError("the area around the vessel has no valid pixels (nodata or outside the scene)")
-    # saturated pixels (the top of an integer range) are land, cloud or glare: not water
-    if not radar and np.issubdtype(np.dtype(scene.info.dtype), np.integer):
-        top = np.iinfo(np.dtype(scene.info.dtype)).max
-        valid &= ~(full >= 0.995 * top).any(axis=0)
+    # saturated pixels (the top of an integer range) stay: in 8-bit stretched images foam and hulls are often
+    # saturated; large saturated areas (land, cloud, glare) go with the land mask below
     z = np.zeros_like(full)
     for i in range(len(bands)):
         med, spread = median_spread(full[i][valid])
@@ -176,22 +188,38 @@ def _land_mask(
     radar: bool,
     m_px: float,
 ) -> np.ndarray:
-    """Large bright areas and, with green and near-infrared bands, large dry areas (NDWI < 0): structures
-    wider than a hull (they hold a disk of ``LAND_DISK_M``) and larger than ``LAND_AREA_M2``."""
-    radius = int(np.clip(round(LAND_DISK_M / m_px), LAND_DISK_RADIUS_PX, 10))
-    disk = ndimage.iterate_structure(ndimage.generate_binary_structure(2, 1), radius)
-    min_px = LAND_AREA_M2 / m_px**2
-    cand = valid & (ndimage.uniform_filter(img, 3) > BRIGHT_Z)
     gn = None if radar else _green_nir(descriptions, bands)
+    ndwi = None
     if gn is not None:
         g, nir = bands_data[gn[0]], bands_data[gn[1]]
         ndwi = (g - nir) / np.maximum(g + nir, 1e-6)
-        cand |= valid & (ndwi < 0.0)
-    wide = ndimage.binary_opening(cand, structure=disk)
+    return land_mask(img, valid, m_px=m_px, ndwi=ndwi)
+
+
+def land_mask(img_z: np.ndarray, valid: np.ndarray, *, m_px: float, ndwi: np.ndarray | None = None) -> np.ndarray:
+    """Land, cloud and quays in a standardised image (water median 0, spread 1), dilated by 3 pixels for their
+    bright edges:
+
+    * with a water index: large dry areas (NDWI < 0) that hold a disk of ``LAND_DISK_M`` (foam and hulls
+      stay wet: their green exceeds their near infrared);
+    * by brightness alone: large bright areas that hold a disk of ``LAND_BRIGHT_DISK_M``, wider than any
+      foam wake, so a broad bright wake is not taken for land (quays narrower than that stay in).
+
+    Both must cover at least ``LAND_AREA_M2``."""
+    min_px = LAND_AREA_M2 / m_px**2
+
+    def opened(cand: np.ndarray, radius_m: float, cap: int) -> np.ndarray:
+        radius = int(np.clip(round(radius_m / m_px), LAND_DISK_RADIUS_PX, cap))
+        disk = ndimage.iterate_structure(ndimage.generate_binary_structure(2, 1), radius)
+        return ndimage.binary_opening(cand, structure=disk)
+
+    wide = opened(valid & (ndimage.uniform_filter(img_z, 3) > BRIGHT_Z), LAND_BRIGHT_DISK_M, 20)
+    if ndwi is not None:
+        wide |= opened(valid & (ndwi < 0.0), LAND_DISK_M, 10)
     lab, n = ndimage.label(wide)
     if n == 0:
         return wide
-    sizes = ndimage.sum_labels(np.ones_like(img), lab, index=np.arange(1, n + 1))
+    sizes = ndimage.sum_labels(np.ones_like(img_z), lab, index=np.arange(1, n + 1))
     big = np.isin(lab, 1 + np.nonzero(sizes >= min_px)[0])
     return ndimage.binary_dilation(big, iterations=3)
 
@@ -232,7 +260,5 @@ def _find_hull(
     length = float(np.sqrt(12 * max(evals[-1], 1 / 12))) * m_px
     width = float(np.sqrt(12 * max(evals[0], 1 / 12))) * m_px
     axis = float(np.degrees(np.arctan2(major[1], major[0])) % 180.0)
-    along = dc * major[0] - dr * major[1]  # coordinate along the long axis (col, -row) . major
-    lo, hi = float(along.min()), float(along.max())
-    ends = tuple((r_c - t * major[1], c_c + t * major[0]) for t in (lo + 0.5, hi - 0.5))
-    return Hull((r_c, c_c), length, width, axis, float(sm[pr[k], pc[k]]), blob, ends)  # type: ignore[arg-type]
+    core = blob & (sm > max(HULL_Z / 2, 0.5 * float(sm[pr[k], pc[k]])))
+    return Hull((r_c, c_c), length, width, axis, float(sm[pr[k], pc[k]]), blob, core)

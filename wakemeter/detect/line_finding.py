@@ -49,8 +49,17 @@ class LineLook:
     why_not: str  #: empty when found
 
 
-def look_for_lines(scene: Scene, px: tuple[float, float], request: AnalysisRequest, tuning: Tuning) -> LineLook:
-    """Search the vessel's surroundings for a wake line; never raises for a poor area (says why instead)."""
+def look_for_lines(
+    scene: Scene,
+    px: tuple[float, float],
+    request: AnalysisRequest,
+    tuning: Tuning,
+    *,
+    hull_elsewhere: bool = False,
+) -> LineLook:
+    """Search the vessel's surroundings for a wake line; never raises for a poor area (says why instead).
+    ``hull_elsewhere``: the search starts where a radar hull's displaced wake begins (the hull is the
+    evidence of a vessel)."""
     try:
         chip = prepare_line_chip(scene, px, size_px=tuning.line_chip_px, snap_radius_m=tuning.line_snap_radius_m)
     except ParameterError as err:
@@ -66,7 +75,7 @@ def look_for_lines(scene: Scene, px: tuple[float, float], request: AnalysisReque
             f"no line starts at the vessel: best line significance {wake.significance:.1f} against the scene's "
             f"other lines (needs {tuning.line_significance_min:g})",
         )
-    if chip.hull is None and not request.force and not _radar_v(wake):
+    if chip.hull is None and not hull_elsewhere and not request.force and not _radar_v(wake):
         return LineLook(
             chip,
             wake,
@@ -107,8 +116,10 @@ def line_finding(
     g: float,
     spectral_note: str,
     tuning: Tuning,
+    hull_px: tuple[float, float] | None = None,
 ) -> WakeAnalysis:
-    """The finding of a wake seen as a line (``look.found`` must be true)."""
+    """The finding of a wake seen as a line (``look.found`` must be true); ``hull_px``: a radar hull seen
+    away from the wake's start (scene pixels)."""
     chip, wake = look.chip, look.wake
     assert chip is not None and wake is not None and look.found
     vessel_px = chip.to_scene(*wake.vessel_rc)
@@ -122,7 +133,7 @@ def line_finding(
         hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
     )
     rng = np.random.default_rng(request.seed)
-    shift = _band_shift(scene, vessel_px, wake, rng)
+    shift = None if chip.radar else _band_shift(scene, vessel_px, wake, rng)
     methods: tuple[inv.SpeedEstimate, ...] = ()
     segments = [_ray(chip, wake.vessel_rc, wake.back_deg, 2 * wake.length_px, SegmentKind.TRACK)]
     for ln in wake.lines:
@@ -179,7 +190,9 @@ def line_finding(
     regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no waves resolved: depth regime not judged")
     n = chip.img.shape[0]
     outline = Segment(SegmentKind.AREA, tuple(chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))))
-    hull = chip.hull
+    if hull_px is not None:
+        segments.append(Segment(SegmentKind.HULL_SHIFT, (hull_px, vessel_px)))
+    evidence = "hull" if chip.hull is not None or hull_px is not None else ("forced" if request.force else "wake lines")
     return WakeAnalysis(
         True,
         decision,
@@ -201,7 +214,7 @@ def line_finding(
         chip.m_per_px,
         tuple(cautions),
         drawing=Drawing((outline, *segments)),
-        diagnostics=Diagnostics(vessel_evidence="hull" if hull is not None else ("forced" if request.force else "")),
+        diagnostics=Diagnostics(vessel_evidence=evidence),
         lines=wake.lines,
         request=request,
     )

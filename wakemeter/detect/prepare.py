@@ -17,6 +17,7 @@ from ..errors import ParameterError
 from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
+from .line_chip import land_mask
 from .robust import median_spread
 
 
@@ -113,6 +114,15 @@ def prepare_chip(
             sat = ndimage.binary_opening(fvalid & (full >= 0.995 * top), iterations=2)
             fvalid &= ~ndimage.binary_dilation(sat, iterations=2)
     m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up)) * step
+    if not radar:  # land, cloud and quays inside the box (large bright areas) are not water
+        fvalid &= ~land_mask(np.where(fvalid, (full - med) / sig, 0.0), fvalid, m_px=m_px)
+        if fvalid.sum() < 0.3 * size_px * size_px:
+            raise ParameterError(
+                "less than 30 % of the area around the vessel has valid pixels: it is too close "
+                "to the edge of the scene, or the area is nodata or land"
+            )
+        vals = full[fvalid]
+        med, sig = float(np.median(vals)), _mad_sigma(vals)
     centre = (row - r0) / step, (col - c0) / step
     # hull: brightest smoothed blob within the snap radius
     sm = ndimage.gaussian_filter(np.where(fvalid, full - med, 0.0), 1.0)

@@ -73,11 +73,13 @@ class LineWake:
     vessel_rc: tuple[float, float]  #: where the line starts (chip row, col): the bow end of the hull's blob
 
 
-def _rays(img: np.ndarray, valid: np.ndarray, origin_rc, angles_deg: np.ndarray, r: np.ndarray):
-    """Samples (angles, r) along rays and their validity."""
+def _rays(img: np.ndarray, valid: np.ndarray, origin_rc, angles_deg: np.ndarray, r: np.ndarray, start=None):
+    """Samples (angles, r) along rays and their validity; ``start`` (one per angle) moves each ray's first
+    sample out by that many pixels (past the hull)."""
     a = np.radians(angles_deg)[:, None]
-    rows = origin_rc[0] - r[None, :] * np.sin(a)
-    cols = origin_rc[1] + r[None, :] * np.cos(a)
+    rr = r[None, :] + (0.0 if start is None else np.asarray(start, float)[:, None])
+    rows = origin_rc[0] - rr * np.sin(a)
+    cols = origin_rc[1] + rr * np.cos(a)
     coords = [rows.ravel(), cols.ravel()]
     vals = ndimage.map_coordinates(img, coords, order=1, mode="constant", cval=0.0).reshape(rows.shape)
     ok = ndimage.map_coordinates(valid.astype(np.float32), coords, order=0, mode="constant", cval=0.0).reshape(
@@ -119,12 +121,12 @@ def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float) -> np.ndarray:
     return prof - np.fmax(opp, side)
 
 
-def _line_scores(img: np.ndarray, valid: np.ndarray, origin_rc, r0: float, r_max: float) -> np.ndarray:
+def _line_scores(img: np.ndarray, valid: np.ndarray, origin_rc, r0: float, r_max: float, start=None) -> np.ndarray:
     """Best one-sided score for each length of ``LENGTH_FRACTIONS`` and each sign: shape (lengths, 2), with
-    the angle of each best: (scores, angles)."""
+    the angle of each best: (scores, angles).  ``start``: per-direction offset of the rays (past the hull)."""
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     r = np.arange(r0, r_max, 1.0)
-    vals, ok = _rays(img, valid, origin_rc, angles, r)
+    vals, ok = _rays(img, valid, origin_rc, angles, r, start)
     out = np.full((len(LENGTH_FRACTIONS), 2), -np.inf)
     where = np.full((len(LENGTH_FRACTIONS), 2), np.nan)
     for i, frac in enumerate(LENGTH_FRACTIONS):
@@ -160,10 +162,12 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     r_max = float(min(reach_m / chip.m_per_px, 0.42 * n))
     if r_max < r0 + 12:
         return None
-    # the vessel: the hull's centre or either end of its blob (hull and attached foam: the bow is the end the
-    # line leaves from one side only); the click when no hull was seen
-    origins = [chip.vessel_rc] if chip.hull is None else [chip.hull.rc, *chip.hull.ends_rc]
-    tries = [_line_scores(img, valid, o, r0, r_max) for o in origins]
+    # rays leave from the hull's centre and start past its bright core in each direction (a line along the
+    # hull itself is not a wake); from the click when no hull was seen
+    angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
+    origin = chip.vessel_rc
+    start = None if chip.hull is None else chip.hull.extent_px(angles)
+    own, own_angle = _line_scores(img, valid, origin, r0, r_max, start)
     # the scene's own lines: the same scores from water points away from the vessel
     rng = np.random.default_rng(rng_seed)
     wr, wc = np.nonzero(chip.valid)
@@ -183,19 +187,23 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     spread = np.maximum(1.4826 * np.median(np.abs(null - centre), axis=0), 1e-3)
     z_null = ((null - centre) / spread).reshape(null.shape[0], -1).max(axis=1)
     med, sp = median_spread(z_null, floor=1e-3)
-    z_tries = [np.nan_to_num((t[0] - centre) / spread, nan=-np.inf) for t in tries]
-    best = int(np.argmax([z.max() for z in z_tries]))
-    vessel = origins[best]
-    z_own, own, own_angle = z_tries[best], tries[best][0], tries[best][1]
-    i, j = np.unravel_index(int(np.nanargmax(z_own)), z_own.shape)
+    z_own = np.nan_to_num((own - centre) / spread, nan=-np.inf)
+    i, j = np.unravel_index(int(np.argmax(z_own)), z_own.shape)
     sig = float((z_own[i, j] - med) / sp)
     score, angle, dark = float(own[i, j]), float(own_angle[i, j]), bool(j == 1)
     n_r = max(int(LENGTH_FRACTIONS[i] * np.arange(r0, r_max, 1.0).size), 6)
-    back, back_std = _refine(img, valid, vessel, angle, r0, min(r0 + 2 * n_r, r_max), dark)
-    near_far = _near_far(img, valid, vessel, back, r0, r0 + n_r, dark)
+    # from the centre, past the core behind the vessel: the line's own start
+    behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([angle]))[0])
+    r_a = r0 + behind
+    back, back_std = _refine(img, valid, origin, angle, r_a, min(r_a + 2 * n_r, r_max + behind), dark)
+    near_far = _near_far(img, valid, origin, back, r_a, r_a + n_r, dark)
+    # the vessel's position: the front of the hull's core (the bow), opposite the line
+    ahead = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([back + 180.0]))[0])
+    fa = np.radians(back + 180.0)
+    vessel = (origin[0] - ahead * np.sin(fa), origin[1] + ahead * np.cos(fa))
     main_kind = LineKind.TURBULENT_DARK if dark else LineKind.TURBULENT_BRIGHT
     lines = [WakeLine(main_kind, 0.0, float(sig), float(n_r))]
-    lines += _arms(img, valid, vessel, back, r0, r_max, centre[-1, 0], spread[-1, 0], radar=chip.radar)
+    lines += _arms(img, valid, origin, back, r_a, r_max + behind, centre[-1, 0], spread[-1, 0], radar=chip.radar)
     return LineWake(float(back), float(back_std), score, sig, med, sp, dark, float(n_r), near_far, tuple(lines), vessel)
 
 

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import cv2
 import numpy as np
 
-from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, SegmentKind
+from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, CautionCode, SegmentKind
 from ..detect.result import WakeAnalysis
 from ..physics.units import KNOT_MPS
 from ..scene import display, geodesy
@@ -42,6 +42,20 @@ class Crop:
     row0: int
     width: int
     height: int
+
+
+#: evidence pictures smaller than this (pixels) are enlarged by a whole factor, pixels kept square
+MIN_EVIDENCE_SIDE = 720
+
+
+def true_colour_bands(scene: Scene) -> tuple[int, int, int]:
+    """Red, green and blue band numbers: from band names (Sentinel-2 B04 B03 B02, or red/green/blue) when the
+    file names them, else the first three bands."""
+    names = {(d or "").strip().upper(): i + 1 for i, d in enumerate(scene.info.band_descriptions)}
+    for trio in (("B04", "B03", "B02"), ("B4", "B3", "B2"), ("RED", "GREEN", "BLUE")):
+        if all(t in names for t in trio):
+            return names[trio[0]], names[trio[1]], names[trio[2]]
+    return 1, 2, 3
 
 
 def crop_for(scene: Scene, analysis: WakeAnalysis, *, max_side: int = 2400) -> tuple[Crop, int]:
@@ -74,22 +88,28 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     """RGB uint8 image of the crop around the vessel with every annotation drawn."""
     crop, step = crop_for(scene, analysis, max_side=max_side)
     oh, ow = crop.height // step, crop.width // step
-    bands = (1, 2, 3) if scene.info.count >= 3 else (1,)
+    bands = true_colour_bands(scene) if scene.info.count >= 3 else (1,)
     data, valid = scene.read(window=(crop.col0, crop.row0, crop.width, crop.height), out_shape=(oh, ow), bands=bands)
     radar = display.looks_like_radar(scene.info.dtype, scene.info.count, data[0][valid[0]][:100_000])
-    if len(bands) == 3:
-        grey = display.composite(data, valid, rgb=(0, 1, 2))
-        img = display.to_uint8(grey)
+    if len(bands) == 3 and scene.info.dtype == "uint16":
+        # reflectance (multispectral products): a wide stretch with a gamma keeps dark water dark and foam white
+        img = display.to_uint8(display.composite(data, valid, rgb=(0, 1, 2), low=0.5, high=99.9, gamma=2.0))
+    elif len(bands) == 3:
+        img = display.to_uint8(display.composite(data, valid, rgb=(0, 1, 2)))
     else:
         g = display.composite(data, valid, db=radar, low=1.0, high=99.5)
         img = np.repeat(display.to_uint8(g)[..., None], 3, axis=2)
+    # a small crop (a few hundred pixels) is enlarged by whole pixels so the text does not cover it
+    up = max(1, int(np.ceil(MIN_EVIDENCE_SIDE / max(min(img.shape[:2]), 1)))) if step == 1 else 1
+    if up > 1:
+        img = cv2.resize(img, None, fx=up, fy=up, interpolation=cv2.INTER_NEAREST)
     img = np.ascontiguousarray(img)
     h, w = img.shape[:2]
     s = max(0.45, min(w, h) / 1400)  # text scale
     lw = max(1, int(round(min(w, h) / 500)))
 
     def px(pt: tuple[float, float]) -> tuple[int, int]:
-        return int(round((pt[0] - crop.col0) / step)), int(round((pt[1] - crop.row0) / step))
+        return int(round((pt[0] - crop.col0) / step * up)), int(round((pt[1] - crop.row0) / step * up))
 
     d = analysis.drawing
     for seg in d.segments:
@@ -111,7 +131,7 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     # what the result box must not hide: the vessel, a displaced hull and the ends of the drawn lines
     avoid = [(vx, vy)] + [px(p) for p in d.points_of(SegmentKind.TRACK, *ARM_KINDS, SegmentKind.HULL_SHIFT)]
     cv2.circle(img, (vx, vy), int(10 * s + 4), COLOURS["vessel"], 2 * lw, cv2.LINE_AA)
-    _decorations(img, scene, analysis, crop, step, s, lw, scene_label, avoid)
+    _decorations(img, scene, analysis, crop, step / up, s, lw, scene_label, avoid)
     return img
 
 
@@ -163,11 +183,18 @@ def _decorations(img, scene, analysis, crop, step, s, lw, scene_label, avoid=())
 
 def result_lines(analysis: WakeAnalysis) -> list[str]:
     """The lines of the result box (also used in the report)."""
-    if not analysis.wake_found or analysis.speed is None:
+    if not analysis.wake_found:
         return ["NO WAKE FOUND - no speed estimate", analysis.decision]
+    if analysis.speed is None:  # a wake seen as lines only
+        return [
+            "WAKE FOUND AS A LINE - no speed estimate",
+            f"Heading {analysis.heading_deg:.1f} deg true (+/- {analysis.heading_std_deg:.1f})",
+            "No speed: no wave crests resolved (see the report)",
+        ]
     sp = analysis.speed
+    over_ground = analysis.has_caution(CautionCode.OVER_GROUND)
     lines = [
-        f"Speed {sp.speed_mps / KNOT_MPS:.1f} kn = {sp.speed_mps:.2f} m/s",
+        f"Speed {'over ground ' if over_ground else ''}{sp.speed_mps / KNOT_MPS:.1f} kn = {sp.speed_mps:.2f} m/s",
         f"95% interval {sp.ci95_low_mps / KNOT_MPS:.1f}-{sp.ci95_high_mps / KNOT_MPS:.1f} kn "
         f"({sp.ci95_low_mps:.2f}-{sp.ci95_high_mps:.2f} m/s)",
         f"Heading {analysis.heading_deg:.1f} deg true (+/- {analysis.heading_std_deg:.1f})",

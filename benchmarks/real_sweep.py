@@ -1,0 +1,231 @@
+"""Real-scene sweep (script): every Sentinel-2 wake crop, sea tile and annotated port vessel of the shared
+real data, analysed as a user would, with a picture of each result.
+
+Run: ``.venv/bin/python benchmarks/real_sweep.py [REALDATA] [PICTURES] [--tune NAME=VALUE]``.  REALDATA is the
+folder described in its README (default ``../shared/realdata`` beside the project); PICTURES is where a small
+picture of every result and a contact sheet per group are written (default a folder in the temporary
+directory).  The summary is recorded in ``benchmarks/results/`` beside the last record.
+
+* Wake crops: analysed at the ship pixel of ``index.csv``; found / missed, heading, speed.
+* Sea tiles: analysed at the centre and at the three brightest specks (where a user might click on
+  something small and bright); a wake there is a false alarm unless the tile's label says it holds a boat.
+* Port scenes: the four 10 m bands stacked (B02 B03 B04 B08) and analysed at every COCO vessel outline's
+  centre.  The outlines say where vessels are, not whether they move: ``real_sweep_eye_labels.csv`` holds
+  a person's reading of each vessel's picture (wake visible or not), and found / missed / false alarm are
+  counted against it.  Labels read by eye are judgement, not ground truth.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import tempfile
+from pathlib import Path
+
+import cv2
+import numpy as np
+import rasterio
+from scipy import ndimage
+
+from wakemeter.detect.analysis import AnalysisRequest, analyze
+from wakemeter.scene.raster import open_scene
+
+from sweep_record import parse, record
+
+HERE = Path(__file__).resolve().parent
+EYE_LABELS = HERE / "real_sweep_eye_labels.csv"
+BANDS = ("B02", "B03", "B04", "B08")
+PICTURE_PX = 120  # scene pixels around the vessel in each picture
+
+
+def _picture(scene, a, title: str, out: Path) -> None:
+    """A 3x picture of the vessel's surroundings (B04 B03 B02 stretched) with the wake line and the verdict."""
+    c, r = a.vessel_px
+    h = PICTURE_PX // 2
+    c0, r0 = int(c) - h, int(r) - h
+    data, ok = scene.read(window=(max(c0, 0), max(r0, 0), PICTURE_PX, PICTURE_PX))
+    rgb = data[[2, 1, 0]] if data.shape[0] >= 3 else np.repeat(data[:1], 3, axis=0)
+    img = np.zeros((PICTURE_PX, PICTURE_PX, 3), np.uint8)
+    for i in range(3):
+        band = rgb[i]
+        lo, hi = np.percentile(band[ok[0]], [1, 99.5]) if ok[0].any() else (0, 1)
+        img[: band.shape[0], : band.shape[1], 2 - i] = np.clip((band - lo) / max(hi - lo, 1e-6) * 255, 0, 255)
+    img = cv2.resize(img, None, fx=3, fy=3, interpolation=cv2.INTER_NEAREST)
+    ox, oy = max(c0, 0), max(r0, 0)
+    for seg in a.drawing.segments:
+        if seg.kind.value in ("track", "arm_left", "arm_right", "narrow_v_left", "narrow_v_right"):
+            pts = np.array([[(x - ox) * 3, (y - oy) * 3] for x, y in seg.points], np.int32)
+            cv2.polylines(img, [pts], False, (0, 255, 255), 1)
+    cv2.circle(img, (int((c - ox) * 3), int((r - oy) * 3)), 9, (0, 0, 255), 1)
+    verdict = "WAKE" if a.wake_found else "no wake"
+    if a.wake_found and a.heading_deg is not None:
+        verdict += f" {a.heading_deg:.0f}deg"
+    if a.speed is not None:
+        verdict += f" {a.speed.speed_mps / 0.514444:.1f}kn"
+    cv2.putText(img, title[:40], (3, 12), cv2.FONT_HERSHEY_PLAIN, 0.9, (255, 255, 255), 1)
+    cv2.putText(img, verdict, (3, 26), cv2.FONT_HERSHEY_PLAIN, 0.9, (0, 255, 255), 1)
+    cv2.imwrite(str(out), img)
+
+
+def _sheet(pictures: list[Path], out: Path, cols: int = 6) -> None:
+    if not pictures:
+        return
+    tiles = [cv2.imread(str(p)) for p in pictures]
+    h, w = tiles[0].shape[:2]
+    rows = -(-len(tiles) // cols)
+    sheet = np.zeros((rows * h, cols * w, 3), np.uint8)
+    for i, t in enumerate(tiles):
+        sheet[(i // cols) * h : (i // cols + 1) * h, (i % cols) * w : (i % cols + 1) * w] = t[:h, :w]
+    cv2.imwrite(str(out), sheet)
+
+
+def _row(a, **kw) -> dict:
+    return {
+        **kw,
+        "wake": a.wake_found,
+        "significance": None if not np.isfinite(a.significance) else round(float(a.significance), 1),
+        "heading_deg": None if a.heading_deg is None else round(a.heading_deg, 1),
+        "heading_std_deg": None if a.heading_std_deg is None else round(a.heading_std_deg, 1),
+        "speed_knots": None if a.speed is None else round(a.speed.speed_mps / 0.514444, 1),
+        "speed_ci95_knots": None
+        if a.speed is None
+        else [round(a.speed.ci95_low_mps / 0.514444, 1), round(a.speed.ci95_high_mps / 0.514444, 1)],
+        "method": a.methods[0].method if a.methods else None,
+    }
+
+
+def crops(root: Path, pics: Path, tuning) -> list[dict]:
+    folder = root / "sentinel2_wake_crops"
+    rows, shots = [], []
+    for item in csv.DictReader((folder / "index.csv").open()):
+        col, row = (float(v) for v in item["ship_px_in_crop"].split(","))
+        with open_scene(folder / item["file"]) as sc:
+            a = analyze(sc, AnalysisRequest(vessel_px=(col, row)), tuning)
+            shot = pics / f"crop_{Path(item['file']).stem[:12]}.png"
+            _picture(sc, a, Path(item["file"]).stem[:12], shot)
+        shots.append(shot)
+        rows.append(_row(a, group="crop", file=item["file"], point=[col, row]))
+        print(rows[-1], flush=True)
+    _sheet(shots, pics / "sheet_crops.png", cols=3)
+    return rows
+
+
+def sea_tiles(root: Path, pics: Path, tuning) -> list[dict]:
+    folder = root / "sentinel2_sea_tiles"
+    rows, shots = [], []
+    for item in csv.DictReader((folder / "index.csv").open()):
+        label = item["visual_label_by_helper"]
+        holds_boat = label.startswith("CONTAINS")
+        with open_scene(folder / item["file"]) as sc:
+            data, valid = sc.read()
+            z = np.mean(
+                [(b - np.median(b)) / (1.4826 * np.median(np.abs(b - np.median(b))) + 1e-9) for b in data], axis=0
+            )
+            sm = ndimage.gaussian_filter(z, 1.0)
+            pr, pc = np.nonzero((sm == ndimage.maximum_filter(sm, 9)) & (sm > 6))
+            order = np.argsort(-sm[pr, pc])[:3]
+            points = [(sc.width / 2, sc.height / 2)] + [(float(pc[k]), float(pr[k])) for k in order]
+            for i, p in enumerate(points):
+                a = analyze(sc, AnalysisRequest(vessel_px=p), tuning)
+                rows.append(
+                    _row(a, group="sea", file=item["file"], point=list(p), label=label, holds_boat=holds_boat)
+                )
+                if a.wake_found or i == 0:
+                    shot = pics / f"sea_{Path(item['file']).stem}_{i}.png"
+                    _picture(sc, a, f"{Path(item['file']).stem} {i}", shot)
+                    shots.append(shot)
+                print(rows[-1], flush=True)
+    _sheet(shots, pics / "sheet_sea.png")
+    return rows
+
+
+def _stack(port_dir: Path, tmp: Path) -> Path | None:
+    files = [next(iter(sorted(port_dir.glob(f"*_S2L2A_{b}.tif"))), None) for b in BANDS]
+    if any(f is None for f in files):
+        return None
+    out = tmp / f"{port_dir.name}_S2L2A_stack.tif"
+    with rasterio.open(files[0]) as first:
+        prof = first.profile.copy()
+    prof.update(count=4, compress="deflate")
+    with rasterio.open(out, "w", **prof) as dst:
+        for i, f in enumerate(files):
+            with rasterio.open(f) as src:
+                dst.write(src.read(1), i + 1)
+            dst.set_band_description(i + 1, BANDS[i])
+    return out
+
+
+def ports(root: Path, pics: Path, tuning, eye: dict) -> list[dict]:
+    rows, shots = [], []
+    with tempfile.TemporaryDirectory() as tmp:
+        for port_dir in sorted((root / "sentinel2_ports").iterdir()):
+            coco = next(iter(port_dir.glob("*_coco.json")), None)
+            stack = _stack(port_dir, Path(tmp)) if coco else None
+            if stack is None:
+                continue
+            j = json.loads(coco.read_text())
+            size = {im["id"]: (im["width"], im["height"]) for im in j["images"]}
+            with open_scene(stack) as sc:
+                for ann in j["annotations"]:
+                    if size.get(ann["image_id"]) != (sc.width, sc.height):
+                        continue  # outlines drawn on an image of another size (not this scene's grid)
+                    x, y, w, h = ann["bbox"]
+                    p = (x + w / 2, y + h / 2)
+                    a = analyze(sc, AnalysisRequest(vessel_px=p), tuning)
+                    key = f"{port_dir.name}:{ann['id']}"
+                    rows.append(
+                        _row(a, group="port", file=key, point=list(p), outline_px=[w, h], wake_by_eye=eye.get(key))
+                    )
+                    shot = pics / f"port_{port_dir.name}_{ann['id']:03d}.png"
+                    _picture(sc, a, key, shot)
+                    shots.append(shot)
+                    print(rows[-1], flush=True)
+    _sheet(shots, pics / "sheet_ports.png")
+    return rows
+
+
+def summarise(rows: list[dict]) -> dict:
+    c = [r for r in rows if r["group"] == "crop"]
+    s = [r for r in rows if r["group"] == "sea"]
+    p = [r for r in rows if r["group"] == "port"]
+    clean = [r for r in s if not r["holds_boat"]]
+    boat = [r for r in s if r["holds_boat"]]
+    labelled = [r for r in p if r["wake_by_eye"] is not None]
+    out = {
+        "crops": len(c),
+        "crops_found": sum(r["wake"] for r in c),
+        "crops_with_speed": sum(r["speed_knots"] is not None for r in c),
+        "sea_points_clean": len(clean),
+        "sea_false_alarms_clean": sum(r["wake"] for r in clean),
+        "sea_clean_tiles_with_alarm": len({r["file"] for r in clean if r["wake"]}),
+        "sea_points_in_boat_tiles": len(boat),
+        "sea_wakes_in_boat_tiles": sum(r["wake"] for r in boat),
+        "port_vessels": len(p),
+        "port_vessels_labelled": len(labelled),
+        "port_wakes_by_eye": sum(r["wake_by_eye"] for r in labelled),
+        "port_found_of_wakes_by_eye": sum(r["wake"] and r["wake_by_eye"] for r in labelled),
+        "port_false_alarms_no_wake_by_eye": sum(r["wake"] and not r["wake_by_eye"] for r in labelled),
+        "port_found_unlabelled": sum(r["wake"] for r in p if r["wake_by_eye"] is None),
+    }
+    return out
+
+
+def _eye_labels() -> dict:
+    if not EYE_LABELS.exists():
+        return {}
+    return {r["vessel"]: r["wake_visible"].strip().lower() == "yes" for r in csv.DictReader(EYE_LABELS.open())}
+
+
+if __name__ == "__main__":
+    args, tuning = parse(
+        __doc__.splitlines()[0],
+        [
+            ("realdata", str, str(HERE.parents[1] / "shared" / "realdata"), "the shared real-data folder"),
+            ("pictures", str, str(Path(tempfile.gettempdir()) / "wakemeter_real_sweep"), "folder for pictures"),
+        ],
+    )
+    root, pics = Path(args.realdata), Path(args.pictures)
+    pics.mkdir(parents=True, exist_ok=True)
+    rows = crops(root, pics, tuning) + sea_tiles(root, pics, tuning) + ports(root, pics, tuning, _eye_labels())
+    print(f"pictures in {pics}")
+    record("real_sweep", {}, tuning, summarise(rows), rows, write=not args.no_record)
