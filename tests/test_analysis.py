@@ -256,6 +256,9 @@ def test_supercritical_vessel_without_the_depth(tmp_path, seed, froude):
         a = analyze(sc, AnalysisRequest(vessel_px=(truth["pixel_col"], truth["pixel_row"])))
     if not a.wake_found:
         pytest.xfail("weak wake not detected (allowed: no speed rather than a wrong one)")
+    if a.speed is None:  # seen as a line only (the turbulent wake): a heading, no speed
+        assert abs((a.heading_deg - case.heading_deg + 180) % 360 - 180) <= 3 * a.heading_std_deg + 1
+        pytest.xfail("waves not measured: the wake was seen as a line only (no speed rather than a wrong one)")
     assert a.regime.regime == "supercritical"
     assert a.speed.speed_mps == pytest.approx(case.speed_mps, rel=0.05)
     assert a.speed.ci95_low_mps <= case.speed_mps <= a.speed.ci95_high_mps

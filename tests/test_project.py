@@ -79,9 +79,9 @@ def test_result_echoes_its_request_and_reads_back(demo):
 
 def test_tuning_is_an_argument_not_a_global(demo):
     sc, a = demo
-    strict = DEFAULT_TUNING.with_overrides(["significance_min=1000"])
+    strict = DEFAULT_TUNING.with_overrides(["significance_min=1000", "line_significance_min=1000"])
     assert strict.significance_min == 1000.0 and DEFAULT_TUNING.significance_min == 7.0
-    assert strict.changed_fields() == {"significance_min": 1000.0}
+    assert strict.changed_fields() == {"significance_min": 1000.0, "line_significance_min": 1000.0}
     assert not analyze(sc, AnalysisRequest(vessel_px=POS), strict).wake_found
     assert a.wake_found  # the default was not touched
     with pytest.raises(ParameterError, match="unknown tuning"):

@@ -20,7 +20,7 @@ from wakemeter.detect.analysis import AnalysisRequest, analyze
 from wakemeter.detect.findings import CautionCode, LineKind
 from wakemeter.scene.raster import open_scene
 from wakemeter.scene.sensor import SENTINEL2_BAND_TIME_S, band_timing
-from wakemeter.synth import Hull, VesselSpec, write
+from wakemeter.synth import Hull, VesselSpec, render, write
 from wakemeter.synth.demo import vessel_scene
 from wakemeter.synth.multispectral import (
     BANDS,
@@ -223,3 +223,48 @@ def test_mtf_blur_has_the_stated_transfer():
         x = np.cos(2 * np.pi * f * np.arange(64))[None, :] * np.ones((64, 1))
         y = sensor_blur(x, sigma)
         assert np.ptp(y[10]) / np.ptp(x[10]) == pytest.approx(want, rel=1e-6)
+
+
+def test_real_crop_as_an_8bit_stretched_jpeg_still_shows_its_wake(tmp_path):
+    """The same crop as many users get it: true colour stretched to 8 bits and JPEG-compressed (foam and hull
+    saturate at 255); the wake is still found along the heading read by eye (no band timing: no speed)."""
+    name, ship, wake_points = CROPS[0]
+    src = DATA / name
+    dst = tmp_path / "stretched_jpeg.tif"
+    with rasterio.open(src) as s:
+        rgb = s.read([3, 2, 1]).astype(float)
+        lo, hi = np.percentile(rgb, [2, 98])
+        b8 = np.clip((rgb - lo) / (hi - lo) * 255, 0, 255).astype(np.uint8)
+        prof = s.profile | {"count": 3, "dtype": "uint8", "compress": "jpeg", "photometric": "ycbcr", "tiled": True}
+        prof.update(blockxsize=128, blockysize=128, predictor=1)
+        with rasterio.open(dst, "w", **prof) as d:
+            d.write(b8)
+    eye = [_bearing(src, p, ship) for p in wake_points]
+    with open_scene(dst) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=(float(ship[0]), float(ship[1]))))
+    assert a.wake_found, a.decision
+    assert min(_angle_diff(a.heading_deg, e) for e in eye) <= EYE_READING_DEG + 2 * a.heading_std_deg
+    assert a.speed is None
+
+
+@pytest.mark.parametrize("shift", [False, True])
+def test_radar_dark_wake_as_a_line_or_honestly_nothing(tmp_path, shift):
+    """Synthetic radar (3 looks, 8 m pixels) of a slow vessel whose transverse waves (16 m) are two pixels
+    long: no crests to fit. The dark turbulent wake gives the heading; with the hull shifted 209 m in azimuth
+    (Raney 1971) the analysis may decline, but it must never give a heading off the truth."""
+    from wakemeter.synth import RadarModel
+
+    v = VesselSpec("Slow trawler", -35.0, 36.0, 5.0, 130.0, Hull(120.0, 20.0))
+    spec = vessel_scene("radar", v, 640, 8.0, imaging=RadarModel(looks=3, hull_displacement=shift), seed=0)
+    tif, sidecar = write(render(spec), tmp_path / "radar.tif")
+    import json
+
+    t = json.loads(sidecar.read_text())["vessels"][0]
+    with open_scene(tif) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=(t["hull_pixel_col"], t["hull_pixel_row"])))
+    if shift and not a.wake_found:
+        assert "hull" in a.decision  # says why: the line from the hull is not along its axis
+        return
+    assert a.wake_found and a.speed is None
+    assert any(ln.kind == LineKind.TURBULENT_DARK for ln in a.lines)
+    assert _angle_diff(a.heading_deg, 130.0) <= 3 * a.heading_std_deg + 1.0

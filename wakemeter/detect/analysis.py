@@ -120,24 +120,15 @@ def analyze(
     stage(0.5, "looking for wake lines")
     lines = look_for_lines(scene, start, request, tuning)
     g = attempt.g if attempt is not None else _gravity(scene, start)[0]
+    moved, hull_px = _displaced_lines(scene, request, lines, tuning, stage)
+    if (
+        moved is not None
+        and moved.wake is not None
+        and (not lines.found or lines.wake is None or moved.wake.significance > lines.wake.significance)
+    ):
+        return line_finding(scene, request, moved, g=g, spectral_note=spectral_note, tuning=tuning, hull_px=hull_px)
     if lines.found:
         return line_finding(scene, request, lines, g=g, spectral_note=spectral_note, tuning=tuning)
-    chip = lines.chip
-    if chip is not None and chip.radar and chip.hull is not None:
-        # a radar hull whose wake does not start at it: moving targets are imaged shifted in azimuth
-        # (Raney 1971); look for the line from where the dark wake begins
-        stage(0.7, "looking for a wake displaced from the hull")
-        hull_px = chip.to_scene(*chip.hull.rc)
-        try:
-            apex = find_displaced_apex(scene, hull_px, size_px=tuning.chip_px, radar=True)
-        except ParameterError:
-            apex = None
-        if apex is not None:
-            moved = look_for_lines(scene, apex.apex_px, request, tuning, hull_elsewhere=True)
-            if moved.found:
-                return line_finding(
-                    scene, request, moved, g=g, spectral_note=spectral_note, tuning=tuning, hull_px=hull_px
-                )
     if attempt is None:
         return _no_wake_lines(scene, request, start, lines, g, spectral_note)
     return _no_wake(scene, request, attempt, tuning, lines_note=lines.why_not)
@@ -207,6 +198,35 @@ def _from_displaced_apex(scene: Scene, request: AnalysisRequest, first: _Attempt
         return _attempt(scene, request, apex.apex_px, radar=True, hull_px=first.vessel_px, tuning=tuning)
     except ParameterError:  # the wake's start lies too near the scene's edge to analyse: keep "no wake"
         return None
+
+
+def _displaced_lines(
+    scene: Scene, request: AnalysisRequest, lines: LineLook, tuning: Tuning, stage: Callable[[float, str], None]
+) -> tuple[LineLook | None, tuple[float, float] | None]:
+    """A radar hull's wake may start away from it (moving targets are imaged shifted in azimuth, Raney 1971):
+    the line search from where the dark wake begins, with the hull's position; (None, None) when that does
+    not apply or finds nothing."""
+    chip = lines.chip
+    if chip is None or not chip.radar or chip.hull is None:
+        return None, None
+    stage(0.7, "looking for a wake displaced from the hull")
+    hull_px = chip.to_scene(*chip.hull.rc)
+    try:
+        apex = find_displaced_apex(scene, hull_px, size_px=tuning.chip_px, radar=True)
+    except ParameterError:
+        return None, None
+    if apex is None:
+        return None, None
+    moved = look_for_lines(scene, apex.apex_px, request, tuning, hull_elsewhere=True)
+    if not moved.found or moved.wake is None or moved.chip is None:
+        return None, None
+    # the wake runs away from where the vessel was: a line from the "start" that heads back towards the hull
+    # means the start found is the far end of the wake
+    dc, dr = hull_px[0] - apex.apex_px[0], hull_px[1] - apex.apex_px[1]
+    to_hull = float(np.degrees(np.arctan2(-dr, dc)))
+    if abs((moved.wake.back_deg - to_hull + 180.0) % 360.0 - 180.0) < 45.0:
+        return None, None
+    return moved, hull_px
 
 
 def _no_wake_lines(

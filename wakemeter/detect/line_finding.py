@@ -32,6 +32,10 @@ from .result import WakeAnalysis
 from .tuning import Tuning
 from .wakeline import LineWake, find_wake_line
 
+#: a hull this many times longer than wide shows its axis; its wake must leave along it within this angle
+#: (plus twice the line's own uncertainty; common practice, no source: drift and yaw are a few degrees)
+HULL_ELONGATION = 2.5
+HULL_AXIS_MAX_DEG = 10.0
 #: speeds for which the "why no speed" note gives the transverse wavelength in pixels (knots)
 NOTE_SPEEDS_KN = (3.0, 20.0)
 #: fewer pixels per transverse wave than this cannot show crests (two samples per crest and some margin;
@@ -83,6 +87,19 @@ def look_for_lines(
             f"a line stands out here (significance {wake.significance:.1f}) but no hull is seen at the point: it "
             "may be the wake of a vessel elsewhere; mark that vessel, or ask again assuming a vessel here",
         )
+    hull = chip.hull
+    if hull is not None and not hull_elsewhere and hull.length_m >= HULL_ELONGATION * hull.width_m:
+        # a wake leaves a hull along its long axis: a line across it belongs to something else (in radar, a
+        # wake displaced from its hull, whose line from the hull runs obliquely into it)
+        off = abs((wake.back_deg - hull.axis_deg + 90.0) % 180.0 - 90.0)
+        if off > HULL_AXIS_MAX_DEG + 2 * wake.back_std_deg:
+            return LineLook(
+                chip,
+                wake,
+                False,
+                f"the line from the hull (significance {wake.significance:.1f}) leaves {off:.0f}\N{DEGREE SIGN} off "
+                "the hull's long axis, so it is not this hull's wake",
+            )
     return LineLook(chip, wake, True, "")
 
 
