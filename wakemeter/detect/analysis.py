@@ -28,7 +28,7 @@ from .decision import Decision, decide, decision_text, vessel_evidence
 from .depth_model import choose_depth_model
 from .explain import closing_cautions, depth_regime, interval_cover, opening_cautions, widen
 from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segment, SegmentKind
-from .line_finding import LineLook, line_finding, look_for_lines
+from .line_finding import HULL_ELONGATION, LineLook, line_finding, look_for_lines
 from .look import Look, choose_look
 from .methods import SPEED_METHODS, MethodContext
 from .request import AnalysisRequest, RadarGeometry
@@ -217,7 +217,9 @@ def _displaced_lines(
         return None, None
     if apex is None:
         return None, None
-    moved = look_for_lines(scene, apex.apex_px, request, tuning, hull_elsewhere=True)
+    h = chip.hull
+    axis = h.axis_deg if h.length_m >= HULL_ELONGATION * h.width_m else None
+    moved = look_for_lines(scene, apex.apex_px, request, tuning, hull_elsewhere=True, hull_axis_deg=axis)
     if not moved.found or moved.wake is None or moved.chip is None:
         return None, None
     # the wake runs away from where the vessel was: a line from the "start" that heads back towards the hull

@@ -60,6 +60,7 @@ def look_for_lines(
     tuning: Tuning,
     *,
     hull_elsewhere: bool = False,
+    hull_axis_deg: float | None = None,
 ) -> LineLook:
     """Search the vessel's surroundings for a wake line; never raises for a poor area (says why instead).
     ``hull_elsewhere``: the search starts where a radar hull's displaced wake begins (the hull is the
@@ -88,10 +89,14 @@ def look_for_lines(
             "may be the wake of a vessel elsewhere; mark that vessel, or ask again assuming a vessel here",
         )
     hull = chip.hull
-    if hull is not None and not hull_elsewhere and hull.length_m >= HULL_ELONGATION * hull.width_m:
+    axis = hull_axis_deg
+    if axis is None and hull is not None and not hull_elsewhere and hull.length_m >= HULL_ELONGATION * hull.width_m:
+        axis = hull.axis_deg
+    if axis is not None:
         # a wake leaves a hull along its long axis: a line across it belongs to something else (in radar, a
-        # wake displaced from its hull, whose line from the hull runs obliquely into it)
-        off = abs((wake.back_deg - hull.axis_deg + 90.0) % 180.0 - 90.0)
+        # wake displaced from its hull, whose line from the hull runs obliquely into it; a displaced hull keeps
+        # its orientation)
+        off = abs((wake.back_deg - axis + 90.0) % 180.0 - 90.0)
         if off > HULL_AXIS_MAX_DEG + 2 * wake.back_std_deg:
             return LineLook(
                 chip,

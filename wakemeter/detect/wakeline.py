@@ -50,6 +50,13 @@ SIDE_SPAN_DEG = 10.0
 #: half-width of the strip across the line in which its ridge is followed (px), and the largest correction
 REFINE_HALF_PX = 8.0
 REFINE_MAX_DEG = 12.0
+#: a second line counts as the other arm of a V at half-angles of 1-70 degrees (radar narrow V to
+#: supercritical arms) when it reaches this share of the first line's significance (and at least this)
+PARTNER_MIN_HALF_DEG = 1.0
+PARTNER_MAX_HALF_DEG = 70.0
+PARTNER_FRACTION = 0.3
+PARTNER_SIGNIFICANCE_MIN = 8.0
+NARROW_V_MAX_DEG = 6.0
 #: number of water points whose best lines make the scene's own background
 NULL_POINTS = 160
 #: standardised values are clipped here so one very bright spot cannot make a line
@@ -71,6 +78,7 @@ class LineWake:
     near_far_ratio: float  #: mean of the first half of the line over the second half (a wake fades away)
     lines: tuple[WakeLine, ...]  #: the main line and any arms (angles from the main line)
     vessel_rc: tuple[float, float]  #: where the line starts (chip row, col): the bow end of the hull's blob
+    half_angle: tuple[float, float] | None = None  #: (half-angle, its std) when two arms of a V were seen
 
 
 def _rays(img: np.ndarray, valid: np.ndarray, origin_rc, angles_deg: np.ndarray, r: np.ndarray, start=None):
@@ -121,9 +129,12 @@ def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float) -> np.ndarray:
     return prof - np.fmax(opp, side)
 
 
-def _line_scores(img: np.ndarray, valid: np.ndarray, origin_rc, r0: float, r_max: float, start=None) -> np.ndarray:
+def _line_scores(
+    img: np.ndarray, valid: np.ndarray, origin_rc, r0: float, r_max: float, start=None, *, keep: list | None = None
+) -> np.ndarray:
     """Best one-sided score for each length of ``LENGTH_FRACTIONS`` and each sign: shape (lengths, 2), with
-    the angle of each best: (scores, angles).  ``start``: per-direction offset of the rays (past the hull)."""
+    the angle of each best: (scores, angles).  ``start``: per-direction offset of the rays (past the hull).
+    ``keep``: a list that receives every direction's scores, one array (directions,) per length and sign."""
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     r = np.arange(r0, r_max, 1.0)
     vals, ok = _rays(img, valid, origin_rc, angles, r, start)
@@ -136,6 +147,8 @@ def _line_scores(img: np.ndarray, valid: np.ndarray, origin_rc, r0: float, r_max
             # a wake is there from its start: the line's value is the lesser of its whole and its first half
             prof = np.fmin(sign * full, sign * near)
             s = _scores(prof, angles, r0 + n_r / 2)
+            if keep is not None:
+                keep.append(s)
             if np.isfinite(s).any():
                 k = int(np.nanargmax(s))
                 out[i, j], where[i, j] = s[k], angles[k]
@@ -167,7 +180,8 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     origin = chip.vessel_rc
     start = None if chip.hull is None else chip.hull.extent_px(angles)
-    own, own_angle = _line_scores(img, valid, origin, r0, r_max, start)
+    fans: list = []
+    own, own_angle = _line_scores(img, valid, origin, r0, r_max, start, keep=fans)
     # the scene's own lines: the same scores from water points away from the vessel
     rng = np.random.default_rng(rng_seed)
     wr, wc = np.nonzero(chip.valid)
@@ -196,15 +210,69 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([angle]))[0])
     r_a = r0 + behind
     back, back_std = _refine(img, valid, origin, angle, r_a, min(r_a + 2 * n_r, r_max + behind), dark)
+    # a V: a second line of the same kind from the vessel, as strong, on the other side of a track between
+    # them (Kelvin arms, supercritical arms, radar arms); then the track is their bisector, not either line
+    # (in radar the two arms can differ in sign: the look direction tilts one bright and the other dark)
+    sig_fans = [((fans[2 * i + jj] - centre[i, jj]) / spread[i, jj] - med) / sp for jj in (0, 1)]
+    sig_fan = np.fmax(sig_fans[0], sig_fans[1])
+    partner = _partner(sig_fan, angle, sig)
+    half_angle = None
+    if partner is not None:
+        b2 = float(chip.hull.extent_px(np.array([partner]))[0]) if chip.hull is not None else 0.0
+        p_ang, p_std = _refine(img, valid, origin, partner, r0 + b2, min(r0 + b2 + 2 * n_r, r_max + b2), dark)
+        gap = (p_ang - back + 180.0) % 360.0 - 180.0
+        half_angle = (abs(gap) / 2, 0.5 * float(np.hypot(back_std, p_std)))
+        back, back_std = (back + gap / 2) % 360.0, half_angle[1]
     near_far = _near_far(img, valid, origin, back, r_a, r_a + n_r, dark)
     # the vessel's position: the front of the hull's core (the bow), opposite the line
     ahead = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([back + 180.0]))[0])
     fa = np.radians(back + 180.0)
     vessel = (origin[0] - ahead * np.sin(fa), origin[1] + ahead * np.cos(fa))
     main_kind = LineKind.TURBULENT_DARK if dark else LineKind.TURBULENT_BRIGHT
-    lines = [WakeLine(main_kind, 0.0, float(sig), float(n_r))]
-    lines += _arms(img, valid, origin, back, r_a, r_max + behind, centre[-1, 0], spread[-1, 0], radar=chip.radar)
-    return LineWake(float(back), float(back_std), score, sig, med, sp, dark, float(n_r), near_far, tuple(lines), vessel)
+    if half_angle is None:
+        lines = [WakeLine(main_kind, 0.0, float(sig), float(n_r))]
+        lines += _arms(img, valid, origin, back, r_a, r_max + behind, centre[-1, 0], spread[-1, 0], radar=chip.radar)
+    else:
+        arm_kind = LineKind.NARROW_V if chip.radar and half_angle[0] < NARROW_V_MAX_DEG else LineKind.KELVIN_ARM
+        assert partner is not None
+        lines = [
+            WakeLine(arm_kind, float((angle - back + 180.0) % 360.0 - 180.0), float(sig), float(n_r)),
+            WakeLine(
+                arm_kind, float((partner - back + 180.0) % 360.0 - 180.0), float(sig_fan[int(partner)]), float(n_r)
+            ),
+        ]
+    return LineWake(
+        float(back),
+        float(back_std),
+        score,
+        sig,
+        med,
+        sp,
+        dark,
+        float(n_r),
+        near_far,
+        tuple(lines),
+        vessel,
+        half_angle,
+    )
+
+
+def _partner(sig_fan: np.ndarray, angle: float, sig: float) -> float | None:
+    """The other arm of a V with the line at ``angle``: the strongest direction 2-140 degrees away whose
+    significance reaches ``PARTNER_FRACTION`` of the line's and the line threshold; None without one."""
+    angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
+    sep = np.abs((angles - angle + 180.0) % 360.0 - 180.0)
+    cand = (sep >= 2 * PARTNER_MIN_HALF_DEG) & (sep <= 2 * PARTNER_MAX_HALF_DEG) & np.isfinite(sig_fan)
+    if not cand.any():
+        return None
+    k = int(np.argmax(np.where(cand, sig_fan, -np.inf)))
+    # a peak of its own, not the shoulder of the main line
+    left, right = sig_fan[(k - 1) % angles.size], sig_fan[(k + 1) % angles.size]
+    if not (sig_fan[k] >= left and sig_fan[k] >= right):
+        return None
+    if sig_fan[k] < max(PARTNER_FRACTION * sig, PARTNER_SIGNIFICANCE_MIN):
+        return None
+    return float(angles[k])
 
 
 def _refine(img, valid, origin_rc, angle_deg: float, r0: float, r1: float, dark: bool) -> tuple[float, float]:
