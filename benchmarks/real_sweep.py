@@ -67,10 +67,10 @@ def _picture(scene, a, title: str, out: Path) -> None:
     cv2.imwrite(str(out), img)
 
 
-def _sheet(pictures: list[Path], out: Path, cols: int = 6) -> None:
+def _sheet(pictures: list[Path], out: Path, cols: int = 6, shrink: int = 1) -> None:
     if not pictures:
         return
-    tiles = [cv2.imread(str(p)) for p in pictures]
+    tiles = [cv2.imread(str(p))[::shrink, ::shrink] for p in pictures]
     h, w = tiles[0].shape[:2]
     rows = -(-len(tiles) // cols)
     sheet = np.zeros((rows * h, cols * w, 3), np.uint8)
@@ -127,9 +127,7 @@ def sea_tiles(root: Path, pics: Path, tuning) -> list[dict]:
             points = [(sc.width / 2, sc.height / 2)] + [(float(pc[k]), float(pr[k])) for k in order]
             for i, p in enumerate(points):
                 a = analyze(sc, AnalysisRequest(vessel_px=p), tuning)
-                rows.append(
-                    _row(a, group="sea", file=item["file"], point=list(p), label=label, holds_boat=holds_boat)
-                )
+                rows.append(_row(a, group="sea", file=item["file"], point=list(p), label=label, holds_boat=holds_boat))
                 if a.wake_found or i == 0:
                     shot = pics / f"sea_{Path(item['file']).stem}_{i}.png"
                     _picture(sc, a, f"{Path(item['file']).stem} {i}", shot)
@@ -164,10 +162,10 @@ def ports(root: Path, pics: Path, tuning, eye: dict) -> list[dict]:
             if stack is None:
                 continue
             j = json.loads(coco.read_text())
-            size = {im["id"]: (im["width"], im["height"]) for im in j["images"]}
             with open_scene(stack) as sc:
                 for ann in j["annotations"]:
-                    if size.get(ann["image_id"]) != (sc.width, sc.height):
+                    h_w = ann.get("segmentation", {}).get("size") if isinstance(ann.get("segmentation"), dict) else None
+                    if h_w is not None and tuple(h_w) != (sc.height, sc.width):
                         continue  # outlines drawn on an image of another size (not this scene's grid)
                     x, y, w, h = ann["bbox"]
                     p = (x + w / 2, y + h / 2)
@@ -180,7 +178,8 @@ def ports(root: Path, pics: Path, tuning, eye: dict) -> list[dict]:
                     _picture(sc, a, key, shot)
                     shots.append(shot)
                     print(rows[-1], flush=True)
-    _sheet(shots, pics / "sheet_ports.png")
+    for k in range(0, len(shots), 40):
+        _sheet(shots[k : k + 40], pics / f"sheet_ports_{k // 40 + 1}.png", cols=8, shrink=2)
     return rows
 
 

@@ -33,13 +33,11 @@ from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
 from .robust import median_spread
 
-#: a bright structure that holds a disk of this radius (chip pixels) is land, cloud or a quay, not a hull
-#: or a wake line (hulls and foam lines at 3-10 m pixels are a few pixels wide; common practice, no source)
-LAND_DISK_RADIUS_PX = 3
-#: ... or of this radius in metres when that is more pixels (wider than a hull); capped at 10 px; for dry areas
-#: by the water index
-LAND_DISK_M = 60.0
-#: for bright areas without a water index: wider than a broad foam wake (common practice, no source); capped 20 px
+#: dry areas by the water index: at least this wide (radius, m; at least one pixel) and this large
+DRY_DISK_M = 10.0
+DRY_AREA_M2 = 2_000.0
+#: bright areas without a water index: wider than a broad foam wake (radius, m; common practice, no source);
+#: capped at 20 px
 LAND_BRIGHT_DISK_M = 150.0
 #: and covers at least this area: larger than a hull with its foam (60 000 m^2 is a 1.2 km x 50 m band;
 #: common practice, no source)
@@ -64,10 +62,10 @@ class Hull:
     mask: np.ndarray  #: bool, the blob (the hull with the foam attached to it, above a quarter of the peak)
     core: np.ndarray  #: bool, its brightest part (above half the peak): the hull, and foam as bright as it
 
-    def extent_px(self, angles_deg: np.ndarray) -> np.ndarray:
-        """How far the core reaches from the centre in each image direction (chip pixels): the largest
-        projection of its pixels within a pixel of the ray."""
-        rr, cc = np.nonzero(self.core)
+    def extent_px(self, angles_deg: np.ndarray, *, whole: bool = False) -> np.ndarray:
+        """How far the core (or with ``whole`` the blob) reaches from the centre in each image direction (chip
+        pixels): the largest projection of its pixels within a pixel of the ray."""
+        rr, cc = np.nonzero(self.mask if whole else self.core)
         dr, dc = rr - self.rc[0], cc - self.rc[1]
         a = np.radians(np.asarray(angles_deg, float))[:, None]
         along = dc[None, :] * np.cos(a) - dr[None, :] * np.sin(a)
@@ -205,28 +203,27 @@ def land_mask(img_z: np.ndarray, valid: np.ndarray, *, m_px: float, ndwi: np.nda
     """Land, cloud and quays in a standardised image (water median 0, spread 1), dilated by 3 pixels for their
     bright edges:
 
-    * with a water index: large dry areas (NDWI < 0) that hold a disk of ``LAND_DISK_M`` (foam and hulls
-      stay wet: their green exceeds their near infrared);
+    * with a water index: dry areas (NDWI < 0) a few pixels wide and more (``DRY_DISK_M``, ``DRY_AREA_M2``):
+      quays and breakwaters included.  Hulls and foam stay wet: on the Sentinel-2 crops NDWI is 0.13-0.31 on
+      hulls, 0.3-0.55 on foam, 0.58 on open water and -0.2 to 0 on a breakwater;
     * by brightness alone: large bright areas that hold a disk of ``LAND_BRIGHT_DISK_M``, wider than any
-      foam wake, so a broad bright wake is not taken for land (quays narrower than that stay in).
+      foam wake, so a broad bright wake is not taken for land (quays narrower than that stay in), and cover
+      at least ``LAND_AREA_M2``."""
 
-    Both must cover at least ``LAND_AREA_M2``."""
-    min_px = LAND_AREA_M2 / m_px**2
-
-    def opened(cand: np.ndarray, radius_m: float, cap: int) -> np.ndarray:
-        radius = int(np.clip(round(radius_m / m_px), LAND_DISK_RADIUS_PX, cap))
+    def opened(cand: np.ndarray, radius_m: float, cap: int, area_m2: float) -> np.ndarray:
+        radius = int(np.clip(round(radius_m / m_px), 1, cap))
         disk = ndimage.iterate_structure(ndimage.generate_binary_structure(2, 1), radius)
-        return ndimage.binary_opening(cand, structure=disk)
+        wide = ndimage.binary_opening(cand, structure=disk)
+        lab, n = ndimage.label(wide)
+        if n == 0:
+            return wide
+        sizes = ndimage.sum_labels(np.ones_like(img_z), lab, index=np.arange(1, n + 1))
+        return np.isin(lab, 1 + np.nonzero(sizes >= area_m2 / m_px**2)[0])
 
-    wide = opened(valid & (ndimage.uniform_filter(img_z, 3) > BRIGHT_Z), LAND_BRIGHT_DISK_M, 20)
+    land = opened(valid & (ndimage.uniform_filter(img_z, 3) > BRIGHT_Z), LAND_BRIGHT_DISK_M, 20, LAND_AREA_M2)
     if ndwi is not None:
-        wide |= opened(valid & (ndwi < 0.0), LAND_DISK_M, 10)
-    lab, n = ndimage.label(wide)
-    if n == 0:
-        return wide
-    sizes = ndimage.sum_labels(np.ones_like(img_z), lab, index=np.arange(1, n + 1))
-    big = np.isin(lab, 1 + np.nonzero(sizes >= min_px)[0])
-    return ndimage.binary_dilation(big, iterations=3)
+        land |= opened(valid & (ndwi < 0.0), DRY_DISK_M, 10, DRY_AREA_M2)
+    return ndimage.binary_dilation(land, iterations=3)
 
 
 def _find_hull(

@@ -57,6 +57,8 @@ PARTNER_MAX_HALF_DEG = 70.0
 PARTNER_FRACTION = 0.3
 PARTNER_SIGNIFICANCE_MIN = 8.0
 NARROW_V_MAX_DEG = 6.0
+#: ... and the fan between the two must fall below this share of the weaker one (two lines, not one wide one)
+PARTNER_DIP = 0.5
 #: number of water points whose best lines make the scene's own background
 NULL_POINTS = 160
 #: standardised values are clipped here so one very bright spot cannot make a line
@@ -179,7 +181,7 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     # hull itself is not a wake); from the click when no hull was seen
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     origin = chip.vessel_rc
-    start = None if chip.hull is None else chip.hull.extent_px(angles)
+    start = None if chip.hull is None else chip.hull.extent_px(angles, whole=True)
     fans: list = []
     own, own_angle = _line_scores(img, valid, origin, r0, r_max, start, keep=fans)
     # the scene's own lines: the same scores from water points away from the vessel
@@ -207,7 +209,7 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     score, angle, dark = float(own[i, j]), float(own_angle[i, j]), bool(j == 1)
     n_r = max(int(LENGTH_FRACTIONS[i] * np.arange(r0, r_max, 1.0).size), 6)
     # from the centre, past the core behind the vessel: the line's own start
-    behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([angle]))[0])
+    behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([angle]), whole=True)[0])
     r_a = r0 + behind
     back, back_std = _refine(img, valid, origin, angle, r_a, min(r_a + 2 * n_r, r_max + behind), dark)
     # a V: a second line of the same kind from the vessel, as strong, on the other side of a track between
@@ -218,7 +220,7 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     partner = _partner(sig_fan, angle, sig)
     half_angle = None
     if partner is not None:
-        b2 = float(chip.hull.extent_px(np.array([partner]))[0]) if chip.hull is not None else 0.0
+        b2 = float(chip.hull.extent_px(np.array([partner]), whole=True)[0]) if chip.hull is not None else 0.0
         p_ang, p_std = _refine(img, valid, origin, partner, r0 + b2, min(r0 + b2 + 2 * n_r, r_max + b2), dark)
         gap = (p_ang - back + 180.0) % 360.0 - 180.0
         half_angle = (abs(gap) / 2, 0.5 * float(np.hypot(back_std, p_std)))
@@ -271,6 +273,16 @@ def _partner(sig_fan: np.ndarray, angle: float, sig: float) -> float | None:
     if not (sig_fan[k] >= left and sig_fan[k] >= right):
         return None
     if sig_fan[k] < max(PARTNER_FRACTION * sig, PARTNER_SIGNIFICANCE_MIN):
+        return None
+    # two lines, not one broad one: the fan must dip well below both between them
+    i0 = int(round(angle / ANGLE_STEP_DEG)) % angles.size
+    d = (k - i0) % angles.size
+    between = (
+        [(i0 + t) % angles.size for t in range(1, d)]
+        if d <= angles.size // 2
+        else [(k + t) % angles.size for t in range(1, angles.size - d)]
+    )
+    if not between or np.nanmin(sig_fan[between]) > PARTNER_DIP * min(sig, float(sig_fan[k])):
         return None
     return float(angles[k])
 

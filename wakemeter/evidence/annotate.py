@@ -45,7 +45,7 @@ class Crop:
 
 
 #: evidence pictures smaller than this (pixels) are enlarged by a whole factor, pixels kept square
-MIN_EVIDENCE_SIDE = 720
+MIN_EVIDENCE_SIDE = 480
 
 
 def true_colour_bands(scene: Scene) -> tuple[int, int, int]:
