@@ -33,9 +33,10 @@ from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
 from .robust import median_spread
 
-#: dry areas by the water index: at least this wide (radius, m; at least one pixel) and this large
+#: dry areas by the water index: at least this wide (radius, m; at least one pixel) and larger than any hull
+#: (the largest ships are about 400 m x 60 m; some decks are as dry as a quay, NDWI near 0)
 DRY_DISK_M = 10.0
-DRY_AREA_M2 = 2_000.0
+DRY_AREA_M2 = 30_000.0
 #: bright areas without a water index: wider than a broad foam wake (radius, m; common practice, no source);
 #: capped at 20 px
 LAND_BRIGHT_DISK_M = 150.0

@@ -59,6 +59,9 @@ PARTNER_SIGNIFICANCE_MIN = 8.0
 NARROW_V_MAX_DEG = 6.0
 #: ... and the fan between the two must fall below this share of the weaker one (two lines, not one wide one)
 PARTNER_DIP = 0.5
+#: in optical scenes a dark line counts only this long (m): a hull's or a quay's shadow is a short dark line
+#: from a bright object, a calm wake in sun glint runs on for kilometres (common practice, no source)
+OPTICAL_DARK_LINE_MIN_M = 400.0
 #: number of water points whose best lines make the scene's own background
 NULL_POINTS = 160
 #: standardised values are clipped here so one very bright spot cannot make a line
@@ -132,11 +135,20 @@ def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float) -> np.ndarray:
 
 
 def _line_scores(
-    img: np.ndarray, valid: np.ndarray, origin_rc, r0: float, r_max: float, start=None, *, keep: list | None = None
+    img: np.ndarray,
+    valid: np.ndarray,
+    origin_rc,
+    r0: float,
+    r_max: float,
+    start=None,
+    *,
+    keep: list | None = None,
+    min_dark_px: float = 0.0,
 ) -> np.ndarray:
     """Best one-sided score for each length of ``LENGTH_FRACTIONS`` and each sign: shape (lengths, 2), with
     the angle of each best: (scores, angles).  ``start``: per-direction offset of the rays (past the hull).
-    ``keep``: a list that receives every direction's scores, one array (directions,) per length and sign."""
+    ``keep``: a list that receives every direction's scores, one array (directions,) per length and sign.
+    Dark lines shorter than ``min_dark_px`` are not scored."""
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     r = np.arange(r0, r_max, 1.0)
     vals, ok = _rays(img, valid, origin_rc, angles, r, start)
@@ -149,6 +161,8 @@ def _line_scores(
             # a wake is there from its start: the line's value is the lesser of its whole and its first half
             prof = np.fmin(sign * full, sign * near)
             s = _scores(prof, angles, r0 + n_r / 2)
+            if sign < 0 and n_r < min_dark_px:
+                s = np.full_like(s, np.nan)
             if keep is not None:
                 keep.append(s)
             if np.isfinite(s).any():
@@ -183,7 +197,9 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     origin = chip.vessel_rc
     start = None if chip.hull is None else chip.hull.extent_px(angles, whole=True)
     fans: list = []
-    own, own_angle = _line_scores(img, valid, origin, r0, r_max, start, keep=fans)
+    # optical: a short dark line from a hull is its shadow (or a quay's), not a calm wake
+    min_dark = 0.0 if chip.radar else OPTICAL_DARK_LINE_MIN_M / chip.m_per_px
+    own, own_angle = _line_scores(img, valid, origin, r0, r_max, start, keep=fans, min_dark_px=min_dark)
     # the scene's own lines: the same scores from water points away from the vessel
     rng = np.random.default_rng(rng_seed)
     wr, wc = np.nonzero(chip.valid)
@@ -192,15 +208,21 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     if wr.size < 50:
         return None
     pick = rng.choice(wr.size, size=min(NULL_POINTS, wr.size), replace=False)
-    null = np.stack([_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max)[0] for k in pick])
+    null = np.stack(
+        [_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max, min_dark_px=min_dark)[0] for k in pick]
+    )
     # standardise each length and sign on the background points, then take the best: the background's best
     # standardised scores are the reference for the vessel's best
-    ok_null = np.isfinite(null).all(axis=(1, 2))
+    scored = np.isfinite(null).any(axis=0)  # (length, sign) pairs that are scored at all
+    ok_null = np.isfinite(null[:, scored]).all(axis=1)
     null = null[ok_null]
     if null.shape[0] < 20:
         return None
+    null = np.where(scored[None], null, 0.0)
     centre = np.median(null, axis=0)
     spread = np.maximum(1.4826 * np.median(np.abs(null - centre), axis=0), 1e-3)
+    null = np.where(scored[None], null, -np.inf)
+    own = np.where(scored, own, -np.inf)
     z_null = ((null - centre) / spread).reshape(null.shape[0], -1).max(axis=1)
     med, sp = median_spread(z_null, floor=1e-3)
     z_own = np.nan_to_num((own - centre) / spread, nan=-np.inf)
