@@ -212,7 +212,12 @@ def summarise(rows: list[dict]) -> dict:
 def _eye_labels() -> dict:
     if not EYE_LABELS.exists():
         return {}
-    return {r["vessel"]: r["wake_visible"].strip().lower() == "yes" for r in csv.DictReader(EYE_LABELS.open())}
+    labels = {}
+    for r in csv.DictReader(EYE_LABELS.open()):
+        seen = r["wake_visible"].strip().lower()
+        if seen in ("yes", "no"):  # "unclear" stays unlabelled
+            labels[r["vessel"]] = seen == "yes"
+    return labels
 
 
 if __name__ == "__main__":

@@ -45,6 +45,8 @@ LAND_BRIGHT_DISK_M = 150.0
 LAND_AREA_M2 = 60_000.0
 #: standardised brightness above which a pixel counts as bright for the land mask and the hull search
 BRIGHT_Z = 4.0
+#: a hull this close to land or a quay (pixels) is taken as moored alongside
+MOORED_GAP_PX = 4
 #: a hull in optical imagery stands this far above the water (standardised, smoothed): ships on water are
 #: tens of spreads brighter (Sentinel-2 crops: 58-266); a textured photograph's bright parts are not (the
 #: scikit-image rocket: 6.9)
@@ -87,6 +89,7 @@ class LineChip:
     radar: bool
     bands: tuple[int, ...]
     land_fraction: float  #: share of the in-scene pixels masked as land, cloud or quay
+    hull_at_land: bool = False  #: the hull touches land or a quay (moored: lines along the quay are not wakes)
 
     @property
     def vessel_rc(self) -> tuple[float, float]:
@@ -179,6 +182,7 @@ def prepare_line_chip(
         bool(radar),
         bands,
         float((land & valid).sum() / in_scene),
+        bool(hull is not None and (ndimage.binary_dilation(hull.mask, iterations=MOORED_GAP_PX) & land).any()),
     )
 
 

@@ -89,6 +89,14 @@ def look_for_lines(
             "may be the wake of a vessel elsewhere; mark that vessel, or ask again assuming a vessel here",
         )
     hull = chip.hull
+    if chip.hull_at_land and not request.force:
+        return LineLook(
+            chip,
+            wake,
+            False,
+            f"the hull lies alongside land or a quay (a line of significance {wake.significance:.1f} leaves it, but "
+            "lines along a quay's edge are not wakes); a moored vessel makes no wake",
+        )
     axis = hull_axis_deg
     if axis is None and hull is not None and not hull_elsewhere and hull.length_m >= HULL_ELONGATION * hull.width_m:
         axis = hull.axis_deg

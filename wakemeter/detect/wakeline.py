@@ -131,7 +131,9 @@ def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float) -> np.ndarray:
     shifts = np.array(list(range(lo, hi + 1)) + list(range(-hi, -lo + 1)))
     stack = prof[(np.arange(m)[:, None] - shifts[None, :]) % m]  # column k: the profile turned by shifts[k]
     side = _nanmedian_last(stack)  # directions with no valid ray beside them: NaN, as wanted
-    return prof - np.fmax(opp, side)
+    # ... and from the open water as a whole (0 after standardising): water beyond a calm patch or a slick is
+    # brighter than the patch around it without being a line
+    return prof - np.fmax(np.fmax(opp, side), 0.0)
 
 
 def _line_scores(
