@@ -288,3 +288,26 @@ def test_assume_a_vessel_from_the_panel(qtbot, tmp_path, monkeypatch):
     forced = w.doc.findings[vid]
     assert forced.wake_found and forced.has_caution(CautionCode.FORCED) and forced.request.force
     w.close()
+
+
+def test_real_sentinel2_crop_in_the_program(qtbot, tmp_path, monkeypatch):
+    """A real Sentinel-2 crop (tests/data/sentinel2, MIT licence): the wake is found as a line and the panel
+    shows the speed over ground from the hull's shift between bands, the heading and the reason why the waves
+    give no speed."""
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    w = MainWindow()
+    qtbot.addWidget(w)
+    w.resize(1200, 800)
+    w.show()
+    assert w.open_path(str(ROOT / "tests" / "data" / "sentinel2" / "marseille_00_S2L2A_2023-08-22_wake.tif"))
+    w.doc.undo.push(AddItem(w.doc, Vessel(w.doc.new_id(), "Crop ship", (120.0, 120.0)), "mark vessel"))
+    _analyse(w, qtbot)
+    vid = next(iter(w.doc.vessels))
+    f = w.doc.effective_finding(vid)
+    assert f.wake_found and f.has_caution(CautionCode.OVER_GROUND) and f.has_caution(CautionCode.LINES_ONLY)
+    html = w.controller.panel.text.toHtml()
+    assert "Speed over ground" in html and "Heading" in html and "no Kelvin crests are seen here" in html
+    assert "over ground" in w.message.text() or "m/s" in w.message.text()
+    w.grab().save(str(tmp_path / "real_crop.png"))
+    w.close()

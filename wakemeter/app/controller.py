@@ -105,7 +105,8 @@ class Controller(QObject):
                 return
         request = self.doc.project.request_for(vid)  # a frozen copy, taken on the GUI thread
         self.doc.requests[vid] = request
-        from ..detect.analysis import analyze
+        from ..detect.findings import CautionCode
+from ..detect.analysis import analyze
 
         def work(progress, cancelled):
             return analyze(scene, request, progress=progress, cancelled=cancelled)
@@ -115,10 +116,15 @@ class Controller(QObject):
             self.host.say(
                 f"{v.name}: "
                 + (
-                    f"{result.speed.speed_mps:.2f} m/s, 95 % {result.speed.ci95_low_mps:.2f}"
-                    f"–{result.speed.ci95_high_mps:.2f} m/s"
-                    if result.wake_found
-                    else "no wake found"
+                    f"{result.speed.speed_mps:.2f} m/s"
+                    + (" over ground" if result.has_caution(CautionCode.OVER_GROUND) else "")
+                    + f", 95 % {result.speed.ci95_low_mps:.2f}–{result.speed.ci95_high_mps:.2f} m/s"
+                    if result.speed is not None
+                    else (
+                        f"wake seen as a line, heading {result.heading_deg:.1f}°, no speed"
+                        if result.wake_found
+                        else "no wake found"
+                    )
                 )
             )
             QTimer.singleShot(0, self._next)

@@ -279,8 +279,13 @@ def result_html(r: dict, rejected: bool = False) -> str:
             f"<h3>No wake found</h3><p>{esc(r.get('decision', ''))}</p><p>No speed is given for a vessel "
             "without a detectable wake. You can still measure by hand (crest ruler, track, arm).</p>"
         )
-    speed, interval = summary.speed_text(r)
-    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in summary.summary_rows(r)[2:])
+    main = summary.summary_rows(r)
+    speed, interval = main[0][1], main[1][1]  # "not estimated" when the wake was seen as a line only
+    if r.get("speed_mps") is not None:
+        speed = f"{main[0][0]}: {speed}"
+    else:
+        speed = "Wake seen as a line: no speed (see the cautions)"
+    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in main[2:])
     methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(r))
     return (
         ("<p style='color:#c33'><b>Rejected:</b> kept on record, not used or exported.</p>" if rejected else "")

@@ -50,7 +50,11 @@ def estimate_contrast(
     s = min(1.0, 512 / max(scene.width, scene.height))
     oh, ow = max(1, int(scene.height * s)), max(1, int(scene.width * s))
     if bands is None:
-        bands = (1, 2, 3) if scene.info.count >= 3 else (1,)
+        bands = display.true_colour_bands(scene.info.band_descriptions) if scene.info.count >= 3 else (1,)
+        if len(bands) == 3 and scene.info.dtype == "uint16":
+            # reflectance products: one wide stretch with a gamma (per-band 1-99.5 % stretches of mostly dark
+            # water turn its noise into colour)
+            low, high, gamma = 0.5, 99.9, 2.0
     bands = tuple(int(b) for b in bands)
     if len(bands) not in (1, 3) or any(b < 1 or b > scene.info.count for b in bands):
         raise ParameterError(
@@ -63,9 +67,13 @@ def estimate_contrast(
     if db:
         data = display.to_db(np.where(valid, data, 1.0))
     los, his = [], []
+    joint = rgb and scene.info.dtype == "uint16"
+    if joint:  # the same stretch for the three bands keeps the colours of the reflectances
+        v = data[valid]
+        lo_j, hi_j = np.percentile(v, [low, high]) if v.size else (0.0, 1.0)
     for b in range(len(bands)):
         v = data[b][valid[b]]
-        lo, hi = np.percentile(v, [low, high]) if v.size else (0.0, 1.0)
+        lo, hi = (lo_j, hi_j) if joint else (np.percentile(v, [low, high]) if v.size else (0.0, 1.0))
         los.append(float(lo))
         his.append(float(hi if hi > lo else lo + 1))
     return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb, bands)

@@ -87,6 +87,15 @@ def revise(
                     seed=rng,
                 )
                 methods.append(replace(est, method=est.method + " (by hand)", by_hand=True))
+    if not methods:  # a wake seen as a line only, and no hand crest: still no speed
+        return replace(
+            analysis,
+            half_angle_deg=half,
+            half_angle_std_deg=half_sd,
+            regime=regime,
+            cautions=tuple(cautions),
+            revised=True,
+        )
     # shallower water the analysis could not rule out stays inside the interval
     combined = widen(inv.combine_estimates(methods), analysis.interval_cover)
     if not combined.consistent:
@@ -126,6 +135,7 @@ def kelvin_crest_lines(scene: Scene, analysis: WakeAnalysis, *, n_crests: int = 
         or analysis.speed is None
         or analysis.heading_deg is None
         or analysis.regime.regime not in (inv.Regime.DEEP, inv.Regime.UNKNOWN)
+        or analysis.has_caution(CautionCode.LINES_ONLY)  # no waves were fitted: drawing crests would suggest so
     ):
         return []
     u = analysis.speed.speed_mps

@@ -48,16 +48,6 @@ class Crop:
 MIN_EVIDENCE_SIDE = 480
 
 
-def true_colour_bands(scene: Scene) -> tuple[int, int, int]:
-    """Red, green and blue band numbers: from band names (Sentinel-2 B04 B03 B02, or red/green/blue) when the
-    file names them, else the first three bands."""
-    names = {(d or "").strip().upper(): i + 1 for i, d in enumerate(scene.info.band_descriptions)}
-    for trio in (("B04", "B03", "B02"), ("B4", "B3", "B2"), ("RED", "GREEN", "BLUE")):
-        if all(t in names for t in trio):
-            return names[trio[0]], names[trio[1]], names[trio[2]]
-    return 1, 2, 3
-
-
 def crop_for(scene: Scene, analysis: WakeAnalysis, *, max_side: int = 2400) -> tuple[Crop, int]:
     """The chip area around the vessel, clipped to the scene, and the decimation to keep it <= max_side."""
     pts = np.array(analysis.drawing.points_of(SegmentKind.AREA) or [analysis.vessel_px])
@@ -88,7 +78,7 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     """RGB uint8 image of the crop around the vessel with every annotation drawn."""
     crop, step = crop_for(scene, analysis, max_side=max_side)
     oh, ow = crop.height // step, crop.width // step
-    bands = true_colour_bands(scene) if scene.info.count >= 3 else (1,)
+    bands = display.true_colour_bands(scene.info.band_descriptions) if scene.info.count >= 3 else (1,)
     data, valid = scene.read(window=(crop.col0, crop.row0, crop.width, crop.height), out_shape=(oh, ow), bands=bands)
     radar = display.looks_like_radar(scene.info.dtype, scene.info.count, data[0][valid[0]][:100_000])
     if len(bands) == 3 and scene.info.dtype == "uint16":

@@ -131,3 +131,13 @@ def looks_like_radar(dtype: str, count: int, sample: np.ndarray) -> bool:
         return False
     slope = float(np.polyfit(lm, np.log(sd[ok]), 1)[0])
     return enl < 20.0 and slope > 0.6
+
+
+def true_colour_bands(band_descriptions: tuple[str | None, ...]) -> tuple[int, int, int]:
+    """Red, green and blue band numbers (1-based): from band names (Sentinel-2 B04 B03 B02, or red/green/blue)
+    when the file names them, else the first three bands."""
+    names = {(d or "").strip().upper(): i + 1 for i, d in enumerate(band_descriptions)}
+    for trio in (("B04", "B03", "B02"), ("B4", "B3", "B2"), ("RED", "GREEN", "BLUE")):
+        if all(t in names for t in trio):
+            return names[trio[0]], names[trio[1]], names[trio[2]]
+    return 1, 2, 3
