@@ -105,8 +105,8 @@ class Controller(QObject):
                 return
         request = self.doc.project.request_for(vid)  # a frozen copy, taken on the GUI thread
         self.doc.requests[vid] = request
+        from ..detect.analysis import analyze
         from ..detect.findings import CautionCode
-from ..detect.analysis import analyze
 
         def work(progress, cancelled):
             return analyze(scene, request, progress=progress, cancelled=cancelled)
