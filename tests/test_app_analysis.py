@@ -17,17 +17,22 @@ SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
 TRUTH = json.loads((ROOT / "sample_scenes" / "harbour_approach_optical.truth.json").read_text())["vessels"][0]
 
 
-@pytest.fixture
-def win(qtbot, tmp_path, monkeypatch):
+def _window(qtbot, tmp_path, monkeypatch, scene: Path, name: str, position: tuple[float, float]) -> MainWindow:
+    """The program on ``scene`` with one vessel marked, its settings and cache in the test's folder."""
     monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
     monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
     w = MainWindow()
     qtbot.addWidget(w)
     w.resize(1200, 800)
     w.show()
-    assert w.open_path(str(SCENE))
-    v = Vessel(w.doc.new_id(), "Saltmarsh Wren", (TRUTH["pixel_col"] + 2, TRUTH["pixel_row"] - 2))
-    w.doc.undo.push(AddItem(w.doc, v, "mark vessel"))
+    assert w.open_path(str(scene))
+    w.doc.undo.push(AddItem(w.doc, Vessel(w.doc.new_id(), name, position), "mark vessel"))
+    return w
+
+
+@pytest.fixture
+def win(qtbot, tmp_path, monkeypatch):
+    w = _window(qtbot, tmp_path, monkeypatch, SCENE, "Saltmarsh Wren", (TRUTH["pixel_col"] + 2, TRUTH["pixel_row"] - 2))
     yield w
     w.close()
 
@@ -294,14 +299,8 @@ def test_real_sentinel2_crop_in_the_program(qtbot, tmp_path, monkeypatch):
     """A real Sentinel-2 crop (tests/data/sentinel2, MIT licence): the wake is found as a line and the panel
     shows the speed over ground from the hull's shift between bands, the heading and the reason why the waves
     give no speed."""
-    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
-    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
-    w = MainWindow()
-    qtbot.addWidget(w)
-    w.resize(1200, 800)
-    w.show()
-    assert w.open_path(str(ROOT / "tests" / "data" / "sentinel2" / "marseille_00_S2L2A_2023-08-22_wake.tif"))
-    w.doc.undo.push(AddItem(w.doc, Vessel(w.doc.new_id(), "Crop ship", (120.0, 120.0)), "mark vessel"))
+    crop = ROOT / "tests" / "data" / "sentinel2" / "marseille_00_S2L2A_2023-08-22_wake.tif"
+    w = _window(qtbot, tmp_path, monkeypatch, crop, "Crop ship", (120.0, 120.0))
     _analyse(w, qtbot)
     vid = next(iter(w.doc.vessels))
     f = w.doc.effective_finding(vid)

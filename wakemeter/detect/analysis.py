@@ -240,30 +240,18 @@ def _no_wake_lines(
     if scene.info.georeferenced:
         lon, lat = geodesy.pixel_to_lonlat(scene.georef, px[0], px[1])
         lonlat = (float(lon), float(lat))
-    regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no wake: nothing to judge")
     m_px = lines.chip.m_per_px if lines.chip is not None else float(np.sqrt(frame.m_per_col * frame.m_per_row_up))
-    return WakeAnalysis(
-        False,
+    cautions = opening_cautions(
+        hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
+    )
+    return WakeAnalysis.without_wake(
         f"no wake found: {spectral_note}; {lines.why_not}",
         float("nan") if lines.wake is None else lines.wake.significance,
         px,
         lonlat,
-        None,
-        None,
-        None,
-        (),
-        None,
-        None,
-        None,
-        None,
-        regime,
-        None,
-        None,
-        g,
-        m_px,
-        tuple(
-            opening_cautions(hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known)
-        ),
+        gravity_mps2=g,
+        pixel_m=m_px,
+        cautions=tuple(cautions),
         request=request,
     )
 
@@ -290,27 +278,14 @@ def _no_wake(
     cautions = opening_cautions(
         hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
     )
-    regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no wake: nothing to judge")
-    return WakeAnalysis(
-        False,
+    return WakeAnalysis.without_wake(
         decision,
         a.decision.significance,
         a.vessel_px,
         a.vessel_lonlat,
-        None,
-        None,
-        None,
-        (),
-        None,
-        None,
-        None,
-        None,
-        regime,
-        None,
-        None,
-        a.g,
-        a.look.chip.m_per_px,
-        tuple(cautions),
+        gravity_mps2=a.g,
+        pixel_m=a.look.chip.m_per_px,
+        cautions=tuple(cautions),
         drawing=Drawing((chip_outline(a.look.chip),)),
         diagnostics=Diagnostics(
             side_contrast=a.look.side_contrast,

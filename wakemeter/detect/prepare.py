@@ -44,6 +44,14 @@ def _mad_sigma(a: np.ndarray) -> float:
     return median_spread(a, floor=0.0)[1] or float(np.std(a)) or 1.0
 
 
+def _check_coverage(valid: np.ndarray) -> None:
+    if valid.sum() < 0.3 * valid.size:
+        raise ParameterError(
+            "less than 30 % of the area around the vessel has valid pixels: it is too close "
+            "to the edge of the scene, or the area is nodata or land"
+        )
+
+
 def prepare_chip(
     scene: Scene,
     vessel_px: tuple[float, float],
@@ -99,11 +107,7 @@ def prepare_chip(
     fvalid = np.zeros((size_px, size_px), bool)
     full[orow : orow + oh, oc : oc + ow] = img
     fvalid[orow : orow + oh, oc : oc + ow] = ok
-    if fvalid.sum() < 0.3 * size_px * size_px:
-        raise ParameterError(
-            "less than 30 % of the area around the vessel has valid pixels: it is too close "
-            "to the edge of the scene, or the area is nodata or land"
-        )
+    _check_coverage(fvalid)
     # saturation (land, cloud): very bright connected areas
     vals = full[fvalid]
     med, sig = float(np.median(vals)), _mad_sigma(vals)
@@ -116,11 +120,7 @@ def prepare_chip(
     m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up)) * step
     if not radar:  # land, cloud and quays inside the box (large bright areas) are not water
         fvalid &= ~land_mask(np.where(fvalid, (full - med) / sig, 0.0), fvalid, m_px=m_px)
-        if fvalid.sum() < 0.3 * size_px * size_px:
-            raise ParameterError(
-                "less than 30 % of the area around the vessel has valid pixels: it is too close "
-                "to the edge of the scene, or the area is nodata or land"
-            )
+        _check_coverage(fvalid)
         vals = full[fvalid]
         med, sig = float(np.median(vals)), _mad_sigma(vals)
     centre = (row - r0) / step, (col - c0) / step

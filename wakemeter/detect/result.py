@@ -59,6 +59,44 @@ class WakeAnalysis:
     software: str = SOFTWARE
     plots: PlotData | None = field(default=None, compare=False, repr=False)  #: arrays for plots (not stored)
 
+    @classmethod
+    def without_wake(
+        cls,
+        decision: str,
+        significance: float,
+        vessel_px: tuple[float, float],
+        vessel_lonlat: tuple[float, float] | None,
+        *,
+        gravity_mps2: float,
+        pixel_m: float,
+        cautions: tuple[Caution, ...],
+        **more: Any,
+    ) -> WakeAnalysis:
+        """A result that found no wake: no speed, heading or wave measures; the regime unknown."""
+        regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no wake: nothing to judge")
+        return cls(
+            wake_found=False,
+            decision=decision,
+            significance=significance,
+            vessel_px=vessel_px,
+            vessel_lonlat=vessel_lonlat,
+            heading_deg=None,
+            heading_std_deg=None,
+            speed=None,
+            methods=(),
+            half_angle_deg=None,
+            half_angle_std_deg=None,
+            transverse_wavelength_m=None,
+            transverse_wavelength_std_m=None,
+            regime=regime,
+            depth_m=None,
+            depth_ci95_m=None,
+            gravity_mps2=gravity_mps2,
+            pixel_m=pixel_m,
+            cautions=cautions,
+            **more,
+        )
+
     def caution_codes(self) -> tuple[CautionCode, ...]:
         return tuple(c.code for c in self.cautions)
 

@@ -41,8 +41,8 @@ from scipy import ndimage
 from ..errors import ParameterError
 from ..physics.gravity import normal_gravity
 from ..scene import geodesy
-from .scene_maker import RenderedScene, SceneSpec, _grid_direction, build_georef
-from .wavefield import hull_pressure, kelvin_elevation
+from .scene_maker import RenderedScene, SceneSpec, _grid_direction, build_georef, vessel_wave_slopes
+from .wavefield import hull_pressure
 
 BANDS = ("B02", "B03", "B04", "B08")
 #: B02 -> B04 is published (1.005 s); B03 and B08 at the midpoint are this renderer's choice (see module text)
@@ -202,23 +202,7 @@ def render_multispectral(spec: SceneSpec, look: MultispectralLook) -> Multispect
     hulls = [np.zeros(shape) for _ in range(nb)]
     truth_vessels = []
     for v in spec.vessels:
-        col, row = (float(a) for a in geodesy.lonlat_to_pixel(georef, v.lon, v.lat))
-        if not (0 <= col < spec.width and 0 <= row < spec.height):
-            raise ParameterError(f"vessel {v.name!r} at {v.lon}, {v.lat} lies outside the scene")
-        frame = geodesy.local_frame(georef, col, row)
-        ux, uy = _grid_direction(frame, v.heading_deg)
-        _, gx, gy = kelvin_elevation(
-            shape,
-            dx_m=dx,
-            dy_m=dy,
-            vessel_xy_m=(col * dx, row * dy),
-            speed_mps=v.speed_mps,
-            heading_xy=(ux, uy),
-            hull=v.hull,
-            depth_m=spec.depth_m,
-            g=g,
-            with_slopes=True,
-        )
+        col, row, _frame, (ux, uy), gx, gy = vessel_wave_slopes(spec, georef, v, shape, dx, dy, g)
         band_px = []
         for b, t in enumerate(look.band_times_s):
             shift_x, shift_y = v.speed_mps * t * ux, v.speed_mps * t * uy  # metres, y up

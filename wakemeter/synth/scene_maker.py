@@ -135,6 +135,31 @@ def _grid_direction(frame: geodesy.LocalFrame, bearing_deg: float) -> tuple[floa
     return float(vx / n), float(vy / n)
 
 
+def vessel_wave_slopes(
+    spec: SceneSpec, georef: geodesy.GeoRef, v: VesselSpec, shape: tuple[int, int], dx: float, dy: float, g: float
+) -> tuple[float, float, geodesy.LocalFrame, tuple[float, float], np.ndarray, np.ndarray]:
+    """A vessel's pixel position, local frame, heading in the metric grid and its Kelvin pattern's slopes
+    (d/dx, d/dy up)."""
+    col, row = (float(a) for a in geodesy.lonlat_to_pixel(georef, v.lon, v.lat))
+    if not (0 <= col < spec.width and 0 <= row < spec.height):
+        raise ParameterError(f"vessel {v.name!r} at {v.lon}, {v.lat} lies outside the scene")
+    frame = geodesy.local_frame(georef, col, row)
+    ux, uy = _grid_direction(frame, v.heading_deg)
+    _, gx, gy = kelvin_elevation(
+        shape,
+        dx_m=dx,
+        dy_m=dy,
+        vessel_xy_m=(col * dx, row * dy),
+        speed_mps=v.speed_mps,
+        heading_xy=(ux, uy),
+        hull=v.hull,
+        depth_m=spec.depth_m,
+        g=g,
+        with_slopes=True,
+    )
+    return col, row, frame, (ux, uy), gx, gy
+
+
 def render(spec: SceneSpec) -> RenderedScene:
     """Render the scene (pixels, georeference and truth) without writing anything."""
     rng = np.random.default_rng(spec.seed)
@@ -155,23 +180,7 @@ def render(spec: SceneSpec) -> RenderedScene:
     radar_m = spec.imaging if isinstance(spec.imaging, RadarModel) else None
     optical_m = spec.imaging if isinstance(spec.imaging, OpticalModel) else None
     for v in spec.vessels:
-        col, row = (float(a) for a in geodesy.lonlat_to_pixel(georef, v.lon, v.lat))
-        if not (0 <= col < spec.width and 0 <= row < spec.height):
-            raise ParameterError(f"vessel {v.name!r} at {v.lon}, {v.lat} lies outside the scene")
-        frame = geodesy.local_frame(georef, col, row)
-        ux, uy = _grid_direction(frame, v.heading_deg)
-        _, gx, gy = kelvin_elevation(
-            shape,
-            dx_m=dx,
-            dy_m=dy,
-            vessel_xy_m=(col * dx, row * dy),
-            speed_mps=v.speed_mps,
-            heading_xy=(ux, uy),
-            hull=v.hull,
-            depth_m=spec.depth_m,
-            g=g,
-            with_slopes=True,
-        )
+        col, row, frame, (ux, uy), gx, gy = vessel_wave_slopes(spec, georef, v, shape, dx, dy, g)
         sx += gx
         sy += gy
         rel_x, rel_y = xm - col * dx, ym_up + row * dy
