@@ -144,3 +144,27 @@ def test_hull_froude_apparent_angle():
     assert np.all(np.diff(a) < 0) and a[0] < kelvin.KELVIN_HALF_ANGLE_DEG
     assert hull.hull_froude(10.0, 25.0, g=G) == pytest.approx(10 / np.sqrt(G * 25))
     assert hull.narrow_angle_explained(float(hull.apparent_arm_angle(1.2)), 1.2 * np.sqrt(G * 20), 20.0, g=G)
+
+
+def test_hull_froude_from_arm_angle_inverts_the_fast_hull_model():
+    # Source: Rabaud & Moisy 2013 (PRL 110, 214503), large-Fr asymptote 1/(2 sqrt(2 pi) Fr_L) rad (from memory):
+    # an arm angle of 2.2858 deg is Fr_L = 5 on the asymptote; the exact model is within 0.1 % there.
+    assert hull.hull_froude_from_arm_angle(np.degrees(1 / (2 * np.sqrt(2 * np.pi) * 5.0))) == pytest.approx(
+        5.0, rel=2e-3
+    )
+    fr = np.array([0.6, 1.0, 2.0, 4.0])
+    assert np.asarray(hull.hull_froude_from_arm_angle(hull.apparent_arm_angle(fr))) == pytest.approx(fr, rel=1e-9)
+    assert np.isnan(hull.hull_froude_from_arm_angle(25.0))  # wider than Kelvin's: no information on Fr_L
+
+
+def test_speed_from_narrow_arms_and_hull_length():
+    # a 20 m hull at Fr_L = 1.5 (U = 1.5 sqrt(g L)), arms read at the model's angle +/- 0.3 deg
+    from wakemeter.physics import inversion as inv
+
+    u = 1.5 * np.sqrt(G * 20.0)
+    phi = float(hull.apparent_arm_angle(1.5))
+    est = inv.speed_from_arm_angle_and_hull_length(
+        inv.Uncertain(phi, 0.3), inv.Uncertain(20.0, 1.0), inv.Conditions(g_mps2=inv.Uncertain(G, 0.0)), seed=1
+    )
+    assert est.ci95_low_mps < u < est.ci95_high_mps
+    assert est.speed_mps == pytest.approx(u, rel=0.03)

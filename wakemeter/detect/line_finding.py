@@ -36,6 +36,10 @@ from .wakeline import LineWake, find_wake_line
 #: (plus twice the line's own uncertainty; common practice, no source: drift and yaw are a few degrees)
 HULL_ELONGATION = 2.5
 HULL_AXIS_MAX_DEG = 10.0
+#: a hull is measured on the image only at pixels this small (m): coarser, its foam cannot be told apart
+RESOLVED_HULL_PIXEL_M = 2.0
+#: relative standard uncertainty of a hull length (given or measured; common practice, no source)
+HULL_LENGTH_REL_STD = 0.05
 #: speeds for which the "why no speed" note gives the transverse wavelength in pixels (knots)
 NOTE_SPEEDS_KN = (3.0, 20.0)
 #: fewer pixels per transverse wave than this cannot show crests (two samples per crest and some margin;
@@ -207,6 +211,10 @@ def line_finding(
             "; the time between this sensor's bands is not known to the program (recognised: Sentinel-2 with "
             "named bands B02 and B04), so no speed over ground from the hull's shift between bands"
         )
+    narrow = _narrow_arms_speed(chip, wake, request, g, rng)
+    if narrow is not None:
+        methods = (*methods, narrow)
+        reason = reason.replace("no speed from waves: ", "no speed from wave crests: ")
     cautions.insert(1, Caution(CautionCode.LINES_ONLY, reason))
     combined = (
         _one_method(methods[0]) if len(methods) == 1 else (inv.combine_estimates(list(methods)) if methods else None)
@@ -248,6 +256,31 @@ def line_finding(
         lines=wake.lines,
         request=request,
     )
+
+
+def _narrow_arms_speed(
+    chip: LineChip, wake: LineWake, request: AnalysisRequest, g: float, rng: np.random.Generator
+) -> inv.SpeedEstimate | None:
+    """Speed of a fast hull from its arms narrower than Kelvin's and its length (Rabaud & Moisy 2013): the
+    length given by the analyst, or measured on the image when the hull is resolved (pixels of at most
+    ``RESOLVED_HULL_PIXEL_M``, where the hull and its foam are told apart)."""
+    if wake.half_angle is None or not any(ln.kind == LineKind.KELVIN_ARM for ln in wake.lines):
+        return None
+    half, half_std = wake.half_angle
+    if half > kelvin.KELVIN_HALF_ANGLE_DEG - 2 * half_std - 1.0:
+        return None
+    if request.hull_length_m is not None:
+        length = inv.Uncertain(request.hull_length_m, HULL_LENGTH_REL_STD * request.hull_length_m)
+    elif chip.hull is not None and chip.m_per_px <= RESOLVED_HULL_PIXEL_M:
+        length = inv.Uncertain(chip.hull.length_m, 2 * chip.m_per_px + HULL_LENGTH_REL_STD * chip.hull.length_m)
+    else:
+        return None
+    try:
+        return inv.speed_from_arm_angle_and_hull_length(
+            inv.Uncertain(half, half_std), length, inv.Conditions(g_mps2=inv.Uncertain(g, 0.0005)), seed=rng
+        )
+    except ParameterError:  # the angle does not fit the fast-hull model
+        return None
 
 
 def _one_method(e: inv.SpeedEstimate) -> inv.CombinedSpeed:

@@ -63,3 +63,25 @@ def narrow_angle_explained(
     """True when a measured arm angle below 19.47 deg fits the fast-hull model within tolerance."""
     expected = float(apparent_arm_angle(hull_froude(speed_mps, hull_length_m, g=g)))
     return bool(abs(measured_deg - expected) <= tolerance_deg)
+
+
+def hull_froude_from_arm_angle(arm_angle_deg: ArrayLike) -> np.ndarray | float:
+    """The hull Froude number whose brightest arms lie at ``arm_angle_deg`` (the inverse of
+    :func:`apparent_arm_angle` on its fast branch, Fr_L above the transition); NaN for angles at or above
+    Kelvin's 19.47 deg, where the angle does not depend on Fr_L.
+
+    The model gives, for the wave of length L (cos^2 theta = 1 / (2 pi Fr^2)), the ray angle
+    tan(phi) = sin(theta) cos(theta) / (1 + sin^2(theta)); with t = tan(theta) this is
+    tan(phi) = t / (1 + 2 t^2).  The fast hull follows the branch theta from 35.26 deg to 90 deg (phi falling
+    from 19.47 deg to 0), where t = (1 + sqrt(1 - 8 tan^2 phi)) / (4 tan phi); then cos^2 theta = 1 / (1 + t^2)
+    gives Fr^2 = (1 + t^2) / (2 pi).
+    """
+    phi = np.radians(np.asarray(arm_angle_deg, dtype=float))
+    tp = np.tan(phi)
+    disc = 1.0 - 8.0 * tp * tp
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = (1.0 + np.sqrt(disc)) / (4.0 * tp)
+        fr = np.sqrt((1.0 + t * t) / (2.0 * np.pi))
+    ok = (phi > 0) & (disc >= 0) & (np.degrees(phi) < KELVIN_HALF_ANGLE_DEG - 1e-9) & (fr > FR_HULL_TRANSITION)
+    fr = np.where(ok, fr, np.nan)
+    return float(fr) if fr.ndim == 0 else fr

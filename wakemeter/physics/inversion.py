@@ -339,6 +339,42 @@ class CombinedSpeed:
     verdict: str
 
 
+def speed_from_arm_angle_and_hull_length(
+    arm_angle_deg: Uncertain,
+    hull_length_m: Uncertain,
+    conditions: Conditions,
+    *,
+    draws: int = 20_000,
+    seed: int | np.random.Generator | None = None,
+) -> SpeedEstimate:
+    """Speed from the angle of the brightest arms of a fast hull and its length (deep water).
+
+    A hull cannot make waves much longer than itself; above Fr_L ~ 0.5 the brightest arms close in from
+    Kelvin's 19.47 deg (Rabaud & Moisy 2013, Phys. Rev. Lett. 110, 214503):
+    U = Fr_L(phi) sqrt(g L) with Fr_L(phi) from :func:`wakemeter.physics.hull.hull_froude_from_arm_angle`.
+    Only arms clearly narrower than Kelvin's carry this information.
+    """
+    from .hull import hull_froude_from_arm_angle
+
+    _check_draws(draws)
+    rng = _rng(seed)
+    g, scale, _h = _common(conditions, draws, rng)
+    phi = _draw(arm_angle_deg, draws, rng)
+    length = _draw(hull_length_m, draws, rng) * scale
+    fr = np.asarray(hull_froude_from_arm_angle(phi))
+    u = fr * np.sqrt(g * np.where(length > 0, length, np.nan))
+    return _summarise(
+        "narrow arms and hull length",
+        u,
+        draws,
+        conditions.assumptions()
+        + (
+            "deep water; the brightest arms follow the longest wave the hull makes (Rabaud & Moisy 2013)",
+            f"hull length {hull_length_m.value:.0f} +/- {hull_length_m.std:.0f} m",
+        ),
+    )
+
+
 def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) -> CombinedSpeed:
     """Combine independent speed estimates; test their consistency with chi-square.
 
