@@ -77,9 +77,10 @@ class Tuning:
     fitted_depth_std_floor: float = 0.05  #: smallest relative uncertainty of a fitted depth
     fitted_depth_std_cap: float = 0.5  #: largest relative uncertainty of a fitted depth
     # ---- wake lines on real imagery (benchmarks/real_sweep.py: Sentinel-2 crops, sea tiles, port vessels) ----
-    #: a line from a hull this significant against the scene's other lines is a wake; clean real sea tiles
-    #: gave at most 5.8 at hull-like specks, the three wake crops 15-65 (see README, real scenes)
-    line_significance_min: float = 8.0
+    #: a line from a hull this significant against the scene's other lines is a wake (real_sweep.py): on the
+    #: clean sea tiles' hull-like specks at most 8.0 (and 12.5 on a blob that looks like a boat with a trail),
+    #: at the 94 port vessels without a wake at most 6.7; the wake crops 16-52, small boats on sea tiles 11-16
+    line_significance_min: float = 10.0
     line_chip_px: int = 320  #: side of the square read around the vessel for the line search
     line_reach_m: float = 1200.0  #: longest wake line scored, ground metres
     line_snap_radius_m: float = 60.0  #: a hull this close to the click is taken as the vessel
