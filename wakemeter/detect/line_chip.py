@@ -204,7 +204,15 @@ def _land_mask(
     return land_mask(img, valid, m_px=m_px, ndwi=ndwi)
 
 
-def land_mask(img_z: np.ndarray, valid: np.ndarray, *, m_px: float, ndwi: np.ndarray | None = None) -> np.ndarray:
+def green_nir_bands(descriptions: tuple[str | None, ...]) -> tuple[int, int] | None:
+    """1-based band numbers of a green and a near-infrared band named in the file (Sentinel-2 or plain)."""
+    gn = _green_nir(descriptions, tuple(range(1, len(descriptions) + 1)))
+    return None if gn is None else (gn[0] + 1, gn[1] + 1)
+
+
+def land_mask(
+    img_z: np.ndarray, valid: np.ndarray, *, m_px: float, ndwi: np.ndarray | None = None, bright: bool = True
+) -> np.ndarray:
     """Land, cloud and quays in a standardised image (water median 0, spread 1), dilated by 3 pixels for their
     bright edges:
 
@@ -213,7 +221,7 @@ def land_mask(img_z: np.ndarray, valid: np.ndarray, *, m_px: float, ndwi: np.nda
       hulls, 0.3-0.55 on foam, 0.58 on open water and -0.2 to 0 on a breakwater;
     * by brightness alone: large bright areas that hold a disk of ``LAND_BRIGHT_DISK_M``, wider than any
       foam wake, so a broad bright wake is not taken for land (quays narrower than that stay in), and cover
-      at least ``LAND_AREA_M2``."""
+      at least ``LAND_AREA_M2`` (with ``bright``)."""
 
     def opened(cand: np.ndarray, radius_m: float, cap: int, area_m2: float) -> np.ndarray:
         radius = int(np.clip(round(radius_m / m_px), 1, cap))
@@ -225,7 +233,9 @@ def land_mask(img_z: np.ndarray, valid: np.ndarray, *, m_px: float, ndwi: np.nda
         sizes = ndimage.sum_labels(np.ones_like(img_z), lab, index=np.arange(1, n + 1))
         return np.isin(lab, 1 + np.nonzero(sizes >= area_m2 / m_px**2)[0])
 
-    land = opened(valid & (ndimage.uniform_filter(img_z, 3) > BRIGHT_Z), LAND_BRIGHT_DISK_M, 20, LAND_AREA_M2)
+    land = np.zeros_like(valid)
+    if bright:
+        land |= opened(valid & (ndimage.uniform_filter(img_z, 3) > BRIGHT_Z), LAND_BRIGHT_DISK_M, 20, LAND_AREA_M2)
     if ndwi is not None:
         land |= opened(valid & (ndwi < 0.0), DRY_DISK_M, 10, DRY_AREA_M2)
     return ndimage.binary_dilation(land, iterations=3)

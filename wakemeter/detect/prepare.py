@@ -17,7 +17,7 @@ from ..errors import ParameterError
 from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
-from .line_chip import land_mask
+from .line_chip import green_nir_bands, land_mask
 from .robust import median_spread
 
 
@@ -118,8 +118,14 @@ def prepare_chip(
             sat = ndimage.binary_opening(fvalid & (full >= 0.995 * top), iterations=2)
             fvalid &= ~ndimage.binary_dilation(sat, iterations=2)
     m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up)) * step
-    if not radar:  # land, cloud and quays inside the box (large bright areas) are not water
-        fvalid &= ~land_mask(np.where(fvalid, (full - med) / sig, 0.0), fvalid, m_px=m_px)
+    gn = None if radar else green_nir_bands(scene.info.band_descriptions)
+    if gn is not None:  # land and quays inside the box, by the water index where the bands are named
+        gnd, gnv = scene.read(window=(wc0, wr0, wc1 - wc0, wr1 - wr0), out_shape=(oh, ow), bands=gn)
+        ndwi = np.zeros((size_px, size_px), np.float32)
+        ndwi[orow : orow + oh, oc : oc + ow] = np.where(
+            gnv.all(axis=0), (gnd[0] - gnd[1]) / np.maximum(gnd[0] + gnd[1], 1e-6), 0.0
+        )
+        fvalid &= ~land_mask(np.where(fvalid, (full - med) / sig, 0.0), fvalid, m_px=m_px, ndwi=ndwi, bright=False)
         _check_coverage(fvalid)
         vals = full[fvalid]
         med, sig = float(np.median(vals)), _mad_sigma(vals)
