@@ -148,3 +148,26 @@ def test_report_command(tmp_path, capsys):
     assert "already exist" in capsys.readouterr().err
     assert main(args + ["--force"]) == 0
     assert main(["report", str(SCENE), "--vessel=-35.0,36.0", "--out", str(tmp_path / "missing")]) == 2
+
+
+def test_analysis_parameters_are_plain_words_with_rounded_numbers():
+    # the provenance row of the PDF once printed the raw request, e.g. vessel_px=[785.5334971685008, ...]
+    from wakemeter.evidence.report import describe_parameters
+
+    text = describe_parameters(
+        {
+            "vessel": "Saltmarsh Wren",
+            "request": {
+                "schema": "wakemeter.request/1",
+                "vessel_px": [785.5334971685008, 412.12345],
+                "vessel_lonlat": [-35.00012345678, 36.0000001],
+                "depth": None,
+                "pixel_rel_std": 0.005,
+                "seed": 0,
+                "force": False,
+            },
+        }
+    )
+    assert "vessel_px (785.53, 412.12)" in text and "vessel_lonlat (-35.000123, 36.000000)" in text
+    assert "pixel_rel_std 0.005" in text and "depth" not in text and "schema" not in text
+    assert "785.5334971685008" not in text and "Saltmarsh Wren" in text

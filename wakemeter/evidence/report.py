@@ -89,7 +89,7 @@ def write_pdf(
         ["Acquisition time", prov["acquisition_time"] or "not in the metadata"],
         ["Georeference", f"{g['crs'] or 'none'}; {g['note'] or 'from the file'}"],
         ["Software", prov["software"]],
-        ["Analysis parameters", ", ".join(f"{k}={v}" for k, v in prov["analysis_parameters"].items()) or "defaults"],
+        ["Analysis parameters", describe_parameters(prov["analysis_parameters"]) or "defaults"],
         ["Exported", prov["exported_at"]],
         ["Analyst", prov["analyst"] or "not given"],
     ]
@@ -109,6 +109,27 @@ def write_pdf(
         canvas.restoreState()
 
     doc.build(story, onFirstPage=footer, onLaterPages=footer)
+
+
+def describe_parameters(params: dict) -> str:
+    """The analysis parameters in plain words: what was given, numbers rounded to what they mean (pixels to
+    0.01, longitude and latitude to 1e-6 degrees, other numbers to 4 significant digits), unset fields and
+    schema names left out."""
+
+    def value(key: str, v: object) -> str:
+        if isinstance(v, bool) or v is None:
+            return str(v).lower()
+        if isinstance(v, float):
+            if "lonlat" in key or key in ("lon", "lat"):
+                return f"{v:.6f}"
+            return f"{v:.2f}" if key.endswith("_px") else f"{v:.4g}"
+        if isinstance(v, (list, tuple)):
+            return "(" + ", ".join(value(key, x) for x in v) + ")"
+        if isinstance(v, dict):
+            return "; ".join(f"{k} {value(k, x)}" for k, x in v.items() if x is not None and k != "schema")
+        return str(v)
+
+    return "; ".join(f"{k} {value(k, v)}" for k, v in params.items() if v is not None)
 
 
 def _table(rows, widths, small, header: bool = False):
