@@ -28,6 +28,7 @@ import rasterio
 from scipy import ndimage
 
 from wakemeter.detect.analysis import AnalysisRequest, analyze
+from wakemeter.physics.units import KNOT_MPS
 from wakemeter.scene.raster import open_scene
 
 from sweep_record import parse, record
@@ -61,7 +62,7 @@ def _picture(scene, a, title: str, out: Path) -> None:
     if a.wake_found and a.heading_deg is not None:
         verdict += f" {a.heading_deg:.0f}deg"
     if a.speed is not None:
-        verdict += f" {a.speed.speed_mps / 0.514444:.1f}kn"
+        verdict += f" {a.speed.speed_mps / KNOT_MPS:.1f}kn"
     cv2.putText(img, title[:40], (3, 12), cv2.FONT_HERSHEY_PLAIN, 0.9, (255, 255, 255), 1)
     cv2.putText(img, verdict, (3, 26), cv2.FONT_HERSHEY_PLAIN, 0.9, (0, 255, 255), 1)
     cv2.imwrite(str(out), img)
@@ -86,10 +87,10 @@ def _row(a, **kw) -> dict:
         "significance": None if not np.isfinite(a.significance) else round(float(a.significance), 1),
         "heading_deg": None if a.heading_deg is None else round(a.heading_deg, 1),
         "heading_std_deg": None if a.heading_std_deg is None else round(a.heading_std_deg, 1),
-        "speed_knots": None if a.speed is None else round(a.speed.speed_mps / 0.514444, 1),
+        "speed_knots": None if a.speed is None else round(a.speed.speed_mps / KNOT_MPS, 1),
         "speed_ci95_knots": None
         if a.speed is None
-        else [round(a.speed.ci95_low_mps / 0.514444, 1), round(a.speed.ci95_high_mps / 0.514444, 1)],
+        else [round(a.speed.ci95_low_mps / KNOT_MPS, 1), round(a.speed.ci95_high_mps / KNOT_MPS, 1)],
         "method": a.methods[0].method if a.methods else None,
     }
 

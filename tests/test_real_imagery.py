@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 import rasterio
-from pyproj import Geod
+from pyproj import Geod, Transformer
 from scipy import integrate
 
 from wakemeter.cli import main
@@ -47,8 +47,6 @@ SEA = sorted(DATA.glob("*_sea.tif"))
 def _bearing(path: Path, frm: tuple[float, float], to: tuple[float, float]) -> float:
     """True bearing from pixel ``frm`` to pixel ``to`` (pixel centres), by pyproj's geodesic."""
     with rasterio.open(path) as ds:
-        from pyproj import Transformer
-
         tr = Transformer.from_crs(ds.crs, "EPSG:4326", always_xy=True)
         (x0, y0), (x1, y1) = (ds.xy(r, c) for c, r in (frm, to))
         lon0, lat0 = tr.transform(x0, y0)

@@ -32,16 +32,16 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import asdict, dataclass, field
 
 import numpy as np
 import scipy.fft as sfft
 from scipy import ndimage
 
 from ..errors import ParameterError
-from ..physics.gravity import normal_gravity
+from ..physics.units import KNOT_MPS
 from ..scene import geodesy
-from .scene_maker import RenderedScene, SceneSpec, _grid_direction, build_georef, vessel_wave_slopes
+from .scene_maker import RenderedScene, SceneSpec, _grid_direction, render_grid, truth_header, vessel_wave_slopes
 from .wavefield import hull_pressure
 
 BANDS = ("B02", "B03", "B04", "B08")
@@ -187,14 +187,7 @@ def _mtf_sigma_px(mtf_nyquist: float) -> float:
 
 def render_multispectral(spec: SceneSpec, look: MultispectralLook) -> MultispectralScene:
     """Render ``spec`` (its vessels, depth and position; its ``imaging`` is replaced by ``look``)."""
-    rng = np.random.default_rng(spec.seed)
-    georef = build_georef(spec)
-    shape = (spec.height, spec.width)
-    centre = geodesy.local_frame(georef, spec.width / 2, spec.height / 2)
-    dx, dy = centre.m_per_col, centre.m_per_row_up
-    g = float(normal_gravity(spec.center_lat))
-    yy, xx = np.mgrid[0 : spec.height, 0 : spec.width].astype(float)
-    xm, ym_up = (xx + 0.5) * dx, -(yy + 0.5) * dy
+    rng, georef, shape, centre, dx, dy, g, xm, ym_up = render_grid(spec)
     nb = len(BANDS)
     slopes_x = [np.zeros(shape) for _ in range(nb)]
     slopes_y = [np.zeros(shape) for _ in range(nb)]
@@ -228,7 +221,7 @@ def render_multispectral(spec: SceneSpec, look: MultispectralLook) -> Multispect
                 "pixel_col": col,
                 "pixel_row": row,
                 "speed_mps": v.speed_mps,
-                "speed_knots": v.speed_mps / 0.514444,
+                "speed_knots": v.speed_mps / KNOT_MPS,
                 "heading_deg": v.heading_deg % 360,
                 "hull_length_m": v.hull.length_m,
                 "hull_beam_m": v.hull.beam_m,
@@ -273,24 +266,8 @@ def render_multispectral(spec: SceneSpec, look: MultispectralLook) -> Multispect
         refl = refl + rng.normal(0.0, look.noise, shape)
         data[b] = np.clip(np.round(refl * 10_000), 0, 4095 * 4).astype(np.uint16)
     truth = {
-        "schema": "wakemeter.synth-truth/1",
-        "generator": "wakemeter multispectral look",
-        "seed": spec.seed,
-        "description": spec.description,
-        "width": spec.width,
-        "height": spec.height,
-        "pixel_m": spec.pixel_m,
-        "crs": georef.crs,
-        "transform": list(georef.transform)[:6],
-        "depth_m": None if np.isinf(spec.depth_m) else spec.depth_m,
-        "gravity_mps2": g,
-        "imaging": {"kind": "multispectral", "bands": list(BANDS), **_look_json(look), "mtf_sigma_px": sigma},
+        **truth_header(spec, georef, g),
+        "imaging": {"kind": "multispectral", "bands": list(BANDS), **asdict(look), "mtf_sigma_px": sigma},
         "vessels": truth_vessels,
     }
     return MultispectralScene(RenderedScene(data, georef, truth))
-
-
-def _look_json(look: MultispectralLook) -> dict:
-    from dataclasses import asdict
-
-    return {k: (list(v) if isinstance(v, tuple) else v) for k, v in asdict(look).items()}

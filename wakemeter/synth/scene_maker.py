@@ -160,8 +160,21 @@ def vessel_wave_slopes(
     return col, row, frame, (ux, uy), gx, gy
 
 
-def render(spec: SceneSpec) -> RenderedScene:
-    """Render the scene (pixels, georeference and truth) without writing anything."""
+def render_grid(
+    spec: SceneSpec,
+) -> tuple[
+    np.random.Generator,
+    geodesy.GeoRef,
+    tuple[int, int],
+    geodesy.LocalFrame,
+    float,
+    float,
+    float,
+    np.ndarray,
+    np.ndarray,
+]:
+    """What every renderer starts from: the seeded generator, georeference, shape, the frame at the centre,
+    ground metres per column and row, gravity at the latitude, and the metric grid (x right, y up)."""
     rng = np.random.default_rng(spec.seed)
     georef = build_georef(spec)
     shape = (spec.height, spec.width)
@@ -169,7 +182,30 @@ def render(spec: SceneSpec) -> RenderedScene:
     dx, dy = centre.m_per_col, centre.m_per_row_up
     g = float(normal_gravity(spec.center_lat))
     yy, xx = np.mgrid[0 : spec.height, 0 : spec.width].astype(float)
-    xm, ym_up = (xx + 0.5) * dx, -(yy + 0.5) * dy
+    return rng, georef, shape, centre, dx, dy, g, (xx + 0.5) * dx, -(yy + 0.5) * dy
+
+
+def truth_header(spec: SceneSpec, georef: geodesy.GeoRef, g: float) -> dict:
+    """The scene-wide part of a truth record (schema ``wakemeter.synth-truth/1``)."""
+    return {
+        "schema": TRUTH_SCHEMA,
+        "generator": f"wakemeter {__version__}",
+        "seed": spec.seed,
+        "description": spec.description,
+        "acquisition_time": spec.acquisition_time or None,
+        "width": spec.width,
+        "height": spec.height,
+        "pixel_m": spec.pixel_m,
+        "crs": georef.crs,
+        "transform": list(georef.transform)[:6],
+        "depth_m": None if np.isinf(spec.depth_m) else spec.depth_m,
+        "gravity_mps2": g,
+    }
+
+
+def render(spec: SceneSpec) -> RenderedScene:
+    """Render the scene (pixels, georeference and truth) without writing anything."""
+    rng, georef, shape, centre, dx, dy, g, xm, ym_up = render_grid(spec)
     sx = np.zeros(shape)
     sy = np.zeros(shape)
     wake = np.zeros(shape)
@@ -267,18 +303,7 @@ def render(spec: SceneSpec) -> RenderedScene:
         lx, ly = _grid_direction(centre, optical_m.sun_azimuth_deg)
         pixels = optical_pixels((sx * lx + sy * ly) * scale, wake, hulls, optical_m, rng)
     truth = {
-        "schema": TRUTH_SCHEMA,
-        "generator": f"wakemeter {__version__}",
-        "seed": spec.seed,
-        "description": spec.description,
-        "acquisition_time": spec.acquisition_time or None,
-        "width": spec.width,
-        "height": spec.height,
-        "pixel_m": spec.pixel_m,
-        "crs": georef.crs,
-        "transform": list(georef.transform)[:6],
-        "depth_m": None if np.isinf(spec.depth_m) else spec.depth_m,
-        "gravity_mps2": g,
+        **truth_header(spec, georef, g),
         "imaging": {"kind": "radar" if is_radar else "optical", **asdict(spec.imaging)},
         "ambient_sea": asdict(spec.sea) if spec.sea else None,
         "vessels": vessels_truth,
