@@ -70,17 +70,15 @@ def depth_regime(
             ),
         )
     if half is not None and depth is None:
-        regime = replace(
-            regime, explanation=regime.explanation + f"; arms measured at {half:.1f} +/- {half_sd:.1f} deg"
-        )
+        regime = replace(regime, explanation=regime.explanation + f"; arms measured at {half:.1f} ± {half_sd:.1f}°")
     if model.fitted:
         fr = u / np.sqrt(g * model.depth_m)
         regime = replace(
             regime,
             explanation=regime.explanation
             + f"; evidence: {model.evidence}; Havelock's half-angle for Fr_h {fr:.2f} is "
-            f"{float(havelock.half_angle(fr)):.1f} deg"
-            + (f", measured {half:.1f} +/- {half_sd:.1f} deg" if half is not None else ""),
+            f"{float(havelock.half_angle(fr)):.1f}°"
+            + (f", measured {half:.1f} ± {half_sd:.1f}°" if half is not None else ""),
         )
     return regime
 
@@ -161,12 +159,12 @@ def closing_cautions(
         and half_sd is not None
         and half < kelvin.KELVIN_HALF_ANGLE_DEG - max(2 * half_sd, t.narrow_arm_margin_deg)
     ):
-        msg = f"arms at {half:.1f} deg are narrower than Kelvin's 19.47 deg"
+        msg = f"arms at {half:.1f}° are narrower than Kelvin's 19.47°"
         if hull_length_m:
             fr_l = float(hull_froude(combined.speed_mps, hull_length_m, g=g))
             msg += (
                 f"; hull Froude number {fr_l:.2f} predicts brightest arms at "
-                f"{float(apparent_arm_angle(fr_l)):.1f} deg (Rabaud & Moisy 2013)"
+                f"{float(apparent_arm_angle(fr_l)):.1f}° (Rabaud & Moisy 2013)"
             )
         else:
             msg += "; a fast, short hull can explain it (give the hull length to check)"

@@ -71,9 +71,7 @@ def revise(
     regime = analysis.regime
     if hand_half_angle is not None:
         half, half_sd = hand_half_angle
-        cautions.append(
-            Caution(CautionCode.HAND_ARM, f"half-angle corrected by hand to {half:.1f} +/- {half_sd:.1f} deg")
-        )
+        cautions.append(Caution(CautionCode.HAND_ARM, f"half-angle corrected by hand to {half:.1f} ± {half_sd:.1f}°"))
         lam_t = analysis.transverse_wavelength_m
         if depth is None:
             regime = inv.assess_depth_regime(

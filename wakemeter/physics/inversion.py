@@ -49,7 +49,7 @@ class Uncertain:
 class Conditions:
     """What the measurements assume.
 
-    ``g_mps2`` defaults to standard gravity with 0.015 m/s^2 standard
+    ``g_mps2`` defaults to standard gravity with 0.015 m/s² standard
     uncertainty, which covers the WGS 84 normal gravity from equator
     (9.780) to pole (9.832) when the latitude is not used.  ``depth_m`` None
     means deep water is assumed (and said).  ``pixel_scale_rel_std`` is the
@@ -62,18 +62,18 @@ class Conditions:
 
     def __post_init__(self) -> None:
         if self.g_mps2.value <= 0:
-            raise ParameterError(f"gravity must be > 0 m/s^2, got {self.g_mps2.value!r}")
+            raise ParameterError(f"gravity must be > 0 m/s², got {self.g_mps2.value!r}")
         if self.depth_m is not None and self.depth_m.value <= 0:
             raise ParameterError(f"depth_m must be > 0, got {self.depth_m.value!r}")
         if not np.isfinite(self.pixel_scale_rel_std) or not 0 <= self.pixel_scale_rel_std < 0.5:
             raise ParameterError(f"pixel_scale_rel_std must be within [0, 0.5), got {self.pixel_scale_rel_std!r}")
 
     def assumptions(self) -> tuple[str, ...]:
-        out = [f"gravity {self.g_mps2.value:.4f} +/- {self.g_mps2.std:.4f} m/s^2"]
+        out = [f"gravity {self.g_mps2.value:.4f} ± {self.g_mps2.std:.4f} m/s²"]
         if self.depth_m is None:
             out.append("deep water assumed (depth not given)")
         else:
-            out.append(f"depth {self.depth_m.value:.2f} +/- {self.depth_m.std:.2f} m")
+            out.append(f"depth {self.depth_m.value:.2f} ± {self.depth_m.std:.2f} m")
         out.append(f"pixel size relative uncertainty {100 * self.pixel_scale_rel_std:.1f} %")
         out.append("linear steady waves, vessel at constant speed and heading, no current")
         return tuple(out)
@@ -201,7 +201,7 @@ def speed_from_crest_wavelength(
     th = np.abs(_draw(propagation_deg, draws, rng))
     u = _speed_from_crest(lam, th, h, g)
     extra = (
-        (f"crest propagation angle {propagation_deg.value:.1f} +/- {propagation_deg.std:.1f} deg to the track",)
+        (f"crest propagation angle {propagation_deg.value:.1f} ± {propagation_deg.std:.1f}° to the track",)
         if propagation_deg.value > 0 or propagation_deg.std > 0
         else ()
     )
@@ -259,7 +259,7 @@ def speed_from_radar_offset(
     u = np.abs(vr / proj)
     assumptions = conditions.assumptions()[2:3] + (
         f"slant range {slant_range_m.value:.0f} m, platform speed {platform_speed_mps.value:.0f} m/s, "
-        f"incidence {incidence_deg:.1f} deg, look bearing {look_bearing_deg:.1f} deg",
+        f"incidence {incidence_deg:.1f}°, look bearing {look_bearing_deg:.1f}°",
         "speed over ground (the radar sees motion relative to the Earth, not the water)",
     )
     return _summarise("radar azimuth offset", u, draws, assumptions)
@@ -310,7 +310,7 @@ def speed_and_depth_from_transverse_wavelength_and_half_angle(
         conditions.assumptions()[:1]
         + conditions.assumptions()[2:]
         + (
-            f"depth inferred from the half-angle {half_angle_deg.value:.1f} +/- {half_angle_deg.std:.1f} deg "
+            f"depth inferred from the half-angle {half_angle_deg.value:.1f} ± {half_angle_deg.std:.1f}° "
             "(Havelock 1908, subcritical branch: transverse waves seen)",
         )
     )
@@ -370,7 +370,7 @@ def speed_from_arm_angle_and_hull_length(
         conditions.assumptions()
         + (
             "deep water; the brightest arms follow the longest wave the hull makes (Rabaud & Moisy 2013)",
-            f"hull length {hull_length_m.value:.0f} +/- {hull_length_m.std:.0f} m",
+            f"hull length {hull_length_m.value:.0f} ± {hull_length_m.std:.0f} m",
         ),
     )
 
@@ -507,7 +507,7 @@ def assess_depth_regime(
                 None,
                 None,
                 None,
-                f"half-angle {a:.1f} +/- {half_angle_deg.std:.1f} deg agrees with Kelvin's {k:.2f} deg: "
+                f"half-angle {a:.1f} ± {half_angle_deg.std:.1f}° agrees with Kelvin's {k:.2f}°: "
                 "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told",
             )
         if a < k:
@@ -517,7 +517,7 @@ def assess_depth_regime(
                 None,
                 None,
                 None,
-                f"half-angle {a:.1f} deg is narrower than Kelvin's: not a depth effect; "
+                f"half-angle {a:.1f}° is narrower than Kelvin's: not a depth effect; "
                 "a fast, short hull (high hull Froude number) or a supercritical vessel without "
                 "transverse waves could explain it",
             )
@@ -537,7 +537,7 @@ def assess_depth_regime(
                 (fr_lo, fr_hi),
                 depth,
                 depth_ci,
-                f"half-angle {a:.1f} deg wider than Kelvin's with transverse waves: subcritical "
+                f"half-angle {a:.1f}° wider than Kelvin's with transverse waves: subcritical "
                 f"Fr_h = {sub:.2f} (Havelock 1908)",
             )
         if transverse_seen is False:
@@ -547,7 +547,7 @@ def assess_depth_regime(
                 None,
                 None,
                 None,
-                f"half-angle {a:.1f} deg and no transverse waves: supercritical, "
+                f"half-angle {a:.1f}° and no transverse waves: supercritical, "
                 f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}",
             )
         return DepthRegime(Regime.UNKNOWN, None, None, None, None, br.note)

@@ -87,6 +87,6 @@ def band_timing(
         where["B04"],
         SENTINEL2_BAND_TIME_S["B04"] - SENTINEL2_BAND_TIME_S["B02"],
         SENTINEL2_DELAY_REL_STD,
-        "Sentinel-2 MSI: B04 recorded 1.005 s after B02 (Markuse 2017), +/-2 % (Binet et al. 2022)",
+        "Sentinel-2 MSI: B04 recorded 1.005 s after B02 (Markuse 2017), ±2 % (Binet et al. 2022)",
         recognised,
     )

@@ -69,7 +69,7 @@ def format_summary(s: dict) -> str:
             f"CRS:            {crs}",
             f"pixel size:     {px['along_rows']:.3f} m along rows x {px['along_columns']:.3f} m along columns "
             "(scene centre, on the ground)",
-            f"image up:       true bearing {s['image_up_true_bearing_deg']:.3f} deg",
+            f"image up:       true bearing {s['image_up_true_bearing_deg']:.3f}°",
             f"bounds (WGS 84): lon {b['west']:.6f} .. {b['east']:.6f}, lat {b['south']:.6f} .. {b['north']:.6f}",
         ]
     lines.append(f"overviews:      {', '.join(map(str, s['overviews'])) if s['overviews'] else 'none'}")
