@@ -143,28 +143,85 @@ def test_session_round_trip_and_damaged_file(win, qtbot, tmp_path):
 
 
 def test_export_from_the_program(win, qtbot, tmp_path):
+    # the export once left out the vessel's name, the analyst (never asked for), a case reference and the hand
+    # measurements; the form asks, and everything reaches the record and the PDF
+    from pypdf import PdfReader
+
+    from wakemeter.app.export_dialog import ExportForm
+    from wakemeter.project.model import Measurement
+
     _analyse(win, qtbot)
     vid = next(iter(win.doc.vessels))
-    files = win.controller.export(vid, str(tmp_path), analyst="R. Fenwick")
-    assert files is not None and files.image.exists() and files.report.exists() and files.data.exists()
+    pos = win.doc.vessels[vid].position
+    win.doc.undo.push(
+        AddItem(win.doc, Measurement(win.doc.new_id(), "ruler", (pos, (pos[0] - 150, pos[1] + 90)), vid), "ruler")
+    )
+    form = ExportForm(win, n_vessels=1, selected_name="Saltmarsh Wren", settings=win.settings)
+    qtbot.addWidget(form)
+    form.analyst.setText("R. Fenwick")
+    form.case.setText("HB-2026-114")
+    form.folder.setText(str(tmp_path))
+    form._accept()
+    c = form.choice()
+    assert form.result() == ExportForm.DialogCode.Accepted and win.settings.value("export/analyst") == "R. Fenwick"
+    files = win.controller.export(vid, c.folder, analyst=c.analyst, case_reference=c.case_reference)
+    assert files is not None and all(p.exists() for p in files.all_files())
+    rec = json.loads(files.data.read_text())
+    assert rec["case"]["analyst"] == "R. Fenwick" and rec["case"]["reference"] == "HB-2026-114"
+    (v,) = rec["vessels"]
+    assert v["name"] == "Saltmarsh Wren"
+    assert [m["kind"] for m in v["hand_measurements"]] == ["ruler"] and " m, " in v["hand_measurements"][0]["value"]
+    text = " ".join(" ".join(p.extract_text() for p in PdfReader(str(files.report)).pages).split())
+    assert "Saltmarsh Wren" in text and "HB-2026-114" in text and "ruler" in text
     assert win.controller.export(vid, str(tmp_path)) is None  # exists: not replaced without asking
-    assert "already exist" in win.last_error
+    assert "already exists" in win.last_error
 
 
-def test_autosave_and_restore_after_a_crash(win, qtbot, tmp_path):
+def _crashed_copy(autosave: Path) -> Path:
+    """The same work as saved by a window of a process that died (process ids this large are not in use)."""
+    dead = autosave.parent / "999999999-0badc0de.session.json"
+    dead.write_bytes(autosave.read_bytes())
+    return dead
+
+
+def test_autosave_per_window_and_restore_after_a_crash(win, qtbot, tmp_path):
+    # every window once wrote one shared autosave: one window's clean exit deleted another's crash
+    # recovery (issue 18).  Now each window has its own, and only those of dead windows are offered.
+    from wakemeter.project.session import orphaned_autosaves
+
     _analyse(win, qtbot)
     win.controller.autosave_now()
-    from wakemeter.project.session import autosave_path
-
-    assert autosave_path().exists()
-    # a new program start finds it (the first window "crashed": it never closed cleanly)
+    mine = win.controller.autosave_file
+    assert mine.exists() and orphaned_autosaves() == []  # a running window's autosave is not offered
+    crashed = _crashed_copy(mine)
+    other = MainWindow()  # a second window, running beside the first
+    qtbot.addWidget(other)
+    assert other.controller.autosave_file != mine
     w2 = MainWindow()
     qtbot.addWidget(w2)
     asked = []
     assert w2.controller.offer_restore(ask=lambda text: asked.append(text) or True)
-    assert asked and len(w2.doc.vessels) == 1
-    w2.close()  # a clean exit removes the autosave
-    assert not autosave_path().exists()
+    assert len(asked) == 1 and len(w2.doc.vessels) == 1 and not crashed.exists()
+    assert w2.controller.autosave_file.exists() and w2.controller.has_unsaved_work()  # restored, not saved yet
+    other.close()  # another window's clean exit touches neither the first window's nor the restored work
+    assert mine.exists() and w2.controller.autosave_file.exists()
+    win.controller.closing(discard=True)
+    assert not mine.exists() and w2.controller.autosave_file.exists()
+    assert w2.controller.save_session(str(tmp_path / "restored.json"))
+    kept = w2.controller.autosave_file
+    w2.close()  # saved: a clean exit removes its autosave
+    assert not kept.exists()
+
+
+def test_a_failing_autosave_is_said_in_the_status_line(win, qtbot, monkeypatch):
+    from wakemeter.project import session as session_mod
+
+    def full(*_a, **_k):
+        raise session_mod.SessionError("cannot save the session: No space left on device")
+
+    monkeypatch.setattr(session_mod, "save", full)
+    win.controller.autosave_now()
+    assert "automatic save failed" in win.message.text()
 
 
 def test_report_command_accepts_a_session(win, qtbot, tmp_path):
@@ -176,10 +233,12 @@ def test_report_command_accepts_a_session(win, qtbot, tmp_path):
     out = tmp_path / "out"
     out.mkdir()
     assert main(["report", str(path), "--out", str(out)]) == 0
-    names = sorted(p.suffix for p in out.iterdir())
-    assert names == [".json", ".pdf", ".png"]
-    rec = json.loads(next(out.glob("*.json")).read_text())
+    (folder,) = out.iterdir()
+    names = sorted(p.suffix for p in folder.iterdir())
+    assert names == ["", ".json", ".pdf", ".png"]
+    rec = json.loads(next(folder.glob("*.json")).read_text())["vessels"][0]
     vid = next(iter(win.doc.vessels))
+    assert rec["name"] == "Saltmarsh Wren"
     assert rec["result"]["speed_mps"] == pytest.approx(win.doc.effective_finding(vid).speed.speed_mps, rel=1e-9)
 
 
@@ -227,7 +286,7 @@ def test_export_from_a_reopened_session_keeps_every_input(qtbot, tmp_path, monke
     out.mkdir()
     files = w2.controller.export(vid2, str(out))
     assert files is not None
-    rec = json.loads(files.data.read_text())["result"]
+    rec = json.loads(files.data.read_text())["vessels"][0]["result"]
     assert AnalysisRequest.from_json(rec["request"]) == req
     assert rec["speed_mps"] == before.speed.speed_mps and rec["speed_ci95_mps"] == [
         before.speed.ci95_low_mps,
@@ -238,14 +297,13 @@ def test_export_from_a_reopened_session_keeps_every_input(qtbot, tmp_path, monke
     headless = tmp_path / "headless"
     headless.mkdir()
     assert main(["report", str(session), "--out", str(headless)]) == 0
-    rec2 = json.loads(next(headless.glob("*.json")).read_text())["result"]
+    rec2 = json.loads(next(headless.glob("*/*.json")).read_text())["vessels"][0]["result"]
     assert rec2["speed_mps"] == rec["speed_mps"] and rec2["request"] == rec["request"]
 
 
 def test_quit_asks_before_discarding_and_keeps_the_autosave(qtbot, tmp_path, monkeypatch):
     # unsaved vessels: cancel keeps the window; closing without saving keeps the autosave for the next start;
     # discarding removes it; saved work closes without a question
-    from wakemeter.project.session import autosave_path
 
     monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
     monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
@@ -263,11 +321,13 @@ def test_quit_asks_before_discarding_and_keeps_the_autosave(qtbot, tmp_path, mon
     monkeypatch.setattr(w, "ask_unsaved", lambda: asked.append(1) or "cancel")
     assert not w.close() and w.isVisible() and asked  # cancelled: nothing closed
     monkeypatch.setattr(w, "ask_unsaved", lambda: "keep")
+    kept = w.controller.autosave_file
     assert w.close()
-    assert autosave_path().exists()  # the unsaved work is still recoverable
+    assert kept.exists()  # the unsaved work is still recoverable
     w = window()
     monkeypatch.setattr(w, "ask_unsaved", lambda: "discard")
-    assert w.close() and not autosave_path().exists()
+    discarded = w.controller.autosave_file
+    assert w.close() and not discarded.exists()
     w = window()
     assert w.controller.save_session(str(tmp_path / "saved.json"))
     monkeypatch.setattr(w, "ask_unsaved", lambda: pytest.fail("saved work must close without a question"))

@@ -34,21 +34,34 @@ def exported(tmp_path_factory):
             a,
             out,
             analyst="R. Fenwick",
+            case_reference="HB-2026-114",
+            vessel_name="Saltmarsh Wren",
             parameters={"vessel": "-35.0,36.0"},
             exported_at="2026-06-20T09:00:00+00:00",
         )
     return a, files, out
 
 
-def test_three_files_and_json_schema(exported):
-    a, files, _ = exported
+def test_one_set_with_checksums_and_json_schema(exported):
+    a, files, out = exported
     record = json.loads(files.data.read_text())
     validate(record)
+    assert list(out.iterdir()) == [files.folder]  # one folder: the set
+    assert sorted(p.name for p in files.folder.iterdir()) == sorted(p.name for p in files.all_files())
     assert record["provenance"]["scene_sha256"] == hashlib.sha256(SCENE.read_bytes()).hexdigest()
-    assert record["provenance"]["analyst"] == "R. Fenwick"
-    assert record["result"]["speed_mps"] == pytest.approx(a.speed.speed_mps)
+    assert record["case"] == {
+        "reference": "HB-2026-114",
+        "analyst": "R. Fenwick",
+        "exported_at": "2026-06-20T09:00:00+00:00",
+    }
+    (vessel,) = record["vessels"]
+    assert vessel["name"] == "Saltmarsh Wren" and vessel["image"] == files.image.name
+    assert vessel["result"]["speed_mps"] == pytest.approx(a.speed.speed_mps)
     assert record["caution"] == CAUTION_TEXT
-    assert record["files"]["image"] == files.image.name
+    # SHA256SUMS in the format of coreutils' sha256sum (checked here with hashlib)
+    for line in files.checksums.read_text().splitlines():
+        digest, name = line.split("  ")
+        assert hashlib.sha256((files.folder / name).read_bytes()).hexdigest() == digest
 
 
 def test_pdf_pages_and_text(exported):
@@ -69,8 +82,14 @@ def test_pdf_pages_and_text(exported):
         "not certified",
         "Wake lines through the vessel",
         "Kelvin arms at",
+        "HB-2026-114",
+        "Saltmarsh Wren",
+        "Hand measurements",
     ):
         assert needle in flat, needle
+    # the creation date is the export time (it was once fixed at 2000-01-01 by the PDF library's invariant mode)
+    created = reader.metadata.creation_date
+    assert (created.year, created.month, created.day, created.hour) == (2026, 6, 20, 9)
 
 
 def test_png_size_and_arm_colour_where_the_arms_are(exported):
@@ -96,7 +115,7 @@ def test_png_size_and_arm_colour_where_the_arms_are(exported):
 def test_second_export_is_identical_and_overwrite_needs_force(exported, tmp_path):
     a, files, out = exported
     with open_scene(SCENE) as sc:
-        with pytest.raises(SceneWriteError, match="already exist"):
+        with pytest.raises(SceneWriteError, match="already exists"):
             export_evidence(sc, a, out)
         again = export_evidence(
             sc,
@@ -106,8 +125,11 @@ def test_second_export_is_identical_and_overwrite_needs_force(exported, tmp_path
             parameters={"vessel": "-35.0,36.0"},
             exported_at="2026-06-20T09:00:00+00:00",
         )
-    assert again.image.read_bytes() == files.image.read_bytes()
-    assert json.loads(again.data.read_text())["result"] == json.loads(files.data.read_text())["result"]
+    assert again.image.read_bytes() != files.image.read_bytes()  # the vessel name is in the first picture only
+    assert (
+        json.loads(again.data.read_text())["vessels"][0]["result"]
+        == json.loads(files.data.read_text())["vessels"][0]["result"]
+    )
 
 
 def test_read_only_folder_fails_cleanly(tmp_path, monkeypatch):
@@ -124,7 +146,7 @@ def test_read_only_folder_fails_cleanly(tmp_path, monkeypatch):
         import wakemeter.evidence.export as ex
 
         monkeypatch.setattr(ex, "write_pdf", lambda *a_, **k: (_ for _ in ()).throw(OSError(28, "No space left")))
-        with pytest.raises(SceneWriteError, match="No space"):
+        with pytest.raises(SceneWriteError, match="disk is full"):
             export_evidence(sc, a, ro)
     assert list(ro.iterdir()) == []
 
@@ -135,19 +157,21 @@ def test_no_wake_report_says_so(tmp_path):
         files = export_evidence(sc, a, tmp_path)
     record = json.loads(files.data.read_text())
     validate(record)
-    assert record["result"]["wake_found"] is False and record["result"]["speed_mps"] is None
+    r = record["vessels"][0]["result"]
+    assert r["wake_found"] is False and r["speed_mps"] is None
     text = " ".join(p.extract_text() for p in PdfReader(str(files.report)).pages)
     assert "No wake found" in " ".join(text.split())
 
 
 def test_report_command(tmp_path, capsys):
-    args = ["report", str(SCENE), "--vessel=-35.0,36.0", "--out", str(tmp_path), "--analyst", "R. Fenwick"]
+    args = ["report", str(SCENE), "--vessel", "-35.0,36.0", "--out", str(tmp_path), "--analyst", "R. Fenwick"]
     assert main(args) == 0
-    assert len(list(tmp_path.iterdir())) == 3
+    (folder,) = tmp_path.iterdir()
+    assert sorted(p.suffix for p in folder.iterdir()) == ["", ".json", ".pdf", ".png"]
     assert main(args) == 2  # exists: needs --force
-    assert "already exist" in capsys.readouterr().err
+    assert "already exists" in capsys.readouterr().err
     assert main(args + ["--force"]) == 0
-    assert main(["report", str(SCENE), "--vessel=-35.0,36.0", "--out", str(tmp_path / "missing")]) == 2
+    assert main(["report", str(SCENE), "--vessel", "-35.0,36.0", "--out", str(tmp_path / "missing")]) == 2
 
 
 def test_analysis_parameters_are_plain_words_with_rounded_numbers():
@@ -171,3 +195,20 @@ def test_analysis_parameters_are_plain_words_with_rounded_numbers():
     assert "vessel_px (785.53, 412.12)" in text and "vessel_lonlat (-35.000123, 36.000000)" in text
     assert "pixel_rel_std 0.005" in text and "depth" not in text and "schema" not in text
     assert "785.5334971685008" not in text and "Saltmarsh Wren" in text
+
+
+def test_report_plots_have_axes_units_and_a_colour_scale(exported):
+    # the plots were once bare pictures; now each axis says what it is and in which unit
+    from wakemeter.evidence.plots import profile_figure, spectrum_figure
+
+    a, _, _ = exported
+    spec = spectrum_figure(a)
+    main_ax, bar_ax = spec.axes  # the image and its colour scale
+    assert main_ax.get_xlabel() == "wavenumber along the track (rad/m)"
+    assert main_ax.get_ylabel() == "wavenumber across the track (rad/m)"
+    assert "ring spreads" in bar_ax.get_ylabel()
+    lo, hi = main_ax.get_xlim()
+    assert lo < 0 < hi
+    prof = profile_figure(a)
+    assert prof.axes[0].get_xlabel() == "distance behind the vessel (m)"
+    assert prof.axes[0].get_xlim()[1] == pytest.approx((len(a.plots.profile) - 1) * a.plots.profile_m_per_px)

@@ -114,9 +114,11 @@ def _check_outcome(rc: int, lines: list[str], out: Path) -> None:
     assert rc in (0, 2), lines
     if rc == 2:
         assert len(lines) == 1, lines
-    files = sorted(p.name for p in out.iterdir()) if out.exists() else []
-    assert not [f for f in files if f.startswith(".") or f.endswith(".part")], files  # no leftovers
-    assert len(files) % 3 == 0, files  # whole evidence sets only
+    sets = sorted(out.iterdir()) if out.exists() else []
+    assert not [p.name for p in sets if p.name.startswith(".") or p.name.endswith(".part")], sets  # no leftovers
+    for s in sets:  # whole evidence sets only: every file the checksums name, and nothing else
+        listed = {line.split("  ", 1)[1] for line in (s / "SHA256SUMS").read_text().splitlines()}
+        assert {p.name for p in s.iterdir()} == listed | {"SHA256SUMS"}, s
 
 
 def test_altered_sessions_never_end_in_a_traceback(tmp_path, capsys):
@@ -177,11 +179,12 @@ def test_names_with_markup_and_great_length_reach_the_report(tmp_path):
         out.mkdir()
         rc, lines = _run(["report", str(session), "--out", str(out), "--analyst", "A & <B>"])
         assert rc == 0, lines
-        files = sorted(out.iterdir())
-        assert len(files) == 3 and all(len(p.name) < 120 for p in files)
+        (set_dir,) = out.iterdir()
+        files = sorted(set_dir.iterdir())
+        assert len(files) == 4 and all(len(p.name) < 120 for p in files) and len(set_dir.name) < 120
         record = json.loads(next(p for p in files if p.suffix == ".json").read_text())
         assert record["provenance"]["scene_file"] == scene.name
-        assert record["provenance"]["analysis_parameters"]["vessel"] == vessel
+        assert record["vessels"][0]["name"] == vessel
         text = " ".join(
             page.extract_text() for page in PdfReader(str(next(p for p in files if p.suffix == ".pdf"))).pages
         )

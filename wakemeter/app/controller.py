@@ -3,6 +3,7 @@ background jobs and the document.  Numbers come from the core; this file only mo
 
 from __future__ import annotations
 
+import datetime as _dt
 import hashlib
 from collections.abc import Callable
 from pathlib import Path
@@ -50,6 +51,8 @@ class Controller(QObject):
         self.doc.findings_changed.connect(lambda _i: self.refresh())
         self.doc.changed.connect(self.refresh)
         self.session_path: str | None = None
+        self.autosave_file = session_mod.new_autosave_path()  #: this window's own autosave
+        self.restored = False  #: work restored from an autosave and not saved since
         self.autosave = QTimer(self)
         self.autosave.setInterval(60_000)
         self.autosave.timeout.connect(self.autosave_now)
@@ -150,6 +153,7 @@ class Controller(QObject):
             self.host.error("Could not save the session", str(err))
             return False
         self.session_path = path
+        self.restored = False
         self.doc.undo.setClean()
         self.host.say(f"session saved: {path}")
         return True
@@ -200,69 +204,122 @@ class Controller(QObject):
     def autosave_now(self) -> None:
         if self.doc.scene is None:
             return
-        p = session_mod.autosave_path()
+        p = self.autosave_file
         try:
             p.parent.mkdir(parents=True, exist_ok=True)
             session_mod.save(p, self.session_data())
-        except (OSError, WakemeterError):
-            pass
+        except (OSError, WakemeterError) as err:
+            reason = getattr(err, "strerror", None) or str(err)
+            self.host.say(f"automatic save failed ({reason}): save the session yourself to keep your work")
 
     def offer_restore(self, ask=None) -> bool:
-        """After a crash the autosave is still there: offer to restore it (``ask(text) -> bool``)."""
-        p = session_mod.autosave_path()
-        if not p.exists():
-            return False
+        """Autosaves of windows that ended without closing (a crash, a kill) are offered one by one, newest
+        first (``ask(text) -> bool``): the first accepted is restored here and becomes this window's autosave;
+        a declined one is deleted; the rest stay for the next start.  Other running windows' are never
+        touched."""
         ask = ask or (lambda text: self.host.confirm("Restore work?", text))
-        if ask("wakemeter did not close normally last time. Restore the work saved automatically?"):
-            return self.open_session(str(p))
-        p.unlink(missing_ok=True)
+        orphans = session_mod.orphaned_autosaves()
+        for i, p in enumerate(orphans):
+            when = _dt.datetime.fromtimestamp(p.stat().st_mtime).strftime("%Y-%m-%d %H:%M")
+            if ask(f"A wakemeter window did not close normally. Restore the work it saved automatically at {when}?"):
+                adopted = session_mod.adopt_autosave(p)
+                if not self.open_session(str(adopted)):
+                    return False
+                session_mod.release_autosave(self.autosave_file, remove=True)
+                self.autosave_file = adopted
+                self.session_path = None  # saving asks where: the autosave is not the analyst's file
+                self.restored = True
+                left = len(orphans) - i - 1
+                if left:
+                    self.host.say(f"work restored; {left} more automatic save(s) will be offered at the next start")
+                return True
+            p.unlink(missing_ok=True)
         return False
 
     def has_unsaved_work(self) -> bool:
-        """Vessels or measurements changed since the session was last saved or opened."""
-        return bool(self.doc.vessels or self.doc.measurements) and not self.doc.undo.isClean()
+        """Vessels or measurements changed since the session was last saved or opened, or restored work."""
+        return bool(self.doc.vessels or self.doc.measurements) and (self.restored or not self.doc.undo.isClean())
 
     def closing(self, *, discard: bool = False) -> None:
-        """The window closes: the autosave is removed only when nothing would be lost (the work was saved,
-        or the analyst chose to discard it); otherwise it is kept and offered at the next start."""
+        """The window closes: its own autosave is removed only when nothing would be lost (the work was
+        saved, or the analyst chose to discard it); otherwise it is kept and offered at the next start."""
         self.autosave.stop()
-        if discard or not self.has_unsaved_work():
-            session_mod.autosave_path().unlink(missing_ok=True)
-        else:
+        keep = not discard and self.has_unsaved_work()
+        if keep:
             self.autosave_now()
+        session_mod.release_autosave(self.autosave_file, remove=not keep)
 
     # ---- evidence ---------------------------------------------------------
-    def export(self, vid: int, folder: str, *, ask: bool = False, force: bool = False, analyst: str | None = None):
-        from ..evidence.export import default_basename, export_evidence
+    def export(
+        self,
+        vids: int | list[int],
+        folder: str,
+        *,
+        ask: bool = False,
+        force: bool = False,
+        analyst: str | None = None,
+        case_reference: str | None = None,
+        basename: str | None = None,
+    ):
+        """One evidence set for the given vessels (rejected ones are left out, and said so)."""
+        from ..evidence.export import (
+            CaseDetails,
+            VesselEvidence,
+            default_basename,
+            export_evidence_set,
+            hand_measurement_rows,
+            set_folder,
+        )
         from ..evidence.from_session import with_plots
 
-        if vid in self.doc.rejected:
-            self.host.error("Not exported", "this finding was rejected")
+        ids = [vids] if isinstance(vids, int) else list(vids)
+        kept = [v for v in ids if v not in self.doc.rejected and v in self.doc.vessels]
+        if not kept:
+            self.host.error("Not exported", "the finding was rejected" if ids else "no vessel to export")
             return None
+        vessels = []
         try:  # a finding read from a session has no plot arrays: its own request is run again (deterministic)
-            eff = with_plots(self.doc.project, vid)
+            for vid in kept:
+                hand = [m for m in self.doc.measurements.values() if m.vessel_id == vid]
+                vessels.append(
+                    VesselEvidence(
+                        with_plots(self.doc.project, vid),
+                        self.doc.vessels[vid].name,
+                        tuple(hand_measurement_rows(hand)),
+                    )
+                )
         except WakemeterError as err:
             self.host.error("Could not export", str(err))
             return None
-        base = default_basename(self.doc.scene, eff)
-        exists = any((Path(folder) / f"{base}{s}").exists() for s in (".png", ".pdf", ".json"))
-        if exists and ask and not force:
-            force = self.host.confirm("Replace files?", f"{base}.* already exist in {folder}. Replace them?")
+        sc = self.doc.scene
+        base = basename or (
+            default_basename(sc, vessels[0].analysis)
+            if len(vessels) == 1
+            else f"{sc.info.path.stem}_{len(vessels)}_vessels"
+        )
+        target = set_folder(folder, base)
+        if target.exists() and ask and not force:
+            force = self.host.confirm("Replace the set?", f"{target.name} already exists in {folder}. Replace it?")
             if not force:
                 return None
         try:
-            files = export_evidence(
-                self.doc.scene,
-                eff,
+            files = export_evidence_set(
+                sc,
+                vessels,
                 folder,
-                analyst=analyst,
+                case=CaseDetails(analyst or None, case_reference or None),
                 force=force,
-                parameters={"vessel": self.doc.vessels[vid].name},
+                basename=base,
+                parameters={"vessels": [v.name for v in vessels]},
             )
         except WakemeterError as err:
             self.host.error("Could not export", str(err))
             return None
-        self.host.say(f"evidence written: {files.image.name}, {files.report.name}, {files.data.name}")
+        left = len(ids) - len(kept)
+        self.host.say(
+            f"evidence written to {files.folder.name}: {len(vessels)} vessel(s)"
+            + (f"; {left} rejected finding(s) left out" if left else "")
+        )
         return files
 
 

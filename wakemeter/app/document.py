@@ -69,9 +69,9 @@ class Document(QObject):
         return self.project.selected
 
     # ---- scene ------------------------------------------------------------
-    def open(self, path: str) -> None:
+    def open(self, path: str, *, allow_system_files: bool = False) -> None:
         """Open a scene; on failure the current one stays and the error propagates (SceneReadError)."""
-        scene = open_scene(path)
+        scene = open_scene(path, allow_system_files=allow_system_files)
         if self.project.scene is not None:
             self.project.scene.close()
         self.project.scene = scene

@@ -223,9 +223,23 @@ class MainWindow(QMainWindow):
             self.open_path(path)
 
     def open_path(self, path: str) -> bool:
-        """Open a scene; a bad file gives a clear message and the program keeps what it had."""
+        """Open a scene; a bad file gives a clear message and the program keeps what it had.  A file that
+        reads system or private files (a crafted VRT) is opened only when the analyst confirms."""
+        from ..scene.limits import ReferencedFilesError
+
         try:
-            self.doc.open(path)
+            try:
+                self.doc.open(path)
+            except ReferencedFilesError as err:
+                listed = "\n".join(err.files[:10])
+                if not self.confirm(
+                    "Open a file that reads system files?",
+                    f"{Path(path).name} does not hold its pixels itself: it reads these files, which are system or "
+                    f"private files, not images:\n\n{listed}\n\nOpen it anyway?",
+                ):
+                    self.say(f"{Path(path).name} not opened: it reads system or private files")
+                    return False
+                self.doc.open(path, allow_system_files=True)
         except WakemeterError as err:
             self.error(f"Could not open {Path(path).name}", str(err))
             return False
@@ -411,9 +425,21 @@ class MainWindow(QMainWindow):
         if vid is None or vid not in self.doc.findings:
             self.say("analyse a vessel first, then export its evidence")
             return
-        folder = QFileDialog.getExistingDirectory(self, "Export evidence to folder")
-        if folder:
-            self.controller.export(vid, folder, ask=True)
+        from .export_dialog import ExportForm
+
+        every = [v for v in self.doc.vessels if v not in self.doc.rejected]
+        form = ExportForm(self, n_vessels=len(every), selected_name=self.doc.vessels[vid].name, settings=self.settings)
+        if form.exec() != ExportForm.DialogCode.Accepted:
+            return
+        c = form.choice()
+        self.controller.export(
+            every if c.all_vessels else vid,
+            c.folder,
+            ask=True,
+            analyst=c.analyst,
+            case_reference=c.case_reference,
+            basename=c.name or None,
+        )
 
     def error(self, title: str, text: str) -> None:
         self.last_error = f"{title}: {text}"

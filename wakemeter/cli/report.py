@@ -3,17 +3,25 @@
 from __future__ import annotations
 
 import argparse
+import os
+from typing import TYPE_CHECKING
 
 from .base import CAUTION_LINE, Command
+
+if TYPE_CHECKING:
+    from ..evidence.export import EvidenceFiles
 from .options import add_request_options, request_from_args
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("scene", help="raster file, or a saved session (.json): every vessel not rejected")
     add_request_options(p)
-    p.add_argument("--out", required=True, metavar="FOLDER", help="folder for the three files")
+    p.add_argument("--out", required=True, metavar="FOLDER", help="folder in which the evidence set is made")
+    p.add_argument("--name", metavar="TEXT", help="name of the set (default: scene and vessel position)")
     p.add_argument("--analyst", help="analyst name to record in the report")
-    p.add_argument("--force", action="store_true", help="overwrite existing files of the same name")
+    p.add_argument("--case", metavar="REFERENCE", help="case reference to print on every page")
+    p.add_argument("--vessel-name", metavar="TEXT", help="name of the vessel (with a session: report only this one)")
+    p.add_argument("--force", action="store_true", help="replace an existing set of the same name, as a whole")
     p.add_argument("--paper", choices=["A4", "Letter"], help="page size (default: by locale)")
 
 
@@ -25,31 +33,56 @@ def run(args: argparse.Namespace) -> int:
     from ..scene.raster import open_scene
 
     _check_folder(args.out)  # before any analysis: a missing folder is said at once
-    if is_session(args.scene):  # a saved session instead of a scene: every vessel not rejected
-        for files in report_from_session(args.scene, args.out, analyst=args.analyst, force=args.force):
-            print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
+    if is_session(args.scene):  # a saved session instead of a scene: its vessels in one report
+        files = report_from_session(
+            args.scene,
+            args.out,
+            analyst=args.analyst,
+            case_reference=args.case,
+            force=args.force,
+            vessel_name=args.vessel_name,
+            paper=args.paper,
+        )
+        _say_written(files)
         print(CAUTION_LINE)
         return 0
-    request = request_from_args(args)
-    with open_scene(args.scene) as scene:
-        a = analyze(scene, request)
-        files = export_evidence(scene, a, args.out, analyst=args.analyst, force=args.force, paper=args.paper)
-    print(f"wrote {files.image}\nwrote {files.report}\nwrote {files.data}")
+    with open_scene(args.scene) as scene:  # a file that is not an image is said before a missing option
+        a = analyze(scene, request_from_args(args))
+        files = export_evidence(
+            scene,
+            a,
+            args.out,
+            analyst=args.analyst,
+            case_reference=args.case,
+            vessel_name=args.vessel_name or "",
+            basename=args.name,
+            force=args.force,
+            paper=args.paper,
+        )
+    _say_written(files)
     if a.speed is not None:
         kind = "speed over ground" if a.has_caution(CautionCode.OVER_GROUND) else "speed through the water"
         print(
             f"{kind} {a.speed.speed_mps:.2f} m/s, 95 % interval {a.speed.ci95_low_mps:.2f}-"
-            f"{a.speed.ci95_high_mps:.2f} m/s; heading {a.heading_deg:.1f} deg"
+            f"{a.speed.ci95_high_mps:.2f} m/s; heading {a.heading_deg:.1f}°"
         )
     elif a.wake_found:
         print(
-            f"wake found as lines: heading {a.heading_deg:.1f} deg (+/- {a.heading_std_deg:.1f}); no speed, and the "
+            f"wake found as lines: heading {a.heading_deg:.1f}° (± {a.heading_std_deg:.1f}°); no speed, and the "
             "report says why"
         )
     else:
         print("no wake found: the report says so and gives no speed")
     print(CAUTION_LINE)
     return 0
+
+
+def _say_written(files: EvidenceFiles) -> None:
+    for line in files.cleaned:
+        print(f"tidied a leftover of an interrupted export: {line}")
+    print(f"wrote {files.folder}{os.sep}")
+    for f in files.all_files():
+        print(f"  {f.name}")
 
 
 def _check_folder(folder: str) -> None:

@@ -1,18 +1,22 @@
 """The annotated evidence image: the vessel's surroundings with what was found, drawn in pixels.
 
-Pure numpy + OpenCV (Hershey fonts, so the same analysis always gives the same pixels).
-Everything drawn comes from the analysis and the scene's geodesy: a scale bar in
-ground metres, a true-north arrow (grid convergence and image rotation included),
-lat/lon of the corners, and a result box with the speed, its 95 % interval,
-heading and method.
+Lines with OpenCV, text with Pillow in DejaVu Sans (the same analysis always gives the same pixels).
+Everything drawn comes from the analysis and the scene's geodesy: a scale bar in ground metres, a
+true-north arrow (grid convergence and image rotation included), latitude and longitude of the corners,
+and a result box with the speed, its 95 % interval, heading and method.  Every label is placed inside
+the picture and the result box where it hides the least: not the arrow, the scale, the corner labels,
+the vessel or the ends of the drawn lines.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
 
 import cv2
 import numpy as np
+from PIL import Image, ImageDraw, ImageFont
 
 from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, CautionCode, SegmentKind
 from ..detect.result import WakeAnalysis
@@ -67,15 +71,63 @@ def _nice_length(target_m: float) -> float:
     return float(e)
 
 
-def _text(img: np.ndarray, txt: str, org: tuple[int, int], scale: float, colour=COLOURS["text"], thick: int = 1):
-    """Text with a dark outline (the same glyphs shifted, since OpenCV spaces thicker text wider)."""
-    for dx, dy in ((-1, -1), (-1, 1), (1, -1), (1, 1), (0, 2), (2, 0), (0, -2), (-2, 0)):
-        cv2.putText(img, txt, (org[0] + dx, org[1] + dy), FONT, scale, (0, 0, 0), thick, cv2.LINE_AA)
-    cv2.putText(img, txt, org, FONT, scale, colour, thick, cv2.LINE_AA)
+@lru_cache(maxsize=16)
+def _font(size_px: int, bold: bool = False) -> ImageFont.FreeTypeFont | ImageFont.ImageFont:
+    """DejaVu Sans (shipped with matplotlib: it has the degree and plus-minus signs), else Pillow's own."""
+    name = "DejaVuSans-Bold.ttf" if bold else "DejaVuSans.ttf"
+    try:
+        import matplotlib
+
+        return ImageFont.truetype(str(Path(matplotlib.get_data_path()) / "fonts" / "ttf" / name), size_px)
+    except (ImportError, OSError):
+        return ImageFont.load_default(size_px)
 
 
-def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = "", max_side: int = 2400) -> np.ndarray:
+@dataclass(frozen=True)
+class _Label:
+    text: str
+    x: int
+    y: int  #: top of the text
+    size: int
+    bold: bool = False
+    colour: tuple[int, int, int] = COLOURS["text"]
+
+
+def _text_size(text: str, size: int, bold: bool = False) -> tuple[int, int]:
+    x0, y0, x1, y1 = _font(size, bold).getbbox(text, stroke_width=max(1, size // 10))
+    return int(x1 - min(x0, 0)), int(y1 - min(y0, 0))
+
+
+Rect = tuple[int, int, int, int]  #: x0, y0, x1, y1
+
+
+def _overlap(a: Rect, b: Rect) -> int:
+    return max(0, min(a[2], b[2]) - max(a[0], b[0])) * max(0, min(a[3], b[3]) - max(a[1], b[1]))
+
+
+def render_evidence(
+    scene: Scene, analysis: WakeAnalysis, *, scene_label: str = "", vessel_name: str = "", max_side: int = 2400
+) -> np.ndarray:
     """RGB uint8 image of the crop around the vessel with every annotation drawn."""
+    return evidence_layout(scene, analysis, scene_label=scene_label, vessel_name=vessel_name, max_side=max_side)[0]
+
+
+@dataclass(frozen=True)
+class Layout:
+    """Where the decorations went (picture pixels): every text label, and the boxes of the marks."""
+
+    labels: tuple[_Label, ...]
+    marks: dict[str, Rect]
+
+    def label_rect(self, lb: _Label) -> Rect:
+        tw, th = _text_size(lb.text, lb.size, lb.bold)
+        return (lb.x, lb.y, lb.x + tw, lb.y + th)
+
+
+def evidence_layout(
+    scene: Scene, analysis: WakeAnalysis, *, scene_label: str = "", vessel_name: str = "", max_side: int = 2400
+) -> tuple[np.ndarray, Layout]:
+    """The evidence picture and where its decorations were placed."""
     crop, step = crop_for(scene, analysis, max_side=max_side)
     oh, ow = crop.height // step, crop.width // step
     bands = display.true_colour_bands(scene.info.band_descriptions) if scene.info.count >= 3 else (1,)
@@ -95,7 +147,7 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
         img = cv2.resize(img, None, fx=up, fy=up, interpolation=cv2.INTER_NEAREST)
     img = np.ascontiguousarray(img)
     h, w = img.shape[:2]
-    s = max(0.45, min(w, h) / 1400)  # text scale
+    s = max(0.45, min(w, h) / 1400)  # size of marks
     lw = max(1, int(round(min(w, h) / 500)))
 
     def px(pt: tuple[float, float]) -> tuple[int, int]:
@@ -121,54 +173,93 @@ def render_evidence(scene: Scene, analysis: WakeAnalysis, *, scene_label: str = 
     # what the result box must not hide: the vessel, a displaced hull and the ends of the drawn lines
     avoid = [(vx, vy)] + [px(p) for p in d.points_of(SegmentKind.TRACK, *ARM_KINDS, SegmentKind.HULL_SHIFT)]
     cv2.circle(img, (vx, vy), int(10 * s + 4), COLOURS["vessel"], 2 * lw, cv2.LINE_AA)
-    _decorations(img, scene, analysis, crop, step / up, s, lw, scene_label, avoid)
-    return img
+    marks: dict[str, Rect] = {}
+    labels = _decorations(img, scene, analysis, crop, step / up, s, lw, scene_label, vessel_name, avoid, marks)
+    return _draw_labels(img, labels), Layout(tuple(labels), marks)
 
 
-def _decorations(img, scene, analysis, crop, step, s, lw, scene_label, avoid=()) -> None:
+def _draw_labels(img: np.ndarray, labels: list[_Label]) -> np.ndarray:
+    """Draw the text with a dark outline (readable on bright foam and dark water alike)."""
+    pil = Image.fromarray(img)
+    draw = ImageDraw.Draw(pil)
+    for lb in labels:
+        draw.text(
+            (lb.x, lb.y),
+            lb.text,
+            font=_font(lb.size, lb.bold),
+            fill=lb.colour,
+            stroke_width=max(1, lb.size // 10),
+            stroke_fill=(0, 0, 0),
+        )
+    return np.ascontiguousarray(np.asarray(pil))
+
+
+def _decorations(img, scene, analysis, crop, step, s, lw, scene_label, vessel_name, avoid, marks) -> list[_Label]:
+    """Draw the scale bar, north arrow and result box background; return the text labels to draw."""
     h, w = img.shape[:2]
+    size = max(12, int(round(min(w, h) / 48)))  # text height in pixels
+    margin = max(6, size // 2)
+    labels: list[_Label] = []
+    taken: list[Rect] = []
+
+    def put(text: str, x: int, y: int, sz: int, bold: bool = False) -> Rect:
+        tw, th = _text_size(text, sz, bold)
+        x = int(min(max(x, 2), max(w - tw - 2, 2)))
+        y = int(min(max(y, 2), max(h - th - 2, 2)))
+        labels.append(_Label(text, x, y, sz, bold))
+        rect = (x, y, x + tw, y + th)
+        taken.append(rect)
+        return rect
+
+    if scene.info.georeferenced:
+        gr = scene.georef
+        cols = [crop.col0, crop.col0 + crop.width, crop.col0, crop.col0 + crop.width]
+        rows = [crop.row0, crop.row0, crop.row0 + crop.height, crop.row0 + crop.height]
+        lon, lat = geodesy.pixel_to_lonlat(gr, cols, rows)
+        texts = [f"lat {la:.5f}°, lon {lo:.5f}°" for lo, la in zip(lon, lat)]
+        csz = max(11, int(size * 0.8))
+        th = _text_size(texts[0], csz)[1]
+        for i, (x, y) in enumerate(((margin, margin), (w, margin), (margin, h - margin - th), (w, h - margin - th))):
+            marks[f"corner {i}"] = put(texts[i], x, y, csz)
     try:
         frame = scene.local_frame(*analysis.vessel_px)
     except Exception:  # noqa: BLE001 - an unreferenced, uncalibrated image has no scale to draw
         frame = None
-    margin = int(20 * s)
     if frame is not None:
-        # scale bar along image rows, in ground metres
+        # scale bar along image rows, in ground metres, above the bottom-left corner label
         m_per_px = frame.length_of(step, 0)
         length_m = _nice_length(0.22 * w * m_per_px)
         n = int(round(length_m / m_per_px))
-        x0, y0 = margin, h - margin
-        cv2.rectangle(img, (x0 - 6, y0 - int(34 * s) - 6), (x0 + n + 6, y0 + 6), COLOURS["box"], -1)
+        bottom = min([r[1] for r in taken if r[1] > h / 2] + [h]) - margin
+        label = f"{length_m:g} m" if length_m < 1000 else f"{length_m / 1000:g} km"
+        tw, th = _text_size(label, size)
+        x0, y0 = margin + 6, bottom - 6
+        box = (x0 - 6, y0 - th - int(12 * s) - 6, x0 + max(n, tw) + 6, y0 + 6)
+        cv2.rectangle(img, box[:2], box[2:], COLOURS["box"], -1)
         cv2.line(img, (x0, y0), (x0 + n, y0), COLOURS["text"], 3 * lw)
         for xx in (x0, x0 + n):
             cv2.line(img, (xx, y0 - int(8 * s)), (xx, y0), COLOURS["text"], 2 * lw)
-        label = f"{length_m:g} m" if length_m < 1000 else f"{length_m / 1000:g} km"
-        _text(img, label, (x0, y0 - int(14 * s)), 0.9 * s)
-        # true-north arrow (or image-up arrow when north is unknown)
+        labels.append(_Label(label, x0, y0 - th - int(12 * s), size))
+        taken.append(box)
+        marks["scale bar"] = box
+        # true-north arrow (or image-up arrow when north is unknown), below the top-right corner label
         dc, dr = frame.image_direction(0.0) if frame.north_known else (0.0, -1.0)
-        cx, cy = w - margin - int(40 * s), margin + int(110 * s)
-        ln = int(45 * s)
+        ln = max(int(45 * s), 2 * size)
+        top = max([r[3] for r in taken if r[3] < h / 2 and r[0] > w / 2] + [0]) + margin
+        cx, cy = w - margin - ln, top + ln + 2 * size
         tip = (int(cx + dc * ln), int(cy + dr * ln))
         tail = (int(cx - dc * ln * 0.6), int(cy - dr * ln * 0.6))
         cv2.arrowedLine(img, tail, tip, COLOURS["north"], 3 * lw, cv2.LINE_AA, tipLength=0.35)
-        _text(img, "N" if frame.north_known else "up", (tip[0] - int(8 * s), tip[1] - int(10 * s)), 1.0 * s, thick=2)
-    if scene.info.georeferenced:
-        gr = scene.georef
-        corners = [
-            (crop.col0, crop.row0),
-            (crop.col0 + crop.width, crop.row0),
-            (crop.col0, crop.row0 + crop.height),
-            (crop.col0 + crop.width, crop.row0 + crop.height),
-        ]
-        lon, lat = geodesy.pixel_to_lonlat(gr, [c[0] for c in corners], [c[1] for c in corners])
-        labels = [f"{la:.5f}, {lo:.5f}" for lo, la in zip(lon, lat)]
-        size = cv2.getTextSize(labels[1], FONT, 0.7 * s, 1)[0]
-        _text(img, labels[0], (4, int(18 * s) + 4), 0.7 * s)
-        _text(img, labels[1], (w - size[0] - 4, int(18 * s) + 4), 0.7 * s)
-        _text(img, labels[2], (4, h - int(50 * s) - 40), 0.7 * s)
-        size3 = cv2.getTextSize(labels[3], FONT, 0.7 * s, 1)[0]
-        _text(img, labels[3], (w - size3[0] - 4, h - 6), 0.7 * s)
-    _result_box(img, analysis, s, scene_label, scene.info.acquisition_time, avoid)
+        letter = "N" if frame.north_known else "up"
+        lw_, lh_ = _text_size(letter, size, True)
+        lx = int(tip[0] - lw_ / 2)
+        ly = int(min(tip[1], tail[1]) - lh_ - max(3, size // 4)) if dr <= 0 else int(max(tip[1], tail[1]) + 3)
+        labels.append(_Label(letter, lx, max(ly, top), size, True))
+        taken.append((cx - ln - lw_, top, cx + ln + lw_, cy + ln))
+        marks["north arrow"] = taken[-1]
+    labels += _result_box(img, analysis, size, scene_label, vessel_name, scene.info.acquisition_time, avoid, taken)
+    marks["result box"] = taken[-1]
+    return labels
 
 
 def result_lines(analysis: WakeAnalysis) -> list[str]:
@@ -178,7 +269,7 @@ def result_lines(analysis: WakeAnalysis) -> list[str]:
     if analysis.speed is None:  # a wake seen as lines only
         return [
             "WAKE FOUND AS A LINE - no speed estimate",
-            f"Heading {analysis.heading_deg:.1f} deg true (+/- {analysis.heading_std_deg:.1f})",
+            f"Heading {analysis.heading_deg:.1f}° true (± {analysis.heading_std_deg:.1f}°)",
             "No speed: no wave crests resolved (see the report)",
         ]
     sp = analysis.speed
@@ -187,7 +278,7 @@ def result_lines(analysis: WakeAnalysis) -> list[str]:
         f"Speed {'over ground ' if over_ground else ''}{sp.speed_mps / KNOT_MPS:.1f} kn = {sp.speed_mps:.2f} m/s",
         f"95% interval {sp.ci95_low_mps / KNOT_MPS:.1f}-{sp.ci95_high_mps / KNOT_MPS:.1f} kn "
         f"({sp.ci95_low_mps:.2f}-{sp.ci95_high_mps:.2f} m/s)",
-        f"Heading {analysis.heading_deg:.1f} deg true (+/- {analysis.heading_std_deg:.1f})",
+        f"Heading {analysis.heading_deg:.1f}° true (± {analysis.heading_std_deg:.1f}°)",
         f"Depth regime: {analysis.regime.regime}"
         + (f", depth {analysis.depth_m:.1f} m" if analysis.depth_m is not None else ""),
         "Method: " + " + ".join(m.method.split(" (")[0] for m in analysis.methods),
@@ -195,36 +286,54 @@ def result_lines(analysis: WakeAnalysis) -> list[str]:
     return lines
 
 
-def _result_box(img, analysis: WakeAnalysis, s: float, scene_label: str, acquired: str | None, avoid=()) -> None:
-    lines = result_lines(analysis)
+def _result_box(
+    img, analysis: WakeAnalysis, size: int, scene_label: str, vessel_name: str, acquired, avoid, taken
+) -> list[_Label]:
+    """The result box where it hides the least (drawn lines' ends and the vessel weigh most), its text
+    made smaller until it fits inside the picture."""
+    lines = ([f"Vessel: {vessel_name}"] if vessel_name else []) + result_lines(analysis)
     lines += [
         f"Scene: {scene_label}" if scene_label else "",
         f"Acquired: {acquired}" if acquired else "",
         "Estimate from imagery - not a certified measurement",
     ]
     lines = [ln for ln in lines if ln]
-    scale = 0.75 * s
-    sizes = [cv2.getTextSize(ln, FONT, scale, 1)[0] for ln in lines]
-    lh = int(max(sz[1] for sz in sizes) * 1.8)
-    bw = max(sz[0] for sz in sizes) + int(24 * s)
-    bh = lh * len(lines) + int(16 * s)
     h, w = img.shape[:2]
-    # top left unless that hides what was drawn; then top right (below the north arrow), then bottom right
-    corners = [
-        (int(20 * s), int(40 * s)),
-        (w - bw - int(20 * s), int(110 * s)),
-        (w - bw - int(20 * s), h - bh - int(40 * s)),
+    margin = max(6, size // 2)
+    sz = max(10, int(size * 0.85))
+    while True:
+        sizes = [_text_size(ln, sz, i == 0) for i, ln in enumerate(lines)]
+        bw = max(t[0] for t in sizes) + 2 * margin
+        if bw <= w - 2 * margin or sz <= 8:
+            break
+        sz -= 1
+    if bw > w - 2 * margin:  # still too wide at the smallest size: cut the longest lines
+        limit = max(10, int(len(max(lines, key=len)) * (w - 4 * margin) / bw))
+        lines = [ln if len(ln) <= limit else ln[: limit - 3] + "..." for ln in lines]
+        sizes = [_text_size(ln, sz, i == 0) for i, ln in enumerate(lines)]
+        bw = min(max(t[0] for t in sizes) + 2 * margin, w - 2 * margin)
+    lh = int(max(t[1] for t in sizes) * 1.35)
+    bh = lh * len(lines) + margin
+    top = max([r[3] for r in taken if r[3] < h / 2 and r[2] < w / 2] + [0]) + margin
+    right_top = max([r[3] for r in taken if r[3] < h / 2 and r[0] > w / 2] + [0]) + margin
+    bottom_r = min([r[1] for r in taken if r[1] > h / 2 and r[2] > w / 2] + [h]) - margin
+    bottom_l = min([r[1] for r in taken if r[1] > h / 2 and r[0] < w / 2] + [h]) - margin
+    candidates = [
+        (margin, top),
+        (w - bw - margin, right_top),
+        (w - bw - margin, bottom_r - bh),
+        (margin, bottom_l - bh),
     ]
-    pad = int(10 * s)
 
-    def hidden(corner: tuple[int, int]) -> int:
-        x, y = corner
-        return sum(x - pad <= ax <= x + bw + pad and y - pad <= ay <= y + bh + pad for ax, ay in avoid)
+    def cost(c: tuple[int, int]) -> float:
+        x, y = c
+        r = (x, y, x + bw, y + bh)
+        hidden = sum(x - margin <= ax <= x + bw + margin and y - margin <= ay <= y + bh + margin for ax, ay in avoid)
+        return 1e9 * hidden + sum(_overlap(r, t) for t in taken)
 
-    x0, y0 = min(((max(x, 0), max(y, 0)) for x, y in corners), key=hidden)
+    x0, y0 = min(((max(x, 0), max(y, 0)) for x, y in candidates), key=cost)
+    y0 = min(y0, max(h - bh, 0))
     roi = img[y0 : y0 + bh, x0 : x0 + bw]
     roi[:] = (0.25 * roi + 0.75 * np.array(COLOURS["box"])).astype(np.uint8)
-    for i, ln in enumerate(lines):
-        _text(
-            img, ln, (x0 + int(12 * s), y0 + int(8 * s) + lh * (i + 1) - int(lh * 0.3)), scale, thick=2 if i == 0 else 1
-        )
+    taken.append((x0, y0, x0 + bw, y0 + bh))
+    return [_Label(ln, x0 + margin, y0 + margin // 2 + lh * i, sz, i == 0) for i, ln in enumerate(lines)]

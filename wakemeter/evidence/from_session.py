@@ -13,7 +13,7 @@ from ..project import Project
 from ..project import session as session_mod
 from ..scene import geodesy
 from ..scene.raster import open_scene
-from .export import EvidenceFiles, export_evidence
+from .export import CaseDetails, EvidenceFiles, VesselEvidence, export_evidence_set, hand_measurement_rows
 
 
 def with_plots(project: Project, vessel_id: int) -> WakeAnalysis:
@@ -32,14 +32,35 @@ def with_plots(project: Project, vessel_id: int) -> WakeAnalysis:
     return out
 
 
+def session_vessels(project: Project, vessel_name: str | None = None) -> list[VesselEvidence]:
+    """Every vessel of the project that was not rejected (or the one named), with its effective finding
+    (plots included) and its hand measurements, in the order they were marked."""
+    vessels = [
+        v
+        for v in project.vessels.values()
+        if v.id not in project.rejected and (vessel_name is None or v.name == vessel_name)
+    ]
+    out = []
+    for v in vessels:
+        if v.id not in project.findings:  # marked but never analysed: analyse it now, with its request
+            assert project.scene is not None
+            project.findings[v.id] = analyze(project.scene, project.request_for(v.id))
+        hand = [m for m in project.measurements.values() if m.vessel_id == v.id]
+        out.append(VesselEvidence(with_plots(project, v.id), v.name, tuple(hand_measurement_rows(hand))))
+    return out
+
+
 def report_from_session(
     path: str | Path,
     out_dir: str | Path,
     *,
     analyst: str | None = None,
+    case_reference: str | None = None,
     force: bool = False,
     vessel_name: str | None = None,
-) -> list[EvidenceFiles]:
+    paper: str | None = None,
+) -> EvidenceFiles:
+    """One evidence set for the session's vessels (every one not rejected, or the one named)."""
     data = session_mod.load(path)
     scene_path = data["scene"].get("resolved_path")
     if not scene_path or not Path(scene_path).exists():
@@ -47,40 +68,48 @@ def report_from_session(
             f"the session's scene was not found ({data['scene'].get('absolute_path')}); "
             "open the session in the program to locate it"
         )
-    out = []
     with open_scene(scene_path) as scene:
+        saved = data["scene"].get("sha256")
+        if saved and saved != scene.sha256():
+            raise ParameterError(
+                f"the scene {scene.info.path.name} has changed since the session was saved (SHA-256 was "
+                f"{saved[:12]}..., is now {scene.sha256()[:12]}...): the marked positions and findings may not "
+                "belong to it. Open the session in the program to check the scene, or restore the original file"
+            )
         if data.get("calibration") and not scene.info.georeferenced:
             c = data["calibration"]
             scene.calibrate(geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"], north_up_deg=c["north_up_deg"]))
         project = Project()
         project.scene = scene
         session_mod.fill_project(project, data)
-        vessels = [
-            v
-            for v in project.vessels.values()
-            if v.id not in project.rejected and (vessel_name is None or v.name == vessel_name)
-        ]
+        vessels = session_vessels(project, vessel_name)
         if not vessels:
             raise ParameterError("the session has no vessel to report (none marked, all rejected, or no such name)")
-        for v in vessels:
-            if v.id not in project.findings:  # marked but never analysed: analyse it now, with its request
-                project.findings[v.id] = analyze(scene, project.request_for(v.id))
-            a = with_plots(project, v.id)
-            out.append(
-                export_evidence(
-                    scene,
-                    a,
-                    out_dir,
-                    analyst=analyst,
-                    force=force,
-                    basename=f"{scene.info.path.stem}_{v.name or f'vessel_{v.id}'}",
-                    parameters={"session": Path(path).name, "vessel": v.name},
-                )
-            )
-    return out
+        stem = scene.info.path.stem
+        base = f"{stem}_{vessels[0].name or 'vessel'}" if len(vessels) == 1 else f"{Path(path).stem}_report"
+        return export_evidence_set(
+            scene,
+            vessels,
+            out_dir,
+            case=CaseDetails(analyst, case_reference),
+            force=force,
+            basename=base,
+            paper=paper,
+            parameters={"session": Path(path).name},
+        )
 
 
 def is_session(path: str | Path) -> bool:
-    """A ``.json`` file is taken for a session (rasters are never JSON): reading it then says what is wrong."""
+    """A ``.json`` file, or any file whose text starts with "{", is taken for a session (rasters are never
+    JSON): reading it then says what is wrong with it."""
     p = Path(path)
-    return p.suffix.lower() == ".json" and p.is_file()
+    if not p.is_file():
+        return False
+    if p.suffix.lower() == ".json":
+        return True
+    try:
+        with open(p, "rb") as fh:
+            head = fh.read(64).lstrip()
+    except OSError:
+        return False
+    return head.startswith(b"{")

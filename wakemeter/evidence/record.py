@@ -17,7 +17,7 @@ from ..detect.result import WakeAnalysis
 from ..scene.raster import Scene
 from .summary import assumption_texts
 
-SCHEMA_VERSION = "wakemeter.evidence/2"
+SCHEMA_VERSION = "wakemeter.evidence/3"
 
 CAUTION_TEXT = CAUTION  #: the one caution text (wakemeter/caution.py)
 
@@ -26,7 +26,7 @@ def schema() -> dict:
     return json.loads(resources.files(__package__).joinpath("evidence.schema.json").read_text())
 
 
-def provenance(scene: Scene, *, analyst: str | None, parameters: dict, exported_at: str | None = None) -> dict:
+def provenance(scene: Scene, *, parameters: dict) -> dict:
     i = scene.info
     return {
         "scene_file": i.path.name,
@@ -44,30 +44,48 @@ def provenance(scene: Scene, *, analyst: str | None, parameters: dict, exported_
         "software": f"wakemeter {__version__}",
         "python": platform.python_version(),
         "analysis_parameters": parameters,
-        "exported_at": exported_at or _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat(),
-        "analyst": analyst or None,
     }
+
+
+def now_utc() -> str:
+    return _dt.datetime.now(_dt.UTC).replace(microsecond=0).isoformat()
 
 
 def build_record(
     scene: Scene,
-    analysis: WakeAnalysis,
+    vessels: list[tuple[WakeAnalysis, str, list[dict]]],
     *,
     analyst: str | None,
     parameters: dict,
-    files: dict[str, str],
+    files: dict,
+    case_reference: str | None = None,
     exported_at: str | None = None,
 ) -> dict:
-    """The full evidence record (plain data)."""
-    result = analysis.to_json()
-    if analysis.request is not None:
-        parameters = {**parameters, "request": analysis.request.to_json()}
+    """The full evidence record (plain data): the case, one entry per vessel (name, result, its
+    assumptions, its hand measurements, its image) and the provenance."""
+    entries = []
+    for i, (analysis, name, hand) in enumerate(vessels):
+        result = analysis.to_json()
+        entries.append(
+            {
+                "name": name or None,
+                "result": result,
+                "request": analysis.request.to_json() if analysis.request is not None else None,
+                "assumptions": assumption_texts(result)[:-1],
+                "hand_measurements": hand,
+                "image": files["images"][i],
+            }
+        )
     return {
         "schema": SCHEMA_VERSION,
         "caution": CAUTION_TEXT,
-        "result": result,
-        "assumptions": assumption_texts(result)[:-1],
-        "provenance": provenance(scene, analyst=analyst, parameters=parameters, exported_at=exported_at),
+        "case": {
+            "reference": case_reference or None,
+            "analyst": analyst or None,
+            "exported_at": exported_at or now_utc(),
+        },
+        "vessels": entries,
+        "provenance": provenance(scene, parameters=parameters),
         "files": files,
     }
 

@@ -3,6 +3,7 @@ provenance and the caution.  A4 or Letter by locale."""
 
 from __future__ import annotations
 
+import datetime as _dt
 import io
 import locale
 import os
@@ -17,7 +18,7 @@ from reportlab.lib.units import mm
 from reportlab.platypus import Image, PageBreak, Paragraph, SimpleDocTemplate, Spacer, Table, TableStyle
 
 from ..caution import CAUTION
-from .summary import assumption_texts, caution_texts, method_rows, summary_rows
+from .summary import assumption_texts, caution_texts, method_rows, overview_cells, summary_rows
 
 
 def page_size_for_locale() -> str:
@@ -38,10 +39,18 @@ def _png(img: np.ndarray) -> io.BytesIO:
 
 
 def write_pdf(
-    path: str, record: dict, evidence_img: np.ndarray, plots: list[np.ndarray], *, paper: str | None = None
+    path: str,
+    record: dict,
+    evidence_imgs: list[np.ndarray],
+    plots: list[list[np.ndarray]],
+    *,
+    paper: str | None = None,
 ) -> None:
-    """Write the report to ``path`` (the caller makes it atomic)."""
+    """Write the report to ``path`` (the caller makes it atomic): the case and, when several, an overview of
+    the vessels on the first page; then per vessel its numbers, image, methods, plots, hand measurements,
+    assumptions and cautions; then the provenance and the caution again."""
     size = letter if (paper or page_size_for_locale()) == "Letter" else A4
+    case, prov, vessels = record["case"], record["provenance"], record["vessels"]
     doc = SimpleDocTemplate(
         path,
         pagesize=size,
@@ -49,39 +58,40 @@ def write_pdf(
         rightMargin=16 * mm,
         topMargin=14 * mm,
         bottomMargin=14 * mm,
-        title="wakemeter evidence report",
-        author=record["provenance"]["analyst"] or "",
-        creator=record["provenance"]["software"],
-        invariant=1,
+        title="wakemeter evidence report" + (f" - {case['reference']}" if case["reference"] else ""),
+        author=case["analyst"] or "",
+        creator=prov["software"],
+        invariant=1,  # the same inputs give the same bytes; the dates are set from the export time below
     )
     st = getSampleStyleSheet()
     small = st["BodyText"].clone("small", fontSize=8, leading=10)
     warn = st["BodyText"].clone("warn", textColor=colors.HexColor("#8a1c1c"), fontSize=9.5, leading=12)
-    r, prov = record["result"], record["provenance"]
     width = size[0] - 32 * mm
     story = [
         Paragraph("Wake speed estimate - evidence report", st["Title"]),
         Paragraph(f"<b>Caution.</b> {_esc(CAUTION)}", warn),
-        Spacer(1, 4 * mm),
+        Spacer(1, 3 * mm),
     ]
-    story.append(_table([list(row) for row in summary_rows(r)], [55 * mm, width - 55 * mm], small))
-    story.append(Spacer(1, 4 * mm))
-    h, w = evidence_img.shape[:2]
-    img_w = width
-    story.append(Image(_png(evidence_img), width=img_w, height=img_w * h / w))
-    story.append(PageBreak())
-    story.append(Paragraph("Methods", st["Heading2"]))
-    mrows = [["Method", "Speed (m/s)", "95 % interval (m/s)", "Speed (kn)"]] + [list(m) for m in method_rows(r)]
-    story.append(_table(mrows, [80 * mm, 25 * mm, 40 * mm, width - 145 * mm], small, header=True))
-    for p in plots:
-        ph, pw = p.shape[:2]
-        pw_mm = min(width, 120 * mm * pw / max(ph, 1) if ph > pw * 0.6 else width)
-        story += [Spacer(1, 3 * mm), Image(_png(p), width=pw_mm, height=pw_mm * ph / pw)]
-    story.append(Paragraph("Inputs and assumptions", st["Heading2"]))
-    arows = [[a] for a in assumption_texts(r)] + [["Caution: " + c] for c in caution_texts(r)]
-    story.append(_table(arows, [width], small))
+    crows = [
+        ["Case reference", case["reference"] or "not given"],
+        ["Analyst", case["analyst"] or "not given"],
+        ["Scene", prov["scene_file"]],
+        ["Acquisition time", prov["acquisition_time"] or "not in the metadata"],
+        ["Exported (UTC)", case["exported_at"]],
+        ["Vessels in this report", str(len(vessels))],
+    ]
+    story.append(_table(crows, [45 * mm, width - 45 * mm], small))
+    if len(vessels) > 1:
+        story += [Spacer(1, 3 * mm), Paragraph("Vessels", st["Heading2"])]
+        orows = [["#", "Vessel", "Speed", "95 % interval", "Heading", "Depth regime"]]
+        for i, v in enumerate(vessels, 1):
+            orows.append([str(i), v["name"] or f"vessel {i}", *overview_cells(v["result"])])
+        story.append(_table(orows, [8 * mm, 42 * mm, 32 * mm, 40 * mm, 28 * mm, width - 150 * mm], small, header=True))
+    for i, (v, img, vplots) in enumerate(zip(vessels, evidence_imgs, plots, strict=True), 1):
+        story += _vessel_section(v, i, len(vessels), img, vplots, width, st, small)
     story.append(Paragraph("Provenance", st["Heading2"]))
     g = prov["georeference"]
+    params = dict(prov["analysis_parameters"])
     prow = [
         ["Scene file", prov["scene_file"]],
         ["Size", f"{prov['scene_size_bytes']:,} bytes"],
@@ -89,26 +99,84 @@ def write_pdf(
         ["Acquisition time", prov["acquisition_time"] or "not in the metadata"],
         ["Georeference", f"{g['crs'] or 'none'}; {g['note'] or 'from the file'}"],
         ["Software", prov["software"]],
-        ["Analysis parameters", describe_parameters(prov["analysis_parameters"]) or "defaults"],
-        ["Exported", prov["exported_at"]],
-        ["Analyst", prov["analyst"] or "not given"],
+        ["Analysis parameters", describe_parameters(params) or "defaults"],
     ]
+    for i, v in enumerate(vessels, 1):
+        if v.get("request"):
+            label = "Request" + (f" ({v['name'] or f'vessel {i}'})" if len(vessels) > 1 else "")
+            prow.append([label, describe_parameters(v["request"])])
+    prow += [["Exported (UTC)", case["exported_at"]], ["Analyst", case["analyst"] or "not given"]]
     story.append(_table(prow, [45 * mm, width - 45 * mm], small))
     story.append(Spacer(1, 4 * mm))
     story.append(Paragraph(f"<b>Caution.</b> {_esc(CAUTION)}", warn))
+    stamp = pdf_date(case["exported_at"])
 
     def footer(canvas, doc_) -> None:
+        canvas.setDateFormatter(lambda *_: stamp)  # creation and change dates: the export time
         canvas.saveState()
         canvas.setFont("Helvetica", 7)
+        ref = f"{case['reference'][:40]} - " if case["reference"] else ""
         canvas.drawString(
             16 * mm,
             8 * mm,
-            f"wakemeter evidence report - {prov['scene_file'][:80]} - "
+            f"wakemeter evidence report - {ref}{prov['scene_file'][:60]} - "
             f"sha256 {prov['scene_sha256'][:16]}... - page {doc_.page}",
         )
         canvas.restoreState()
 
     doc.build(story, onFirstPage=footer, onLaterPages=footer)
+
+
+def _vessel_section(v: dict, i: int, n: int, img: np.ndarray, vplots, width, st, small) -> list:
+    r = v["result"]
+    title = v["name"] or (f"Vessel {i}" if n > 1 else "")
+    out: list = [PageBreak()] if n > 1 else [Spacer(1, 3 * mm)]
+    if title:
+        out.append(Paragraph(_esc(f"Vessel {i} of {n}: {title}" if n > 1 else f"Vessel: {title}"), st["Heading2"]))
+    out.append(_table([list(row) for row in summary_rows(r)], [55 * mm, width - 55 * mm], small))
+    out.append(Spacer(1, 3 * mm))
+    h, w = img.shape[:2]
+    img_w = min(width, 170 * mm * w / max(h, 1))
+    out.append(Image(_png(img), width=img_w, height=img_w * h / w))
+    out.append(PageBreak())
+    out.append(Paragraph("Methods" + (f" - {_esc(title)}" if n > 1 else ""), st["Heading2"]))
+    mrows = [["Method", "Speed (m/s)", "95 % interval (m/s)", "Speed (kn)"]] + [list(m) for m in method_rows(r)]
+    if len(mrows) == 1:
+        mrows.append(["no speed method gave a result", "-", "-", "-"])
+    out.append(_table(mrows, [80 * mm, 25 * mm, 40 * mm, width - 145 * mm], small, header=True))
+    for p in vplots:
+        ph, pw = p.shape[:2]
+        pw_mm = min(width, 130 * mm * pw / max(ph, 1) if ph > pw * 0.6 else width)
+        out += [Spacer(1, 3 * mm), Image(_png(p), width=pw_mm, height=pw_mm * ph / pw)]
+    out.append(Paragraph("Hand measurements", st["Heading3"]))
+    hand = v.get("hand_measurements") or []
+    if hand:
+        hrows = [["Kind", "Value (standard uncertainty)", "Points (scene pixels)", "Placement (px)"]]
+        hrows += [
+            [
+                m["kind"],
+                m["value"],
+                "; ".join(f"({p[0]:.1f}, {p[1]:.1f})" for p in m["points_px"]),
+                f"{m['placement_px']:.1f}",
+            ]
+            for m in hand
+        ]
+        out.append(_table(hrows, [22 * mm, 70 * mm, 60 * mm, width - 152 * mm], small, header=True))
+    else:
+        out.append(Paragraph("none made for this vessel", small))
+    out.append(Paragraph("Inputs and assumptions", st["Heading3"]))
+    arows = [[a] for a in assumption_texts(r)] + [["Caution: " + c] for c in caution_texts(r)]
+    out.append(_table(arows, [width], small))
+    return out
+
+
+def pdf_date(iso: str) -> str:
+    """A PDF date string (ISO 32000-1, 7.9.4) from an ISO 8601 time; UTC when no zone is given."""
+    t = _dt.datetime.fromisoformat(iso)
+    if t.tzinfo is None:
+        t = t.replace(tzinfo=_dt.UTC)
+    t = t.astimezone(_dt.UTC)
+    return t.strftime("D:%Y%m%d%H%M%S+00'00'")
 
 
 def describe_parameters(params: dict) -> str:
@@ -129,7 +197,7 @@ def describe_parameters(params: dict) -> str:
             return "; ".join(f"{k} {value(k, x)}" for k, x in v.items() if x is not None and k != "schema")
         return str(v)
 
-    return "; ".join(f"{k} {value(k, v)}" for k, v in params.items() if v is not None)
+    return "; ".join(f"{k} {value(k, v)}" for k, v in params.items() if v is not None and k != "schema")
 
 
 def _table(rows, widths, small, header: bool = False):

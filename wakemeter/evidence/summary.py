@@ -28,7 +28,7 @@ def describe_lines(result: dict) -> str:
                 label
                 + " at "
                 + ", ".join(
-                    f"{ln['angle_from_track_deg']:+.1f} deg (significance {ln['significance']:.0f})" for ln in found
+                    f"{ln['angle_from_track_deg']:+.1f}° (significance {ln['significance']:.0f})" for ln in found
                 )
             )
     return "; ".join(parts) if parts else "none stands out"
@@ -57,12 +57,12 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
         rows = [
             (label, speed),
             ("95 % interval", interval),
-            ("Heading (true bearing)", f"{r['heading_deg']:.1f} deg (+/- {r['heading_std_deg']:.1f})"),
+            ("Heading (true bearing)", f"{r['heading_deg']:.1f}° (± {r['heading_std_deg']:.1f}°)"),
             (
                 "Wake half-angle",
                 "not measured"
                 if r["half_angle_deg"] is None
-                else f"{r['half_angle_deg']:.1f} +/- {r['half_angle_std_deg']:.1f} deg",
+                else f"{r['half_angle_deg']:.1f} ± {r['half_angle_std_deg']:.1f}°",
             ),
             (
                 "Transverse crest spacing",
@@ -91,6 +91,19 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
     return rows
 
 
+def overview_cells(r: dict) -> list[str]:
+    """Speed, 95 % interval, heading and depth regime of a result, for the overview of several vessels."""
+    if not r["wake_found"]:
+        return ["no wake found", "-", "-", "-"]
+    codes = {c.get("code") for c in r["cautions"] if isinstance(c, dict)}
+    heading = f"{r['heading_deg']:.1f}° (± {r['heading_std_deg']:.1f}°)"
+    if r["speed_mps"] is None:
+        return ["not estimated", "-", heading, r["regime"]]
+    lo, hi = r["speed_ci95_mps"]
+    speed = f"{r['speed_mps'] / KNOT_MPS:.1f} kn" + (" over ground" if "over-ground" in codes else "")
+    return [speed, f"{lo / KNOT_MPS:.1f} - {hi / KNOT_MPS:.1f} kn", heading, r["regime"]]
+
+
 def method_rows(r: dict) -> list[tuple[str, str, str, str]]:
     """(method, speed m/s, 95 % interval m/s, speed kn) per method."""
     return [
@@ -107,7 +120,7 @@ def method_rows(r: dict) -> list[tuple[str, str, str, str]]:
 def assumption_texts(r: dict) -> list[str]:
     out = sorted({a for m in r["methods"] for a in m.get("assumptions", [])})
     out.append(
-        f"gravity {r['gravity_mps2']:.4f} m/s^2 (WGS 84 normal gravity at the vessel's latitude when "
+        f"gravity {r['gravity_mps2']:.4f} m/s² (WGS 84 normal gravity at the vessel's latitude when "
         f"georeferenced); analysis pixel {r['pixel_m']:.2f} m"
     )
     return out

@@ -18,6 +18,8 @@ import datetime as _dt
 import json
 import math
 import os
+import re
+import secrets
 from pathlib import Path
 from typing import Any
 
@@ -54,6 +56,21 @@ def save(path: str | os.PathLike, data: dict) -> Path:
     except OSError as err:
         raise SessionError(f"cannot save the session to {target}: {err.strerror or err}") from err
     return target
+
+
+def _schema_age(schema: str) -> str:
+    """Says whether an unreadable session schema is newer, older or not one we know."""
+    newest = max(int(r.rsplit("/", 1)[1]) for r in READABLE)
+    oldest = min(int(r.rsplit("/", 1)[1]) for r in READABLE)
+    try:
+        n = int(schema.rsplit("/", 1)[1])
+    except (ValueError, IndexError):
+        return f"an unknown session format ({schema[:40]})"
+    if n > newest:
+        return f"written by a newer wakemeter ({schema[:40]})"
+    if n < oldest:
+        return f"written by an older wakemeter whose format this version no longer reads ({schema[:40]})"
+    return f"an unknown session format ({schema[:40]})"
 
 
 def _plain(x: object) -> object:
@@ -107,9 +124,7 @@ def load(path: str | os.PathLike) -> dict:
     if not isinstance(data, dict) or not str(data.get("schema", "")).startswith("wakemeter.session/"):
         raise SessionError(f"{p.name}: not a wakemeter session file")
     if data["schema"] not in READABLE:
-        raise SessionError(
-            f"{p.name}: written by a newer wakemeter ({str(data['schema'])[:40]}); this version reads {SCHEMA}"
-        )
+        raise SessionError(f"{p.name}: {_schema_age(str(data['schema']))}; this version reads {', '.join(READABLE)}")
     for key in ("scene", "vessels", "measurements"):
         if key not in data:
             raise SessionError(f"{p.name}: the session is incomplete (no '{key}')")
@@ -227,9 +242,64 @@ def _depth(node: Any) -> int:
     return deepest
 
 
-def autosave_path() -> Path:
+def autosave_folder() -> Path:
     base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
-    return Path(base) / "wakemeter" / "autosave.session.json"
+    return Path(base) / "wakemeter" / "autosave"
+
+
+#: one autosave per window: <process id>-<random>.session.json
+_AUTOSAVE_NAME = re.compile(r"^(\d+)-[0-9a-f]{8}\.session\.json$")
+_LIVE_AUTOSAVES: set[Path] = set()  #: those of windows open in this process
+
+
+def new_autosave_path() -> Path:
+    """A fresh autosave file name for one window of this process (registered as alive until released)."""
+    p = autosave_folder() / f"{os.getpid()}-{secrets.token_hex(4)}.session.json"
+    _LIVE_AUTOSAVES.add(p)
+    return p
+
+
+def release_autosave(p: Path, *, remove: bool) -> None:
+    """The window that owns ``p`` closes: forget it, and remove the file when nothing would be lost."""
+    _LIVE_AUTOSAVES.discard(p)
+    if remove:
+        p.unlink(missing_ok=True)
+
+
+def orphaned_autosaves() -> list[Path]:
+    """Autosaves whose window is gone without closing (its process died, or it was dropped in this one),
+    newest first.  Another running window's autosave is never among them."""
+    folder = autosave_folder()
+    try:
+        entries = [p for p in folder.iterdir() if _AUTOSAVE_NAME.match(p.name)]
+    except OSError:
+        return []
+    out = []
+    for p in entries:
+        pid = int(_AUTOSAVE_NAME.match(p.name)[1])  # type: ignore[index]
+        if pid == os.getpid():
+            if p not in _LIVE_AUTOSAVES:
+                out.append(p)
+        elif not _process_alive(pid):
+            out.append(p)
+    return sorted(out, key=lambda q: q.stat().st_mtime if q.exists() else 0.0, reverse=True)
+
+
+def adopt_autosave(orphan: Path) -> Path:
+    """Make a dead window's autosave this window's own (one rename), so no other window offers it again."""
+    new = new_autosave_path()
+    os.replace(orphan, new)
+    return new
+
+
+def _process_alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True
 
 
 # ---- the project in a session ------------------------------------------------------------------

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import hashlib
 import os
-import tempfile
 from collections.abc import Callable
 from pathlib import Path
 
@@ -18,8 +17,9 @@ import numpy as np
 import rasterio
 from rasterio.windows import Window
 
+from .. import fileio
 from ..errors import CancelledError, SceneReadError, SceneWriteError
-from .raster import GDAL_ERRORS, Scene
+from .raster import GDAL_ERRORS, Scene, gdal_reason
 
 #: Scenes at most this many pixels on a side need no pyramid.
 PYRAMID_MIN_SIDE = 4096
@@ -80,8 +80,8 @@ def ensure_pyramid(
             done += int(np.ceil(scene.height / (f * 256)))
             continue
         w, h = int(np.ceil(scene.width / f)), int(np.ceil(scene.height / f))
-        fd, tmp = tempfile.mkstemp(prefix=".level_", suffix=".part", dir=folder)
-        os.close(fd)
+        fileio.clean_stale(folder)
+        tmp = str(fileio.temp_name(target))
         try:
             profile = {
                 "driver": "GTiff",
@@ -113,7 +113,7 @@ def ensure_pyramid(
                         progress(min(done / max(total, 1), 1.0))
             os.replace(tmp, target)
         except GDAL_ERRORS as err:
-            raise SceneWriteError(f"cannot write the overview pyramid in {folder}: {err}") from err
+            raise SceneWriteError(f"cannot write the overview pyramid in {folder}: {gdal_reason(err)}") from err
         except SceneReadError:
             raise
         finally:

@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
@@ -22,6 +21,7 @@ from rasterio.errors import RasterioError
 
 from .. import __version__
 from ..errors import ParameterError, SceneWriteError
+from ..fileio import FILE_MODE, clean_stale, temp_name
 from ..physics import havelock, kelvin
 from ..physics import radar as radar_phys
 from ..physics.gravity import normal_gravity
@@ -311,14 +311,11 @@ def render(spec: SceneSpec) -> RenderedScene:
     return RenderedScene(pixels[None, ...], georef, truth)
 
 
-def _umask() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask
-
-
 def _atomic_path(target: Path) -> tuple[int, str]:
-    return tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
+    """A hidden temporary file of ours beside ``target`` (open, exclusive); a dead writer's are tidied first."""
+    clean_stale(target.parent)
+    tmp = temp_name(target)
+    return os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o600), str(tmp)
 
 
 def write(
@@ -370,7 +367,7 @@ def write(
         with os.fdopen(fd, "w") as fh:
             json.dump(scene.truth, fh, indent=2, sort_keys=True)
             fh.write("\n")
-        mode = 0o666 & ~_umask()
+        mode = FILE_MODE
         for f in (tmp_tif, tmp_json):
             os.chmod(f, mode)
         os.replace(tmp_tif, tif)
