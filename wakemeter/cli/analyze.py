@@ -19,9 +19,8 @@ def run(args: argparse.Namespace) -> int:
     from ..detect.analysis import analyze
     from ..scene.raster import open_scene
 
-    request = request_from_args(args)
-    with open_scene(args.scene) as scene:
-        a = analyze(scene, request)
+    with open_scene(args.scene) as scene:  # a file that is not an image is said before a missing option
+        a = analyze(scene, request_from_args(args))
     print(json.dumps(a.to_json(), indent=2) if args.json else format_analysis(a.to_json()))
     return 0
 

@@ -12,6 +12,16 @@ if TYPE_CHECKING:
     from ..synth import VesselSpec
 
 
+def _seed(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"the random seed must be a whole number >= 0, got {text!r}") from None
+    if value < 0:
+        raise argparse.ArgumentTypeError(f"the random seed must be a whole number >= 0, got {value}")
+    return value
+
+
 def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--out", required=True, help="output GeoTIFF path, or a folder with --demo")
     p.add_argument("--demo", action="store_true", help="write all the bundled demo scenes into the --out folder")
@@ -51,7 +61,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     )
     p.add_argument("--coast-bearing", type=float, default=90.0, help="multispectral: true bearing to the coast, deg")
     p.add_argument("--crs", choices=["utm", "EPSG:4326"], default="utm")
-    p.add_argument("--seed", type=int, default=0)
+    p.add_argument("--seed", type=_seed, default=0, help="random seed, a whole number >= 0")
 
 
 def run(args: argparse.Namespace) -> int:

@@ -28,7 +28,7 @@ from rasterio.errors import NotGeoreferencedWarning, RasterioError
 from rasterio.windows import Window
 
 from ..errors import GeoreferenceError, ParameterError, SceneReadError
-from . import geodesy
+from . import geodesy, limits
 
 # Scenes without georeference are reported by SceneInfo.georeferenced; rasterio's warning adds nothing
 # (and catching it per call is not thread-safe, so it is filtered once here).
@@ -47,6 +47,19 @@ _TIME_TAGS = (
     "acquisition_time",
     "datetime",
 )
+
+
+def gdal_reason(err: BaseException) -> str:
+    """GDAL's own reason for an error: rasterio often raises "Read failed. See previous exception for
+    details." with the reason in the chained exception; the most specific message is returned."""
+    seen: list[str] = []
+    e: BaseException | None = err
+    while e is not None and len(seen) < 8:
+        text = " ".join(str(e).split())
+        if text and "see previous exception" not in text.lower() and text not in seen:
+            seen.append(text)
+        e = e.__cause__ or e.__context__
+    return seen[-1] if seen else (" ".join(str(err).split()) or type(err).__name__)
 
 
 def _gdal_error_types() -> tuple[type[BaseException], ...]:
@@ -81,6 +94,7 @@ class SceneInfo:
     driver: str
     file_size: int
     tags: dict = field(default_factory=dict, compare=False, repr=False)
+    files: tuple[str, ...] = ()  #: every file the scene reads (the scene's own first; a VRT lists its sources)
 
 
 class Scene:
@@ -128,7 +142,7 @@ class Scene:
                     warnings.simplefilter("ignore", NotGeoreferencedWarning)
                     ds = rasterio.open(path)
             except GDAL_ERRORS as err:
-                raise SceneReadError(f"{path}: cannot be opened any more ({err})") from err
+                raise SceneReadError(f"{path}: cannot be opened any more ({gdal_reason(err)})") from err
             cache[path] = ds
             with self._lock:
                 self._handles.append(ds)
@@ -246,7 +260,8 @@ class Scene:
             )
         except GDAL_ERRORS as err:
             raise SceneReadError(
-                f"{self.info.path.name}: the pixels cannot be read - the file may be truncated or corrupt ({err})"
+                f"{self.info.path.name}: the pixels cannot be read - the file may be truncated or corrupt "
+                f"({gdal_reason(err)})"
             ) from err
         except MemoryError as err:
             raise SceneReadError(f"{self.info.path.name}: not enough memory to read {ow} x {oh} pixels") from err
@@ -266,13 +281,16 @@ def _describe_crs(crs) -> str | None:
     return f"EPSG:{code}" if code else crs.to_wkt()
 
 
-def open_scene(path: str | os.PathLike) -> Scene:
+def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> Scene:
     """Open a raster file as a :class:`Scene` (GeoTIFF, COG, PNG, JPEG, anything GDAL reads).
 
     Raises
     ------
     SceneReadError
-        Missing file, a folder, no permission, not a raster, zero size, corrupt header.
+        Missing file, a folder, no permission, not a raster, zero size, corrupt header, a declared layout
+        that would need too much memory, no pixel data.
+    limits.ReferencedFilesError
+        The file refers to system or private files (a VRT, say) and ``allow_system_files`` was not given.
     """
     p = Path(path).expanduser()
     if not p.exists():
@@ -288,9 +306,11 @@ def open_scene(path: str | os.PathLike) -> Scene:
         with warnings.catch_warnings(), rasterio.Env(GDAL_PAM_ENABLED="NO"):
             warnings.simplefilter("ignore", NotGeoreferencedWarning)
             with rasterio.open(p) as ds:
-                info = _read_info(p, ds, size)
+                files = tuple(str(f) for f in (ds.files or [str(p)]))
+                limits.check_referenced_files(p, files, allow_system_files=allow_system_files)
+                info = _read_info(p, ds, size, files)
     except GDAL_ERRORS as err:
-        msg = str(err)
+        msg = gdal_reason(err)
         if "not recognized as" in msg or "not a supported" in msg.lower():
             raise SceneReadError(f"{p}: not a raster image that can be read (unsupported or unknown format)") from err
         raise SceneReadError(
@@ -301,9 +321,11 @@ def open_scene(path: str | os.PathLike) -> Scene:
     return Scene(info)
 
 
-def _read_info(p: Path, ds, size: int) -> SceneInfo:
+def _read_info(p: Path, ds, size: int, files: tuple[str, ...] = ()) -> SceneInfo:
     if ds.width < 1 or ds.height < 1 or ds.count < 1:
         raise SceneReadError(f"{p}: the image has no pixels ({ds.width} x {ds.height}, {ds.count} bands)")
+    limits.check_declared_sizes(p, ds)
+    limits.check_not_empty(p, ds)
     crs = ds.crs
     transform = ds.transform
     note = ""
@@ -356,4 +378,5 @@ def _read_info(p: Path, ds, size: int) -> SceneInfo:
         driver=ds.driver,
         file_size=size,
         tags=tags,
+        files=files,
     )
