@@ -370,3 +370,24 @@ def test_real_sentinel2_crop_in_the_program(qtbot, tmp_path, monkeypatch):
     assert "over ground" in w.message.text() or "m/s" in w.message.text()
     w.grab().save(str(tmp_path / "real_crop.png"))
     w.close()
+
+
+def test_speed_limit_and_current_from_the_panel(win, qtbot):
+    # demo truth: 14.0 kn through the water (sample_scenes/harbour_approach_optical.truth.json); with a limit of
+    # 16 kn the speed is well below it, and a 1 kn current setting against the course lowers the speed over ground
+    p = win.controller.panel
+    p.use_limit.setChecked(True)
+    p.limit.setValue(16.0)
+    p.use_current.setChecked(True)
+    p.current_speed.setValue(1.0)
+    p.current_toward.setValue((TRUTH["heading_deg"] + 180.0) % 360.0)
+    p.current_source.setText("Hallow Sound tide table")
+    _analyse(win, qtbot)
+    vid = next(iter(win.doc.vessels))
+    check = win.doc.effective_finding(vid).to_json()["speed_check"]
+    assert check["probability_over_limit"] < 0.01
+    assert check["over_ground"]["median_knots"] == pytest.approx(check["through_water"]["median_knots"] - 1.0, abs=0.05)
+    html = p.text.toHtml()
+    assert "is below the 16.0 kn limit" in html and "Hallow Sound tide table" in html
+    p.set_request(win.doc.requests.get(vid) or win.doc.effective_finding(vid).request)
+    assert p.use_current.isChecked() and p.limit.value() == pytest.approx(16.0)

@@ -15,7 +15,6 @@ from pathlib import Path
 import pytest
 import rasterio
 from pypdf import PdfReader
-from rasterio.transform import from_origin
 
 from wakemeter.cli import main
 from wakemeter.detect.analysis import AnalysisRequest, analyze
@@ -165,7 +164,7 @@ def test_a_file_with_no_pixel_data_is_called_empty(tmp_path):
         blockysize=256,
         SPARSE_OK=True,
         crs="EPSG:32625",
-        transform=from_origin(500000, 4000000, 10, 10),
+        transform=rasterio.Affine(10.0, 0.0, 500000.0, 0.0, -10.0, 4000000.0),
     ):
         pass
     with pytest.raises(SceneReadError, match="holds no pixel data"):

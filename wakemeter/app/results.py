@@ -10,11 +10,13 @@ import pyqtgraph as pg
 from PySide6.QtCore import Signal
 from PySide6.QtWidgets import (
     QCheckBox,
+    QComboBox,
     QDoubleSpinBox,
     QFormLayout,
     QGroupBox,
     QHBoxLayout,
     QLabel,
+    QLineEdit,
     QPushButton,
     QTabWidget,
     QTextBrowser,
@@ -22,9 +24,10 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from ..detect.request import AnalysisRequest, RadarGeometry
+from ..detect.request import AnalysisRequest, RadarGeometry, SpeedLimit, WaterCurrent
 from ..evidence import summary
 from ..physics.inversion import Uncertain
+from ..physics.units import KNOT_MPS
 
 
 def _spin(lo: float, hi: float, dec: int, suffix: str, tip: str, special: str = "unknown") -> QDoubleSpinBox:
@@ -92,6 +95,42 @@ class ResultsPanel(QWidget):
         form.addRow(self.radar_box)
         self.radar_box.setVisible(False)
         self.use_radar.toggled.connect(self.radar_box.setVisible)
+        self.use_limit = QCheckBox("Speed limit and water current")
+        self.use_limit.setToolTip(
+            "Judge the speed against a limit, with its uncertainty, and give the speed over ground with a known "
+            "current (analyse again after changing them)"
+        )
+        form.addRow(self.use_limit)
+        self.limit = _spin(0.0, 100.0, 1, "kn", "Speed limit; leave at 'none' for no limit", special="none")
+        self.limit_basis = QComboBox()
+        self.limit_basis.addItems(["over ground", "through the water"])
+        self.limit_basis.setToolTip("What the limit applies to (most limits are over ground)")
+        self.use_current = QCheckBox("Current known")
+        self.current_speed = _spin(0.0, 20.0, 2, "kn", "Speed of the water current at the vessel", special="0 kn")
+        self.current_std = _spin(0.0, 20.0, 2, "kn", "Its standard uncertainty", special="")
+        self.current_std.setPrefix("± ")
+        self.current_toward = _spin(0.0, 360.0, 0, "°", "True bearing the current sets toward", special="0°")
+        self.current_toward_std = _spin(0.0, 180.0, 0, "°", "Its standard uncertainty", special="")
+        self.current_toward_std.setPrefix("± ")
+        self.current_source = QLineEdit()
+        self.current_source.setPlaceholderText("tide table, model, buoy…")
+        self.limit_box = QWidget()
+        lform = QFormLayout(self.limit_box)
+        lform.setContentsMargins(12, 0, 0, 0)
+        for lab, w in (
+            ("Limit", self.limit),
+            ("Applies to", self.limit_basis),
+            ("", self.use_current),
+            ("Current speed", self.current_speed),
+            ("", self.current_std),
+            ("Sets toward", self.current_toward),
+            ("", self.current_toward_std),
+            ("Source", self.current_source),
+        ):
+            lform.addRow(lab, w)
+        form.addRow(self.limit_box)
+        self.limit_box.setVisible(False)
+        self.use_limit.toggled.connect(self.limit_box.setVisible)
         lay.addWidget(box)
         row = QHBoxLayout()
         self.run_button = QPushButton("Analyse vessel")
@@ -185,9 +224,34 @@ class ResultsPanel(QWidget):
                 if old is None
                 else replace(old, slant_range_m=r, platform_speed_mps=v, look_bearing_deg=look, incidence_deg=inc)
             )
+        limit, current = self.limit_and_current()
         return replace(
-            base, depth=depth, hull_length_m=d["hull_length_m"], radar_geometry=rg, force=self.assume_vessel.isChecked()
+            base,
+            depth=depth,
+            hull_length_m=d["hull_length_m"],
+            radar_geometry=rg,
+            force=self.assume_vessel.isChecked(),
+            current=current,
+            speed_limit=limit,
         )
+
+    def limit_and_current(self) -> tuple[SpeedLimit | None, WaterCurrent | None]:
+        """The limit and the current the panel gives (None when not given or the section is off)."""
+        if not self.use_limit.isChecked():
+            return None, None
+        limit = None
+        if self.limit.value() > 0:
+            limit = SpeedLimit(self.limit.value() * KNOT_MPS, over_ground=self.limit_basis.currentIndex() == 0)
+        current = None
+        if self.use_current.isChecked():
+            current = WaterCurrent(
+                self.current_speed.value() * KNOT_MPS,
+                self.current_toward.value() % 360.0,
+                self.current_std.value() * KNOT_MPS,
+                self.current_toward_std.value(),
+                self.current_source.text().strip(),
+            )
+        return limit, current
 
     def set_request(self, req: AnalysisRequest | None) -> None:
         self.depth_input.setValue(req.depth.value if req is not None and req.depth is not None else 0.0)
@@ -203,6 +267,17 @@ class ResultsPanel(QWidget):
         )
         for w, v in zip((self.slant, self.vplat, self.look, self.inc), values):
             w.setValue(v)
+        limit = None if req is None else req.speed_limit
+        current = None if req is None else req.current
+        self.use_limit.setChecked(limit is not None or current is not None)
+        self.limit.setValue(0.0 if limit is None else limit.limit_mps / KNOT_MPS)
+        self.limit_basis.setCurrentIndex(0 if limit is None or limit.over_ground else 1)
+        self.use_current.setChecked(current is not None)
+        self.current_speed.setValue(0.0 if current is None else current.speed_mps / KNOT_MPS)
+        self.current_std.setValue(0.0 if current is None else current.speed_std_mps / KNOT_MPS)
+        self.current_toward.setValue(0.0 if current is None else current.toward_deg)
+        self.current_toward_std.setValue(0.0 if current is None else current.toward_std_deg)
+        self.current_source.setText("" if current is None else current.source)
 
     # ---- display ----------------------------------------------------------
     def show_result(self, name: str | None, result, *, rejected: bool = False, analysis=None) -> None:

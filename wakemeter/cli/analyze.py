@@ -6,7 +6,7 @@ import argparse
 import json
 
 from .base import CAUTION_LINE, Command
-from .options import add_request_options, request_from_args
+from .options import add_request_options, apply_calibration, checked_request
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
@@ -19,8 +19,10 @@ def run(args: argparse.Namespace) -> int:
     from ..detect.analysis import analyze
     from ..scene.raster import open_scene
 
-    with open_scene(args.scene) as scene:  # a file that is not an image is said before a missing option
-        a = analyze(scene, request_from_args(args))
+    request = checked_request(args)
+    with open_scene(args.scene) as scene:
+        apply_calibration(scene, args)
+        a = analyze(scene, request)
     print(json.dumps(a.to_json(), indent=2) if args.json else format_analysis(a.to_json()))
     return 0
 

@@ -10,9 +10,10 @@ from ..errors import ParameterError
 
 if TYPE_CHECKING:  # the analysis is imported when a command runs, not when the CLI starts
     from ..detect.request import AnalysisRequest
+    from ..scene.raster import Scene
 
 #: options whose value is a comma-separated list that may start with a minus sign (``--vessel -35,36``)
-LIST_OPTIONS = ("--vessel", "--vessel-px", "--radar-geometry")
+LIST_OPTIONS = ("--vessel", "--vessel-px", "--radar-geometry", "--current")
 _NUMBERS = re.compile(r"^-?[\d.]+(e-?\d+)?(,-?[\d.]*(e-?\d+)?)+$", re.IGNORECASE)
 
 
@@ -52,6 +53,31 @@ def add_request_options(p: argparse.ArgumentParser) -> None:
         metavar="R,V,LOOK,INC",
         help="radar: slant range m, platform speed m/s, look bearing deg, incidence deg",
     )
+    p.add_argument(
+        "--current",
+        metavar="KN,TOWARD[,KN_STD,DEG_STD]",
+        help="water current at the vessel: speed in knots, true bearing it sets toward, and their standard "
+        "uncertainties (default 0); the result then gives the speed over ground too",
+    )
+    p.add_argument("--current-source", metavar="TEXT", default="", help="where the current comes from")
+    p.add_argument("--speed-limit", type=float, metavar="KN", help="speed limit in knots, judged over ground")
+    p.add_argument(
+        "--limit-through-water",
+        action="store_true",
+        help="the limit applies to speed through the water, not over ground",
+    )
+    p.add_argument(
+        "--pixel-size",
+        type=float,
+        metavar="M",
+        help="an image without georeference: its pixel size on the ground in metres (use --vessel-px)",
+    )
+    p.add_argument(
+        "--north-up",
+        type=float,
+        metavar="DEG",
+        help="with --pixel-size: true bearing of image up (0: north up); without it, headings are from image up",
+    )
     p.add_argument("--seed", type=int, default=0, help="seed of the Monte Carlo draws")
     p.add_argument(
         "--assume-vessel",
@@ -61,10 +87,24 @@ def add_request_options(p: argparse.ArgumentParser) -> None:
     )
 
 
+def checked_request(args: argparse.Namespace) -> AnalysisRequest:
+    """The request, with the options checked before the file is read; but when the vessel position is
+    missing and the file is not an image at all (a damaged session, say), the file's problem is said first."""
+    try:
+        return request_from_args(args)
+    except ParameterError:
+        if args.vessel is None and args.vessel_px is None:
+            from ..scene.raster import open_scene
+
+            open_scene(args.scene).close()
+        raise
+
+
 def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
     """The one request the options describe; errors in the options' own words."""
-    from ..detect.request import AnalysisRequest, RadarGeometry
+    from ..detect.request import AnalysisRequest, RadarGeometry, SpeedLimit, WaterCurrent
     from ..physics.inversion import Uncertain
+    from ..physics.units import KNOT_MPS
 
     if (args.vessel is None) == (args.vessel_px is None):
         raise ParameterError("give the vessel position with --vessel LON,LAT or --vessel-px COL,ROW (one of them)")
@@ -86,6 +126,29 @@ def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
         if not args.depth_std >= 0:
             raise ParameterError(f"--depth-std must be >= 0 m, got {args.depth_std}")
         depth = Uncertain(args.depth, args.depth_std)
+    current = None
+    if args.current:
+        text = args.current.split(",")
+        if len(text) not in (2, 4):
+            raise ParameterError(
+                "--current needs 2 or 4 numbers (knots, toward degrees[, knots std, degrees std]), "
+                f"got {args.current!r}"
+            )
+        c = numbers(args.current, len(text), "--current")
+        current = WaterCurrent(
+            c[0] * KNOT_MPS,
+            c[1] % 360.0 if 0 <= c[1] <= 360 else c[1],
+            (c[2] if len(c) == 4 else 0.0) * KNOT_MPS,
+            c[3] if len(c) == 4 else 0.0,
+            args.current_source,
+        )
+    elif args.current_source:
+        raise ParameterError("--current-source needs --current")
+    limit = None
+    if args.speed_limit is not None:
+        limit = SpeedLimit(args.speed_limit * KNOT_MPS, over_ground=not args.limit_through_water)
+    elif args.limit_through_water:
+        raise ParameterError("--limit-through-water needs --speed-limit")
     return AnalysisRequest(
         vessel_lonlat=_two(numbers(args.vessel, 2, "--vessel (longitude, latitude)")) if args.vessel else None,
         vessel_px=_two(numbers(args.vessel_px, 2, "--vessel-px (column, row)")) if args.vessel_px else None,
@@ -94,8 +157,31 @@ def request_from_args(args: argparse.Namespace) -> AnalysisRequest:
         radar_geometry=rg,
         seed=args.seed,
         force=args.assume_vessel,
+        current=current,
+        speed_limit=limit,
     )
 
 
 def _two(values: tuple[float, ...]) -> tuple[float, float]:
     return values[0], values[1]
+
+
+def apply_calibration(scene: Scene, args: argparse.Namespace) -> None:
+    """``--pixel-size`` (and ``--north-up``) calibrate an image without georeference, as the program's
+    Calibrate tool does; a georeferenced scene keeps its own geometry and the option is refused."""
+    from ..scene import geodesy
+
+    size, up = getattr(args, "pixel_size", None), getattr(args, "north_up", None)
+    if size is None:
+        if up is not None:
+            raise ParameterError("--north-up needs --pixel-size")
+        return
+    if scene.info.georeferenced:
+        raise ParameterError(
+            f"{scene.info.path.name} is georeferenced: its own pixel size is used (leave out --pixel-size)"
+        )
+    if not (size > 0 and size < 10_000):
+        raise ParameterError(f"--pixel-size must be a ground size in metres above 0 (and below 10 km), got {size}")
+    if up is not None and not -360 <= up <= 360:
+        raise ParameterError(f"--north-up must be a bearing in degrees (0-360), got {up}")
+    scene.calibrate(geodesy.calibrated_frame(pixel_size_m=size, north_up_deg=up))

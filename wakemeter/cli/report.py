@@ -10,7 +10,7 @@ from .base import CAUTION_LINE, Command
 
 if TYPE_CHECKING:
     from ..evidence.export import EvidenceFiles
-from .options import add_request_options, request_from_args
+from .options import add_request_options, apply_calibration, checked_request
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
@@ -46,8 +46,10 @@ def run(args: argparse.Namespace) -> int:
         _say_written(files)
         print(CAUTION_LINE)
         return 0
-    with open_scene(args.scene) as scene:  # a file that is not an image is said before a missing option
-        a = analyze(scene, request_from_args(args))
+    request = checked_request(args)
+    with open_scene(args.scene) as scene:
+        apply_calibration(scene, args)
+        a = analyze(scene, request)
         files = export_evidence(
             scene,
             a,
@@ -58,6 +60,9 @@ def run(args: argparse.Namespace) -> int:
             basename=args.name,
             force=args.force,
             paper=args.paper,
+            parameters={"calibration": {"pixel_size_m": args.pixel_size, "north_up_deg": args.north_up}}
+            if args.pixel_size
+            else None,
         )
     _say_written(files)
     if a.speed is not None:

@@ -97,6 +97,79 @@ class RadarGeometry:
         return cls(*(data[n] for n in names), **extra)
 
 
+#: faster than any vessel or current at sea (knots are converted where given); a larger value is a typing error
+MAX_SPEED_MPS = 60.0
+
+
+@dataclass(frozen=True)
+class WaterCurrent:
+    """The water's own motion at the vessel: speed (m/s) and the true bearing it sets toward, each with its
+    standard uncertainty, and where the figure comes from (a tide table, a model, a buoy)."""
+
+    speed_mps: float
+    toward_deg: float
+    speed_std_mps: float = 0.0
+    toward_std_deg: float = 0.0
+    source: str = ""
+
+    def __post_init__(self) -> None:
+        for name, value, ok, allowed in (
+            ("current speed", self.speed_mps, lambda v: 0 <= v <= MAX_SPEED_MPS, f"within 0-{MAX_SPEED_MPS:g} m/s"),
+            ("current direction", self.toward_deg, lambda v: 0 <= v <= 360, "within 0-360°"),
+            ("current speed uncertainty", self.speed_std_mps, lambda v: 0 <= v <= MAX_SPEED_MPS, ">= 0 m/s"),
+            ("current direction uncertainty", self.toward_std_deg, lambda v: 0 <= v <= 180, "within 0-180°"),
+        ):
+            if not ok(_finite(value, f"the {name}")):
+                raise ParameterError(f"the {name} must be {allowed}, got {value!r}")
+        if not isinstance(self.source, str) or len(self.source) > 500:
+            raise ParameterError("the current's source must be a text of at most 500 characters")
+
+    def to_json(self) -> dict:
+        return {
+            "speed_mps": self.speed_mps,
+            "toward_deg": self.toward_deg,
+            "speed_std_mps": self.speed_std_mps,
+            "toward_std_deg": self.toward_std_deg,
+            "source": self.source,
+        }
+
+    @classmethod
+    def from_json(cls, data: Any) -> WaterCurrent:
+        if not isinstance(data, dict) or "speed_mps" not in data or "toward_deg" not in data:
+            raise ParameterError(f"a water current needs speed_mps and toward_deg, got {data!r}")
+        return cls(
+            data["speed_mps"],
+            data["toward_deg"],
+            data.get("speed_std_mps", 0.0),
+            data.get("toward_std_deg", 0.0),
+            str(data.get("source") or ""),
+        )
+
+
+@dataclass(frozen=True)
+class SpeedLimit:
+    """A speed limit (m/s) and what it applies to: over ground (the usual case) or through the water."""
+
+    limit_mps: float
+    over_ground: bool = True
+
+    def __post_init__(self) -> None:
+        v = _finite(self.limit_mps, "the speed limit")
+        if not 0 < v <= MAX_SPEED_MPS:
+            raise ParameterError(f"the speed limit must be > 0 and at most {MAX_SPEED_MPS:g} m/s, got {v:g} m/s")
+        if not isinstance(self.over_ground, bool):
+            raise ParameterError(f"'over_ground' must be true or false, got {self.over_ground!r}")
+
+    def to_json(self) -> dict:
+        return {"limit_mps": self.limit_mps, "over_ground": self.over_ground}
+
+    @classmethod
+    def from_json(cls, data: Any) -> SpeedLimit:
+        if not isinstance(data, dict) or "limit_mps" not in data:
+            raise ParameterError(f"a speed limit needs limit_mps, got {data!r}")
+        return cls(data["limit_mps"], data.get("over_ground", True))
+
+
 @dataclass(frozen=True)
 class AnalysisRequest:
     """One vessel to analyse and everything known about it.
@@ -120,6 +193,10 @@ class AnalysisRequest:
     force : bool
         Give the waves' speed even when neither a hull nor a wake line marks a vessel at the point (the
         result then says so); by default such waves are credited to no vessel.
+    current : WaterCurrent, optional
+        The water current at the vessel: the result then also gives the speed over ground.
+    speed_limit : SpeedLimit, optional
+        A limit to judge the speed against (probability of exceeding it, one-sided lower bound).
     """
 
     vessel_px: Point | None = None
@@ -131,6 +208,8 @@ class AnalysisRequest:
     pixel_rel_std: float = 0.005
     seed: int = 0
     force: bool = False  #: analyse the waves here even when no vessel is seen at the point (said in the result)
+    current: WaterCurrent | None = None
+    speed_limit: SpeedLimit | None = None
 
     def __post_init__(self) -> None:
         if (self.vessel_px is None) == (self.vessel_lonlat is None):
@@ -182,6 +261,8 @@ class AnalysisRequest:
             "pixel_rel_std": self.pixel_rel_std,
             "seed": self.seed,
             "force": self.force,
+            "current": None if self.current is None else self.current.to_json(),
+            "speed_limit": None if self.speed_limit is None else self.speed_limit.to_json(),
         }
 
     @classmethod
@@ -224,6 +305,8 @@ class AnalysisRequest:
             pixel_rel_std=_finite(data.get("pixel_rel_std", 0.005), "the pixel size uncertainty"),
             seed=seed,
             force=data.get("force", False),
+            current=None if data.get("current") is None else WaterCurrent.from_json(data["current"]),
+            speed_limit=None if data.get("speed_limit") is None else SpeedLimit.from_json(data["speed_limit"]),
         )
 
     @classmethod

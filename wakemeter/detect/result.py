@@ -20,6 +20,7 @@ from ..physics.units import KNOT_MPS
 from .findings import Caution, CautionCode, Diagnostics, Drawing, IntervalCover, LineKind, PlotData
 from .lines import WakeLine
 from .request import AnalysisRequest, RadarGeometry
+from .speed_check import SpeedCheck, check_speed
 
 __all__ = ["RadarGeometry", "WakeAnalysis", "SOFTWARE"]
 
@@ -179,7 +180,37 @@ class WakeAnalysis:
             "revised": self.revised,
             "request": None if self.request is None else self.request.to_json(),
             "software": self.software,
+            "speed_check": self.speed_check_json(),
         }
+
+    def speed_check(self) -> SpeedCheck | None:
+        """Speed over ground and the limit, when the request gives a current or a limit and there is a speed."""
+        req, sp = self.request, self.speed
+        if req is None or (req.current is None and req.speed_limit is None) or sp is None:
+            return None
+        return check_speed(
+            sp.speed_mps,
+            (sp.ci95_low_mps, sp.ci95_high_mps),
+            measured_over_ground=self.has_caution(CautionCode.OVER_GROUND),
+            heading_deg=self.heading_deg,
+            heading_std_deg=self.heading_std_deg,
+            current=req.current,
+            limit=req.speed_limit,
+            seed=req.seed,
+        )
+
+    def speed_check_json(self) -> dict | None:
+        req = self.request
+        if req is None or (req.current is None and req.speed_limit is None):
+            return None
+        check = self.speed_check()
+        if check is None:
+            return {
+                "statement": "no speed estimate: the limit and the current cannot be applied to this image",
+                "limit": None if req.speed_limit is None else req.speed_limit.to_json(),
+                "current": None if req.current is None else req.current.to_json(),
+            }
+        return check.to_json()
 
     @classmethod
     def from_json(cls, j: Any, *, drawing: Any = None) -> WakeAnalysis:

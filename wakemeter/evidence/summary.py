@@ -78,6 +78,7 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
             ),
             ("Consistency of methods", r["consistency"] or "no speed: nothing to cross-check"),
         ]
+        rows += speed_check_rows(r)
         if r.get("revised"):
             rows.append(("Hand measurements", "included: the result was revised with the analyst's hand measurements"))
     rows.append(
@@ -88,6 +89,34 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
             f"{r['vessel_px'][1]:.1f})",
         )
     )
+    return rows
+
+
+def speed_check_rows(r: dict) -> list[tuple[str, str]]:
+    """Speed over ground with a given current, and the limit judged with the uncertainty (when asked)."""
+    c = r.get("speed_check")
+    if not c:
+        return []
+    rows = []
+    if c.get("current") and c.get("over_ground") and c.get("measured") == "through the water":
+        g = c["over_ground"]
+        rows.append(
+            (
+                "Speed over ground (with the current)",
+                f"{g['median_knots']:.1f} kn, 95 % interval {g['ci95_knots'][0]:.1f} - {g['ci95_knots'][1]:.1f} kn",
+            )
+        )
+    if c.get("current") and c.get("through_water") and c.get("measured") == "over ground":
+        w = c["through_water"]
+        rows.append(
+            (
+                "Speed through the water (with the current)",
+                f"{w['median_knots']:.1f} kn, 95 % interval {w['ci95_knots'][0]:.1f} - {w['ci95_knots'][1]:.1f} kn",
+            )
+        )
+    rows.append(("Speed limit" if c.get("limit") else "Lower bound", c["statement"]))
+    if c.get("assumptions"):
+        rows.append(("Assumed for these", "; ".join(c["assumptions"])))
     return rows
 
 
