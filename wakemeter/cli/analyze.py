@@ -6,12 +6,13 @@ import argparse
 import json
 
 from .base import CAUTION_LINE, Command
-from .options import add_request_options, apply_calibration, checked_request
+from .options import add_reports_options, add_request_options, apply_calibration, checked_request, compare_with_reports
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("scene", help="raster file")
     add_request_options(p)
+    add_reports_options(p)
     p.add_argument("--json", action="store_true", help="print one JSON object")
 
 
@@ -23,7 +24,19 @@ def run(args: argparse.Namespace) -> int:
     with open_scene(args.scene) as scene:
         apply_calibration(scene, args)
         a = analyze(scene, request)
-    print(json.dumps(a.to_json(), indent=2) if args.json else format_analysis(a.to_json()))
+        acquired = scene.info.acquisition_time
+    j = a.to_json()
+    compared = compare_with_reports(args, [("vessel", j)], acquired)
+    if compared is not None:
+        j["position_report"] = compared[0][0]
+        j["unmatched_reports"] = compared[1]
+    if args.json:
+        print(json.dumps(j, indent=2, default=str))
+    else:
+        print(format_analysis(j))
+        if compared is not None:
+            c = compared[0][0]
+            print(f"Position report: {c['text'] if c else 'the vessel has no longitude and latitude to match'}")
     return 0
 
 

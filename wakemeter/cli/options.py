@@ -185,3 +185,37 @@ def apply_calibration(scene: Scene, args: argparse.Namespace) -> None:
     if up is not None and not -360 <= up <= 360:
         raise ParameterError(f"--north-up must be a bearing in degrees (0-360), got {up}")
     scene.calibrate(geodesy.calibrated_frame(pixel_size_m=size, north_up_deg=up))
+
+
+def add_reports_options(p: argparse.ArgumentParser) -> None:
+    """Options to compare the result with vessel position reports (AIS)."""
+    p.add_argument("--reports", metavar="FILE", help="vessel position reports: CSV or NMEA (AIS) sentences")
+    p.add_argument(
+        "--report-columns",
+        metavar="FIELD=NAME,...",
+        help="CSV column names when they are not the usual ones (fields: id, time, lat, lon, sog, cog, heading)",
+    )
+    p.add_argument("--scene-time", metavar="ISO", help="the scene's time (UTC) when its metadata lacks it")
+    p.add_argument(
+        "--match-distance", type=float, default=500.0, metavar="M", help="farthest report to match a vessel (m)"
+    )
+
+
+def compare_with_reports(
+    args: argparse.Namespace, named_results: list[tuple[str, dict]], acquisition_time: str | None
+) -> tuple[list[dict | None], list[dict]] | None:
+    """The comparisons (JSON) of each result and the reporting vessels matched to none; None without --reports."""
+    if not getattr(args, "reports", None):
+        for opt in ("report_columns", "scene_time"):
+            if getattr(args, opt, None):
+                raise ParameterError(f"--{opt.replace('_', '-')} needs --reports")
+        return None
+    from dataclasses import asdict
+
+    from ..positions.match import compare_results, scene_time
+    from ..positions.reports import parse_columns, read_reports
+
+    when = scene_time(acquisition_time, args.scene_time)
+    reports = read_reports(args.reports, parse_columns(args.report_columns))
+    comps, unmatched = compare_results(named_results, reports, when, gate_m=args.match_distance)
+    return [None if c is None else c.to_json() for c in comps], [asdict(u) for u in unmatched]

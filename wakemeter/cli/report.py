@@ -7,15 +7,22 @@ import os
 from typing import TYPE_CHECKING
 
 from .base import CAUTION_LINE, Command
+from .options import (
+    add_reports_options,
+    add_request_options,
+    apply_calibration,
+    checked_request,
+    compare_with_reports,
+)
 
 if TYPE_CHECKING:
     from ..evidence.export import EvidenceFiles
-from .options import add_request_options, apply_calibration, checked_request
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("scene", help="raster file, or a saved session (.json): every vessel not rejected")
     add_request_options(p)
+    add_reports_options(p)
     p.add_argument("--out", required=True, metavar="FOLDER", help="folder in which the evidence set is made")
     p.add_argument("--name", metavar="TEXT", help="name of the set (default: scene and vessel position)")
     p.add_argument("--analyst", help="analyst name to record in the report")
@@ -42,6 +49,7 @@ def run(args: argparse.Namespace) -> int:
             force=args.force,
             vessel_name=args.vessel_name,
             paper=args.paper,
+            compare=lambda named, acquired: compare_with_reports(args, named, acquired),
         )
         _say_written(files)
         print(CAUTION_LINE)
@@ -50,6 +58,9 @@ def run(args: argparse.Namespace) -> int:
     with open_scene(args.scene) as scene:
         apply_calibration(scene, args)
         a = analyze(scene, request)
+        compared = compare_with_reports(
+            args, [(args.vessel_name or "vessel", a.to_json())], scene.info.acquisition_time
+        )
         files = export_evidence(
             scene,
             a,
@@ -63,6 +74,8 @@ def run(args: argparse.Namespace) -> int:
             parameters={"calibration": {"pixel_size_m": args.pixel_size, "north_up_deg": args.north_up}}
             if args.pixel_size
             else None,
+            position_report=None if compared is None else compared[0][0],
+            unmatched_reports=None if compared is None else compared[1],
         )
     _say_written(files)
     if a.speed is not None:

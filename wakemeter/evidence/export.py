@@ -38,6 +38,7 @@ class VesselEvidence:
     analysis: WakeAnalysis
     name: str = ""
     hand_measurements: tuple[dict, ...] = ()
+    position_report: dict | None = None  #: the comparison with position reports (positions.match), as JSON
 
 
 @dataclass(frozen=True)
@@ -109,11 +110,13 @@ def export_evidence(
     basename: str | None = None,
     paper: str | None = None,
     exported_at: str | None = None,
+    position_report: dict | None = None,
+    unmatched_reports: list[dict] | None = None,
 ) -> EvidenceFiles:
     """The evidence set of one vessel (see :func:`export_evidence_set`)."""
     return export_evidence_set(
         scene,
-        [VesselEvidence(analysis, vessel_name, tuple(hand_measurements))],
+        [VesselEvidence(analysis, vessel_name, tuple(hand_measurements), position_report)],
         out_dir,
         case=CaseDetails(analyst, case_reference),
         parameters=parameters,
@@ -121,6 +124,7 @@ def export_evidence(
         basename=basename or default_basename(scene, analysis),
         paper=paper,
         exported_at=exported_at,
+        unmatched_reports=unmatched_reports,
     )
 
 
@@ -135,6 +139,7 @@ def export_evidence_set(
     basename: str | None = None,
     paper: str | None = None,
     exported_at: str | None = None,
+    unmatched_reports: list[dict] | None = None,
 ) -> EvidenceFiles:
     """Write the set ``<out_dir>/<basename>/`` for one or several vessels of one scene; returns its paths.
 
@@ -166,12 +171,13 @@ def export_evidence_set(
     files = {"report": report_name, "data": data_name, "images": names, "checksums": sums_name}
     record = build_record(
         scene,
-        [(v.analysis, v.name, list(v.hand_measurements)) for v in vessels],
+        [(v.analysis, v.name, list(v.hand_measurements), v.position_report) for v in vessels],
         analyst=case.analyst,
         case_reference=case.reference,
         parameters=parameters or {},
         files=files,
         exported_at=exported_at,
+        unmatched_reports=unmatched_reports,
     )
     cleaned = tuple(fileio.clean_stale(folder))
     tmp: Path | None = None

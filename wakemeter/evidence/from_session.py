@@ -4,6 +4,8 @@ measurements through the same project rules the program uses, and exported."""
 
 from __future__ import annotations
 
+from collections.abc import Callable
+from dataclasses import replace
 from pathlib import Path
 
 from ..detect.analysis import analyze
@@ -59,6 +61,7 @@ def report_from_session(
     force: bool = False,
     vessel_name: str | None = None,
     paper: str | None = None,
+    compare: Callable[[list[tuple[str, dict]], str | None], tuple[list[dict | None], list[dict]] | None] | None = None,
 ) -> EvidenceFiles:
     """One evidence set for the session's vessels (every one not rejected, or the one named)."""
     data = session_mod.load(path)
@@ -85,6 +88,12 @@ def report_from_session(
         vessels = session_vessels(project, vessel_name)
         if not vessels:
             raise ParameterError("the session has no vessel to report (none marked, all rejected, or no such name)")
+        unmatched = None
+        if compare is not None:
+            compared = compare([(v.name, v.analysis.to_json()) for v in vessels], scene.info.acquisition_time)
+            if compared is not None:
+                vessels = [replace(v, position_report=c) for v, c in zip(vessels, compared[0], strict=True)]
+                unmatched = compared[1]
         stem = scene.info.path.stem
         base = f"{stem}_{vessels[0].name or 'vessel'}" if len(vessels) == 1 else f"{Path(path).stem}_report"
         return export_evidence_set(
@@ -96,6 +105,7 @@ def report_from_session(
             basename=base,
             paper=paper,
             parameters={"session": Path(path).name},
+            unmatched_reports=unmatched,
         )
 
 

@@ -53,18 +53,19 @@ def now_utc() -> str:
 
 def build_record(
     scene: Scene,
-    vessels: list[tuple[WakeAnalysis, str, list[dict]]],
+    vessels: list[tuple[WakeAnalysis, str, list[dict], dict | None]],
     *,
     analyst: str | None,
     parameters: dict,
     files: dict,
     case_reference: str | None = None,
     exported_at: str | None = None,
+    unmatched_reports: list[dict] | None = None,
 ) -> dict:
     """The full evidence record (plain data): the case, one entry per vessel (name, result, its
     assumptions, its hand measurements, its image) and the provenance."""
     entries = []
-    for i, (analysis, name, hand) in enumerate(vessels):
+    for i, (analysis, name, hand, compared) in enumerate(vessels):
         result = analysis.to_json()
         entries.append(
             {
@@ -73,6 +74,7 @@ def build_record(
                 "request": analysis.request.to_json() if analysis.request is not None else None,
                 "assumptions": assumption_texts(result)[:-1],
                 "hand_measurements": hand,
+                "position_report": compared,
                 "image": files["images"][i],
             }
         )
@@ -85,6 +87,7 @@ def build_record(
             "exported_at": exported_at or now_utc(),
         },
         "vessels": entries,
+        "unmatched_reports": unmatched_reports,
         "provenance": provenance(scene, parameters=parameters),
         "files": files,
     }

@@ -89,6 +89,20 @@ def write_pdf(
         story.append(_table(orows, [8 * mm, 42 * mm, 32 * mm, 40 * mm, 28 * mm, width - 150 * mm], small, header=True))
     for i, (v, img, vplots) in enumerate(zip(vessels, evidence_imgs, plots, strict=True), 1):
         story += _vessel_section(v, i, len(vessels), img, vplots, width, st, small)
+    if record.get("unmatched_reports"):
+        story.append(Paragraph("Reporting vessels matched to none analysed", st["Heading2"]))
+        urows = [["Identifier", "Position at the scene time", "Speed over ground", "Course", "From"]]
+        for u in record["unmatched_reports"]:
+            urows.append(
+                [
+                    str(u["vessel_id"]),
+                    f"lat {u['lat']:.5f}°, lon {u['lon']:.5f}°",
+                    "-" if u.get("sog_kn") is None else f"{u['sog_kn']:.1f} kn",
+                    "-" if u.get("cog_deg") is None else f"{u['cog_deg']:.0f}°",
+                    str(u.get("how", "")),
+                ]
+            )
+        story.append(_table(urows, [30 * mm, 50 * mm, 28 * mm, 18 * mm, width - 126 * mm], small, header=True))
     story.append(Paragraph("Provenance", st["Heading2"]))
     g = prov["georeference"]
     params = dict(prov["analysis_parameters"])
@@ -133,7 +147,10 @@ def _vessel_section(v: dict, i: int, n: int, img: np.ndarray, vplots, width, st,
     out: list = [PageBreak()] if n > 1 else [Spacer(1, 3 * mm)]
     if title:
         out.append(Paragraph(_esc(f"Vessel {i} of {n}: {title}" if n > 1 else f"Vessel: {title}"), st["Heading2"]))
-    out.append(_table([list(row) for row in summary_rows(r)], [55 * mm, width - 55 * mm], small))
+    rows = [list(row) for row in summary_rows(r)]
+    if v.get("position_report"):
+        rows.append(["Position report", v["position_report"]["text"]])
+    out.append(_table(rows, [55 * mm, width - 55 * mm], small))
     out.append(Spacer(1, 3 * mm))
     h, w = img.shape[:2]
     img_w = min(width, 170 * mm * w / max(h, 1))
