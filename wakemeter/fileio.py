@@ -23,7 +23,7 @@ from collections.abc import Callable
 from pathlib import Path
 
 #: how a temporary name of ours looks: .<name>.wmtmp-<pid>-<random>[.<kind>]
-_TEMP = re.compile(r"^\.(?P<name>.+)\.wmtmp-(?P<pid>\d+)-[0-9a-f]{8}(?P<kind>\.replaced)?$")
+_TEMP = re.compile(r"^\.(?P<name>.+)\.wmtmp-(?P<pid>\d+)-[0-9a-f]{8}(?P<kind>\.replaced)?(?P<ext>\.[A-Za-z0-9]+)?$")
 #: a leftover older than this is removed even when its process id is in use again (ids are reused)
 STALE_AFTER_S = 24 * 3600
 
@@ -55,9 +55,10 @@ FILE_MODE = 0o666 & ~UMASK
 DIR_MODE = 0o777 & ~UMASK
 
 
-def temp_name(target: Path, kind: str = "") -> Path:
-    """A hidden name of ours beside ``target``, marked with this process' id."""
-    return target.parent / f".{target.name}.wmtmp-{os.getpid()}-{secrets.token_hex(4)}{kind}"
+def temp_name(target: Path, kind: str = "", ext: str = "") -> Path:
+    """A hidden name of ours beside ``target``, marked with this process' id (``ext``: an extension a writer
+    needs to see, such as ``.gpkg``)."""
+    return target.parent / f".{target.name}.wmtmp-{os.getpid()}-{secrets.token_hex(4)}{kind}{ext}"
 
 
 def _alive(pid: int) -> bool:
@@ -105,7 +106,7 @@ def clean_stale(folder: str | os.PathLike) -> list[str]:
             continue
         p = Path(e.path)
         original = p.parent / m["name"]
-        if m["kind"] and not original.exists():
+        if m["kind"] and not m["ext"] and not original.exists():
             try:  # the old set was moved aside and the new one never published: the old one comes back
                 os.rename(p, original)
                 done.append(f"restored {original.name}")

@@ -4,7 +4,8 @@ measurements through the same project rules the program uses, and exported."""
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from dataclasses import replace
 from pathlib import Path
 
@@ -14,7 +15,7 @@ from ..errors import ParameterError
 from ..project import Project
 from ..project import session as session_mod
 from ..scene import geodesy
-from ..scene.raster import open_scene
+from ..scene.raster import Scene, open_scene
 from .export import CaseDetails, EvidenceFiles, VesselEvidence, export_evidence_set, hand_measurement_rows
 
 
@@ -52,18 +53,11 @@ def session_vessels(project: Project, vessel_name: str | None = None) -> list[Ve
     return out
 
 
-def report_from_session(
-    path: str | Path,
-    out_dir: str | Path,
-    *,
-    analyst: str | None = None,
-    case_reference: str | None = None,
-    force: bool = False,
-    vessel_name: str | None = None,
-    paper: str | None = None,
-    compare: Callable[[list[tuple[str, dict]], str | None], tuple[list[dict | None], list[dict]] | None] | None = None,
-) -> EvidenceFiles:
-    """One evidence set for the session's vessels (every one not rejected, or the one named)."""
+@contextmanager
+def open_session_vessels(
+    path: str | Path, vessel_name: str | None = None
+) -> Iterator[tuple[Scene, list[VesselEvidence]]]:
+    """The session's scene (opened, checked against its SHA-256, calibrated as saved) and its vessels."""
     data = session_mod.load(path)
     scene_path = data["scene"].get("resolved_path")
     if not scene_path or not Path(scene_path).exists():
@@ -88,6 +82,22 @@ def report_from_session(
         vessels = session_vessels(project, vessel_name)
         if not vessels:
             raise ParameterError("the session has no vessel to report (none marked, all rejected, or no such name)")
+        yield scene, vessels
+
+
+def report_from_session(
+    path: str | Path,
+    out_dir: str | Path,
+    *,
+    analyst: str | None = None,
+    case_reference: str | None = None,
+    force: bool = False,
+    vessel_name: str | None = None,
+    paper: str | None = None,
+    compare: Callable[[list[tuple[str, dict]], str | None], tuple[list[dict | None], list[dict]] | None] | None = None,
+) -> EvidenceFiles:
+    """One evidence set for the session's vessels (every one not rejected, or the one named)."""
+    with open_session_vessels(path, vessel_name) as (scene, vessels):
         unmatched = None
         if compare is not None:
             compared = compare([(v.name, v.analysis.to_json()) for v in vessels], scene.info.acquisition_time)
