@@ -391,3 +391,39 @@ def test_speed_limit_and_current_from_the_panel(win, qtbot):
     assert "is below the 16.0 kn limit" in html and "Hallow Sound tide table" in html
     p.set_request(win.doc.requests.get(vid) or win.doc.effective_finding(vid).request)
     assert p.use_current.isChecked() and p.limit.value() == pytest.approx(16.0)
+
+
+def test_position_reports_layer_comparison_and_map_layers(win, qtbot, tmp_path):
+    # synthetic reports of the demo vessel (truth: 14.0 kn, heading 62°, at -35, 36 at the scene time) and of
+    # a second vessel 3 km away; the program draws both, compares the first, and writes both kinds of file
+    import datetime as _dt
+
+    import pyogrio
+
+    from wakemeter.synth.reports import straight_track, to_csv_text
+
+    t = _dt.datetime(2026, 6, 14, 10, 32, 5, tzinfo=_dt.UTC)
+    reps = straight_track("235000001", -35.0, 36.0, 62.0, 14.0, t) + straight_track(
+        "235000077", -34.97, 36.01, 200.0, 8.0, t
+    )
+    f = tmp_path / "reports.csv"
+    f.write_text(to_csv_text(reps))
+    assert win.load_reports(str(f))
+    marks = win.canvas.report_marks
+    assert len(marks) == 2 and marks[0][2] == "235000001 14.0 kn"
+    assert abs(marks[0][0] - TRUTH["pixel_col"]) < 3 and abs(marks[0][1] - TRUTH["pixel_row"]) < 3
+    _analyse(win, qtbot)
+    assert "consistent: wake 14.0 kn" in win.controller.panel.text.toHtml()
+    vid = next(iter(win.doc.vessels))
+    files = win.controller.export(vid, str(tmp_path))
+    rec = json.loads(files.data.read_text())
+    assert rec["vessels"][0]["position_report"]["report_id"] == "235000001"
+    assert [u["vessel_id"] for u in rec["unmatched_reports"]] == ["235000077"]
+    gpkg = tmp_path / "layers.gpkg"
+    assert win.controller.export_gis(str(gpkg))
+    assert dict(pyogrio.list_layers(str(gpkg)))["vessels"] == "Point"
+    # and the other way: vessel positions imported from a file become marked vessels
+    pos = tmp_path / "positions.csv"
+    pos.write_text("name,lon,lat\nGrey Heron,-34.999,36.001\nFar Away,10,10\n")
+    assert win.controller.import_vessels(str(pos)) == 1
+    assert "Grey Heron" in [v.name for v in win.doc.vessels.values()]

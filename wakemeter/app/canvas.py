@@ -29,6 +29,7 @@ ITEM_COLOURS = {
     "crest": QColor(80, 200, 255),
     "ruler": QColor(240, 240, 240),
     "calibration": QColor(255, 140, 40),
+    "report": QColor(190, 150, 255),
     "finding_track": QColor(255, 200, 0, 170),
     "finding_arm": QColor(255, 60, 170, 170),
     "chip": QColor(120, 170, 255, 150),
@@ -78,6 +79,8 @@ class Canvas(QWidget):
         doc.changed.connect(self.update)
 
     # ---- view ---------------------------------------------------------------
+    report_marks: list[tuple[float, float, str, float | None]] = []  #: set by the window (scene pixels)
+
     def _on_scene(self) -> None:
         sc = self.doc.scene
         self.loader.reset(sc, estimate_contrast(sc) if sc else None)
@@ -162,6 +165,7 @@ class Canvas(QWidget):
             self._draw_tile(qp, img, key)
         qp.setRenderHint(QPainter.RenderHint.Antialiasing, True)
         self._draw_findings(qp)
+        self._draw_reports(qp)
         self._draw_items(qp)
         self._draw_drag(qp)
         self._draw_scale_and_north(qp)
@@ -228,6 +232,34 @@ class Canvas(QWidget):
             qp.drawLine(QPointF(p.x() - 14, p.y()), QPointF(p.x() - 5, p.y()))
             qp.drawLine(QPointF(p.x() + 5, p.y()), QPointF(p.x() + 14, p.y()))
             self._label(qp, QPointF(p.x() + 6, p.y() - 8), v.name, ITEM_COLOURS["vessel"])
+
+    def _draw_reports(self, qp: QPainter) -> None:
+        """Position reports at the scene time: a diamond, a tick along the reported course, id and speed."""
+        col = ITEM_COLOURS["report"]
+        sc = self.doc.scene
+        for c, r, label, course in self.report_marks:
+            p = self.to_screen((c, r))
+            if not self.rect().adjusted(-40, -40, 40, 40).contains(p.toPoint()):
+                continue
+            qp.setPen(self._pen(col, 2))
+            qp.setBrush(Qt.BrushStyle.NoBrush)
+            qp.drawPolygon(
+                QPolygonF(
+                    [
+                        QPointF(p.x(), p.y() - 7),
+                        QPointF(p.x() + 7, p.y()),
+                        QPointF(p.x(), p.y() + 7),
+                        QPointF(p.x() - 7, p.y()),
+                    ]
+                )
+            )
+            if course is not None and sc is not None:
+                try:
+                    dc, dr = sc.local_frame(c, r).image_direction(course)
+                    qp.drawLine(p, QPointF(p.x() + 22 * dc, p.y() + 22 * dr))
+                except Exception:  # noqa: BLE001 - no frame: no course tick
+                    pass
+            self._label(qp, QPointF(p.x() + 4, p.y() + 20), label, col)
 
     def _arrow(self, qp: QPainter, tail: QPointF, tip: QPointF, col: QColor) -> None:
         d = tip - tail

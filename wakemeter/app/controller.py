@@ -6,6 +6,7 @@ from __future__ import annotations
 import datetime as _dt
 import hashlib
 from collections.abc import Callable
+from dataclasses import asdict
 from pathlib import Path
 from typing import Protocol
 
@@ -58,6 +59,8 @@ class Controller(QObject):
         self.autosave.timeout.connect(self.autosave_now)
         self.autosave.start()
         self._shown_vid: int | None = None
+        self.reports: list = []  #: loaded position reports (positions.reports.PositionReport)
+        self.report_time: _dt.datetime | None = None  #: the scene time they are taken at (UTC)
 
     # ---- display ----------------------------------------------------------
     def refresh(self) -> None:
@@ -74,7 +77,12 @@ class Controller(QObject):
         if eff is None:
             self.panel.show_result(name, None)
             return
-        self.panel.show_result(name, eff.to_json(), rejected=vid in self.doc.rejected, analysis=eff)
+        j = eff.to_json()
+        if self.reports:
+            comps = self.report_comparisons()
+            c = comps[0].get(vid) if comps else None
+            j["position_report"] = None if c is None else c.to_json()
+        self.panel.show_result(name, j, rejected=vid in self.doc.rejected, analysis=eff)
 
     # ---- analysis ---------------------------------------------------------
     def analyse_selected(self) -> None:
@@ -249,6 +257,117 @@ class Controller(QObject):
             self.autosave_now()
         session_mod.release_autosave(self.autosave_file, remove=not keep)
 
+    # ---- position reports and GIS ---------------------------------------
+    def load_reports(self, path: str, *, columns: str | None = None, when: str | None = None) -> bool:
+        """Read position reports and take them at the scene time (its metadata's, or ``when``)."""
+        from ..positions.match import scene_time
+        from ..positions.reports import parse_columns, read_reports
+
+        sc = self.doc.scene
+        if sc is None:
+            self.host.say("open a scene first, then its position reports")
+            return False
+        try:
+            t = scene_time(sc.info.acquisition_time, when)
+            reports = read_reports(path, parse_columns(columns))
+        except WakemeterError as err:
+            self.host.error("Could not load the position reports", str(err))
+            return False
+        self.reports, self.report_time = reports, t
+        states = self.report_states()
+        self.host.say(
+            f"{len(reports)} position reports from {len({r.vessel_id for r in reports})} vessel(s); "
+            f"{len(states)} heard within 10 minutes of the scene time {t.isoformat()}"
+        )
+        self.refresh()
+        return True
+
+    def report_states(self) -> list:
+        from ..positions.match import states_at
+
+        if not self.reports or self.report_time is None:
+            return []
+        return states_at(self.reports, self.report_time)
+
+    def report_marks(self) -> list[tuple[float, float, str, float | None]]:
+        """Where the reporting vessels were at the scene time, in scene pixels, with a label and the course."""
+        sc = self.doc.scene
+        if sc is None or not sc.info.georeferenced:
+            return []
+        from ..scene import geodesy
+
+        out = []
+        for s in self.report_states():
+            col, row = geodesy.lonlat_to_pixel(sc.georef, s.lon, s.lat)
+            speed = "" if s.sog_kn is None else f" {s.sog_kn:.1f} kn"
+            out.append((float(col), float(row), f"{s.vessel_id}{speed}", s.cog_deg))
+        return out
+
+    def report_comparisons(self) -> tuple[dict, list]:
+        """{vessel id: comparison} for every analysed vessel not rejected, matched one to one, and the
+        reporting vessels matched to none."""
+        from ..positions.match import match, seen_from_result
+
+        ids, seen = [], []
+        for vid, v in self.doc.vessels.items():
+            eff = self.doc.effective_finding(vid)
+            if eff is None or vid in self.doc.rejected:
+                continue
+            s = seen_from_result(v.name, eff.to_json())
+            if s is not None:
+                ids.append(vid)
+                seen.append(s)
+        comps, unmatched = match(seen, self.report_states())
+        return dict(zip(ids, comps)), unmatched
+
+    def import_vessels(self, path: str) -> int:
+        """Mark vessels at the positions of a CSV, GeoJSON or GeoPackage file (undoable, one step each)."""
+        from ..evidence.gis import read_vessel_positions
+        from ..project.model import Vessel
+        from ..scene import geodesy
+        from .document import AddItem
+
+        sc = self.doc.scene
+        if sc is None or not sc.info.georeferenced:
+            self.host.error("Cannot import positions", "positions in longitude and latitude need a georeferenced scene")
+            return 0
+        try:
+            positions = read_vessel_positions(path)
+        except WakemeterError as err:
+            self.host.error("Could not import the positions", str(err))
+            return 0
+        added = 0
+        for p in positions:
+            col, row = geodesy.lonlat_to_pixel(sc.georef, p.lon, p.lat)
+            if 0 <= col < sc.width and 0 <= row < sc.height:
+                self.doc.undo.push(
+                    AddItem(self.doc, Vessel(self.doc.new_id(), p.name, (float(col), float(row))), "import")
+                )
+                added += 1
+        self.host.say(f"{added} vessel(s) marked from {Path(path).name}; {len(positions) - added} outside the scene")
+        return added
+
+    def export_gis(self, path: str, *, force: bool = False) -> bool:
+        """Analysed vessels (not rejected), tracks, wake lines and areas as a GeoPackage or GeoJSON file."""
+        from ..evidence.gis import vessel_features, write_features
+
+        sc = self.doc.scene
+        comps = self.report_comparisons()[0] if self.reports else {}
+        features = []
+        try:
+            for vid, v in self.doc.vessels.items():
+                eff = self.doc.effective_finding(vid)
+                if eff is None or vid in self.doc.rejected:
+                    continue
+                c = comps.get(vid)
+                features += vessel_features(sc, v.name, eff, None if c is None else c.to_json())
+            write_features(path, features, force=force)
+        except WakemeterError as err:
+            self.host.error("Could not write the map layers", str(err))
+            return False
+        self.host.say(f"map layers written: {Path(path).name} ({sum(f.layer == 'vessels' for f in features)} vessels)")
+        return True
+
     # ---- evidence ---------------------------------------------------------
     def export(
         self,
@@ -279,13 +398,16 @@ class Controller(QObject):
             return None
         vessels = []
         try:  # a finding read from a session has no plot arrays: its own request is run again (deterministic)
+            comps, unmatched = self.report_comparisons() if self.reports else ({}, None)
             for vid in kept:
                 hand = [m for m in self.doc.measurements.values() if m.vessel_id == vid]
+                c = comps.get(vid)
                 vessels.append(
                     VesselEvidence(
                         with_plots(self.doc.project, vid),
                         self.doc.vessels[vid].name,
                         tuple(hand_measurement_rows(hand)),
+                        None if c is None else c.to_json(),
                     )
                 )
         except WakemeterError as err:
@@ -311,6 +433,7 @@ class Controller(QObject):
                 force=force,
                 basename=base,
                 parameters={"vessels": [v.name for v in vessels]},
+                unmatched_reports=None if unmatched is None else [asdict(u) for u in unmatched],
             )
         except WakemeterError as err:
             self.host.error("Could not export", str(err))

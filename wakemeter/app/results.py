@@ -131,6 +131,8 @@ class ResultsPanel(QWidget):
         form.addRow(self.limit_box)
         self.limit_box.setVisible(False)
         self.use_limit.toggled.connect(self.limit_box.setVisible)
+        self.use_limit.toggled.connect(lambda _on: self._fit())
+        self.use_radar.toggled.connect(lambda _on: self._fit())
         lay.addWidget(box)
         row = QHBoxLayout()
         self.run_button = QPushButton("Analyse vessel")
@@ -188,6 +190,16 @@ class ResultsPanel(QWidget):
         self.tabs.addTab(plots, "Plots")
         lay.addWidget(self.tabs, 1)
         self.show_result(None, None)
+        self._fit()
+
+    #: the panel's height with both optional boxes closed (the results text takes what is left)
+    BASE_HEIGHT = 520
+
+    def _fit(self) -> None:
+        """Grow the panel by the optional boxes that are open, so their rows are never squeezed (the panel
+        sits in a scroll area)."""
+        extra = sum(b.sizeHint().height() for b in (self.radar_box, self.limit_box) if not b.isHidden())
+        self.setMinimumHeight(self.BASE_HEIGHT + extra)
 
     # ---- inputs -----------------------------------------------------------
     def inputs(self) -> dict:
@@ -360,7 +372,8 @@ def result_html(r: dict, rejected: bool = False) -> str:
         speed = f"{main[0][0]}: {speed}"
     else:
         speed = "Wake seen as a line: no speed (see the cautions)"
-    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in main[2:])
+    extra = [("Position report", r["position_report"]["text"])] if r.get("position_report") else []
+    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in main[2:] + extra)
     methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(r))
     return (
         ("<p style='color:#c33'><b>Rejected:</b> kept on record, not used or exported.</p>" if rejected else "")

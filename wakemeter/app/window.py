@@ -93,6 +93,10 @@ class MainWindow(QMainWindow):
         fm.addAction("&Save session…", self.save_dialog).setShortcut(QKeySequence.StandardKey.Save)
         fm.addAction("Open &session…", self.open_session_dialog)
         fm.addAction("&Export evidence…", self.export_dialog).setShortcut(QKeySequence("Ctrl+E"))
+        fm.addSeparator()
+        fm.addAction("Load position &reports (AIS)…", self.load_reports_dialog)
+        fm.addAction("&Import vessel positions…", self.import_vessels_dialog)
+        fm.addAction("Export &map layers (GeoPackage, GeoJSON)…", self.export_gis_dialog)
         self.file_menu = fm
         fm.addSeparator()
         fm.addAction("&Quit", self.close).setShortcut(QKeySequence.StandardKey.Quit)
@@ -180,7 +184,6 @@ class MainWindow(QMainWindow):
             "QScrollArea { background: #1c2028; } QScrollArea > QWidget > QWidget { background: #1c2028; }"
         )
         scroll.setWidget(self.panel)
-        self.panel.setMinimumHeight(520)
         results.setWidget(scroll)
         self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, results)
         self.resizeDocks([dock, results], [400, 400], Qt.Orientation.Horizontal)
@@ -419,6 +422,48 @@ class MainWindow(QMainWindow):
         path, _ = QFileDialog.getOpenFileName(self, "Open session", "", "wakemeter sessions (*.json)")
         if path:
             self.controller.open_session(path)
+
+    def load_reports_dialog(self) -> None:
+        path, _ = QFileDialog.getOpenFileName(
+            self, "Position reports", "", "Position reports (*.csv *.nmea *.txt *.log);;All files (*)"
+        )
+        if path:
+            self.load_reports(path)
+
+    def load_reports(self, path: str, columns: str | None = None, when: str | None = None) -> bool:
+        """Load reports; asks for the scene time when the metadata lacks it, and for column names when needed."""
+        sc = self.doc.scene
+        if sc is not None and not sc.info.acquisition_time and when is None:
+            when, ok = QInputDialog.getText(
+                self, "Scene time", "The scene's metadata has no acquisition time. Its time (UTC, ISO 8601):"
+            )
+            if not ok or not when.strip():
+                return False
+        if not self.controller.load_reports(path, columns=columns, when=when):
+            if "no column for" in (self.last_error or "") and columns is None:
+                columns, ok = QInputDialog.getText(
+                    self, "Column names", "Name the CSV columns, e.g. id=MMSI,time=BaseDateTime,lat=LAT,lon=LON"
+                )
+                if ok and columns.strip():
+                    return self.load_reports(path, columns, when)
+            return False
+        self.canvas.report_marks = self.controller.report_marks()
+        self.canvas.update()
+        return True
+
+    def import_vessels_dialog(self) -> None:
+        path, _ = QFileDialog.getOpenFileName(
+            self, "Vessel positions", "", "Positions (*.csv *.geojson *.json *.gpkg);;All files (*)"
+        )
+        if path:
+            self.controller.import_vessels(path)
+
+    def export_gis_dialog(self) -> None:
+        path, _ = QFileDialog.getSaveFileName(
+            self, "Export map layers", "vessels.gpkg", "GeoPackage (*.gpkg);;GeoJSON (*.geojson)"
+        )
+        if path:
+            self.controller.export_gis(path, force=True)  # the file dialog has asked about replacing
 
     def export_dialog(self) -> None:
         vid = self.doc.vessel_of_selection()
