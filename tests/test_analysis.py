@@ -150,7 +150,7 @@ def test_no_wake_on_calm_demo_scene():
 
 def test_analyze_command(capsys):
     scene = str(ROOT / "sample_scenes" / "harbour_approach_optical.tif")
-    assert main(["analyze", scene, "--vessel=-35.0,36.0", "--json"]) == 0
+    assert main(["analyze", scene, "--vessel", "-35.0,36.0", "--json"]) == 0
     j = json.loads(capsys.readouterr().out)
     assert j["wake_found"] and j["speed_mps"] == pytest.approx(7.202, rel=0.03)
     assert j["heading_deg"] == pytest.approx(62.0, abs=2.0)

@@ -66,3 +66,12 @@ def test_missing_window_libraries_are_named_in_one_line(monkeypatch, capsys):
     assert app_main.run_program([]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "sudo apt install libxcb-cursor0" in err[0]
+
+
+def test_western_longitudes_and_a_current_as_the_readme_writes_them(capsys):
+    # `--vessel -70.5,41.2` once failed with "expected one argument"; a current setting toward a bearing with a
+    # leading minus is not a thing, but its list is read the same way
+    assert main(["analyze", "no_such_scene.tif", "--vessel", "-70.5,41.2"]) == 2
+    assert "no such file" in capsys.readouterr().err
+    assert main(["analyze", "no_such_scene.tif", "--vessel", "-70.5,41.2", "--current", "-1,90"]) == 2
+    assert "current speed must be within 0-60 m/s" in capsys.readouterr().err

@@ -109,4 +109,32 @@ def write_demo_scenes(folder: str | Path) -> list[Path]:
     for name, spec in demo_specs().items():
         tif, _ = write(render(spec), folder / f"{name}.tif")
         out.append(tif)
+    write_demo_reports(folder)
     return out
+
+
+#: what the two vessels of the channel scene broadcast (invented identifiers): the pilot boat reports its
+#: true speed; the coaster reports 10.0 kn, the harbour's limit, while its wake says 16 kn; a third vessel
+#: reports from outside the scene
+DEMO_REPORTS = {"Merrow Pilot 2": ("990000101", None), "Brackenfield": ("990000202", 10.0)}
+
+
+def write_demo_reports(folder: str | Path) -> Path:
+    """``channel_two_vessels_reports.csv``: position reports of the channel scene's vessels (see DEMO_REPORTS)."""
+    import datetime as _dt
+    import json
+
+    from ..fileio import atomic_write_bytes
+    from ..physics.units import KNOT_MPS
+    from .reports import straight_track, to_csv_text
+
+    folder = Path(folder)
+    truth = json.loads((folder / "channel_two_vessels.truth.json").read_text())
+    at = _dt.datetime.fromisoformat(truth["acquisition_time"].replace("Z", "+00:00"))
+    reports = []
+    for v in truth["vessels"]:
+        vid, told = DEMO_REPORTS[v["name"]]
+        kn = told if told is not None else round(v["speed_mps"] / KNOT_MPS, 1)
+        reports += straight_track(vid, v["lon"], v["lat"], v["heading_deg"], kn, at)
+    reports += straight_track("990000303", -34.90, 36.05, 180.0, 6.0, at)
+    return atomic_write_bytes(folder / "channel_two_vessels_reports.csv", to_csv_text(reports).encode())
