@@ -274,3 +274,16 @@ def test_demo_scenes_match_their_recipe(tmp_path):
     assert truths["calm_no_wake.truth.json"]["vessels"] == []
     assert len(truths["channel_two_vessels.truth.json"]["vessels"]) == 2
     assert sum(p.stat().st_size for p in root.glob("*.tif")) < 6_000_000
+
+
+def test_demo_reports_match_their_recipe(tmp_path):
+    # the committed demo position reports are what the demo writer makes from the channel scene's truth
+    import shutil
+    from pathlib import Path
+
+    from wakemeter.synth.demo import write_demo_reports
+
+    root = Path(__file__).resolve().parents[1] / "sample_scenes"
+    shutil.copy(root / "channel_two_vessels.truth.json", tmp_path)
+    made = write_demo_reports(tmp_path)
+    assert made.read_bytes() == (root / "channel_two_vessels_reports.csv").read_bytes()
