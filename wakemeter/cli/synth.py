@@ -25,6 +25,12 @@ def _seed(text: str) -> int:
 def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--out", required=True, help="output GeoTIFF path, or a folder with --demo")
     p.add_argument("--demo", action="store_true", help="write all the bundled demo scenes into the --out folder")
+    p.add_argument(
+        "--fleet",
+        type=int,
+        metavar="N",
+        help="multispectral: N vessels at random (by --seed) positions, headings, speeds and hull lengths",
+    )
     p.add_argument("--lon", type=float, default=-35.0, help="vessel longitude, deg (WGS 84)")
     p.add_argument("--lat", type=float, default=36.0, help="vessel latitude, deg (WGS 84)")
     sp = p.add_mutually_exclusive_group()
@@ -78,6 +84,10 @@ def run(args: argparse.Namespace) -> int:
     imaging: OpticalModel | RadarModel
     if args.kind == "multispectral":
         return _multispectral(args, vessel)
+    if args.fleet is not None:
+        from ..errors import ParameterError
+
+        raise ParameterError("--fleet makes multispectral scenes: add --kind multispectral")
     if args.kind == "optical":
         imaging = OpticalModel(sun_azimuth_deg=args.sun_azimuth, dtype=args.dtype)
     else:
@@ -119,7 +129,20 @@ def _multispectral(args: argparse.Namespace, vessel: VesselSpec) -> int:
         coast_distance_m=args.coast_distance,
         coast_bearing_deg=args.coast_bearing,
     )
-    spec = vessel_scene("custom", vessel, args.size, args.pixel, depth_m=args.depth, crs=args.crs, seed=args.seed)
+    if args.fleet is not None:
+        from ..errors import ParameterError
+        from ..synth.fleet import fleet_spec
+
+        if not 1 <= args.fleet <= 50:
+            raise ParameterError(f"--fleet must be 1-50 vessels, got {args.fleet}")
+        try:
+            spec = fleet_spec(
+                args.fleet, seed=args.seed, size=args.size, pixel_m=args.pixel, lon=args.lon, lat=args.lat
+            )
+        except ValueError as err:
+            raise ParameterError(str(err)) from err
+    else:
+        spec = vessel_scene("custom", vessel, args.size, args.pixel, depth_m=args.depth, crs=args.crs, seed=args.seed)
     out = Path(args.out)
     if out.suffix.lower() not in (".tif", ".tiff"):
         out = out.with_suffix(".tif")

@@ -1,0 +1,285 @@
+"""Finding vessels in a whole scene, window by window (never the whole raster in memory).
+
+Radar: a cell-averaging constant-false-alarm-rate detector on the sea clutter (Gandhi & Kassam 1988): each
+pixel is compared with the clutter around it (a background ring outside a guard window that holds the
+hull), and the clutter is modelled as gamma distributed intensity with the equivalent number of looks
+estimated from the ring (mean^2 / variance; Oliver & Quegan 1998, Understanding SAR Images, from memory).
+The threshold gives the requested false-alarm rate per km^2 of sea.
+
+Optical: a local-background anomaly over water: every band is standardised on the ring around each pixel
+(robust to the hull: the guard window is left out) and the largest standardised excess of the near-infrared
+and visible bands is thresholded at the normal tail of the same per-pixel rate.  Water is told by NDWI
+(McFeeters 1996) where a green and a near-infrared band are named, else by the ring's own statistics;
+land, quays and harbour walls (wide or long dry or bright areas) and lone bright pixels are rejected.
+
+Each candidate gets its position (pixel, longitude and latitude), length, width and orientation from the
+blob's second moments in metres, a score (its peak in clutter standard units) and the false-alarm
+probability per pixel at that score.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import ndimage, stats
+
+from ..errors import CancelledError, ParameterError
+from ..scene import display, geodesy
+from ..scene.raster import Scene
+from .line_chip import green_nir_bands
+
+#: windows are read this many pixels square, plus the margin on every side
+TILE = 1024
+#: default false-alarm rate per km^2 of sea (common practice for ship detection: 1e-6 to 1e-8 per pixel at
+#: 10-20 m pixels, i.e. roughly 1e-2 to 1e-4 per km^2; no single source)
+PFA_PER_KM2 = 1e-3
+#: guard and background windows in metres (the guard holds the longest hull; the ring beyond it is sea)
+GUARD_M = 400.0
+BACKGROUND_M = 900.0
+#: a candidate needs this many pixels above the threshold (a lone bright pixel is noise or a buoy)
+MIN_PIXELS = 2
+#: longer or larger blobs are harbour walls, quays or land (the largest ships are about 400 m x 60 m)
+MAX_LENGTH_M = 450.0
+MAX_AREA_M2 = 40_000.0
+#: the share of a window's water whose excesses model the tail of the sea clutter
+TAIL_SHARE = 0.01
+#: a detection more than this share of which lies next to dry land (NDWI <= 0) is a quay edge, not a hull;
+#: a moored hull touches its quay along one side only
+DRY_SHARE_MAX = 0.5
+#: the hull is the part of a detection above this share of its peak (in the near infrared when there is one;
+#: fresh foam reflects about half as much as a hull there, common practice, no source)
+HULL_SHARE = 0.65
+#: its centre is the weighted centre of the pixels next to the peak, weighted by their excess over this share
+#: of the peak
+CENTRE_SHARE = 0.5
+
+
+@dataclass(frozen=True)
+class VesselCandidate:
+    px: tuple[float, float]  #: (col, row), scene pixels
+    lonlat: tuple[float, float] | None
+    length_m: float
+    width_m: float
+    orientation_deg: float  #: true bearing of the long axis, 0-180
+    score: float  #: peak excess in clutter standard units (optical) or CFAR ratio in its own units (radar)
+    pfa: float  #: false-alarm probability per pixel at that score
+    pixels: int  #: pixels of the hull (the brightest part of the detection)
+
+    def to_json(self) -> dict:
+        return {
+            "px": list(self.px),
+            "lonlat": None if self.lonlat is None else list(self.lonlat),
+            "length_m": self.length_m,
+            "width_m": self.width_m,
+            "orientation_deg": self.orientation_deg,
+            "score": self.score,
+            "pfa": self.pfa,
+            "pixels": self.pixels,
+        }
+
+
+def _ring_stats(img: np.ndarray, valid: np.ndarray, guard: int, back: int) -> tuple[np.ndarray, np.ndarray]:
+    """Mean and standard deviation of the valid pixels in the ring between the guard and background windows."""
+    w = valid.astype(np.float64)
+    x = np.where(valid, img, 0.0).astype(np.float64)
+
+    def box(a: np.ndarray, size: int) -> np.ndarray:
+        return ndimage.uniform_filter(a, size=size, mode="reflect") * size * size
+
+    n = box(w, back) - box(w, guard)
+    s1 = box(x, back) - box(x, guard)
+    s2 = box(x * x, back) - box(x * x, guard)
+    n = np.maximum(n, 1.0)
+    mean = s1 / n
+    var = np.maximum(s2 / n - mean * mean, 1e-12)
+    return mean, np.sqrt(var)
+
+
+def find_vessels(
+    scene: Scene,
+    *,
+    area: tuple[int, int, int, int] | None = None,
+    pfa_per_km2: float = PFA_PER_KM2,
+    radar: bool | None = None,
+    progress: Callable[[float], None] | None = None,
+    cancelled: Callable[[], bool] | None = None,
+    tile: int = TILE,
+) -> list[VesselCandidate]:
+    """Every vessel-like target in ``area`` (col, row, width, height; default the whole scene)."""
+    if not 0 < pfa_per_km2 < 1e3:
+        raise ParameterError(f"the false-alarm rate must be > 0 and below 1000 per km², got {pfa_per_km2}")
+    c0, r0, w, h = area if area is not None else (0, 0, scene.width, scene.height)
+    c1, r1 = min(c0 + w, scene.width), min(r0 + h, scene.height)
+    c0, r0 = max(int(c0), 0), max(int(r0), 0)
+    if c1 - c0 < 16 or r1 - r0 < 16:
+        raise ParameterError("the area to search is smaller than 16 x 16 pixels")
+    frame = scene.local_frame((c0 + c1) / 2, (r0 + r1) / 2)
+    m_px = float(math.sqrt(frame.length_of(1, 0) * frame.length_of(0, 1)))
+    guard = max(3, int(round(GUARD_M / m_px)) | 1)
+    back = max(guard + 4, int(round(BACKGROUND_M / m_px)) | 1)
+    margin = back // 2 + 1
+    pfa_px = min(pfa_per_km2 * (m_px * m_px) / 1e6, 0.01)
+    gn = green_nir_bands(scene.info.band_descriptions)
+    bands = _detection_bands(scene)
+    if radar is None:
+        sample, ok = scene.read(window=(c0, r0, min(c1 - c0, 512), min(r1 - r0, 512)), bands=(1,))
+        radar = scene.info.count == 1 and display.looks_like_radar(scene.info.dtype, 1, sample[0][ok[0]][:100_000])
+    tiles = [(tc, tr) for tr in range(r0, r1, tile) for tc in range(c0, c1, tile)]
+    found: list[VesselCandidate] = []
+    for k, (tc, tr) in enumerate(tiles):
+        if cancelled is not None and cancelled():
+            raise CancelledError("finding vessels was cancelled")
+        core = (tc, tr, min(tile, c1 - tc), min(tile, r1 - tr))
+        win = (max(tc - margin, 0), max(tr - margin, 0))
+        win_w = min(core[0] + core[2] + margin, scene.width) - win[0]
+        win_h = min(core[1] + core[3] + margin, scene.height) - win[1]
+        read_bands = tuple(sorted(set(bands) | (set(gn) if gn and not radar else set())))
+        data, valid = scene.read(window=(win[0], win[1], win_w, win_h), bands=read_bands)
+        idx = {b: i for i, b in enumerate(read_bands)}
+        ok = np.all(valid, axis=0)
+        nir = _nir_band(scene)
+        if radar:
+            det, score, pfa_map = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
+            water = ok
+            locate = score
+        else:
+            water = ok.copy()
+            if gn is not None:
+                g, n = data[idx[gn[0]]], data[idx[gn[1]]]
+                ndwi = (g - n) / np.maximum(g + n, 1e-6)
+                water &= ndwi > 0.0
+            zs = _anomaly_optical([data[idx[b]] for b in bands], water, guard, back)
+            det, score, pfa_map = _threshold(zs, water, pfa_px)
+            # the hull is told from its foam in the near infrared, where foam is far darker than a hull
+            locate = zs[bands.index(nir)] if nir in bands else score
+        found += _blobs(scene, det, score, locate, pfa_map, water, ok, win, core, m_px, frame)
+        if progress is not None:
+            progress((k + 1) / len(tiles))
+    return sorted(found, key=lambda c: -c.score)
+
+
+def _detection_bands(scene: Scene) -> tuple[int, ...]:
+    """Near-infrared and visible bands where named (hulls are bright in both); else every band up to four."""
+    names = [str(d or "").upper() for d in scene.info.band_descriptions]
+    want = [i + 1 for i, n in enumerate(names) if n in ("B08", "B8", "NIR", "B04", "B4", "RED", "B02", "B2", "BLUE")]
+    return tuple(want) if want else tuple(range(1, min(scene.info.count, 4) + 1))
+
+
+def _cfar_radar(img, ok, guard, back, pfa_px):
+    mean, sd = _ring_stats(img, ok, guard, back)
+    looks = np.clip(mean * mean / (sd * sd), 0.5, 50.0)
+    # gamma clutter with L looks and the ring's mean: threshold at the isf of the per-pixel rate
+    thr = stats.gamma.isf(pfa_px, a=looks, scale=np.maximum(mean, 1e-12) / looks)
+    ratio = img / np.maximum(thr, 1e-12)
+    det = ok & (img > thr)
+    pfa_map = stats.gamma.sf(np.where(ok, img, 0.0), a=looks, scale=np.maximum(mean, 1e-12) / looks)
+    return det, ratio, pfa_map
+
+
+def _nir_band(scene: Scene) -> int | None:
+    names = [str(d or "").upper() for d in scene.info.band_descriptions]
+    return next((i + 1 for i, n in enumerate(names) if n in ("B08", "B8", "NIR")), None)
+
+
+def _anomaly_optical(bands, water, guard, back) -> list[np.ndarray]:
+    """Each band standardised on the ring of water around each pixel."""
+    out = []
+    for b in bands:
+        mean, sd = _ring_stats(b, water, guard, back)
+        out.append((b - mean) / sd)
+    return out
+
+
+def _threshold(zs, water, pfa_px):
+    """The per-pixel rate at the normal tail, or at the water's own tail when it is heavier (sediment,
+    glint and specks make real sea heavier tailed than a normal): an exponential fitted to the excesses
+    over the 99th percentile of the window's water (peaks over threshold; Coles 2001, An Introduction to
+    Statistical Modeling of Extreme Values, the generalised Pareto with shape 0)."""
+    z_max = np.max(np.stack(zs), axis=0)
+    thr = float(stats.norm.isf(pfa_px))
+    pfa_map = stats.norm.sf(z_max)
+    sea = z_max[water]
+    if sea.size > 2000:
+        u = float(np.percentile(sea, 100 * (1 - TAIL_SHARE)))
+        excess = sea[sea > u] - u
+        # the scale from the median excess (ln 2 times the scale for an exponential): a few huge excesses
+        # (hulls, the edges of land) would swell a mean
+        beta = float(np.median(excess)) / math.log(2.0) if excess.size else 0.0
+        if beta > 0:
+            thr_tail = u + beta * math.log(TAIL_SHARE / pfa_px)
+            if thr_tail > thr:
+                thr = thr_tail
+                pfa_map = np.where(z_max > u, TAIL_SHARE * np.exp(-np.minimum((z_max - u) / beta, 700.0)), 1.0)
+    det = water & (z_max > thr)
+    return det, z_max, pfa_map
+
+
+def _blobs(scene, det, score, locate, pfa_map, water, ok, win, core, m_px, frame) -> list[VesselCandidate]:
+    lab, n = ndimage.label(det, structure=np.ones((3, 3)))
+    if n == 0:
+        return []
+    # land next to a blob: the blob is a quay edge or a moored hull against it (dry pixels within 2 px)
+    dry = ndimage.binary_dilation(ok & ~water, iterations=2)
+    out = []
+    objects = ndimage.find_objects(lab)
+    for i, sl in enumerate(objects, start=1):
+        if sl is None:
+            continue
+        m = lab[sl] == i
+        npx = int(m.sum())
+        if npx < MIN_PIXELS or np.mean(dry[sl][m]) > DRY_SHARE_MAX:
+            continue
+        # the hull: the part of the blob above half its peak that holds the peak (foam behind a moving hull is
+        # bright too, but less so, above all in the near infrared)
+        sub = np.where(m, locate[sl], -np.inf)
+        peak = float(sub.max())
+        core_lab, _ = ndimage.label(sub >= HULL_SHARE * peak, structure=np.ones((3, 3)))
+        pr, pc = np.unravel_index(int(np.argmax(sub)), sub.shape)
+        hull = core_lab == core_lab[pr, pc]
+        rr, cc = np.nonzero(hull)
+        rr = rr + sl[0].start
+        cc = cc + sl[1].start
+        npx_core = len(rr)
+        # its centre: the peak of the hull's signal, to a fraction of a pixel by the weighted centre of the 3 x 3
+        # pixels around it (foam behind the hull is fainter, but would pull a centre of the whole blob aft)
+        r_pk, c_pk = int(rr[np.argmax(locate[rr, cc])]), int(cc[np.argmax(locate[rr, cc])])
+        r_lo, c_lo = max(r_pk - 1, 0), max(c_pk - 1, 0)
+        nb = locate[r_lo : r_pk + 2, c_lo : c_pk + 2]
+        wts = np.clip(nb - CENTRE_SHARE * nb.max(), 0.0, None)
+        gr, gc = np.mgrid[r_lo : r_lo + nb.shape[0], c_lo : c_lo + nb.shape[1]]
+        cy, cx = float(np.average(gr, weights=wts + 1e-12)), float(np.average(gc, weights=wts + 1e-12))
+        col, row = win[0] + cx, win[1] + cy
+        if not (core[0] <= col < core[0] + core[2] and core[1] <= row < core[1] + core[3]):
+            continue  # found again by the tile whose core holds it
+        cov = np.cov(np.stack([cc, rr]).astype(float)) if npx_core > 2 else np.zeros((2, 2))
+        evals, evecs = np.linalg.eigh(cov + np.eye(2) / 12.0)  # a pixel is a square: its own spread is 1/12
+        length_px, width_px = math.sqrt(12 * evals[1]), math.sqrt(12 * evals[0])
+        length_m, width_m = length_px * m_px, width_px * m_px
+        if length_m > MAX_LENGTH_M or npx_core * m_px * m_px > MAX_AREA_M2:
+            continue
+        dc, dr = evecs[0, 1], evecs[1, 1]
+        try:
+            bearing = float(frame.bearing_of(dc, dr)) % 180.0
+        except Exception:  # noqa: BLE001 - no north: the angle from image up
+            bearing = math.degrees(math.atan2(dc, -dr)) % 180.0
+        lonlat = None
+        if scene.info.georeferenced:
+            lon, lat = geodesy.pixel_to_lonlat(scene.georef, col, row)
+            lonlat = (float(lon), float(lat))
+        k = int(np.argmax(score[rr, cc]))
+        out.append(
+            VesselCandidate(
+                (col, row),
+                lonlat,
+                length_m,
+                width_m,
+                bearing,
+                float(score[rr[k], cc[k]]),
+                float(pfa_map[rr[k], cc[k]]),
+                npx_core,
+            )
+        )
+    return out
