@@ -29,7 +29,7 @@ def fleet_spec(
     half = size * pixel_m / 2
     edge = min(0.15 * size * pixel_m, 2000.0)
     placed: list[tuple[float, float]] = []
-    vessels = []
+    vessels: list[VesselSpec] = []
     tries = 0
     while len(vessels) < n:
         tries += 1
