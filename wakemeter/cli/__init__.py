@@ -17,12 +17,21 @@ from typing import NoReturn
 
 from .. import __version__
 from ..errors import WakemeterError
-from . import analyze, export, report, scene, speed, synth
+from . import analyze, batch, export, report, scene, speed, synth
 from .base import Command
 from .options import join_negative_lists
 
 COMMANDS: dict[str, Command] = {
-    c.name: c for c in (speed.COMMAND, *scene.COMMANDS, synth.COMMAND, analyze.COMMAND, report.COMMAND, export.COMMAND)
+    c.name: c
+    for c in (
+        speed.COMMAND,
+        *scene.COMMANDS,
+        synth.COMMAND,
+        analyze.COMMAND,
+        report.COMMAND,
+        export.COMMAND,
+        batch.COMMAND,
+    )
 }
 
 

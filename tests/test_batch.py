@@ -1,0 +1,89 @@
+"""The batch on a dask.distributed LocalCluster: results identical to single analyses, resume, a failing
+vessel or scene recorded while the rest finish, and the results table read back (csv, pyogrio).
+Check values: single runs of the same analysis (self-consistency) and the demo scenes' truth files."""
+
+import csv
+import json
+import shutil
+from dataclasses import replace
+from pathlib import Path
+
+import pyogrio
+import pytest
+
+from wakemeter.batch.run import _client, plan, run, table
+from wakemeter.cli import main
+from wakemeter.detect.analysis import analyze
+from wakemeter.detect.request import AnalysisRequest
+from wakemeter.scene.raster import open_scene
+
+ROOT = Path(__file__).resolve().parents[1]
+SCENES = ["harbour_approach_optical", "channel_two_vessels", "tallow_shoal_shallow"]
+
+
+@pytest.fixture(scope="module")
+def setup(tmp_path_factory):
+    d = tmp_path_factory.mktemp("batch")
+    rows = ["name,lon,lat"]
+    for name in SCENES:
+        shutil.copy(ROOT / "sample_scenes" / f"{name}.tif", d / f"{name}.tif")
+        for v in json.loads((ROOT / "sample_scenes" / f"{name}.truth.json").read_text())["vessels"]:
+            rows.append(f"{v['name']},{v['lon']},{v['lat']}")
+    (d / "vessels.csv").write_text("\n".join(rows) + "\n")
+    (d / "broken.tif").write_bytes(b"II*\0 not a raster")
+    client, cluster = _client(None, 2)
+    yield d, client
+    client.close()
+    cluster.close()
+
+
+def test_batch_matches_single_runs_and_resumes(setup):
+    d, client = setup
+    scenes = [str(d / f"{n}.tif") for n in SCENES] + [str(d / "broken.tif")]
+    base = AnalysisRequest(vessel_lonlat=(0.0, 0.0))
+    tasks, unreadable = plan(scenes, base, vessels_file=str(d / "vessels.csv"), client=client)
+    assert len(tasks) == 4 and [n for n, _ in unreadable] == ["broken.tif"]
+    out = d / "out"
+    first = run(tasks, out, client=client)
+    assert (first.done, first.skipped, first.failed) == (4, 0, 0)
+    again = run(tasks, out, client=client)  # resumable: everything is done already
+    assert (again.done, again.skipped) == (0, 4)
+    csv_path, gpkg = table(tasks, out)
+    got = {r["vessel"]: r for r in csv.DictReader(open(csv_path))}
+    for t in tasks:  # identical to a single analysis of the same vessel
+        with open_scene(t.scene_path) as sc:
+            single = analyze(sc, AnalysisRequest.from_json(t.request)).to_json()
+        rec = json.loads((out / "results" / f"{t.key}.json").read_text())
+        assert (
+            rec["result"]["speed_mps"] == single["speed_mps"] and rec["result"]["heading_deg"] == single["heading_deg"]
+        )
+        assert float(got[t.vessel_name]["speed_kn"]) == pytest.approx(single["speed_knots"], rel=1e-5)
+    meta, _f, geoms, _fields = pyogrio.raw.read(str(gpkg))
+    assert len(geoms) == 4 and "4326" in meta["crs"]
+
+
+def test_a_failing_vessel_is_recorded_and_the_others_finish(setup):
+    d, client = setup
+    scene = d / "changing.tif"
+    shutil.copy(d / "channel_two_vessels.tif", scene)
+    base = AnalysisRequest(vessel_lonlat=(0.0, 0.0))
+    tasks, _ = plan([str(scene), str(d / "harbour_approach_optical.tif")], base, vessels_file=str(d / "vessels.csv"))
+    scene.write_bytes(scene.read_bytes() + b"\0")  # the scene changes after planning: its vessels must fail
+    s = run(tasks, d / "out2", client=client)
+    assert (s.done, s.failed) == (1, 2)
+    assert all("changed after the batch was planned" in r for _v, r in s.failures)
+    # a vessel's own analysis failure (a request the analysis refuses) is recorded the same way
+    bad = replace(tasks[-1], request={**tasks[-1].request, "depth": {"value_m": 1e9, "std_m": 0}})
+    s2 = run([bad], d / "out3", client=client)
+    assert s2.failed == 1 and "water depth" in s2.failures[0][1]
+
+
+def test_batch_command(setup, capsys):
+    d, _client_ = setup
+    out = d / "cli"
+    argv = ["batch", str(d / "harbour_approach_optical.tif"), "--vessels", str(d / "vessels.csv"), "--out", str(out)]
+    assert main([*argv, "--workers", "1"]) == 0
+    said = capsys.readouterr().out
+    assert "1 analysed" in said and (out / "results.csv").exists()
+    assert main([*argv, "--vessel", "-35,36"]) == 2
+    assert "not --vessel" in capsys.readouterr().err

@@ -1,0 +1,234 @@
+"""Planning a batch, running it on dask.distributed, and the results table.
+
+* ``plan``: every vessel of every scene, from a list (CSV, GeoJSON or GeoPackage positions: each vessel
+  goes to the scenes that hold it) and/or found by the vessel finder (one finding task per scene).
+* ``run``: the tasks on a ``dask.distributed`` LocalCluster (the embedded case) or on the cluster at
+  ``scheduler`` (same code); finished tasks (by key) are skipped, so a rerun resumes; a worker that dies has
+  its tasks redone by the scheduler; one failing vessel is recorded and the others go on.
+* ``table``: every result in ``results.csv`` and ``results.gpkg`` (vessels with their attributes).
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from .. import fileio
+from ..detect.request import AnalysisRequest
+from ..errors import ParameterError, WakemeterError
+from ..physics.units import KNOT_MPS
+from .tasks import BatchTask, done, find_task, result_path, run_task
+
+
+@dataclass(frozen=True)
+class Summary:
+    planned: int
+    skipped: int
+    done: int
+    failed: int
+    seconds: float
+    failures: tuple[tuple[str, str], ...]  #: (vessel, reason)
+
+    def text(self) -> str:
+        lines = [
+            f"{self.planned} vessel(s): {self.done} analysed, {self.skipped} already done (skipped), "
+            f"{self.failed} failed; {self.seconds:.1f} s"
+        ]
+        lines += [f"  failed: {v}: {r}" for v, r in self.failures]
+        return "\n".join(lines)
+
+
+def _client(scheduler: str | None, workers: int):
+    from distributed import Client, LocalCluster
+
+    if scheduler:
+        return Client(scheduler), None
+    if not 1 <= workers <= 256:
+        raise ParameterError(f"--workers must be 1-256, got {workers}")
+    cluster = LocalCluster(
+        n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=":0", silence_logs=40
+    )
+    return Client(cluster), cluster
+
+
+def plan(
+    scenes: Sequence[str],
+    base: AnalysisRequest,
+    *,
+    vessels_file: str | None = None,
+    find: bool = False,
+    pfa_per_km2: float = 1e-3,
+    client=None,
+) -> tuple[list[BatchTask], list[tuple[str, str]]]:
+    """The tasks (one per vessel per scene), and the scenes that could not be used with the reason."""
+    from ..evidence.gis import read_vessel_positions
+    from ..scene import geodesy
+    from ..scene.raster import open_scene
+
+    if not vessels_file and not find:
+        raise ParameterError("say which vessels: --vessels FILE, --find, or both")
+    positions = read_vessel_positions(vessels_file) if vessels_file else []
+    tasks: list[BatchTask] = []
+    unreadable: list[tuple[str, str]] = []
+    usable = []
+    for s in scenes:
+        try:
+            open_scene(s).close()
+            usable.append(s)
+        except WakemeterError as err:
+            unreadable.append((Path(s).name, str(err)))
+    found: dict[str, list[dict]] = {}
+    if find:
+        if client is None:
+            found = {s: find_task(s, pfa_per_km2) for s in usable}
+        else:
+            futures = {s: client.submit(find_task, s, pfa_per_km2, pure=False) for s in usable}
+            found = {s: f.result() for s, f in futures.items()}
+    for s in usable:
+        with open_scene(s) as sc:
+            digest = sc.sha256()
+            if positions and not sc.info.georeferenced:
+                raise ParameterError(
+                    f"{Path(s).name} has no georeference: positions in longitude and latitude need one"
+                )
+            for p in positions:
+                col, row = (float(v) for v in geodesy.lonlat_to_pixel(sc.georef, p.lon, p.lat))
+                if 0 <= col < sc.width and 0 <= row < sc.height:
+                    req = replace(base, vessel_lonlat=(p.lon, p.lat), vessel_px=None)
+                    tasks.append(BatchTask(str(Path(s).resolve()), digest, p.name, req.to_json()))
+            for i, c in enumerate(found.get(s, []), 1):
+                req = replace(base, vessel_px=tuple(c["px"]), vessel_lonlat=None)
+                tasks.append(BatchTask(str(Path(s).resolve()), digest, f"found {i}", req.to_json()))
+    if not tasks:
+        raise ParameterError(
+            "no vessel lies in the given scenes" + "".join(f"; {n} not used: {w}" for n, w in unreadable)
+        )
+    return tasks, unreadable
+
+
+def run(
+    tasks: Sequence[BatchTask],
+    out: str | Path,
+    *,
+    client=None,
+    progress: Callable[[int, int], None] | None = None,
+) -> Summary:
+    """Run the tasks not yet done; returns the summary (the table is written by :func:`table`)."""
+    from distributed import as_completed
+
+    out = Path(out)
+    (out / "results").mkdir(parents=True, exist_ok=True)
+    fileio.clean_stale(out / "results")
+    t0 = time.perf_counter()
+    todo = [t for t in tasks if not done(out, t)]
+    skipped = len(tasks) - len(todo)
+    n_done = n_failed = 0
+    failures: list[tuple[str, str]] = []
+    names = {t.key: f"{Path(t.scene_path).name}: {t.vessel_name}" for t in todo}
+    if todo:
+        assert client is not None
+        futures = [client.submit(run_task, t, str(out), key=f"wakemeter-{t.key}", pure=False) for t in todo]
+        for i, fut in enumerate(as_completed(futures), 1):
+            try:
+                r = fut.result()
+            except Exception as err:  # noqa: BLE001 - a task lost for good (its worker died too often)
+                r = {"key": "", "status": "failed", "reason": f"the task was lost: {err!r}"}
+            if r["status"] == "done":
+                n_done += 1
+            else:
+                n_failed += 1
+                failures.append((names.get(r["key"], "?"), r.get("reason") or "unknown"))
+            if progress is not None:
+                progress(i, len(todo))
+    return Summary(len(tasks), skipped, n_done, n_failed, time.perf_counter() - t0, tuple(failures))
+
+
+COLUMNS = (
+    "scene",
+    "vessel",
+    "status",
+    "lon",
+    "lat",
+    "col",
+    "row",
+    "speed_kn",
+    "speed_ci95_low_kn",
+    "speed_ci95_high_kn",
+    "speed_basis",
+    "heading_deg",
+    "heading_std_deg",
+    "regime",
+    "method",
+    "reason",
+    "key",
+)
+
+
+def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
+    out_rows = []
+    for t in tasks:
+        try:
+            rec = json.loads(result_path(out, t).read_text())
+        except (OSError, ValueError):
+            rec = {"status": "not run"}
+        r = rec.get("result") or {}
+        codes = {c.get("code") for c in r.get("cautions", []) if isinstance(c, dict)}
+        ci = r.get("speed_ci95_mps") or [None, None]
+        ll = r.get("vessel_lonlat") or [None, None]
+        px = r.get("vessel_px") or [None, None]
+        out_rows.append(
+            {
+                "scene": Path(t.scene_path).name,
+                "vessel": t.vessel_name,
+                "status": rec.get("status"),
+                "lon": ll[0],
+                "lat": ll[1],
+                "col": px[0],
+                "row": px[1],
+                "speed_kn": None if r.get("speed_mps") is None else r["speed_mps"] / KNOT_MPS,
+                "speed_ci95_low_kn": None if ci[0] is None else ci[0] / KNOT_MPS,
+                "speed_ci95_high_kn": None if ci[1] is None else ci[1] / KNOT_MPS,
+                "speed_basis": "over ground" if "over-ground" in codes else "through the water",
+                "heading_deg": r.get("heading_deg"),
+                "heading_std_deg": r.get("heading_std_deg"),
+                "regime": r.get("regime"),
+                "method": " + ".join(m["name"] for m in r.get("methods", [])) or None,
+                "reason": rec.get("reason") or (None if r.get("wake_found", True) else r.get("decision")),
+                "key": t.key,
+            }
+        )
+    return out_rows
+
+
+def table(tasks: Sequence[BatchTask], out: str | Path) -> tuple[Path, Path | None]:
+    """``results.csv`` and, when any vessel has a longitude and latitude, ``results.gpkg``."""
+    import io
+
+    import shapely
+
+    from ..evidence.gis import Feature, write_features
+
+    out = Path(out)
+    rs = rows(tasks, out)
+    buf = io.StringIO()
+    w = csv.DictWriter(buf, fieldnames=COLUMNS)
+    w.writeheader()
+    for r in rs:
+        w.writerow({k: ("" if v is None else (f"{v:.6g}" if isinstance(v, float) else v)) for k, v in r.items()})
+    csv_path = fileio.atomic_write_bytes(out / "results.csv", buf.getvalue().encode())
+    feats = [
+        Feature("vessels", shapely.Point(r["lon"], r["lat"]), {k: r[k] for k in COLUMNS if k not in ("lon", "lat")})
+        for r in rs
+        if r["lon"] is not None
+    ]
+    gpkg = None
+    if feats:
+        try:
+            gpkg = write_features(out / "results.gpkg", feats, force=True)
+        except WakemeterError:
+            gpkg = None
+    return csv_path, gpkg

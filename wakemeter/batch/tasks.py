@@ -1,0 +1,79 @@
+"""What one batch task is and does.
+
+A task carries paths and plain data only (the scene's path and SHA-256, the vessel's name and its analysis
+request as JSON): the worker opens its own window of the scene, so nothing large travels through the
+scheduler.  Its key is the SHA-256 of the scene's digest, the request and the software version, so a rerun
+finds what is done.  The result is written by the worker itself, atomically, as ``results/<key>.json``.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import traceback
+from dataclasses import asdict, dataclass
+from pathlib import Path
+
+from .. import __version__, fileio
+
+
+@dataclass(frozen=True)
+class BatchTask:
+    scene_path: str
+    scene_sha256: str
+    vessel_name: str
+    request: dict  #: AnalysisRequest.to_json()
+
+    @property
+    def key(self) -> str:
+        text = json.dumps([self.scene_sha256, self.request, __version__], sort_keys=True)
+        return hashlib.sha256(text.encode()).hexdigest()[:32]
+
+
+def result_path(out: Path, task: BatchTask) -> Path:
+    return out / "results" / f"{task.key}.json"
+
+
+def done(out: Path, task: BatchTask) -> bool:
+    """True when a finished (not failed) result of this very task is on disk."""
+    p = result_path(out, task)
+    try:
+        return json.loads(p.read_text()).get("status") == "done"
+    except (OSError, ValueError):
+        return False
+
+
+def run_task(task: BatchTask, out: str) -> dict:
+    """Analyse one vessel (on a worker); never raises: a failure is recorded with its reason."""
+    import cv2
+
+    from ..detect.analysis import analyze
+    from ..detect.request import AnalysisRequest
+    from ..errors import WakemeterError
+    from ..scene.raster import open_scene
+
+    cv2.setNumThreads(1)  # one thread per task: workers do not fight over the cores
+    record: dict = {"task": asdict(task), "key": task.key, "software": f"wakemeter {__version__}"}
+    try:
+        with open_scene(task.scene_path) as scene:
+            if scene.sha256() != task.scene_sha256:
+                raise WakemeterError(f"{Path(task.scene_path).name} changed after the batch was planned")
+            a = analyze(scene, AnalysisRequest.from_json(task.request))
+        record.update(status="done", result=a.to_json())
+    except WakemeterError as err:
+        record.update(status="failed", reason=str(err))
+    except Exception as err:  # noqa: BLE001 - one vessel's unexpected failure must not stop the others
+        record.update(status="failed", reason=f"unexpected error: {err!r}", trace=traceback.format_exc(limit=5))
+    target = result_path(Path(out), task)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    fileio.atomic_write_bytes(target, (json.dumps(record, indent=1, default=str) + "\n").encode())
+    return {"key": task.key, "status": record["status"], "reason": record.get("reason")}
+
+
+def find_task(scene_path: str, pfa_per_km2: float) -> list[dict]:
+    """Find the vessels of one scene (on a worker): their candidates as JSON."""
+    from ..detect.vessel_finder import find_vessels
+    from ..scene.raster import open_scene
+
+    with open_scene(scene_path) as scene:
+        return [c.to_json() for c in find_vessels(scene, pfa_per_km2=pfa_per_km2)]
