@@ -427,3 +427,41 @@ def test_position_reports_layer_comparison_and_map_layers(win, qtbot, tmp_path):
     pos.write_text("name,lon,lat\nGrey Heron,-34.999,36.001\nFar Away,10,10\n")
     assert win.controller.import_vessels(str(pos)) == 1
     assert "Grey Heron" in [v.name for v in win.doc.vessels.values()]
+
+
+def test_find_vessels_then_analyse_all(qtbot, tmp_path, monkeypatch):
+    # a Sentinel-2-like fleet of known truth (wakemeter.synth.fleet): every vessel is found and marked, in one
+    # undo step; Analyse all then runs them in the background
+    from wakemeter.synth import write
+    from wakemeter.synth.fleet import fleet_spec
+    from wakemeter.synth.multispectral import BANDS, MultispectralLook, render_multispectral
+
+    tif, _ = write(
+        render_multispectral(fleet_spec(3, seed=2, size=512, pixel_m=10.0), MultispectralLook()).rendered,
+        tmp_path / "fleet.tif",
+        band_names=BANDS,
+    )
+    truth = json.loads(tif.with_suffix(".truth.json").read_text())["vessels"]
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    w = MainWindow()
+    qtbot.addWidget(w)
+    assert w.open_path(str(tif))
+    w.find_vessels(whole=True)
+    qtbot.waitUntil(lambda: w.job is None, timeout=60_000)
+    assert len(w.doc.vessels) == len(truth)
+    for v in truth:
+        assert (
+            min(
+                (p.position[0] - v["pixel_col"]) ** 2 + (p.position[1] - v["pixel_row"]) ** 2
+                for p in w.doc.vessels.values()
+            )
+            < 9.0
+        )
+    w.doc.undo.undo()  # all of them in one step
+    assert len(w.doc.vessels) == 0
+    w.doc.undo.redo()
+    w.controller.analyse_all()
+    qtbot.waitUntil(lambda: w.job is None and not w.controller.queue, timeout=120_000)
+    assert len(w.doc.findings) == len(truth)
+    w.close()

@@ -153,6 +153,11 @@ class MainWindow(QMainWindow):
         run.triggered.connect(lambda: self.controller.analyse_selected())
         tb.addAction(run)
         self.toolbar = tb
+        fv = mb.addMenu("Ve&ssels")
+        fv.addAction("Find vessels in &view", lambda: self.find_vessels(whole=False))
+        fv.addAction("Find vessels in the whole &scene", lambda: self.find_vessels(whole=True))
+        fv.addAction("&Analyse all vessels", lambda: self.controller.analyse_all())
+        self.vessels_menu = fv
         hm = mb.addMenu("&Help")
         hm.addAction("&Keys and tools", lambda: self._show_text("Keys and tools", help_texts.keys_text(TOOL_INFO)))
         hm.addAction(
@@ -422,6 +427,45 @@ class MainWindow(QMainWindow):
         path, _ = QFileDialog.getOpenFileName(self, "Open session", "", "wakemeter sessions (*.json)")
         if path:
             self.controller.open_session(path)
+
+    def find_vessels(self, *, whole: bool) -> None:
+        """Find vessel-like targets (in the view, or the whole scene) in the background; each becomes a vessel
+        named "found N" (one undo step for all); delete the ones that are not vessels, then Analyse all."""
+        sc = self.doc.scene
+        if sc is None:
+            self.say("open a scene first")
+            return
+        if whole:
+            area = (0, 0, sc.width, sc.height)
+        else:
+            o = self.canvas.origin
+            w, h = self.canvas.width() / self.canvas.zoom, self.canvas.height() / self.canvas.zoom
+            c0, r0 = max(int(o.x()), 0), max(int(o.y()), 0)
+            area = (c0, r0, int(min(o.x() + w, sc.width)) - c0, int(min(o.y() + h, sc.height)) - r0)
+
+        def work(progress, cancelled):
+            from ..detect.vessel_finder import find_vessels
+
+            return find_vessels(sc, area=area, progress=lambda f: progress(f, ""), cancelled=cancelled)
+
+        def done(cands) -> None:
+            from ..project.model import Vessel
+            from .document import AddItem
+
+            if not cands:
+                self.say("no vessel-like target found here")
+                return
+            self.doc.undo.beginMacro(f"find {len(cands)} vessels")
+            for i, c in enumerate(cands, 1):
+                name = f"found {i} ({c.length_m:.0f} m)"
+                self.doc.undo.push(AddItem(self.doc, Vessel(self.doc.new_id(), name, c.px), "found vessel"))
+            self.doc.undo.endMacro()
+            self.say(
+                f"{len(cands)} vessel-like target(s) marked 'found N': delete those that are not vessels (Delete), "
+                "then Vessels → Analyse all"
+            )
+
+        self.run_job(Job(work, "finding vessels"), done)
 
     def load_reports_dialog(self) -> None:
         path, _ = QFileDialog.getOpenFileName(
