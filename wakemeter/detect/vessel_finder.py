@@ -46,6 +46,8 @@ MAX_LENGTH_M = 450.0
 MAX_AREA_M2 = 40_000.0
 #: the share of a window's water whose excesses model the tail of the sea clutter
 TAIL_SHARE = 0.01
+#: pixels above this multiple of the normal threshold (hulls, fresh foam) are left out of the sea's tail
+CENSOR_FACTOR = 1.0
 #: a detection more than this share of which lies next to dry land (NDWI <= 0) is a quay edge, not a hull;
 #: a moored hull touches its quay along one side only
 DRY_SHARE_MAX = 0.5
@@ -81,21 +83,51 @@ class VesselCandidate:
         }
 
 
+class _Ring:
+    """Mean and standard deviation of the valid pixels in the ring between the guard and background windows.
+
+    The clutter varies slowly against the ring's size, so the sums are taken on blocks of about a sixth of
+    the guard window and the ring on that coarse grid (to within a block of the exact ring), then spread back
+    to the pixels: the cost no longer grows with the window sizes.  The count of valid pixels is shared by
+    every band of a window."""
+
+    def __init__(self, valid: np.ndarray, guard: int, back: int):
+        self.f = f = max(1, guard // 6)
+        self.h, self.w = valid.shape
+        self.hh, self.ww = -(-self.h // f) * f, -(-self.w // f) * f
+        self.g = max(1, int(round(guard / f)))
+        self.bk = max(self.g + 2, int(round(back / f)))
+        v = np.zeros((self.hh, self.ww), np.float32)
+        v[: self.h, : self.w] = valid
+        self.valid = valid
+        self.n = np.maximum(self._ring(self._blocks(v)), 1.0)
+        self.rows = np.minimum(np.arange(self.h) // f, self.hh // f - 1)
+        self.cols = np.minimum(np.arange(self.w) // f, self.ww // f - 1)
+
+    def _blocks(self, a: np.ndarray) -> np.ndarray:
+        f = self.f
+        return a.reshape(self.hh // f, f, self.ww // f, f).sum(axis=(1, 3), dtype=np.float64)
+
+    def _ring(self, a: np.ndarray) -> np.ndarray:
+        g, bk = self.g, self.bk
+        return ndimage.uniform_filter(a, size=bk, mode="reflect") * (bk * bk) - ndimage.uniform_filter(
+            a, size=g, mode="reflect"
+        ) * (g * g)
+
+    def stats(self, img: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        x = np.zeros((self.hh, self.ww), np.float32)
+        x[: self.h, : self.w] = np.where(self.valid, img, 0.0)
+        s1, s2 = self._ring(self._blocks(x)), self._ring(self._blocks(x * x))
+        mean = s1 / self.n
+        sd = np.sqrt(np.maximum(s2 / self.n - mean * mean, 1e-12))
+        return self._up(mean), self._up(sd)
+
+    def _up(self, a: np.ndarray) -> np.ndarray:
+        return a.astype(np.float32)[self.rows[:, None], self.cols[None, :]]
+
+
 def _ring_stats(img: np.ndarray, valid: np.ndarray, guard: int, back: int) -> tuple[np.ndarray, np.ndarray]:
-    """Mean and standard deviation of the valid pixels in the ring between the guard and background windows."""
-    w = valid.astype(np.float64)
-    x = np.where(valid, img, 0.0).astype(np.float64)
-
-    def box(a: np.ndarray, size: int) -> np.ndarray:
-        return ndimage.uniform_filter(a, size=size, mode="reflect") * size * size
-
-    n = box(w, back) - box(w, guard)
-    s1 = box(x, back) - box(x, guard)
-    s2 = box(x * x, back) - box(x * x, guard)
-    n = np.maximum(n, 1.0)
-    mean = s1 / n
-    var = np.maximum(s2 / n - mean * mean, 1e-12)
-    return mean, np.sqrt(var)
+    return _Ring(valid, guard, back).stats(img)
 
 
 def find_vessels(
@@ -142,7 +174,7 @@ def find_vessels(
         ok = np.all(valid, axis=0)
         nir = _nir_band(scene)
         if radar:
-            det, score, pfa_map = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
+            det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
             water = ok
             locate = score
         else:
@@ -150,12 +182,12 @@ def find_vessels(
             if gn is not None:
                 g, n = data[idx[gn[0]]], data[idx[gn[1]]]
                 ndwi = (g - n) / np.maximum(g + n, 1e-6)
-                water &= ndwi > 0.0
+                water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px)
             zs = _anomaly_optical([data[idx[b]] for b in bands], water, guard, back)
-            det, score, pfa_map = _threshold(zs, water, pfa_px)
+            det, score, pfa_at = _threshold(zs, water, pfa_px)
             # the hull is told from its foam in the near infrared, where foam is far darker than a hull
             locate = zs[bands.index(nir)] if nir in bands else score
-        found += _blobs(scene, det, score, locate, pfa_map, water, ok, win, core, m_px, frame)
+        found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame)
         if progress is not None:
             progress((k + 1) / len(tiles))
     return sorted(found, key=lambda c: -c.score)
@@ -175,8 +207,25 @@ def _cfar_radar(img, ok, guard, back, pfa_px):
     thr = stats.gamma.isf(pfa_px, a=looks, scale=np.maximum(mean, 1e-12) / looks)
     ratio = img / np.maximum(thr, 1e-12)
     det = ok & (img > thr)
-    pfa_map = stats.gamma.sf(np.where(ok, img, 0.0), a=looks, scale=np.maximum(mean, 1e-12) / looks)
-    return det, ratio, pfa_map
+
+    def pfa_at(r: int, c: int) -> float:
+        return float(stats.gamma.sf(img[r, c], a=looks[r, c], scale=max(float(mean[r, c]), 1e-12) / looks[r, c]))
+
+    return det, ratio, pfa_at
+
+
+def _islands(dry: np.ndarray, m_px: float) -> np.ndarray:
+    """Dry patches no larger than a ship that do not touch the window's edge: hulls (a white deck can be as
+    'dry' by NDWI as a quay) or rocks, to be judged as targets on the water rather than masked as land."""
+    lab, n = ndimage.label(dry)
+    if n == 0:
+        return np.zeros_like(dry)
+    sizes = np.bincount(lab.ravel())
+    edge = np.unique(np.concatenate([lab[0], lab[-1], lab[:, 0], lab[:, -1]]))
+    small = sizes * m_px * m_px <= MAX_AREA_M2
+    small[0] = False
+    small[edge] = False
+    return small[lab]
 
 
 def _nir_band(scene: Scene) -> int | None:
@@ -186,9 +235,10 @@ def _nir_band(scene: Scene) -> int | None:
 
 def _anomaly_optical(bands, water, guard, back) -> list[np.ndarray]:
     """Each band standardised on the ring of water around each pixel."""
+    ring = _Ring(water, guard, back)
     out = []
     for b in bands:
-        mean, sd = _ring_stats(b, water, guard, back)
+        mean, sd = ring.stats(b)
         out.append((b - mean) / sd)
     return out
 
@@ -200,8 +250,12 @@ def _threshold(zs, water, pfa_px):
     Statistical Modeling of Extreme Values, the generalised Pareto with shape 0)."""
     z_max = np.max(np.stack(zs), axis=0)
     thr = float(stats.norm.isf(pfa_px))
-    pfa_map = stats.norm.sf(z_max)
-    sea = z_max[water]
+    tail: tuple[float, float] | None = None
+    # censored: what stands out at the normal threshold (hulls, their foam) and its surroundings are left out
+    # of the sea's own tail, or a scene holding a large wake would hide its own vessel
+    sea = z_max[water & ~ndimage.binary_dilation(z_max > CENSOR_FACTOR * thr, iterations=3)]
+    if sea.size > 200_000:  # the tail from a regular sample of the sea (its order does not matter)
+        sea = sea[:: sea.size // 200_000]
     if sea.size > 2000:
         u = float(np.percentile(sea, 100 * (1 - TAIL_SHARE)))
         excess = sea[sea > u] - u
@@ -211,18 +265,24 @@ def _threshold(zs, water, pfa_px):
         if beta > 0:
             thr_tail = u + beta * math.log(TAIL_SHARE / pfa_px)
             if thr_tail > thr:
-                thr = thr_tail
-                pfa_map = np.where(z_max > u, TAIL_SHARE * np.exp(-np.minimum((z_max - u) / beta, 700.0)), 1.0)
+                thr, tail = thr_tail, (u, beta)
     det = water & (z_max > thr)
-    return det, z_max, pfa_map
+
+    def pfa_at(r: int, c: int) -> float:
+        z = float(z_max[r, c])
+        if tail is None:
+            return float(stats.norm.sf(z))
+        return TAIL_SHARE * math.exp(-min((z - tail[0]) / tail[1], 700.0)) if z > tail[0] else 1.0
+
+    return det, z_max, pfa_at
 
 
-def _blobs(scene, det, score, locate, pfa_map, water, ok, win, core, m_px, frame) -> list[VesselCandidate]:
+def _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame) -> list[VesselCandidate]:
     lab, n = ndimage.label(det, structure=np.ones((3, 3)))
     if n == 0:
         return []
     # land next to a blob: the blob is a quay edge or a moored hull against it (dry pixels within 2 px)
-    dry = ndimage.binary_dilation(ok & ~water, iterations=2)
+    land = ok & ~water
     out = []
     objects = ndimage.find_objects(lab)
     for i, sl in enumerate(objects, start=1):
@@ -230,7 +290,14 @@ def _blobs(scene, det, score, locate, pfa_map, water, ok, win, core, m_px, frame
             continue
         m = lab[sl] == i
         npx = int(m.sum())
-        if npx < MIN_PIXELS or np.mean(dry[sl][m]) > DRY_SHARE_MAX:
+        if npx < MIN_PIXELS:
+            continue
+        r0_, c0_ = max(sl[0].start - 2, 0), max(sl[1].start - 2, 0)
+        near = ndimage.binary_dilation(land[r0_ : sl[0].stop + 2, c0_ : sl[1].stop + 2], iterations=2)
+        near = near[
+            sl[0].start - r0_ : sl[0].start - r0_ + m.shape[0], sl[1].start - c0_ : sl[1].start - c0_ + m.shape[1]
+        ]
+        if np.mean(near[m]) > DRY_SHARE_MAX:
             continue
         # the hull: the part of the blob above half its peak that holds the peak (foam behind a moving hull is
         # bright too, but less so, above all in the near infrared)
@@ -278,7 +345,7 @@ def _blobs(scene, det, score, locate, pfa_map, water, ok, win, core, m_px, frame
                 width_m,
                 bearing,
                 float(score[rr[k], cc[k]]),
-                float(pfa_map[rr[k], cc[k]]),
+                pfa_at(int(rr[k]), int(cc[k])),
                 npx_core,
             )
         )
