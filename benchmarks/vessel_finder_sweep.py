@@ -20,7 +20,6 @@ import time
 from pathlib import Path
 
 import numpy as np
-import rasterio
 from scipy import ndimage
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -28,8 +27,10 @@ sys.path.insert(0, str(ROOT))
 from wakemeter.detect.vessel_finder import PFA_PER_KM2, find_vessels  # noqa: E402
 from wakemeter.scene.raster import open_scene  # noqa: E402
 
+sys.path.insert(0, str(ROOT / "benchmarks"))
+from real_sweep import _stack as stack  # noqa: E402  the four bands of a port scene in one file
+
 REAL = ROOT.parent / "shared" / "realdata" / "sentinel2_ports"
-BANDS = ("B02", "B03", "B04", "B08")
 SIZE_CLASSES = ((0, 20), (20, 60), (60, 200), (200, 10**9))  #: outline pixels (10 m map pixels)
 RECORD = ROOT / "benchmarks" / "results" / "vessel_finder_sweep.json"
 
@@ -46,22 +47,6 @@ def rle_mask(seg: dict) -> np.ndarray:
         pos += n
         val = not val
     return flat.reshape((w, h)).T
-
-
-def stack(port_dir: Path, tmp: Path) -> Path | None:
-    files = [next(iter(sorted(port_dir.glob(f"*_S2L2A_{b}.tif"))), None) for b in BANDS]
-    if any(f is None for f in files):
-        return None
-    out = tmp / f"{port_dir.name}_S2L2A_stack.tif"
-    with rasterio.open(files[0]) as first:
-        prof = first.profile.copy()
-    prof.update(count=4, compress="deflate")
-    with rasterio.open(out, "w", **prof) as dst:
-        for i, f in enumerate(files):
-            with rasterio.open(f) as src:
-                dst.write(src.read(1), i + 1)
-            dst.set_band_description(i + 1, BANDS[i])
-    return out
 
 
 TILES = ROOT.parent / "shared" / "realdata" / "sentinel2_sea_tiles" / "index.csv"

@@ -87,3 +87,18 @@ def test_batch_command(setup, capsys):
     assert "1 analysed" in said and (out / "results.csv").exists()
     assert main([*argv, "--vessel", "-35,36"]) == 2
     assert "not --vessel" in capsys.readouterr().err
+
+
+def test_batch_table_compares_with_position_reports(setup, capsys):
+    # the demo's invented reports (sample_scenes/channel_two_vessels_reports.csv): the pilot boat reports its
+    # true 9.0 kn, the coaster reports 10.0 kn while its wake says 16.0 kn
+    d, _c = setup
+    out = d / "with_reports"
+    argv = ["batch", str(d / "channel_two_vessels.tif"), "--vessels", str(d / "vessels.csv"), "--out", str(out)]
+    argv += ["--reports", str(ROOT / "sample_scenes" / "channel_two_vessels_reports.csv"), "--workers", "1"]
+    assert main(argv) == 0
+    got = {r["vessel"]: r for r in csv.DictReader(open(out / "results.csv"))}
+    assert got["Merrow Pilot 2"]["report_verdict"] == "consistent" and got["Merrow Pilot 2"]["report_id"] == "990000101"
+    assert (
+        got["Brackenfield"]["report_verdict"] == "inconsistent" and "6.0 kn more" in got["Brackenfield"]["report_text"]
+    )

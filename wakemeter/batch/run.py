@@ -164,6 +164,9 @@ COLUMNS = (
     "regime",
     "method",
     "reason",
+    "report_verdict",
+    "report_id",
+    "report_text",
     "key",
 )
 
@@ -198,14 +201,51 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
                 "regime": r.get("regime"),
                 "method": " + ".join(m["name"] for m in r.get("methods", [])) or None,
                 "reason": rec.get("reason") or (None if r.get("wake_found", True) else r.get("decision")),
+                "report_verdict": None,
+                "report_id": None,
+                "report_text": None,
                 "key": t.key,
             }
         )
     return out_rows
 
 
-def table(tasks: Sequence[BatchTask], out: str | Path) -> tuple[Path, Path | None]:
-    """``results.csv`` and, when any vessel has a longitude and latitude, ``results.gpkg``."""
+def compare_reports(tasks: Sequence[BatchTask], out: Path, reports: Sequence, rs: list[dict], *, gate_m: float) -> None:
+    """Fill the report columns: each scene's vessels matched one to one with the reports at its time."""
+    from ..positions.match import compare_results, scene_time
+    from ..scene.raster import open_scene
+
+    by_scene: dict[str, list[int]] = {}
+    for i, t in enumerate(tasks):
+        by_scene.setdefault(t.scene_path, []).append(i)
+    for path, idx in by_scene.items():
+        with open_scene(path) as sc:
+            acquired = sc.info.acquisition_time
+        named = []
+        for i in idx:
+            try:
+                rec = json.loads(result_path(out, tasks[i]).read_text())
+            except (OSError, ValueError):
+                rec = {}
+            named.append((tasks[i].vessel_name, rec.get("result") or {}))
+        try:
+            comps, _unmatched = compare_results(named, reports, scene_time(acquired, None), gate_m=gate_m)
+        except WakemeterError as err:
+            for i in idx:
+                rs[i]["report_text"] = f"not compared: {err}"
+            continue
+        for i, c in zip(idx, comps, strict=True):
+            if c is not None:
+                rs[i].update(
+                    report_verdict=c.verdict, report_id=c.reported and c.reported.vessel_id, report_text=c.text
+                )
+
+
+def table(
+    tasks: Sequence[BatchTask], out: str | Path, *, reports: Sequence = (), gate_m: float = 500.0
+) -> tuple[Path, Path | None]:
+    """``results.csv`` and, when any vessel has a longitude and latitude, ``results.gpkg``; with position
+    reports, each vessel's verdict against them."""
     import io
 
     import shapely
@@ -214,6 +254,8 @@ def table(tasks: Sequence[BatchTask], out: str | Path) -> tuple[Path, Path | Non
 
     out = Path(out)
     rs = rows(tasks, out)
+    if reports:
+        compare_reports(tasks, out, reports, rs, gate_m=gate_m)
     buf = io.StringIO()
     w = csv.DictWriter(buf, fieldnames=COLUMNS)
     w.writeheader()

@@ -18,6 +18,9 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--pfa", type=float, default=1e-3, metavar="PER_KM2", help="finder's false-alarm rate per km²")
     p.add_argument("--scheduler", metavar="ADDRESS", help="an existing dask scheduler (default: a local cluster)")
     p.add_argument("--workers", type=int, default=2, metavar="N", help="local worker processes (default 2)")
+    p.add_argument("--reports", metavar="FILE", help="vessel position reports (CSV or NMEA) to compare with")
+    p.add_argument("--report-columns", metavar="FIELD=NAME,...", help="CSV column names when they are not the usual")
+    p.add_argument("--match-distance", type=float, default=500.0, metavar="M", help="farthest report to match (m)")
     add_request_options(p)
 
 
@@ -39,6 +42,11 @@ def run(args: argparse.Namespace) -> int:
         raise ParameterError("batch takes its vessels from --vessels FILE or --find, not --vessel")
     args.vessel = "0,0"  # the base request: every task puts its own vessel position in
     base = request_from_args(args)
+    reports: list = []
+    if args.reports:  # read before the cluster starts: a bad file is said at once
+        from ..positions.reports import parse_columns, read_reports
+
+        reports = read_reports(args.reports, parse_columns(args.report_columns))
     client, cluster = _client(args.scheduler, args.workers)
     try:
         tasks, unreadable = plan(
@@ -57,7 +65,7 @@ def run(args: argparse.Namespace) -> int:
         client.close()
         if cluster is not None:
             cluster.close()
-    csv_path, gpkg = table(tasks, out)
+    csv_path, gpkg = table(tasks, out, reports=reports, gate_m=args.match_distance)
     print(summary.text())
     print(f"wrote {csv_path}" + (f" and {gpkg}" if gpkg else ""))
     print(CAUTION_LINE)
