@@ -102,3 +102,30 @@ def test_batch_table_compares_with_position_reports(setup, capsys):
     assert (
         got["Brackenfield"]["report_verdict"] == "inconsistent" and "6.0 kn more" in got["Brackenfield"]["report_text"]
     )
+
+
+def test_a_killed_worker_has_its_task_redone(setup, tmp_path):
+    # the first task kills its own worker process (a test hook, wakemeter.batch.tasks.DIE_ONCE_ENV); the
+    # scheduler gives the task to another worker and the batch still finishes every vessel
+    from distributed import Client, LocalCluster
+
+    from wakemeter.batch.tasks import DIE_ONCE_ENV
+
+    d, _c = setup
+    marker = tmp_path / "died"
+    cluster = LocalCluster(
+        n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0", env={DIE_ONCE_ENV: str(marker)}
+    )
+    client = Client(cluster)
+    try:
+        tasks, _ = plan(
+            [str(d / "channel_two_vessels.tif")],
+            AnalysisRequest(vessel_lonlat=(0.0, 0.0)),
+            vessels_file=str(d / "vessels.csv"),
+        )
+        s = run(tasks, tmp_path / "out", client=client)
+    finally:
+        client.close()
+        cluster.close()
+    assert marker.exists()  # a worker did die
+    assert (s.done, s.failed) == (2, 0)

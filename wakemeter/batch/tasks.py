@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import os
 import traceback
 from dataclasses import asdict, dataclass
 from pathlib import Path
@@ -53,6 +54,7 @@ def run_task(task: BatchTask, out: str) -> dict:
     from ..scene.raster import open_scene
 
     cv2.setNumThreads(1)  # one thread per task: workers do not fight over the cores
+    _fault_injection()
     record: dict = {"task": asdict(task), "key": task.key, "software": f"wakemeter {__version__}"}
     try:
         with open_scene(task.scene_path) as scene:
@@ -68,6 +70,22 @@ def run_task(task: BatchTask, out: str) -> dict:
     target.parent.mkdir(parents=True, exist_ok=True)
     fileio.atomic_write_bytes(target, (json.dumps(record, indent=1, default=str) + "\n").encode())
     return {"key": task.key, "status": record["status"], "reason": record.get("reason")}
+
+
+#: test hook for worker deaths: when this variable names a file that does not exist yet, the first task to
+#: see it creates the file and kills its own worker process (tests set it in the workers' environment)
+DIE_ONCE_ENV = "WAKEMETER_TEST_DIE_ONCE"
+
+
+def _fault_injection() -> None:
+    marker = os.environ.get(DIE_ONCE_ENV)
+    if marker:
+        try:
+            fd = os.open(marker, os.O_CREAT | os.O_EXCL | os.O_WRONLY)
+        except FileExistsError:
+            return
+        os.close(fd)
+        os._exit(3)
 
 
 def find_task(scene_path: str, pfa_per_km2: float) -> list[dict]:
