@@ -23,6 +23,7 @@ import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
+import cv2
 import numpy as np
 from scipy import ndimage, stats
 
@@ -97,16 +98,18 @@ class _Ring:
         self.hh, self.ww = -(-self.h // f) * f, -(-self.w // f) * f
         self.g = max(1, int(round(guard / f)))
         self.bk = max(self.g + 2, int(round(back / f)))
-        v = np.zeros((self.hh, self.ww), np.float32)
-        v[: self.h, : self.w] = valid
         self.valid = valid
-        self.n = np.maximum(self._ring(self._blocks(v)), 1.0)
-        self.rows = np.minimum(np.arange(self.h) // f, self.hh // f - 1)
-        self.cols = np.minimum(np.arange(self.w) // f, self.ww // f - 1)
+        self.n = np.maximum(self._ring(self._blocks(valid.astype(np.float32))), 1.0)
 
     def _blocks(self, a: np.ndarray) -> np.ndarray:
+        """Sums over f x f blocks (OpenCV's area resampling is the block mean when the size divides)."""
         f = self.f
-        return a.reshape(self.hh // f, f, self.ww // f, f).sum(axis=(1, 3), dtype=np.float64)
+        pad = np.zeros((self.hh, self.ww), np.float32)
+        pad[: self.h, : self.w] = a
+        if f == 1:
+            return pad.astype(np.float64)
+        small = cv2.resize(pad, (self.ww // f, self.hh // f), interpolation=cv2.INTER_AREA)
+        return small.astype(np.float64) * (f * f)
 
     def _ring(self, a: np.ndarray) -> np.ndarray:
         g, bk = self.g, self.bk
@@ -115,15 +118,18 @@ class _Ring:
         ) * (g * g)
 
     def stats(self, img: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        x = np.zeros((self.hh, self.ww), np.float32)
-        x[: self.h, : self.w] = np.where(self.valid, img, 0.0)
+        # centred on a typical value first: squares of large numbers would lose the small spread in float32
+        sample = img[self.valid][:: max(1, int(self.valid.sum()) // 10_000)]
+        offset = float(np.median(sample)) if sample.size else 0.0
+        x = np.where(self.valid, img - offset, 0.0).astype(np.float32)
         s1, s2 = self._ring(self._blocks(x)), self._ring(self._blocks(x * x))
         mean = s1 / self.n
         sd = np.sqrt(np.maximum(s2 / self.n - mean * mean, 1e-12))
-        return self._up(mean), self._up(sd)
+        return self._up(mean) + np.float32(offset), self._up(sd)
 
     def _up(self, a: np.ndarray) -> np.ndarray:
-        return a.astype(np.float32)[self.rows[:, None], self.cols[None, :]]
+        big = cv2.resize(a.astype(np.float32), (self.ww, self.hh), interpolation=cv2.INTER_NEAREST)
+        return big[: self.h, : self.w]
 
 
 def _ring_stats(img: np.ndarray, valid: np.ndarray, guard: int, back: int) -> tuple[np.ndarray, np.ndarray]:
@@ -253,7 +259,8 @@ def _threshold(zs, water, pfa_px):
     tail: tuple[float, float] | None = None
     # censored: what stands out at the normal threshold (hulls, their foam) and its surroundings are left out
     # of the sea's own tail, or a scene holding a large wake would hide its own vessel
-    sea = z_max[water & ~ndimage.binary_dilation(z_max > CENSOR_FACTOR * thr, iterations=3)]
+    strong = cv2.dilate((z_max > CENSOR_FACTOR * thr).astype(np.uint8), np.ones((7, 7), np.uint8))
+    sea = z_max[water & (strong == 0)]
     if sea.size > 200_000:  # the tail from a regular sample of the sea (its order does not matter)
         sea = sea[:: sea.size // 200_000]
     if sea.size > 2000:
