@@ -67,7 +67,7 @@ def test_no_vessel_no_candidate():
     with open_scene(ROOT / "sample_scenes" / "calm_no_wake.tif") as sc:
         assert find_vessels(sc) == []
     # real clean sea (swell, sediment, a detector seam): five tiles of 256² at 7.3 m, 17 km²; the sweep
-    # measures about 0.3 candidates per km² of clean sea in the port scenes (far above the nominal 1e-3: the
+    # measures about 0.4 candidates per km² of clean sea in the port scenes (far above the nominal 1e-3: the
     # sea's tail is heavier than the model), so at most 6 here
     found = 0
     for f in sorted(DATA.glob("*_sea.tif")):
