@@ -140,6 +140,22 @@ class AddItem(QUndoCommand):
         self.doc._remove(self.item_.id)
 
 
+class AddItems(QUndoCommand):
+    """Several items in one undo step (one command: PySide's macros of Python commands crash at exit)."""
+
+    def __init__(self, doc: Document, items: list, text: str):
+        super().__init__(text)
+        self.doc, self.items_ = doc, list(items)
+
+    def redo(self) -> None:
+        for it in self.items_:
+            self.doc._put(it)
+
+    def undo(self) -> None:
+        for it in reversed(self.items_):
+            self.doc._remove(it.id)
+
+
 class RemoveItem(QUndoCommand):
     def __init__(self, doc: Document, item_id: int):
         super().__init__("delete")

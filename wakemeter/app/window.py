@@ -450,16 +450,13 @@ class MainWindow(QMainWindow):
 
         def done(cands) -> None:
             from ..project.model import Vessel
-            from .document import AddItem
+            from .document import AddItems
 
             if not cands:
                 self.say("no vessel-like target found here")
                 return
-            self.doc.undo.beginMacro(f"find {len(cands)} vessels")
-            for i, c in enumerate(cands, 1):
-                name = f"found {i} ({c.length_m:.0f} m)"
-                self.doc.undo.push(AddItem(self.doc, Vessel(self.doc.new_id(), name, c.px), "found vessel"))
-            self.doc.undo.endMacro()
+            found = [Vessel(self.doc.new_id(), f"found {i} ({c.length_m:.0f} m)", c.px) for i, c in enumerate(cands, 1)]
+            self.doc.undo.push(AddItems(self.doc, found, f"find {len(cands)} vessels"))
             self.say(
                 f"{len(cands)} vessel-like target(s) marked 'found N': delete those that are not vessels (Delete), "
                 "then Vessels → Analyse all"
