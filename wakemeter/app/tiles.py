@@ -134,14 +134,21 @@ class _TileJob(QRunnable):
             rgb = read_tile(scene, level, tx, ty, contrast)
         except WakemeterError as err:
             self.loader.results.put(("failed", self.generation, self.key, str(err)))
-            self.loader.signals.arrived.emit()
+            self._tell()
             return
         if rgb is None:
             self.loader.results.put(("empty", self.generation, self.key, None))
         else:
             img = QImage(rgb.data, rgb.shape[1], rgb.shape[0], 3 * rgb.shape[1], QImage.Format.Format_RGB888).copy()
             self.loader.results.put(("ready", self.generation, self.key, img))
-        self.loader.signals.arrived.emit()
+        self._tell()
+
+    def _tell(self) -> None:
+        """Wake the canvas; a tile that finishes after its window was closed has nobody to tell."""
+        try:
+            self.loader.signals.arrived.emit()
+        except RuntimeError:  # "Signal source has been deleted": the window is gone
+            pass
 
 
 class TileLoader(QObject):
