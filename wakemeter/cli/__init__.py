@@ -52,7 +52,8 @@ def build_parser() -> argparse.ArgumentParser:
     sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name, c in sorted(COMMANDS.items()):
         # argparse %-formats help texts: a literal percent sign must be doubled
-        sp = sub.add_parser(name, help=c.help.replace("%", "%%"), description=c.help)
+        # no abbreviations: "--vessel" must not be taken for "--vessels"
+        sp = sub.add_parser(name, help=c.help.replace("%", "%%"), description=c.help, allow_abbrev=False)
         c.add_arguments(sp)
     return p
 

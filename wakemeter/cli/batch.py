@@ -21,7 +21,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--reports", metavar="FILE", help="vessel position reports (CSV or NMEA) to compare with")
     p.add_argument("--report-columns", metavar="FIELD=NAME,...", help="CSV column names when they are not the usual")
     p.add_argument("--match-distance", type=float, default=500.0, metavar="M", help="farthest report to match (m)")
-    add_request_options(p)
+    add_request_options(p, position=False)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -36,10 +36,6 @@ def run(args: argparse.Namespace) -> int:
 
         raise ParameterError(f"--out must be a folder, {out} is a file")
     out.mkdir(parents=True, exist_ok=True)
-    if args.vessel or args.vessel_px:
-        from ..errors import ParameterError
-
-        raise ParameterError("batch takes its vessels from --vessels FILE or --find, not --vessel")
     args.vessel = "0,0"  # the base request: every task puts its own vessel position in
     base = request_from_args(args)
     reports: list = []

@@ -42,9 +42,13 @@ def numbers(text: str, count: int, what: str) -> tuple[float, ...]:
     return values
 
 
-def add_request_options(p: argparse.ArgumentParser) -> None:
-    p.add_argument("--vessel", metavar="LON,LAT", help="vessel position in WGS 84 degrees")
-    p.add_argument("--vessel-px", metavar="COL,ROW", help="vessel position in scene pixels (instead of --vessel)")
+def add_request_options(p: argparse.ArgumentParser, *, position: bool = True) -> None:
+    """The analysis options; without ``position`` the vessel's position is not asked (batch: per task)."""
+    if position:
+        p.add_argument("--vessel", metavar="LON,LAT", help="vessel position in WGS 84 degrees")
+        p.add_argument("--vessel-px", metavar="COL,ROW", help="vessel position in scene pixels (instead of --vessel)")
+    else:
+        p.set_defaults(vessel=None, vessel_px=None)
     p.add_argument("--depth", type=float, metavar="M", help="known water depth, m")
     p.add_argument("--depth-std", type=float, default=0.0, metavar="M", help="its standard uncertainty, m")
     p.add_argument("--hull-length", type=float, metavar="M", help="hull length, m (for the fast-hull check)")

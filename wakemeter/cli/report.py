@@ -1,4 +1,4 @@
-"""``wakemeter report``: analyse a vessel and write the evidence files (PNG, PDF, JSON)."""
+"""``wakemeter report``: analyse a vessel (or a session's vessels) and write one evidence set."""
 
 from __future__ import annotations
 
@@ -117,5 +117,8 @@ def _check_folder(folder: str) -> None:
 
 
 COMMAND = Command(
-    "report", "Analyse a vessel's wake and write an annotated PNG, a PDF report and a JSON record.", add_arguments, run
+    "report",
+    "Analyse vessels' wakes and write one evidence set: PDF report, JSON record, annotated PNG per vessel, checksums.",
+    add_arguments,
+    run,
 )
