@@ -95,3 +95,20 @@ def test_cancel_and_bad_parameters(fleet):
             find_vessels(sc, pfa_per_km2=0.0)
         with pytest.raises(ParameterError, match="smaller than 16"):
             find_vessels(sc, area=(0, 0, 8, 8))
+
+
+def test_blob_shape_of_a_bar():
+    # a 40 x 6 pixel bar at 30° from the column axis: the discrete uniform distribution of n points has
+    # variance (n^2 - 1)/12 (from memory), and numpy's cov divides by N - 1 for N points (numpy documentation),
+    # so the moments give sqrt((n^2 - 1) N / (N - 1)) pixels along each axis
+    from wakemeter.detect.blob_shape import blob_shape
+
+    t = np.radians(30.0)
+    s, w = np.meshgrid(np.arange(40) - 19.5, np.arange(6) - 2.5)
+    cols = s.ravel() * np.cos(t) - w.ravel() * np.sin(t)
+    rows = -(s.ravel() * np.sin(t) + w.ravel() * np.cos(t))  # image rows grow downwards
+    length, width, axis = blob_shape(rows, cols, 10.0)
+    n_all = 40 * 6
+    assert length == pytest.approx(10.0 * np.sqrt((40**2 - 1) * n_all / (n_all - 1)), rel=1e-9)
+    assert width == pytest.approx(10.0 * np.sqrt((6**2 - 1) * n_all / (n_all - 1)), rel=1e-9)
+    assert axis == pytest.approx(30.0, abs=1e-9)

@@ -31,6 +31,7 @@ from ..errors import ParameterError
 from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
+from .blob_shape import blob_shape
 from .robust import median_spread
 
 #: dry areas by the water index: at least this wide (radius, m; at least one pixel) and larger than any hull
@@ -274,13 +275,6 @@ def _find_hull(
     tot = float(w.sum())
     r_c = float((w * rr).sum() / tot)
     c_c = float((w * cc).sum() / tot)
-    dr, dc = rr[blob] - r_c, cc[blob] - c_c
-    cov = np.cov(np.vstack([dc, -dr])) if blob.sum() > 2 else np.eye(2) * 0.1
-    evals, evecs = np.linalg.eigh(np.atleast_2d(cov))
-    major = evecs[:, -1]
-    # a uniform bar of length L has variance L^2/12 along it
-    length = float(np.sqrt(12 * max(evals[-1], 1 / 12))) * m_px
-    width = float(np.sqrt(12 * max(evals[0], 1 / 12))) * m_px
-    axis = float(np.degrees(np.arctan2(major[1], major[0])) % 180.0)
+    length, width, axis = blob_shape(rr[blob] - r_c, cc[blob] - c_c, m_px)
     core = blob & (sm > max(floor / 2, 0.5 * float(sm[pr[k], pc[k]])))
     return Hull((r_c, c_c), length, width, axis, float(sm[pr[k], pc[k]]), blob, core)

@@ -30,6 +30,7 @@ from scipy import ndimage, stats
 from ..errors import CancelledError, ParameterError
 from ..scene import display, geodesy
 from ..scene.raster import Scene
+from .blob_shape import blob_shape
 from .line_chip import green_nir_bands
 
 #: windows are read this many pixels square, plus the margin on every side
@@ -328,13 +329,10 @@ def _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame)
         col, row = win[0] + cx, win[1] + cy
         if not (core[0] <= col < core[0] + core[2] and core[1] <= row < core[1] + core[3]):
             continue  # found again by the tile whose core holds it
-        cov = np.cov(np.stack([cc, rr]).astype(float)) if npx_core > 2 else np.zeros((2, 2))
-        evals, evecs = np.linalg.eigh(cov + np.eye(2) / 12.0)  # a pixel is a square: its own spread is 1/12
-        length_px, width_px = math.sqrt(12 * evals[1]), math.sqrt(12 * evals[0])
-        length_m, width_m = length_px * m_px, width_px * m_px
+        length_m, width_m, axis = blob_shape(rr, cc, m_px)
         if length_m > MAX_LENGTH_M or npx_core * m_px * m_px > MAX_AREA_M2:
             continue
-        dc, dr = evecs[0, 1], evecs[1, 1]
+        dc, dr = math.cos(math.radians(axis)), -math.sin(math.radians(axis))
         try:
             bearing = float(frame.bearing_of(dc, dr)) % 180.0
         except Exception:  # noqa: BLE001 - no north: the angle from image up
