@@ -154,15 +154,19 @@ def _stack(port_dir: Path, tmp: Path) -> Path | None:
     return out
 
 
+def port_scenes(ports_dir: Path, tmp: Path):
+    """(port folder, its four bands stacked in one file, its COCO outlines) for every port with both."""
+    for port_dir in sorted(p for p in ports_dir.iterdir() if p.is_dir()):
+        coco = next(iter(port_dir.glob("*_coco.json")), None)
+        stack = _stack(port_dir, tmp) if coco else None
+        if stack is not None:
+            yield port_dir, stack, json.loads(coco.read_text())
+
+
 def ports(root: Path, pics: Path, tuning, eye: dict) -> list[dict]:
     rows, shots = [], []
     with tempfile.TemporaryDirectory() as tmp:
-        for port_dir in sorted((root / "sentinel2_ports").iterdir()):
-            coco = next(iter(port_dir.glob("*_coco.json")), None)
-            stack = _stack(port_dir, Path(tmp)) if coco else None
-            if stack is None:
-                continue
-            j = json.loads(coco.read_text())
+        for port_dir, stack, j in port_scenes(root / "sentinel2_ports", Path(tmp)):
             with open_scene(stack) as sc:
                 for ann in j["annotations"]:
                     h_w = ann.get("segmentation", {}).get("size") if isinstance(ann.get("segmentation"), dict) else None

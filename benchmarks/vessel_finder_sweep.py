@@ -28,7 +28,7 @@ from wakemeter.detect.vessel_finder import PFA_PER_KM2, find_vessels  # noqa: E4
 from wakemeter.scene.raster import open_scene  # noqa: E402
 
 sys.path.insert(0, str(ROOT / "benchmarks"))
-from real_sweep import _stack as stack  # noqa: E402  the four bands of a port scene in one file
+from real_sweep import port_scenes  # noqa: E402
 
 REAL = ROOT.parent / "shared" / "realdata" / "sentinel2_ports"
 SIZE_CLASSES = ((0, 20), (20, 60), (60, 200), (200, 10**9))  #: outline pixels (10 m map pixels)
@@ -76,12 +76,7 @@ def real_ports(pfa: float) -> dict:
     clean = clean_tiles()
     clean_false, clean_km2 = 0, 0.0
     with tempfile.TemporaryDirectory() as tmp:
-        for port_dir in sorted(p for p in REAL.iterdir() if p.is_dir()):
-            coco = next(iter(port_dir.glob("*_coco.json")), None)
-            path = stack(port_dir, Path(tmp)) if coco else None
-            if path is None:
-                continue
-            j = json.loads(coco.read_text())
+        for port_dir, path, j in port_scenes(REAL, Path(tmp)):
             with open_scene(path) as sc:
                 anns = [a for a in j["annotations"] if tuple(a["segmentation"]["size"]) == (sc.height, sc.width)]
                 if not anns:

@@ -2,7 +2,9 @@
 north arrow, the scale bar nor the corner coordinates, and the corners saying which number is the latitude.
 
 Found by looking at exported pictures (the box once covered the north arrow and text ran off the edge);
-checked here on the demo scenes and on a small real Sentinel-2 crop (tests/data/sentinel2, its README)."""
+checked here on the demo scenes and on a small real Sentinel-2 crop (tests/data/sentinel2, its README).
+Check values: geometry only (rectangles inside the picture and apart, the label wording); no external
+values - the rule that a map's labels stay clear of its north arrow and scale is common practice, no source."""
 
 from pathlib import Path
 

@@ -306,19 +306,18 @@ class Controller(QObject):
     def report_comparisons(self) -> tuple[dict, list]:
         """{vessel id: comparison} for every analysed vessel not rejected, matched one to one, and the
         reporting vessels matched to none."""
-        from ..positions.match import match, seen_from_result
+        from ..positions.match import compare_results
 
-        ids, seen = [], []
+        ids, named = [], []
         for vid, v in self.doc.vessels.items():
             eff = self.doc.effective_finding(vid)
-            if eff is None or vid in self.doc.rejected:
-                continue
-            s = seen_from_result(v.name, eff.to_json())
-            if s is not None:
+            if eff is not None and vid not in self.doc.rejected:
                 ids.append(vid)
-                seen.append(s)
-        comps, unmatched = match(seen, self.report_states())
-        return dict(zip(ids, comps)), unmatched
+                named.append((v.name, eff.to_json()))
+        if self.report_time is None:
+            return {}, []
+        comps, unmatched = compare_results(named, self.reports, self.report_time)
+        return {vid: c for vid, c in zip(ids, comps) if c is not None}, unmatched
 
     def import_vessels(self, path: str) -> int:
         """Mark vessels at the positions of a CSV, GeoJSON or GeoPackage file (undoable, one step each)."""
@@ -384,9 +383,9 @@ class Controller(QObject):
         from ..evidence.export import (
             CaseDetails,
             VesselEvidence,
-            default_basename,
             export_evidence_set,
             hand_measurement_rows,
+            set_basename,
             set_folder,
         )
         from ..evidence.from_session import with_plots
@@ -414,11 +413,7 @@ class Controller(QObject):
             self.host.error("Could not export", str(err))
             return None
         sc = self.doc.scene
-        base = basename or (
-            default_basename(sc, vessels[0].analysis)
-            if len(vessels) == 1
-            else f"{sc.info.path.stem}_{len(vessels)}_vessels"
-        )
+        base = basename or set_basename(sc, vessels)
         target = set_folder(folder, base)
         if target.exists() and ask and not force:
             force = self.host.confirm("Replace the set?", f"{target.name} already exists in {folder}. Replace it?")

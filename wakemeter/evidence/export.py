@@ -155,7 +155,7 @@ def export_evidence_set(
         raise SceneWriteError(f"cannot export: folder {folder} does not exist")
     if not os.access(folder, os.W_OK):
         raise SceneWriteError(f"cannot export: folder {folder} is not writable")
-    base = safe_stem(basename or _basename(scene, vessels))
+    base = safe_stem(basename or set_basename(scene, vessels))
     target = folder / base
     if (target.exists() or target.is_symlink()) and not force:
         raise SceneWriteError(
@@ -228,7 +228,8 @@ def _write(path: Path, data: bytes) -> None:
         os.fsync(fh.fileno())
 
 
-def _basename(scene: Scene, vessels: Sequence[VesselEvidence]) -> str:
+def set_basename(scene: Scene, vessels: Sequence[VesselEvidence]) -> str:
+    """The default name of a set: scene and vessel position for one vessel, scene and count for several."""
     if len(vessels) == 1:
         return default_basename(scene, vessels[0].analysis)
     return f"{scene.info.path.stem}_{len(vessels)}_vessels"
