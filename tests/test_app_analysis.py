@@ -447,6 +447,33 @@ def test_find_vessels_then_analyse_all(qtbot, tmp_path, monkeypatch):
     w = MainWindow()
     qtbot.addWidget(w)
     assert w.open_path(str(tif))
+    # a rectangle dragged on the image around one vessel: only that one is found
+    from PySide6.QtCore import QPointF, Qt
+    from PySide6.QtTest import QTest
+
+    w.resize(1000, 800)
+    w.canvas.set_zoom(1.0, QPointF(0, 0))
+    w.canvas.origin = QPointF(0, 0)
+    one = truth[0]
+    others = [
+        v for v in truth[1:] if max(abs(v["pixel_col"] - one["pixel_col"]), abs(v["pixel_row"] - one["pixel_row"])) < 40
+    ]
+    assert not others  # the fleet's vessels are far apart
+    a = w.canvas.to_screen(QPointF(one["pixel_col"] - 30, one["pixel_row"] - 30)).toPoint()
+    b = w.canvas.to_screen(QPointF(one["pixel_col"] + 30, one["pixel_row"] + 30)).toPoint()
+    w.pick_find_area()
+    QTest.mousePress(w.canvas, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier, a)
+    QTest.mouseMove(w.canvas, (a + b) / 2)
+    QTest.mouseMove(w.canvas, b)
+    QTest.mouseRelease(w.canvas, Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier, b)
+    qtbot.waitUntil(lambda: w.job is None and len(w.doc.vessels) > 0, timeout=60_000)
+    (found,) = w.doc.vessels.values()
+    assert (found.position[0] - one["pixel_col"]) ** 2 + (found.position[1] - one["pixel_row"]) ** 2 < 9.0
+    assert not w.canvas.picking_area  # one rectangle per pick: the next drag pans again
+    w.doc.undo.undo()
+    w.pick_find_area()
+    w.set_tool("look")  # Esc (the look tool's key) gives the pick up
+    assert not w.canvas.picking_area
     w.find_vessels(whole=True)
     qtbot.waitUntil(lambda: w.job is None, timeout=60_000)
     assert len(w.doc.vessels) == len(truth)

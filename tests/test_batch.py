@@ -48,8 +48,8 @@ def test_batch_matches_single_runs_and_resumes(setup):
     assert (first.done, first.skipped, first.failed) == (4, 0, 0)
     again = run(tasks, out, client=client)  # resumable: everything is done already
     assert (again.done, again.skipped) == (0, 4)
-    csv_path, gpkg = table(tasks, out)
-    got = {r["vessel"]: r for r in csv.DictReader(open(csv_path))}
+    files = table(tasks, out)
+    got = {r["vessel"]: r for r in csv.DictReader(open(files.csv))}
     for t in tasks:  # identical to a single analysis of the same vessel
         with open_scene(t.scene_path) as sc:
             single = analyze(sc, AnalysisRequest.from_json(t.request)).to_json()
@@ -58,7 +58,7 @@ def test_batch_matches_single_runs_and_resumes(setup):
             rec["result"]["speed_mps"] == single["speed_mps"] and rec["result"]["heading_deg"] == single["heading_deg"]
         )
         assert float(got[t.vessel_name]["speed_kn"]) == pytest.approx(single["speed_knots"], rel=1e-5)
-    meta, _f, geoms, _fields = pyogrio.raw.read(str(gpkg))
+    meta, _f, geoms, _fields = pyogrio.raw.read(str(files.gpkg))
     assert len(geoms) == 4 and "4326" in meta["crs"]
 
 
@@ -103,6 +103,47 @@ def test_batch_table_compares_with_position_reports(setup, capsys):
     assert (
         got["Brackenfield"]["report_verdict"] == "inconsistent" and "6.0 kn more" in got["Brackenfield"]["report_text"]
     )
+
+
+def test_batch_writes_each_vessels_evidence_set_on_request(setup, capsys):
+    # one evidence set per analysed vessel, carrying the vessel's name, the case details and its comparison
+    # with the position reports; each set's files match its SHA256SUMS; a rerun keeps the sets it finds
+    import hashlib
+
+    d, _c = setup
+    out = d / "with_evidence"
+    argv = ["batch", str(d / "channel_two_vessels.tif"), "--vessels", str(d / "vessels.csv"), "--out", str(out)]
+    argv += ["--reports", str(ROOT / "sample_scenes" / "channel_two_vessels_reports.csv"), "--workers", "1"]
+    argv += ["--evidence", "--analyst", "R. Quill", "--case", "MC-2026-014"]
+    assert main(argv) == 0
+    said = capsys.readouterr().out
+    assert "evidence: 2 set(s) written, 0 already there (kept), 0 failed" in said
+    sets = sorted(p for p in (out / "evidence").iterdir())
+    assert len(sets) == 2 and not [p for p in sets if p.name.startswith(".")]
+    by_vessel = {}
+    for folder in sets:
+        for line in (folder / "SHA256SUMS").read_text().splitlines():
+            digest, name = line.split("  ")
+            assert hashlib.sha256((folder / name).read_bytes()).hexdigest() == digest
+        assert len(list(folder.glob("*.pdf"))) == 1 and len(list(folder.glob("*.png"))) == 1
+        record = json.loads(next(folder.glob("*.json")).read_text())
+        assert record["case"]["analyst"] == "R. Quill" and record["case"]["reference"] == "MC-2026-014"
+        (vessel,) = record["vessels"]
+        by_vessel[vessel["name"]] = vessel
+    assert set(by_vessel) == {"Merrow Pilot 2", "Brackenfield"}
+    assert by_vessel["Brackenfield"]["position_report"]["verdict"] == "inconsistent"
+    assert by_vessel["Merrow Pilot 2"]["position_report"]["verdict"] == "consistent"
+    rows = {r["vessel"]: r for r in csv.DictReader(open(out / "results.csv"))}
+    for name, v in by_vessel.items():  # the set's numbers are the table's (the same request, the same result)
+        assert v["result"]["speed_knots"] == pytest.approx(float(rows[name]["speed_kn"]), rel=1e-5)
+    stamps = {p: p.stat().st_mtime_ns for p in sets}
+    assert main(argv) == 0
+    assert "evidence: 0 set(s) written, 2 already there (kept), 0 failed" in capsys.readouterr().out
+    assert {p: p.stat().st_mtime_ns for p in sets} == stamps
+    assert (
+        main(["batch", str(d / "channel_two_vessels.tif"), "--out", str(out), "--analyst", "R. Quill", "--find"]) == 2
+    )
+    assert "--analyst is for the evidence sets: give --evidence too" in capsys.readouterr().err
 
 
 def test_a_killed_worker_has_its_task_redone(setup, tmp_path):

@@ -58,6 +58,7 @@ class Canvas(QWidget):
     zoom_changed = Signal(float)
     calibration_line = Signal(object, object)  # two scene points drawn with the calibrate tool
     message = Signal(str)
+    area_drawn = Signal(object)  # (col, row, width, height) of a rectangle drawn after pick_area()
 
     def __init__(self, doc: Document, parent=None):
         super().__init__(parent)
@@ -68,9 +69,9 @@ class Canvas(QWidget):
         self.zoom = 1.0
         self.origin = QPointF(0, 0)
         self.tool = "look"
-        self._drag: tuple | None = (
-            None  # ("pan", start_screen, start_origin) | ("new", kind, p0, p1) | ("handle", id, idx, before)
-        )
+        # ("pan", start_screen, start_origin) | ("new", kind, p0, p1) | ("handle", id, idx, before) | ("area", p0, p1)
+        self._drag: tuple | None = None
+        self.picking_area = False  #: the next left drag draws a rectangle (area_drawn), whatever the tool
         self.setMouseTracking(True)
         self.setFocusPolicy(Qt.FocusPolicy.StrongFocus)
         self.setMinimumSize(320, 240)
@@ -298,7 +299,25 @@ class Canvas(QWidget):
                     path.lineTo(p)
                 qp.drawPath(path)
 
+    def pick_area(self) -> None:
+        """Let the next left drag draw a rectangle, given by :attr:`area_drawn` (Esc gives it up)."""
+        self.picking_area = True
+        self.setCursor(Qt.CursorShape.CrossCursor)
+
+    def cancel_area(self) -> None:
+        if self.picking_area:
+            self.picking_area = False
+            self._drag = None
+            self.set_tool(self.tool)  # the tool's own cursor
+            self.update()
+
     def _draw_drag(self, qp: QPainter) -> None:
+        if self._drag and self._drag[0] == "area":
+            _, p0, p1 = self._drag
+            qp.setPen(self._pen(QColor(255, 255, 255), 2, dash=True))
+            qp.setBrush(QColor(255, 255, 255, 30))
+            qp.drawRect(QRectF(self.to_screen(p0), self.to_screen(p1)).normalized())
+            qp.setBrush(Qt.BrushStyle.NoBrush)
         if self._drag and self._drag[0] == "new":
             _, kind, p0, p1 = self._drag
             col = ITEM_COLOURS.get("calibration" if kind == "calibrate" else kind, QColor(255, 255, 255))
@@ -376,6 +395,9 @@ class Canvas(QWidget):
             return
         pos = ev.position()
         sp = self.to_scene(pos)
+        if self.picking_area and ev.button() == Qt.MouseButton.LeftButton:
+            self._drag = ("area", (sp.x(), sp.y()), (sp.x(), sp.y()))
+            return
         if ev.button() == Qt.MouseButton.MiddleButton or (
             ev.button() == Qt.MouseButton.LeftButton and self.tool == "look"
         ):
@@ -412,6 +434,9 @@ class Canvas(QWidget):
         elif self._drag[0] == "new":
             self._drag = ("new", self._drag[1], self._drag[2], (sp.x(), sp.y()))
             self.update()
+        elif self._drag[0] == "area":
+            self._drag = ("area", self._drag[1], (sp.x(), sp.y()))
+            self.update()
         elif self._drag[0] == "handle":
             _, item_id, idx, before = self._drag
             cur = self.doc.item(item_id)
@@ -432,6 +457,9 @@ class Canvas(QWidget):
             self.setCursor(Qt.CursorShape.OpenHandCursor)
         if not drag:
             return
+        if drag[0] == "area":
+            self.finish_area(drag[1], drag[2])
+            return
         if drag[0] == "handle":
             _, item_id, _idx, before = drag
             after = self.doc.item(item_id)
@@ -443,6 +471,25 @@ class Canvas(QWidget):
                 self.message.emit("drag to draw a line")
                 return
             self.finish_line(kind, p0, p1)
+
+    def finish_area(self, p0, p1) -> None:
+        """End the area pick with the rectangle p0-p1 (scene col, row), clipped to the scene (used by the mouse
+        and by tests); a rectangle of a few screen pixels is not taken."""
+        self.cancel_area()
+        sc = self.doc.scene
+        if sc is None:
+            return
+        c0, c1 = sorted((p0[0], p1[0]))
+        r0, r1 = sorted((p0[1], p1[1]))
+        if (c1 - c0) * self.zoom < 8 or (r1 - r0) * self.zoom < 8:
+            self.message.emit("drag a rectangle over the water to search in it")
+            return
+        c0, r0 = max(int(c0), 0), max(int(r0), 0)
+        c1, r1 = min(int(math.ceil(c1)), sc.width), min(int(math.ceil(r1)), sc.height)
+        if c1 - c0 < 1 or r1 - r0 < 1:
+            self.message.emit("the rectangle lies outside the scene")
+            return
+        self.area_drawn.emit((c0, r0, c1 - c0, r1 - r0))
 
     def finish_line(self, kind: str, p0, p1) -> None:
         """Add a drawn line as a measurement (used by the mouse and by tests)."""

@@ -66,6 +66,7 @@ class MainWindow(QMainWindow):
         self.canvas.cursor_moved.connect(self._readout)
         self.canvas.message.connect(self.say)
         self.canvas.calibration_line.connect(self._ask_calibration)
+        self.canvas.area_drawn.connect(lambda area: self.find_vessels(area=area))
         self.doc.changed.connect(self._refresh_list)
         self.doc.scene_changed.connect(self._on_scene)
         self.setStyleSheet(
@@ -156,6 +157,7 @@ class MainWindow(QMainWindow):
         fv = mb.addMenu("Ve&ssels")
         fv.addAction("Find vessels in &view", lambda: self.find_vessels(whole=False))
         fv.addAction("Find vessels in the whole &scene", lambda: self.find_vessels(whole=True))
+        fv.addAction("Find vessels in a &rectangle you drag…", self.pick_find_area)
         fv.addAction("&Analyse all vessels", lambda: self.controller.analyse_all())
         self.vessels_menu = fv
         hm = mb.addMenu("&Help")
@@ -304,6 +306,7 @@ class MainWindow(QMainWindow):
 
     # ---- tools, list, edits ----------------------------------------------
     def set_tool(self, tool: str) -> None:
+        self.canvas.cancel_area()
         self.canvas.set_tool(tool)
         self.tool_actions[tool].setChecked(True)
         self.say(TOOL_INFO[tool][1])
@@ -428,14 +431,25 @@ class MainWindow(QMainWindow):
         if path:
             self.controller.open_session(path)
 
-    def find_vessels(self, *, whole: bool) -> None:
-        """Find vessel-like targets (in the view, or the whole scene) in the background; each becomes a vessel
-        named "found N" (one undo step for all); delete the ones that are not vessels, then Analyse all."""
+    def pick_find_area(self) -> None:
+        """The next drag on the image draws the rectangle to search (Esc gives it up)."""
+        if self.doc.scene is None:
+            self.say("open a scene first")
+            return
+        self.canvas.pick_area()
+        self.say("drag a rectangle over the water to search for vessels in it (Esc: give up)")
+
+    def find_vessels(self, *, whole: bool = False, area: tuple[int, int, int, int] | None = None) -> None:
+        """Find vessel-like targets (in the view, the whole scene or ``area``: col, row, width, height) in the
+        background; each becomes a vessel named "found N" (one undo step for all); delete the ones that are
+        not vessels, then Analyse all."""
         sc = self.doc.scene
         if sc is None:
             self.say("open a scene first")
             return
-        if whole:
+        if area is not None:
+            pass
+        elif whole:
             area = (0, 0, sc.width, sc.height)
         else:
             o = self.canvas.origin

@@ -21,7 +21,7 @@ from .. import fileio
 from ..detect.request import AnalysisRequest
 from ..errors import ParameterError, WakemeterError
 from ..physics.units import KNOT_MPS
-from .tasks import BatchTask, done, find_task, result_path, run_task
+from .tasks import BatchTask, done, evidence_task, find_task, result_path, run_task
 
 
 @dataclass(frozen=True)
@@ -210,11 +210,15 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
     return out_rows
 
 
-def compare_reports(tasks: Sequence[BatchTask], out: Path, reports: Sequence, rs: list[dict], *, gate_m: float) -> None:
-    """Fill the report columns: each scene's vessels matched one to one with the reports at its time."""
+def compare_reports(
+    tasks: Sequence[BatchTask], out: Path, reports: Sequence, rs: list[dict], *, gate_m: float
+) -> dict[str, dict]:
+    """Fill the report columns: each scene's vessels matched one to one with the reports at its time.
+    Returns each compared vessel's comparison (JSON) by task key."""
     from ..positions.match import compare_results, scene_time
     from ..scene.raster import open_scene
 
+    found: dict[str, dict] = {}
     by_scene: dict[str, list[int]] = {}
     for i, t in enumerate(tasks):
         by_scene.setdefault(t.scene_path, []).append(i)
@@ -239,11 +243,18 @@ def compare_reports(tasks: Sequence[BatchTask], out: Path, reports: Sequence, rs
                 rs[i].update(
                     report_verdict=c.verdict, report_id=c.reported and c.reported.vessel_id, report_text=c.text
                 )
+                found[tasks[i].key] = c.to_json()
+    return found
 
 
-def table(
-    tasks: Sequence[BatchTask], out: str | Path, *, reports: Sequence = (), gate_m: float = 500.0
-) -> tuple[Path, Path | None]:
+@dataclass(frozen=True)
+class TableFiles:
+    csv: Path
+    gpkg: Path | None  #: None when no vessel has a longitude and latitude
+    comparisons: dict[str, dict]  #: each compared vessel's comparison with the position reports, by task key
+
+
+def table(tasks: Sequence[BatchTask], out: str | Path, *, reports: Sequence = (), gate_m: float = 500.0) -> TableFiles:
     """``results.csv`` and, when any vessel has a longitude and latitude, ``results.gpkg``; with position
     reports, each vessel's verdict against them."""
     import io
@@ -254,8 +265,7 @@ def table(
 
     out = Path(out)
     rs = rows(tasks, out)
-    if reports:
-        compare_reports(tasks, out, reports, rs, gate_m=gate_m)
+    comparisons = compare_reports(tasks, out, reports, rs, gate_m=gate_m) if reports else {}
     buf = io.StringIO()
     w = csv.DictWriter(buf, fieldnames=COLUMNS)
     w.writeheader()
@@ -273,4 +283,65 @@ def table(
             gpkg = write_features(out / "results.gpkg", feats, force=True)
         except WakemeterError:
             gpkg = None
-    return csv_path, gpkg
+    return TableFiles(csv_path, gpkg, comparisons)
+
+
+@dataclass(frozen=True)
+class EvidenceSummary:
+    written: int
+    kept: int
+    failed: tuple[tuple[str, str], ...]  #: (set name, reason)
+
+    def text(self) -> str:
+        lines = [
+            f"evidence: {self.written} set(s) written, {self.kept} already there (kept), {len(self.failed)} failed"
+        ]
+        lines += [f"  evidence failed: {n}: {r}" for n, r in self.failed]
+        return "\n".join(lines)
+
+
+def evidence(
+    tasks: Sequence[BatchTask],
+    out: str | Path,
+    *,
+    client,
+    analyst: str | None = None,
+    case_reference: str | None = None,
+    paper: str | None = None,
+    comparisons: dict[str, dict] | None = None,
+    progress: Callable[[int, int], None] | None = None,
+) -> EvidenceSummary:
+    """One evidence set per analysed vessel in ``<out>/evidence/`` (one task each); sets already there are kept."""
+    from distributed import as_completed
+
+    out = Path(out)
+    todo = [t for t in tasks if done(out, t)]
+    comparisons = comparisons or {}
+    futures = [
+        client.submit(
+            evidence_task,
+            t,
+            str(out),
+            analyst=analyst,
+            case_reference=case_reference,
+            paper=paper,
+            position_report=comparisons.get(t.key),
+            key=f"wakemeter-evidence-{t.key}",
+            pure=False,
+        )
+        for t in todo
+    ]
+    counts = {"written": 0, "kept": 0}
+    failed: list[tuple[str, str]] = []
+    for i, fut in enumerate(as_completed(futures), 1):
+        try:
+            r = fut.result()
+        except Exception as err:  # noqa: BLE001 - a task lost for good
+            r = {"name": "?", "status": "failed", "reason": f"the task was lost: {err!r}"}
+        if r["status"] == "failed":
+            failed.append((r["name"], r["reason"] or "unknown"))
+        else:
+            counts[r["status"]] += 1
+        if progress is not None:
+            progress(i, len(todo))
+    return EvidenceSummary(counts["written"], counts["kept"], tuple(failed))

@@ -72,6 +72,67 @@ def run_task(task: BatchTask, out: str) -> dict:
     return {"key": task.key, "status": record["status"], "reason": record.get("reason")}
 
 
+def evidence_name(task: BatchTask) -> str:
+    """The name of a vessel's evidence set in a batch: scene, vessel and the task's key (so a rerun finds it)."""
+    from ..evidence.export import safe_stem
+
+    return f"{safe_stem(f'{Path(task.scene_path).stem}_{task.vessel_name}')}_{task.key[:8]}"
+
+
+def evidence_task(
+    task: BatchTask,
+    out: str,
+    *,
+    analyst: str | None = None,
+    case_reference: str | None = None,
+    paper: str | None = None,
+    position_report: dict | None = None,
+) -> dict:
+    """Write one vessel's evidence set into ``<out>/evidence/`` (on a worker); never raises.
+
+    The analysis is run again from the task's request (the same request gives the same numbers as the
+    stored result) because the report's plots need the arrays a stored result does not keep.  A set that
+    is already there is left as it is ("kept")."""
+    import cv2
+
+    from ..detect.analysis import analyze
+    from ..detect.request import AnalysisRequest
+    from ..errors import WakemeterError
+    from ..evidence.export import export_evidence
+    from ..scene.raster import open_scene
+
+    cv2.setNumThreads(1)
+    folder = Path(out) / "evidence"
+    name = evidence_name(task)
+    said = {"key": task.key, "name": name, "reason": None}
+    if (folder / name).is_dir():
+        return {**said, "status": "kept"}
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+        with open_scene(task.scene_path) as scene:
+            if scene.sha256() != task.scene_sha256:
+                raise WakemeterError(f"{Path(task.scene_path).name} changed after the batch was planned")
+            a = analyze(scene, AnalysisRequest.from_json(task.request))
+            export_evidence(
+                scene,
+                a,
+                folder,
+                analyst=analyst,
+                case_reference=case_reference,
+                vessel_name=task.vessel_name,
+                basename=name,
+                paper=paper,
+                position_report=position_report,
+            )
+    except WakemeterError as err:
+        if (folder / name).is_dir():  # another run published it meanwhile
+            return {**said, "status": "kept"}
+        return {**said, "status": "failed", "reason": str(err)}
+    except Exception as err:  # noqa: BLE001 - one vessel's unexpected failure must not stop the others
+        return {**said, "status": "failed", "reason": f"unexpected error: {err!r}"}
+    return {**said, "status": "written"}
+
+
 #: test hook for worker deaths: when this variable names a file that does not exist yet, the first task to
 #: see it creates the file and kills its own worker process (tests set it in the workers' environment)
 DIE_ONCE_ENV = "WAKEMETER_TEST_DIE_ONCE"

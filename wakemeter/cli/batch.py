@@ -21,20 +21,30 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--reports", metavar="FILE", help="vessel position reports (CSV or NMEA) to compare with")
     p.add_argument("--report-columns", metavar="FIELD=NAME,...", help="CSV column names when they are not the usual")
     p.add_argument("--match-distance", type=float, default=500.0, metavar="M", help="farthest report to match (m)")
+    p.add_argument(
+        "--evidence",
+        action="store_true",
+        help="also write each analysed vessel's evidence set (PDF, JSON, PNG, SHA256SUMS) in FOLDER/evidence/",
+    )
+    p.add_argument("--analyst", help="with --evidence: analyst name to record in the reports")
+    p.add_argument("--case", metavar="REFERENCE", help="with --evidence: case reference to print on every page")
+    p.add_argument("--paper", choices=["A4", "Letter"], help="with --evidence: page size (default: by locale)")
     add_request_options(p, position=False)
 
 
 def run(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from ..batch.run import _client, plan, table
+    from ..batch.run import _client, evidence, plan, table
     from ..batch.run import run as run_batch
+    from ..errors import ParameterError
 
     out = Path(args.out)
     if out.exists() and not out.is_dir():
-        from ..errors import ParameterError
-
         raise ParameterError(f"--out must be a folder, {out} is a file")
+    for opt in ("analyst", "case", "paper"):
+        if getattr(args, opt) and not args.evidence:
+            raise ParameterError(f"--{opt} is for the evidence sets: give --evidence too")
     out.mkdir(parents=True, exist_ok=True)
     args.vessel = "0,0"  # the base request: every task puts its own vessel position in
     base = request_from_args(args)
@@ -57,24 +67,41 @@ def run(args: argparse.Namespace) -> int:
         summary = run_batch(tasks, out, client=client, progress=bar)
         if hasattr(bar, "close"):
             bar.close()
+        files = table(tasks, out, reports=reports, gate_m=args.match_distance)
+        made = None
+        if args.evidence:
+            bar = _bar(summary.done + summary.skipped, unit="set")
+            made = evidence(
+                tasks,
+                out,
+                client=client,
+                analyst=args.analyst,
+                case_reference=args.case,
+                paper=args.paper,
+                comparisons=files.comparisons,
+                progress=bar,
+            )
+            if hasattr(bar, "close"):
+                bar.close()
     finally:
         client.close()
         if cluster is not None:
             cluster.close()
-    csv_path, gpkg = table(tasks, out, reports=reports, gate_m=args.match_distance)
     print(summary.text())
-    print(f"wrote {csv_path}" + (f" and {gpkg}" if gpkg else ""))
+    print(f"wrote {files.csv}" + (f" and {files.gpkg}" if files.gpkg else ""))
+    if made is not None:
+        print(made.text() + f" in {out / 'evidence'}")
     print(CAUTION_LINE)
-    return 0 if summary.failed == 0 and not unreadable else 1
+    return 0 if summary.failed == 0 and not unreadable and (made is None or not made.failed) else 1
 
 
-def _bar(total: int) -> Callable[[int, int], None]:
+def _bar(total: int, unit: str = "vessel") -> Callable[[int, int], None]:
     """A progress bar on the terminal (tqdm), or nothing when output is not a terminal."""
     try:
         from tqdm import tqdm
     except ImportError:
         return lambda i, n: None
-    bar = tqdm(total=total, unit="vessel", file=sys.stderr, disable=not sys.stderr.isatty())
+    bar = tqdm(total=total, unit=unit, file=sys.stderr, disable=not sys.stderr.isatty())
 
     class _Bar:
         def __call__(self, i: int, n: int) -> None:

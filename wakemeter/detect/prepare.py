@@ -19,6 +19,7 @@ from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
 from .line_chip import green_nir_bands, land_mask
 from .robust import median_spread
+from .wide_blur import wide_gaussian
 
 
 @dataclass(frozen=True)
@@ -152,7 +153,7 @@ def prepare_chip(
                 fvalid &= ~ndimage.binary_dilation(hull, iterations=2)
     # background removal and normalisation
     filled = np.where(fvalid, full, med)
-    bg = ndimage.gaussian_filter(filled, sigma=max(size_px / 24, 4.0))
+    bg = wide_gaussian(filled, max(size_px / 24, 4.0))
     tex = np.where(fvalid, filled - bg, 0.0)
     tex /= _mad_sigma(tex[fvalid])
     tex = np.clip(tex, -8, 8)  # tame bright point targets and speckle spikes

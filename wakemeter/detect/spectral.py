@@ -28,7 +28,7 @@ import scipy.fft as sfft
 from scipy import ndimage, optimize
 
 from ..physics.dispersion import steady_wavenumber, steady_wavenumber_fast
-from .robust import median_spread
+from .robust import group_median_spread
 
 #: The reference (ahead) spectrum is an upper envelope (3x3 maximum, then smoothing), so a sharp swell
 #: peak present on both sides cancels instead of leaving an excess where plain smoothing would lower it.
@@ -86,16 +86,7 @@ def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) ->
     kv = (np.arange(n_v) - n_v // 2) * dk_v
     kk = np.hypot(ku[None, :], kv[:, None])
     ring = np.minimum((kk / max(dk_u, dk_v)).astype(int), max(n_u, n_v))
-    order = np.argsort(ring, axis=None)
-    rs = ring.ravel()[order]
-    ws = white.ravel()[order]
-    bounds = np.searchsorted(rs, np.arange(rs.max() + 2))
-    med = np.zeros(rs.max() + 1)
-    spread = np.ones(rs.max() + 1)
-    for r in range(rs.max() + 1):
-        seg = ws[bounds[r] : bounds[r + 1]]
-        if seg.size >= RING_MIN_BINS:
-            med[r], spread[r] = median_spread(seg, floor=1.0)
+    med, spread = group_median_spread(white, ring, int(ring.max()) + 1, min_count=RING_MIN_BINS, floor=1.0)
     white = (white - med[ring]) / spread[ring]
     # the turbulent-wake ridge (along the track: k_u ~ 0) is not part of the wave pattern
     white[:, np.abs(ku) <= TRACK_RIDGE_BINS * dk_u] = 0.0
@@ -197,7 +188,7 @@ def fit_curve(
         neg,
         x0,
         method="Nelder-Mead",
-        options={"xatol": 1e-4, "fatol": 1e-6, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.4]]},
+        options={"xatol": 1e-3, "fatol": 1e-4, "initial_simplex": [x0, x0 + [0.01, 0], x0 + [0, 0.4]]},
     )
     best = res.x if res.fun <= -np.nanmax(grid) else x0
     score = -neg(best)
