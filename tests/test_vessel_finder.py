@@ -38,11 +38,27 @@ def test_every_vessel_of_a_fleet_is_found_on_its_hull(fleet):
         cands = find_vessels(sc, tile=512, progress=steps.append)
     assert steps[-1] == 1.0 and len(steps) == 4  # 768 px in 512 px windows: 2 x 2
     assert len(cands) == len(truth)  # nothing else: no wake or foam taken for a second vessel
-    for v in truth:
-        d = min(np.hypot(c.px[0] - v["pixel_col"], c.px[1] - v["pixel_row"]) for c in cands)
-        # on the hull: the sweep finds 19 of 24 within 2 px and all within 6 (foam pulls a few aft)
-        assert d <= 3.0, (v["name"], d)
+    offsets = [min(np.hypot(c.px[0] - v["pixel_col"], c.px[1] - v["pixel_row"]) for c in cands) for v in truth]
+    # on the hull (the truth's continuous pixel position, GDAL's convention): the sweep finds 23 of 24 within
+    # 2 px and all within 2.1; the one beyond is a 23 m hull a quarter of a pixel wide, whose foam outshines it
+    assert max(offsets) <= 2.5, offsets
+    assert sum(d <= 2.0 for d in offsets) >= len(truth) - 1, offsets
     assert all(c.lonlat is not None and c.pfa < 1e-6 for c in cands)
+
+
+def test_a_hull_is_found_at_the_head_of_its_foam_trail(tmp_path):
+    # fleet seed 2 has two fast vessels (7.8 m/s) whose fresh foam is brighter in the near infrared than their
+    # partly covered hull pixels: the brightest point lay 5-7 px aft; the hull leads the trail, which fades aft
+    tif, _ = write(
+        render_multispectral(fleet_spec(6, seed=2, size=768, pixel_m=10.0), MultispectralLook()).rendered,
+        tmp_path / "fleet2.tif",
+        band_names=BANDS,
+    )
+    truth = json.loads(tif.with_suffix(".truth.json").read_text())["vessels"]
+    with open_scene(tif) as sc:
+        cands = find_vessels(sc)
+    for v in truth:
+        assert min(np.hypot(c.px[0] - v["pixel_col"], c.px[1] - v["pixel_row"]) for c in cands) <= 2.0, v["name"]
 
 
 def test_windows_do_not_change_which_vessels_are_found(fleet):
@@ -66,9 +82,10 @@ def test_radar_hull_is_found_where_the_radar_imaged_it():
 def test_no_vessel_no_candidate():
     with open_scene(ROOT / "sample_scenes" / "calm_no_wake.tif") as sc:
         assert find_vessels(sc) == []
-    # real clean sea (swell, sediment, a detector seam): five tiles of 256² at 7.3 m, 17 km²; the sweep
-    # measures about 0.4 candidates per km² of clean sea in the port scenes (far above the nominal 1e-3: the
-    # sea's tail is heavier than the model), so at most 6 here
+    # real clean sea (swell, sediment, a detector seam): five tiles of 256² at 7.3 m, 17 km²; the sweep finds
+    # 17 candidates on 48 km² of tiles labelled clean, 9 of them plainly boats or buoys on review by eye and
+    # 0.08 per km² on nothing or on a seam (far above the nominal 1e-3: the sea's tail is heavier than the
+    # model), so at most 6 here
     found = 0
     for f in sorted(DATA.glob("*_sea.tif")):
         with open_scene(f) as sc:
@@ -112,3 +129,46 @@ def test_blob_shape_of_a_bar():
     assert length == pytest.approx(10.0 * np.sqrt((40**2 - 1) * n_all / (n_all - 1)), rel=1e-9)
     assert width == pytest.approx(10.0 * np.sqrt((6**2 - 1) * n_all / (n_all - 1)), rel=1e-9)
     assert axis == pytest.approx(30.0, abs=1e-9)
+
+
+def test_a_vessels_plume_is_not_taken_for_more_vessels():
+    # real Sentinel-2 tile (tests/data/sentinel2/README.md, objects read by eye): a hull with a long pale plume
+    # and a small bright object beside it. Patches of the plume stand out as much as a small boat; joined to
+    # the hull by pixels above half the threshold they are the hull's, not vessels of their own.
+    with open_scene(DATA / "gdynia_r256_c1024_S2L2A_plume.tif") as sc:
+        cands = find_vessels(sc)
+    by_eye = [(82.0, 206.0), (65.0, 170.0)]  # the hull, the small object
+    assert len(cands) == 2
+    for col, row in by_eye:
+        assert min(np.hypot(c.px[0] - col, c.px[1] - row) for c in cands) <= 3.0
+    assert cands[0].score > 3 * cands[1].score  # the hull is the stronger
+
+
+def test_two_vessels_side_by_side_stay_two(tmp_path, monkeypatch):
+    # the grouping keeps parts that are as strong as the strongest (OWN_SHARE): two equal hulls 60 m apart,
+    # joined by a band of foam above half the threshold, are two candidates (made here: sea noise and two
+    # bright 3 x 6 pixel hulls, as benchmarks/bench_vessel_finder.py)
+    import rasterio
+
+    rng = np.random.default_rng(3)
+    water = np.array([450.0, 300.0, 120.0, 60.0])[:, None, None]
+    img = water + rng.normal(0, 15, (4, 300, 300))
+    img[:, 150:153, 100:106] = 3000
+    img[:, 150:153, 112:118] = 3000
+    img[:, 151, 106:112] = water[:, 0] + 6 * 15  # foam between them: 6 sea spreads, above half the threshold
+    prof = dict(driver="GTiff", width=300, height=300, count=4, dtype="uint16", crs="EPSG:32625")
+    prof["transform"] = rasterio.Affine(10.0, 0.0, 500000.0, 0.0, -10.0, 4000000.0)
+    with rasterio.open(tmp_path / "pair.tif", "w", **prof) as dst:
+        dst.write(np.clip(img, 0, 65535).astype(np.uint16))
+        for i, b in enumerate(("B02", "B03", "B04", "B08")):
+            dst.set_band_description(i + 1, b)
+    with open_scene(tmp_path / "pair.tif") as sc:
+        cands = find_vessels(sc)
+        assert len(cands) == 2
+        for col in (102.5, 114.5):  # the hulls' centres
+            assert min(np.hypot(c.px[0] - col, c.px[1] - 151.0) for c in cands) <= 3.0  # as the fleet test
+        # the foam does join them into one object: were only the strongest part kept, one would remain
+        from wakemeter.detect import vessel_finder
+
+        monkeypatch.setattr(vessel_finder, "OWN_SHARE", 1.0)
+        assert len(find_vessels(sc)) == 1

@@ -12,6 +12,11 @@ and visible bands is thresholded at the normal tail of the same per-pixel rate. 
 (McFeeters 1996) where a green and a near-infrared band are named, else by the ring's own statistics;
 land, quays and harbour walls (wide or long dry or bright areas) and lone bright pixels are rejected.
 
+Detections joined by pixels above half the threshold are one object (hysteresis, as in Canny 1986): the
+weaker parts of a hull with its foam, wake or plume are not vessels of their own.  A hull under way leads a
+trail of foam that fades aft, and fresh foam can outshine a hull that covers its pixels only in part, so in an
+elongated detection whose one end is clearly brighter the hull is sought at that end.
+
 Each candidate gets its position (pixel, longitude and latitude), length, width and orientation from the
 blob's second moments in metres, a score (its peak in clutter standard units) and the false-alarm
 probability per pixel at that score.
@@ -56,6 +61,20 @@ DRY_SHARE_MAX = 0.5
 #: the hull is the part of a detection above this share of its peak (in the near infrared when there is one;
 #: fresh foam reflects about half as much as a hull there, common practice, no source)
 HULL_SHARE = 0.65
+#: detections joined by pixels above this share of the threshold are one object (a hull with its foam, its wake
+#: or the plume it stirs up): its weaker parts are not separate vessels (hysteresis grouping, as in Canny 1986,
+#: A computational approach to edge detection, IEEE PAMI 8(6))
+LINK_SHARE = 0.5
+#: ... unless they are at least this share of the strongest part's score (two vessels side by side)
+OWN_SHARE = 0.5
+#: a detection at least this many times longer than wide, and at least TRAIL_MIN_PX long, whose one end is
+#: brighter than its other by TRAIL_FADE (mean of the end thirds) is a hull leading its foam trail, which fades
+#: aft; the hull is sought within TRAIL_HEAD_PX of the brighter end (a small hull covers its pixels only in part,
+#: so the fresh foam just aft of it can be brighter than the hull; common practice, no source)
+TRAIL_MIN_ELONGATION = 3.0
+TRAIL_MIN_PX = 6.0
+TRAIL_FADE = 1.5
+TRAIL_HEAD_PX = 3.0
 #: its centre is the weighted centre of the pixels next to the peak, weighted by their excess over this share
 #: of the peak
 CENTRE_SHARE = 0.5
@@ -120,16 +139,17 @@ class _Ring:
 
     def stats(self, img: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         # centred on a typical value first: squares of large numbers would lose the small spread in float32
-        sample = img[self.valid][:: max(1, int(self.valid.sum()) // 10_000)]
+        k = max(1, int(math.sqrt(self.h * self.w / 10_000)))
+        sample = img[::k, ::k][self.valid[::k, ::k]]  # about 10 000 pixels on a regular grid
         offset = float(np.median(sample)) if sample.size else 0.0
-        x = np.where(self.valid, img - offset, 0.0).astype(np.float32)
+        x = np.where(self.valid, img - np.float32(offset), np.float32(0.0))
         s1, s2 = self._ring(self._blocks(x)), self._ring(self._blocks(x * x))
         mean = s1 / self.n
         sd = np.sqrt(np.maximum(s2 / self.n - mean * mean, 1e-12))
         return self._up(mean) + np.float32(offset), self._up(sd)
 
     def _up(self, a: np.ndarray) -> np.ndarray:
-        big = cv2.resize(a.astype(np.float32), (self.ww, self.hh), interpolation=cv2.INTER_NEAREST)
+        big = cv2.resize(a.astype(np.float32), (self.ww, self.hh), interpolation=cv2.INTER_LINEAR)
         return big[: self.h, : self.w]
 
 
@@ -184,6 +204,7 @@ def find_vessels(
             det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
             water = ok
             locate = score
+            link = ok & (score > LINK_SHARE)  # score: intensity over its threshold
         else:
             water = ok.copy()
             if gn is not None:
@@ -191,10 +212,11 @@ def find_vessels(
                 ndwi = (g - n) / np.maximum(g + n, 1e-6)
                 water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px)
             zs = _anomaly_optical([data[idx[b]] for b in bands], water, guard, back)
-            det, score, pfa_at = _threshold(zs, water, pfa_px)
+            det, score, pfa_at, thr = _threshold(zs, water, pfa_px)
+            link = water & (score > LINK_SHARE * thr)
             # the hull is told from its foam in the near infrared, where foam is far darker than a hull
             locate = zs[bands.index(nir)] if nir in bands else score
-        found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame)
+        found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar)
         if progress is not None:
             progress((k + 1) / len(tiles))
     return sorted(found, key=lambda c: -c.score)
@@ -255,7 +277,7 @@ def _threshold(zs, water, pfa_px):
     glint and specks make real sea heavier tailed than a normal): an exponential fitted to the excesses
     over the 99th percentile of the window's water (peaks over threshold; Coles 2001, An Introduction to
     Statistical Modeling of Extreme Values, the generalised Pareto with shape 0)."""
-    z_max = np.max(np.stack(zs), axis=0)
+    z_max = np.maximum.reduce(zs) if len(zs) > 1 else zs[0]
     thr = float(stats.norm.isf(pfa_px))
     tail: tuple[float, float] | None = None
     # censored: what stands out at the normal threshold (hulls, their foam) and its surroundings are left out
@@ -282,13 +304,41 @@ def _threshold(zs, water, pfa_px):
             return float(stats.norm.sf(z))
         return TAIL_SHARE * math.exp(-min((z - tail[0]) / tail[1], 700.0)) if z > tail[0] else 1.0
 
-    return det, z_max, pfa_at
+    return det, z_max, pfa_at, thr
 
 
-def _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame) -> list[VesselCandidate]:
+def _trail_head(m: np.ndarray, loc: np.ndarray) -> np.ndarray:
+    """The pixels of a detection (mask ``m``) where its hull can be: all of them, or the leading end of a trail."""
+    rr, cc = np.nonzero(m)
+    if rr.size < TRAIL_MIN_PX:
+        return m
+    length, width, axis = blob_shape(rr, cc, 1.0)
+    if length < TRAIL_MIN_PX or length < TRAIL_MIN_ELONGATION * width:
+        return m
+    a = math.radians(axis)
+    u = (cc - cc.mean()) * math.cos(a) - (rr - rr.mean()) * math.sin(a)  # along the axis (image up positive)
+    v = loc[rr, cc]
+    lo, hi = u.min(), u.max()
+    third = (hi - lo) / 3.0
+    end_lo, end_hi = float(np.mean(v[u <= lo + third])), float(np.mean(v[u >= hi - third]))
+    if max(end_lo, end_hi) < TRAIL_FADE * max(min(end_lo, end_hi), 1e-9):
+        return m  # evenly bright: a long hull, not a fading trail
+    keep = (u >= hi - TRAIL_HEAD_PX) if end_hi > end_lo else (u <= lo + TRAIL_HEAD_PX)
+    head = np.zeros_like(m)
+    head[rr[keep], cc[keep]] = True
+    return head
+
+
+def _blobs(
+    scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar: bool
+) -> list[VesselCandidate]:
     lab, n = ndimage.label(det, structure=np.ones((3, 3)))
     if n == 0:
         return []
+    # each detection's object (detections joined above LINK_SHARE of the threshold) and the object's peak
+    groups, n_groups = ndimage.label(link | det, structure=np.ones((3, 3)))
+    group_peak = np.full(n_groups + 1, -np.inf)
+    np.maximum.at(group_peak, groups[det], score[det])
     # land next to a blob: the blob is a quay edge or a moored hull against it (dry pixels within 2 px)
     land = ok & ~water
     out = []
@@ -307,9 +357,16 @@ def _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame)
         ]
         if np.mean(near[m]) > DRY_SHARE_MAX:
             continue
+        # a weak part of a stronger object (its foam, wake or plume) is not a vessel of its own
+        blob_peak = float(np.max(score[sl][m]))
+        pr0, pc0 = np.unravel_index(int(np.argmax(np.where(m, score[sl], -np.inf))), m.shape)
+        strongest = float(group_peak[groups[sl][pr0, pc0]])
+        if blob_peak < strongest and blob_peak < OWN_SHARE * strongest:
+            continue
         # the hull: the part of the blob above half its peak that holds the peak (foam behind a moving hull is
         # bright too, but less so, above all in the near infrared)
-        sub = np.where(m, locate[sl], -np.inf)
+        head = m if radar else _trail_head(m, locate[sl])  # foam trails: optical (radar sees no bright foam)
+        sub = np.where(head, locate[sl], -np.inf)
         peak = float(sub.max())
         core_lab, _ = ndimage.label(sub >= HULL_SHARE * peak, structure=np.ones((3, 3)))
         pr, pc = np.unravel_index(int(np.argmax(sub)), sub.shape)
@@ -326,7 +383,9 @@ def _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame)
         wts = np.clip(nb - CENTRE_SHARE * nb.max(), 0.0, None)
         gr, gc = np.mgrid[r_lo : r_lo + nb.shape[0], c_lo : c_lo + nb.shape[1]]
         cy, cx = float(np.average(gr, weights=wts + 1e-12)), float(np.average(gc, weights=wts + 1e-12))
-        col, row = win[0] + cx, win[1] + cy
+        # array index i is the pixel whose centre is at i + 0.5 in the scene's continuous pixel coordinates (GDAL's
+        # convention: the georeference maps (0, 0) to the corner of the first pixel)
+        col, row = win[0] + cx + 0.5, win[1] + cy + 0.5
         if not (core[0] <= col < core[0] + core[2] and core[1] <= row < core[1] + core[3]):
             continue  # found again by the tile whose core holds it
         length_m, width_m, axis = blob_shape(rr, cc, m_px)
