@@ -169,3 +169,16 @@ def test_long_transverse_waves_in_shallow_water_stay_subcritical():
     )
     assert est.ci95_high_mps < np.sqrt(G * h)
     assert assess_depth_regime(speed=est, depth_m=Uncertain(h, 0.01), g=G).regime == "near-critical"
+
+
+def test_radar_offset_refuses_a_geometry_that_heading_uncertainty_makes_degenerate():
+    # v_r = U cos(heading - look) sin(incidence) (Raney 1971): at heading 359.4 deg, look 100 deg, incidence
+    # 33 deg the projection factor is cos(259.4 deg) sin(33 deg) = -0.1002, just above the 0.1 floor, but with a
+    # 1 deg heading uncertainty it reaches cos(261.4 deg) sin(33 deg) = -0.0814 at +2 standard uncertainties: refused
+    common = dict(incidence_deg=33.0, look_bearing_deg=100.0, draws=1000, seed=1)
+    args = (Uncertain(-100.0, 5.0), Uncertain(850_000.0, 0.0), Uncertain(7_500.0, 0.0))
+    with pytest.raises(ParameterError, match="within two standard uncertainties of its heading"):
+        speed_from_radar_offset(*args, heading_deg=Uncertain(359.4, 1.0), **common)
+    # the same heading known exactly passes, and a well-placed track passes with the same uncertainty
+    speed_from_radar_offset(*args, heading_deg=Uncertain(359.4, 0.0), **common)
+    speed_from_radar_offset(*args, heading_deg=Uncertain(40.0, 1.0), **common)

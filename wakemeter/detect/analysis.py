@@ -22,7 +22,9 @@ from ..physics import inversion as inv
 from ..physics.gravity import STANDARD_GRAVITY, normal_gravity
 from ..scene import geodesy
 from ..scene.raster import Scene
+from ..scene.sensor import band_timing
 from .apex import find_displaced_apex
+from .band_shift import moves_against
 from .chip_measures import chip_outline
 from .decision import Decision, decide, decision_text, vessel_evidence
 from .depth_model import choose_depth_model
@@ -113,9 +115,17 @@ def analyze(
             shifted = _from_displaced_apex(scene, request, attempt, tuning)
             if shifted is not None and shifted.decision.found:
                 attempt = shifted
-        if attempt.decision.found:
-            return _measure(scene, request, attempt, tuning, stage)
         spectral_note = f"spectral significance {attempt.decision.significance:.1f}, needs {tuning.significance_min:g}"
+        if attempt.decision.found:
+            measured = _measure(scene, request, attempt, tuning, stage)
+            against = _shift_against(scene, measured)
+            if against is None:
+                return measured
+            # the wave fit read the wake on the wrong side of the hull: its heading and speed are not the
+            # vessel's; the wake is looked for as lines, where the hull's shift gives the speed
+            spectral_note = (
+                f"a wave pattern was fitted (significance {attempt.decision.significance:.1f}) but {against}"
+            )
     # no wave pattern: look for the wake as lines (foam, calm band, radar arms), as real scenes mostly show it
     stage(0.5, "looking for wake lines")
     lines = look_for_lines(scene, start, request, tuning)
@@ -132,6 +142,20 @@ def analyze(
     if attempt is None:
         return _no_wake_lines(scene, request, start, lines, g, spectral_note)
     return _no_wake(scene, request, attempt, tuning, lines_note=lines.why_not)
+
+
+def _shift_against(scene: Scene, measured: WakeAnalysis) -> str | None:
+    """For an optical scene whose band timing is known: a reason when the hull's shift between bands says the
+    vessel moves against the heading of the wave fit (see :func:`band_shift.moves_against`)."""
+    if measured.heading_deg is None or scene.info.count < 2:
+        return None
+    timing = band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags)
+    if timing is None:
+        return None
+    try:
+        return moves_against(scene, measured.vessel_px, measured.heading_deg, timing)
+    except ParameterError:
+        return None
 
 
 def _start_px(scene: Scene, request: AnalysisRequest) -> tuple[float, float]:

@@ -161,3 +161,35 @@ def measure_band_shift(
         est,
         timing,
     )
+
+
+#: a shift counts as clear when it exceeds this many of its standard uncertainties
+CLEAR_SHIFT_SIGMAS = 3.0
+
+
+def moves_against(scene: Scene, vessel_px: tuple[float, float], heading_deg: float, timing: BandTiming) -> str | None:
+    """A reason when the hull's shift between bands shows it moving against the true bearing ``heading_deg``:
+    read along the opposite direction its leading edge moves forwards clearly, read along ``heading_deg`` it
+    does not.  None when the shift cannot be read, or agrees, or is unclear either way.
+
+    The leading edge is the hull's end away from its wake: it moves with the hull between the bands, while the
+    other end borders foam that stays where it was made, so the edge read on the wrong end barely moves."""
+    frame = scene.local_frame(*vessel_px)
+    dc, dr = frame.image_direction(heading_deg)
+    travel = float(np.degrees(np.arctan2(-dr, dc)))
+    rng = np.random.default_rng(0)
+    along, against = (measure_band_shift(scene, vessel_px, back, timing, rng=rng) for back in (travel + 180.0, travel))
+
+    def clear(s: BandShift | None) -> bool:
+        if s is None:
+            return False
+        std = float(np.sqrt(s.edge_std_px[0] ** 2 + s.edge_std_px[1] ** 2 + 2 * CO_REGISTRATION_STD_PX**2))
+        return s.along_px > CLEAR_SHIFT_SIGMAS * std
+
+    if against is None or not clear(against) or clear(along):
+        return None
+    return (
+        f"the hull's shift between bands ({np.hypot(*against.shift_px):.2f} pixels, course "
+        f"{against.course_deg:.0f}\N{DEGREE SIGN}) shows it moving against the wave fit's heading "
+        f"({heading_deg:.0f}\N{DEGREE SIGN})"
+    )

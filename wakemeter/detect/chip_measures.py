@@ -55,7 +55,9 @@ def wedge_arms(
 def chip_outline(chip: Chip) -> Segment:
     """The analysed area as a closed polyline in scene pixels."""
     n = chip.data.shape[0]
-    return Segment(SegmentKind.AREA, tuple(chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))))
+    return Segment(
+        SegmentKind.AREA, tuple(chip.to_scene(r - 0.5, c - 0.5) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0)))
+    )
 
 
 def wake_drawing(chip: Chip, back: float, half: float | None, arms, narrow: list | None = None) -> Drawing:

@@ -97,7 +97,8 @@ class LineChip:
         return self.hull.rc if self.hull is not None else self.click_rc
 
     def to_scene(self, row: float, col: float) -> tuple[float, float]:
-        return self.origin_px[0] + col, self.origin_px[1] + row
+        """Scene (col, row) of a chip (row, col); chip indices are pixel centres (GDAL's +0.5 in the scene)."""
+        return self.origin_px[0] + col + 0.5, self.origin_px[1] + row + 0.5
 
 
 def _green_nir(descriptions: tuple[str | None, ...], bands: tuple[int, ...]) -> tuple[int, int] | None:
@@ -164,7 +165,7 @@ def prepare_line_chip(
     land = _land_mask(img, valid, full, scene.info.band_descriptions, bands, radar=bool(radar), m_px=m_px)
     in_scene = max(int(valid.sum()), 1)
     water = valid & ~land
-    click = (row - r0, col - c0)
+    click = (row - r0 - 0.5, col - c0 - 0.5)  # pixel-centre indices (see to_scene)
     hull = _find_hull(img, water, click, max(snap_radius_m / m_px, 3.0), m_px, radar=bool(radar))
     if water.sum() < 64:
         raise ParameterError(

@@ -227,7 +227,9 @@ def line_finding(
     )
     regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no waves resolved: depth regime not judged")
     n = chip.img.shape[0]
-    outline = Segment(SegmentKind.AREA, tuple(chip.to_scene(r, c) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0))))
+    outline = Segment(
+        SegmentKind.AREA, tuple(chip.to_scene(r - 0.5, c - 0.5) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0)))
+    )
     if hull_px is not None:
         segments.append(Segment(SegmentKind.HULL_SHIFT, (hull_px, vessel_px)))
     evidence = "hull" if chip.hull is not None or hull_px is not None else ("forced" if request.force else "wake lines")

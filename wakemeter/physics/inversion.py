@@ -225,6 +225,11 @@ def speed_from_spectral_fit(
     return _summarise("spectral fit", u, draws, conditions.assumptions())
 
 
+#: the smallest projection factor cos(heading - look bearing) sin(incidence) the offset is read at (as
+#: physics.radar.ground_speed_from_radial's default)
+RADAR_MIN_PROJECTION = 0.1
+
+
 def speed_from_radar_offset(
     offset_m: Uncertain,
     slant_range_m: Uncertain,
@@ -244,10 +249,23 @@ def speed_from_radar_offset(
             f"{slant_range_m.value!r} and {platform_speed_mps.value!r}"
         )
     _check_draws(draws)
-    # fail early and clearly on an ill-posed geometry
+    # fail early and clearly on an ill-posed geometry, also within two standard uncertainties of the heading:
+    # where the projection factor can come near zero the ratio v_r / factor has no usable spread
     radar.ground_speed_from_radial(
         1.0, incidence_deg=incidence_deg, heading_deg=heading_deg.value, look_bearing_deg=look_bearing_deg
     )
+    edge = [
+        np.cos(np.radians(heading_deg.value + side * heading_deg.std - look_bearing_deg))
+        * np.sin(np.radians(incidence_deg))
+        for side in (-2.0, 2.0)
+    ]
+    worst = float(min(edge, key=abs))
+    if abs(worst) < RADAR_MIN_PROJECTION:
+        raise ParameterError(
+            "the vessel moves too nearly along the radar's flight direction: within two standard uncertainties "
+            f"of its heading (±{2 * heading_deg.std:.1f}°) the projection factor reaches {worst:.3f}, below "
+            f"{RADAR_MIN_PROJECTION}; the azimuth offset cannot give its speed"
+        )
     rng = _rng(seed)
     _, scale, _ = _common(conditions, draws, rng)
     dx = _draw(offset_m, draws, rng) * scale

@@ -46,10 +46,7 @@ class RadarOffset:
         if ctx.hull_px is not None:  # the hull is not at the wake's start: use where it was seen
             chip = replace(
                 chip,
-                hull_rc=(
-                    (ctx.hull_px[1] - chip.origin_px[1]) / chip.step,
-                    (ctx.hull_px[0] - chip.origin_px[0]) / chip.step,
-                ),
+                hull_rc=chip.from_scene(*ctx.hull_px),
             )
         if chip.hull_rc is None:
             return None
