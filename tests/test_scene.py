@@ -286,3 +286,19 @@ def test_radar_in_decibels_is_recognised_and_analysed(tmp_path):
     assert chip.radar  # radar-only steps (narrow V, displaced hull) stay on for data in dB
     rng = np.random.default_rng(0)
     assert not looks_like_radar_db("float32", 1, (0.35 + rng.normal(0, 0.02, 10_000)).astype(np.float32))
+
+
+def test_one_pass_cache_sets_gdal_cache_in_megabytes_and_puts_it_back():
+    # GDAL_CACHEMAX given to GDALSetCacheMax is in bytes (GDAL documentation, GDALSetCacheMax); a pass over a
+    # whole scene runs with a small cache, and the program's own comes back afterwards, also after an error
+    from rasterio.env import get_gdal_config
+
+    from wakemeter.scene.raster import one_pass_cache
+
+    before = get_gdal_config("GDAL_CACHEMAX")
+    with one_pass_cache(48):
+        assert get_gdal_config("GDAL_CACHEMAX") == 48 * 1024 * 1024
+    assert get_gdal_config("GDAL_CACHEMAX") == before
+    with pytest.raises(RuntimeError), one_pass_cache(16):
+        raise RuntimeError("a reading error")
+    assert get_gdal_config("GDAL_CACHEMAX") == before

@@ -34,7 +34,7 @@ from scipy import ndimage, stats
 
 from ..errors import CancelledError, ParameterError
 from ..scene import display, geodesy
-from ..scene.raster import Scene
+from ..scene.raster import Scene, one_pass_cache
 from .blob_shape import blob_shape
 from .line_chip import green_nir_bands
 
@@ -188,37 +188,38 @@ def find_vessels(
         radar = scene.info.count == 1 and display.looks_like_radar(scene.info.dtype, 1, sample[0][ok[0]][:100_000])
     tiles = [(tc, tr) for tr in range(r0, r1, tile) for tc in range(c0, c1, tile)]
     found: list[VesselCandidate] = []
-    for k, (tc, tr) in enumerate(tiles):
-        if cancelled is not None and cancelled():
-            raise CancelledError("finding vessels was cancelled")
-        core = (tc, tr, min(tile, c1 - tc), min(tile, r1 - tr))
-        win = (max(tc - margin, 0), max(tr - margin, 0))
-        win_w = min(core[0] + core[2] + margin, scene.width) - win[0]
-        win_h = min(core[1] + core[3] + margin, scene.height) - win[1]
-        read_bands = tuple(sorted(set(bands) | (set(gn) if gn and not radar else set())))
-        data, valid = scene.read(window=(win[0], win[1], win_w, win_h), bands=read_bands)
-        idx = {b: i for i, b in enumerate(read_bands)}
-        ok = np.all(valid, axis=0)
-        nir = _nir_band(scene)
-        if radar:
-            det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
-            water = ok
-            locate = score
-            link = ok & (score > LINK_SHARE)  # score: intensity over its threshold
-        else:
-            water = ok.copy()
-            if gn is not None:
-                g, n = data[idx[gn[0]]], data[idx[gn[1]]]
-                ndwi = (g - n) / np.maximum(g + n, 1e-6)
-                water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px)
-            zs = _anomaly_optical([data[idx[b]] for b in bands], water, guard, back)
-            det, score, pfa_at, thr = _threshold(zs, water, pfa_px)
-            link = water & (score > LINK_SHARE * thr)
-            # the hull is told from its foam in the near infrared, where foam is far darker than a hull
-            locate = zs[bands.index(nir)] if nir in bands else score
-        found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar)
-        if progress is not None:
-            progress((k + 1) / len(tiles))
+    with one_pass_cache():  # every window is read once: a small block cache is enough
+        for k, (tc, tr) in enumerate(tiles):
+            if cancelled is not None and cancelled():
+                raise CancelledError("finding vessels was cancelled")
+            core = (tc, tr, min(tile, c1 - tc), min(tile, r1 - tr))
+            win = (max(tc - margin, 0), max(tr - margin, 0))
+            win_w = min(core[0] + core[2] + margin, scene.width) - win[0]
+            win_h = min(core[1] + core[3] + margin, scene.height) - win[1]
+            read_bands = tuple(sorted(set(bands) | (set(gn) if gn and not radar else set())))
+            data, valid = scene.read(window=(win[0], win[1], win_w, win_h), bands=read_bands)
+            idx = {b: i for i, b in enumerate(read_bands)}
+            ok = np.all(valid, axis=0)
+            nir = _nir_band(scene)
+            if radar:
+                det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
+                water = ok
+                locate = score
+                link = ok & (score > LINK_SHARE)  # score: intensity over its threshold
+            else:
+                water = ok.copy()
+                if gn is not None:
+                    g, n = data[idx[gn[0]]], data[idx[gn[1]]]
+                    ndwi = (g - n) / np.maximum(g + n, 1e-6)
+                    water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px)
+                zs = _anomaly_optical([data[idx[b]] for b in bands], water, guard, back)
+                det, score, pfa_at, thr = _threshold(zs, water, pfa_px)
+                link = water & (score > LINK_SHARE * thr)
+                # the hull is told from its foam in the near infrared, where foam is far darker than a hull
+                locate = zs[bands.index(nir)] if nir in bands else score
+            found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar)
+            if progress is not None:
+                progress((k + 1) / len(tiles))
     return sorted(found, key=lambda c: -c.score)
 
 

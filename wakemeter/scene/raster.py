@@ -13,10 +13,12 @@ naming the file and what is wrong.
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import os
 import threading
 import warnings
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -272,6 +274,27 @@ class Scene:
     def read_full(self, *, bands: tuple[int, ...] | None = None) -> tuple[np.ndarray, np.ndarray]:
         """The whole scene at full resolution (refused, with a clear error, when too large)."""
         return self.read(bands=bands)
+
+
+#: GDAL block cache for one pass over a whole scene (MB): enough for the blocks of one window and its margin
+#: (a 1024² window of 4 bands in 512² blocks is 3 x 3 blocks x 4 bands x 0.5 MB); each block is read once or
+#: twice, so a larger cache saves little time and costs its size in memory (benchmarks/bench_vessel_finder.py)
+ONE_PASS_CACHE_MB = 48
+
+
+@contextlib.contextmanager
+def one_pass_cache(mb: int = ONE_PASS_CACHE_MB) -> Iterator[None]:
+    """GDAL's block cache at ``mb`` for a pass that reads every window once (GDAL's cache is one per process:
+    other readers meanwhile share the smaller cache), then back to what it was."""
+    # rasterio hands this option to GDALSetCacheMax, which takes bytes (48 would mean 48 bytes: no cache)
+    from rasterio.env import get_gdal_config, set_gdal_config
+
+    before = get_gdal_config("GDAL_CACHEMAX")
+    set_gdal_config("GDAL_CACHEMAX", int(mb) * 1024 * 1024)  # bytes here (GDALSetCacheMax)
+    try:
+        yield
+    finally:
+        set_gdal_config("GDAL_CACHEMAX", before)
 
 
 def _describe_crs(crs) -> str | None:
