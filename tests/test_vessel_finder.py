@@ -172,3 +172,18 @@ def test_two_vessels_side_by_side_stay_two(tmp_path, monkeypatch):
 
         monkeypatch.setattr(vessel_finder, "OWN_SHARE", 1.0)
         assert len(find_vessels(sc)) == 1
+
+
+@pytest.mark.parametrize("connectivity", [8, 4])
+def test_window_labelling_matches_scipy(connectivity):
+    # the finder labels whole windows with OpenCV for speed; the regions must be scipy.ndimage.label's (the
+    # reference library), up to their numbering: one-to-one between the two labellings
+    from scipy import ndimage
+
+    from wakemeter.detect.vessel_finder import _label
+
+    mask = np.random.default_rng(5).random((400, 300)) > 0.9
+    ours, n = _label(mask, connectivity=connectivity)
+    ref, n_ref = ndimage.label(mask, structure=np.ones((3, 3)) if connectivity == 8 else None)
+    pairs = set(zip(ours[mask].tolist(), ref[mask].tolist()))
+    assert n == n_ref == len(pairs) and not ours[~mask].any()
