@@ -146,6 +146,29 @@ def test_batch_writes_each_vessels_evidence_set_on_request(setup, capsys):
     assert "--analyst is for the evidence sets: give --evidence too" in capsys.readouterr().err
 
 
+def test_batch_finds_the_vessels_of_a_scene_itself(tmp_path, capsys):
+    # a Sentinel-2-like fleet of known truth made as a user would (wakemeter synth --fleet): --find gives every
+    # vessel, each analysed, with the finder's own figures beside the analysis in the table
+    tif = tmp_path / "fleet.tif"
+    argv = ["synth", "--kind", "multispectral", "--fleet", "3", "--seed", "2", "--size", "512", "--pixel", "10"]
+    argv += ["--out", str(tif)]
+    assert main(argv) == 0
+    truth = json.loads(tif.with_suffix(".truth.json").read_text())["vessels"]
+    out = tmp_path / "out"
+    assert main(["batch", str(tif), "--find", "--out", str(out), "--workers", "1"]) == 0
+    assert f"{len(truth)} vessel(s) in 1 scene(s)" in capsys.readouterr().out
+    rows = list(csv.DictReader(open(out / "results.csv")))
+    assert len(rows) == len(truth) and all(r["status"] == "done" for r in rows)
+    for v in truth:
+        r = min(rows, key=lambda r: (float(r["col"]) - v["pixel_col"]) ** 2 + (float(r["row"]) - v["pixel_row"]) ** 2)
+        assert r["vessel"].startswith("found ") and float(r["found_length_m"]) > 0 and float(r["found_score"]) > 0
+        assert float(r["found_false_alarm_per_pixel"]) < 1e-6
+        if r["speed_kn"]:  # the truth's speed lies in the interval the table gives
+            kn = v["speed_mps"] / 0.514444
+            assert float(r["speed_ci95_low_kn"]) <= kn <= float(r["speed_ci95_high_kn"]), (v["name"], kn, r)
+    assert sum(bool(r["speed_kn"]) for r in rows) >= 2
+
+
 def test_a_killed_worker_has_its_task_redone(setup, tmp_path):
     # the first task kills its own worker process (a test hook, wakemeter.batch.tasks.DIE_ONCE_ENV); the
     # scheduler gives the task to another worker and the batch still finishes every vessel

@@ -102,7 +102,7 @@ def plan(
                     tasks.append(BatchTask(str(Path(s).resolve()), digest, p.name, req.to_json()))
             for i, c in enumerate(found.get(s, []), 1):
                 req = replace(base, vessel_px=tuple(c["px"]), vessel_lonlat=None)
-                tasks.append(BatchTask(str(Path(s).resolve()), digest, f"found {i}", req.to_json()))
+                tasks.append(BatchTask(str(Path(s).resolve()), digest, f"found {i}", req.to_json(), found=c))
     if not tasks:
         raise ParameterError(
             "no vessel lies in the given scenes" + "".join(f"; {n} not used: {w}" for n, w in unreadable)
@@ -167,6 +167,10 @@ COLUMNS = (
     "report_verdict",
     "report_id",
     "report_text",
+    "found_length_m",
+    "found_width_m",
+    "found_score",
+    "found_false_alarm_per_pixel",
     "key",
 )
 
@@ -204,6 +208,10 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
                 "report_verdict": None,
                 "report_id": None,
                 "report_text": None,
+                "found_length_m": None if t.found is None else t.found.get("length_m"),
+                "found_width_m": None if t.found is None else t.found.get("width_m"),
+                "found_score": None if t.found is None else t.found.get("score"),
+                "found_false_alarm_per_pixel": None if t.found is None else t.found.get("pfa"),
                 "key": t.key,
             }
         )

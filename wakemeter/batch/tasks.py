@@ -24,6 +24,7 @@ class BatchTask:
     scene_sha256: str
     vessel_name: str
     request: dict  #: AnalysisRequest.to_json()
+    found: dict | None = None  #: the vessel finder's candidate (VesselCandidate.to_json()) when it was found
 
     @property
     def key(self) -> str:
