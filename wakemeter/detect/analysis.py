@@ -123,9 +123,7 @@ def analyze(
                 return measured
             # the wave fit read the wake on the wrong side of the hull: its heading and speed are not the
             # vessel's; the wake is looked for as lines, where the hull's shift gives the speed
-            spectral_note = (
-                f"a wave pattern was fitted (significance {attempt.decision.significance:.1f}) but {against}"
-            )
+            spectral_note = f"the wave fit (significance {attempt.decision.significance:.1f}) was set aside: {against}"
     # no wave pattern: look for the wake as lines (foam, calm band, radar arms), as real scenes mostly show it
     stage(0.5, "looking for wake lines")
     lines = look_for_lines(scene, start, request, tuning)

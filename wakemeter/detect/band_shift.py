@@ -189,7 +189,7 @@ def moves_against(scene: Scene, vessel_px: tuple[float, float], heading_deg: flo
     if against is None or not clear(against) or clear(along):
         return None
     return (
-        f"the hull's shift between bands ({np.hypot(*against.shift_px):.2f} pixels, course "
-        f"{against.course_deg:.0f}\N{DEGREE SIGN}) shows it moving against the wave fit's heading "
-        f"({heading_deg:.0f}\N{DEGREE SIGN})"
+        f"the hull's shift between bands, {np.hypot(*against.shift_px):.2f} pixels on a course of "
+        f"{against.course_deg:.0f}\N{DEGREE SIGN}, shows it moving against the fit's heading of "
+        f"{heading_deg:.0f}\N{DEGREE SIGN}"
     )

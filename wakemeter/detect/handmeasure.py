@@ -16,6 +16,7 @@ from scipy import ndimage
 from ..errors import ParameterError
 from ..scene import display
 from ..scene.raster import Scene
+from .pixels import scene_to_index
 from .spectral import crest_spacing
 
 #: Standard uncertainty of placing a point by hand, in scene pixels, at full zoom (common practice, no source).
@@ -128,8 +129,7 @@ def crest_ruler(
         img = display.to_db(np.where(valid[0], img, 1.0))
     n = int(np.ceil(d_px)) + 1
     t = np.linspace(0.0, 1.0, n)
-    cols = p0[0] + t * (p1[0] - p0[0]) - c0 - 0.5
-    rows = p0[1] + t * (p1[1] - p0[1]) - r0 - 0.5
+    rows, cols = scene_to_index((c0, r0), 1, p0[0] + t * (p1[0] - p0[0]), p0[1] + t * (p1[1] - p0[1]))
     prof = ndimage.map_coordinates(np.nan_to_num(img.astype(float)), [rows, cols], order=1, mode="nearest")
     step_m = r.length_m / (n - 1)
     lam, sd, snr = crest_spacing(prof, step_m, band_m=band_m)

@@ -32,6 +32,7 @@ from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
 from .blob_shape import blob_shape
+from .pixels import index_to_scene, scene_to_index
 from .robust import median_spread
 
 #: dry areas by the water index: at least this wide (radius, m; at least one pixel) and larger than any hull
@@ -97,8 +98,8 @@ class LineChip:
         return self.hull.rc if self.hull is not None else self.click_rc
 
     def to_scene(self, row: float, col: float) -> tuple[float, float]:
-        """Scene (col, row) of a chip (row, col); chip indices are pixel centres (GDAL's +0.5 in the scene)."""
-        return self.origin_px[0] + col + 0.5, self.origin_px[1] + row + 0.5
+        """Scene (col, row) of a chip (row, col) (see :mod:`.pixels`)."""
+        return index_to_scene(self.origin_px, 1, row, col)
 
 
 def _green_nir(descriptions: tuple[str | None, ...], bands: tuple[int, ...]) -> tuple[int, int] | None:
@@ -165,7 +166,7 @@ def prepare_line_chip(
     land = _land_mask(img, valid, full, scene.info.band_descriptions, bands, radar=bool(radar), m_px=m_px)
     in_scene = max(int(valid.sum()), 1)
     water = valid & ~land
-    click = (row - r0 - 0.5, col - c0 - 0.5)  # pixel-centre indices (see to_scene)
+    click = scene_to_index((c0, r0), 1, col, row)
     hull = _find_hull(img, water, click, max(snap_radius_m / m_px, 3.0), m_px, radar=bool(radar))
     if water.sum() < 64:
         raise ParameterError(

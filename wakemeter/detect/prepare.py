@@ -18,6 +18,7 @@ from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
 from .line_chip import green_nir_bands, land_mask
+from .pixels import index_to_scene, scene_to_index
 from .robust import median_spread
 from .wide_blur import wide_gaussian
 
@@ -37,19 +38,12 @@ class Chip:
     hull_rc: tuple[float, float] | None  #: brightest hull blob found near the vessel (chip pixels)
 
     def to_scene(self, row: float, col: float) -> tuple[float, float]:
-        """Scene (col, row) of a chip (row, col): chip indices are pixel centres, scene positions are GDAL's
-        continuous pixel coordinates (a pixel's centre at +0.5)."""
-        return self.origin_px[0] + (col + 0.5) * self.step, self.origin_px[1] + (row + 0.5) * self.step
+        """Scene (col, row) of a chip (row, col) (see :mod:`.pixels`)."""
+        return index_to_scene(self.origin_px, self.step, row, col)
 
     def from_scene(self, col: float, row: float) -> tuple[float, float]:
         """Chip (row, col) of a scene (col, row): the inverse of :meth:`to_scene`."""
-        return chip_rc(self.origin_px, self.step, col, row)
-
-
-def chip_rc(origin_px: tuple[float, float], step: int, col: float, row: float) -> tuple[float, float]:
-    """Chip (row, col), in pixel-centre indices, of the scene's continuous (col, row) for a chip whose first
-    pixel starts at scene ``origin_px`` and spans ``step`` scene pixels."""
-    return (row - origin_px[1]) / step - 0.5, (col - origin_px[0]) / step - 0.5
+        return scene_to_index(self.origin_px, self.step, col, row)
 
 
 def _mad_sigma(a: np.ndarray) -> float:
@@ -141,7 +135,7 @@ def prepare_chip(
         _check_coverage(fvalid)
         vals = full[fvalid]
         med, sig = float(np.median(vals)), _mad_sigma(vals)
-    centre = chip_rc((c0, r0), step, col, row)
+    centre = scene_to_index((c0, r0), step, col, row)
     # hull: brightest smoothed blob within the snap radius
     sm = ndimage.gaussian_filter(np.where(fvalid, full - med, 0.0), 1.0)
     rr, cc = np.mgrid[:size_px, :size_px]

@@ -38,6 +38,7 @@ from ..scene import display, geodesy
 from ..scene.raster import Scene, one_pass_cache
 from .blob_shape import blob_shape
 from .line_chip import green_nir_bands
+from .pixels import index_to_scene
 
 #: windows are read this many pixels square, plus the margin on every side
 TILE = 1024
@@ -403,9 +404,7 @@ def _blobs(
         wts = np.clip(nb - CENTRE_SHARE * nb.max(), 0.0, None)
         gr, gc = np.mgrid[r_lo : r_lo + nb.shape[0], c_lo : c_lo + nb.shape[1]]
         cy, cx = float(np.average(gr, weights=wts + 1e-12)), float(np.average(gc, weights=wts + 1e-12))
-        # array index i is the pixel whose centre is at i + 0.5 in the scene's continuous pixel coordinates (GDAL's
-        # convention: the georeference maps (0, 0) to the corner of the first pixel)
-        col, row = win[0] + cx + 0.5, win[1] + cy + 0.5
+        col, row = index_to_scene(win, 1, cy, cx)
         if not (core[0] <= col < core[0] + core[2] and core[1] <= row < core[1] + core[3]):
             continue  # found again by the tile whose core holds it
         length_m, width_m, axis = blob_shape(rr, cc, m_px)
