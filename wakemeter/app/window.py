@@ -447,11 +447,9 @@ class MainWindow(QMainWindow):
         if sc is None:
             self.say("open a scene first")
             return
-        if area is not None:
-            pass
-        elif whole:
+        if area is None and whole:
             area = (0, 0, sc.width, sc.height)
-        else:
+        elif area is None:
             o = self.canvas.origin
             w, h = self.canvas.width() / self.canvas.zoom, self.canvas.height() / self.canvas.zoom
             c0, r0 = max(int(o.x()), 0), max(int(o.y()), 0)

@@ -8,14 +8,20 @@ finds what is done.  The result is written by the worker itself, atomically, as 
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import json
 import os
 import traceback
+from collections.abc import Iterator
 from dataclasses import asdict, dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .. import __version__, fileio
+
+if TYPE_CHECKING:
+    from ..scene.raster import Scene
 
 
 @dataclass(frozen=True)
@@ -45,6 +51,18 @@ def done(out: Path, task: BatchTask) -> bool:
         return False
 
 
+@contextlib.contextmanager
+def opened_scene(task: BatchTask) -> Iterator[Scene]:
+    """The task's scene, opened and checked against the SHA-256 it had when the batch was planned."""
+    from ..errors import WakemeterError
+    from ..scene.raster import open_scene
+
+    with open_scene(task.scene_path) as scene:
+        if scene.sha256() != task.scene_sha256:
+            raise WakemeterError(f"{Path(task.scene_path).name} changed after the batch was planned")
+        yield scene
+
+
 def run_task(task: BatchTask, out: str) -> dict:
     """Analyse one vessel (on a worker); never raises: a failure is recorded with its reason."""
     import cv2
@@ -52,15 +70,12 @@ def run_task(task: BatchTask, out: str) -> dict:
     from ..detect.analysis import analyze
     from ..detect.request import AnalysisRequest
     from ..errors import WakemeterError
-    from ..scene.raster import open_scene
 
     cv2.setNumThreads(1)  # one thread per task: workers do not fight over the cores
     _fault_injection()
     record: dict = {"task": asdict(task), "key": task.key, "software": f"wakemeter {__version__}"}
     try:
-        with open_scene(task.scene_path) as scene:
-            if scene.sha256() != task.scene_sha256:
-                raise WakemeterError(f"{Path(task.scene_path).name} changed after the batch was planned")
+        with opened_scene(task) as scene:
             a = analyze(scene, AnalysisRequest.from_json(task.request))
         record.update(status="done", result=a.to_json())
     except WakemeterError as err:
@@ -100,7 +115,6 @@ def evidence_task(
     from ..detect.request import AnalysisRequest
     from ..errors import WakemeterError
     from ..evidence.export import export_evidence
-    from ..scene.raster import open_scene
 
     cv2.setNumThreads(1)
     folder = Path(out) / "evidence"
@@ -110,9 +124,7 @@ def evidence_task(
         return {**said, "status": "kept"}
     try:
         folder.mkdir(parents=True, exist_ok=True)
-        with open_scene(task.scene_path) as scene:
-            if scene.sha256() != task.scene_sha256:
-                raise WakemeterError(f"{Path(task.scene_path).name} changed after the batch was planned")
+        with opened_scene(task) as scene:
             a = analyze(scene, AnalysisRequest.from_json(task.request))
             export_evidence(
                 scene,

@@ -225,11 +225,6 @@ def speed_from_spectral_fit(
     return _summarise("spectral fit", u, draws, conditions.assumptions())
 
 
-#: the smallest projection factor cos(heading - look bearing) sin(incidence) the offset is read at (as
-#: physics.radar.ground_speed_from_radial's default)
-RADAR_MIN_PROJECTION = 0.1
-
-
 def speed_from_radar_offset(
     offset_m: Uncertain,
     slant_range_m: Uncertain,
@@ -254,17 +249,15 @@ def speed_from_radar_offset(
     radar.ground_speed_from_radial(
         1.0, incidence_deg=incidence_deg, heading_deg=heading_deg.value, look_bearing_deg=look_bearing_deg
     )
-    edge = [
-        np.cos(np.radians(heading_deg.value + side * heading_deg.std - look_bearing_deg))
-        * np.sin(np.radians(incidence_deg))
-        for side in (-2.0, 2.0)
-    ]
-    worst = float(min(edge, key=abs))
-    if abs(worst) < RADAR_MIN_PROJECTION:
+    edge = radar.projection_factor(
+        heading_deg.value + np.array([-2.0, 2.0]) * heading_deg.std, look_bearing_deg, incidence_deg
+    )
+    worst = float(edge[np.argmin(np.abs(edge))])
+    if abs(worst) < radar.MIN_PROJECTION:
         raise ParameterError(
             "the vessel moves too nearly along the radar's flight direction: within two standard uncertainties "
             f"of its heading (±{2 * heading_deg.std:.1f}°) the projection factor reaches {worst:.3f}, below "
-            f"{RADAR_MIN_PROJECTION}; the azimuth offset cannot give its speed"
+            f"{radar.MIN_PROJECTION}; the azimuth offset cannot give its speed"
         )
     rng = _rng(seed)
     _, scale, _ = _common(conditions, draws, rng)
@@ -273,7 +266,7 @@ def speed_from_radar_offset(
     v = _draw(platform_speed_mps, draws, rng)
     hd = _draw(heading_deg, draws, rng)
     vr = -(v / r) * dx
-    proj = np.cos(np.radians(hd - look_bearing_deg)) * np.sin(np.radians(incidence_deg))
+    proj = radar.projection_factor(hd, look_bearing_deg, incidence_deg)
     u = np.abs(vr / proj)
     assumptions = conditions.assumptions()[2:3] + (
         f"slant range {slant_range_m.value:.0f} m, platform speed {platform_speed_mps.value:.0f} m/s, "

@@ -45,13 +45,22 @@ def radial_speed_from_offset(
     return float(vr) if vr.ndim == 0 else vr
 
 
+#: below this projection factor the azimuth offset says almost nothing about the speed
+MIN_PROJECTION = 0.1
+
+
+def projection_factor(heading_deg, look_bearing_deg: float, incidence_deg: float):
+    """cos(heading - look bearing) sin(incidence): the share of the speed that is radial (scalars or arrays)."""
+    return np.cos(np.radians(np.asarray(heading_deg) - look_bearing_deg)) * np.sin(np.radians(incidence_deg))
+
+
 def ground_speed_from_radial(
     radial_speed_mps: ArrayLike,
     *,
     incidence_deg: float,
     heading_deg: float,
     look_bearing_deg: float,
-    min_projection: float = 0.1,
+    min_projection: float = MIN_PROJECTION,
 ) -> np.ndarray | float:
     """Speed over the water (m/s) from the radial speed, given the geometry.
 
@@ -67,7 +76,7 @@ def ground_speed_from_radial(
     """
     if not 0 < incidence_deg < 90:
         raise ParameterError(f"incidence_deg must be within (0, 90), got {incidence_deg!r}")
-    proj = np.cos(np.radians(heading_deg - look_bearing_deg)) * np.sin(np.radians(incidence_deg))
+    proj = float(projection_factor(heading_deg, look_bearing_deg, incidence_deg))
     if abs(proj) < min_projection:
         raise ParameterError(
             f"the vessel moves almost along the radar's flight direction (projection factor {proj:.3f} "
