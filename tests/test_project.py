@@ -90,19 +90,23 @@ def test_tuning_is_an_argument_not_a_global(demo):
         DEFAULT_TUNING.with_overrides(["significance_min=high"])
 
 
-def test_a_new_speed_method_is_one_class_and_one_line(demo, monkeypatch):
-    # a method following the protocol joins the combination, its cautions and its drawing the result
+def test_a_new_speed_method_is_one_class_and_one_line(demo):
+    # a method following the protocol joins the combination, its cautions and its drawing the result; it is
+    # passed to analyze, no module is patched (self-consistency)
     sc, a = demo
 
     class Constant:
         name = "constant"
+        reads_depth = False
 
         def estimate(self, ctx):
-            est = inv.speed_from_spectral_fit(inv.Uncertain(ctx.model.speed_mps, 0.5), ctx.conditions, seed=ctx.rng)
+            if ctx.waves is None:
+                return MethodOutput()
+            u = inv.Uncertain(ctx.waves.model.speed_mps, 0.5)
+            est = inv.speed_from_spectral_fit(u, ctx.conditions, seed=ctx.rng)
             return MethodOutput((replace(est, method="constant"),))
 
-    monkeypatch.setattr("wakemeter.detect.analysis.SPEED_METHODS", (*methods_mod.SPEED_METHODS, Constant()))
-    b = analyze(sc, AnalysisRequest(vessel_px=POS))
+    b = analyze(sc, AnalysisRequest(vessel_px=POS), methods=(*methods_mod.SPEED_METHODS, Constant()))
     assert [m.method for m in b.methods][-1] == "constant"
     assert "constant" in b.speed.methods and len(b.methods) == len(a.methods) + 1
 

@@ -22,17 +22,16 @@ from ..physics import inversion as inv
 from ..physics.gravity import STANDARD_GRAVITY, normal_gravity
 from ..scene import geodesy
 from ..scene.raster import Scene
-from ..scene.sensor import band_timing
 from .apex import find_displaced_apex
-from .band_shift import moves_against
+from .band_shift import moves_against, scene_band_timing
 from .chip_measures import chip_outline
 from .decision import Decision, decide, decision_text, vessel_evidence
 from .depth_model import choose_depth_model
 from .explain import closing_cautions, depth_regime, interval_cover, opening_cautions, widen
 from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segment, SegmentKind
-from .line_finding import HULL_ELONGATION, LineLook, line_finding, look_for_lines
+from .line_finding import LineLook, line_finding, look_for_lines
 from .look import Look, choose_look
-from .methods import SPEED_METHODS, MethodContext
+from .methods import SPEED_METHODS, MethodContext, SpeedMethod, WaveStages, combine, run_methods
 from .request import AnalysisRequest, RadarGeometry
 from .result import WakeAnalysis
 from .spectral import curve_points
@@ -70,6 +69,7 @@ def analyze(
     *,
     progress: Progress | None = None,
     cancelled: Callable[[], bool] | None = None,
+    methods: tuple[SpeedMethod, ...] = SPEED_METHODS,
 ) -> WakeAnalysis:
     """Analyse the wake of one vessel.
 
@@ -84,6 +84,8 @@ def analyze(
     progress, cancelled : callables, optional
         ``progress(fraction, what)`` is called between stages; when ``cancelled()`` returns
         True the analysis stops with :class:`~wakemeter.errors.CancelledError`.
+    methods : tuple of SpeedMethod
+        The speed methods run on a wake found (both paths); the default is :data:`SPEED_METHODS`.
 
     References
     ----------
@@ -117,7 +119,7 @@ def analyze(
                 attempt = shifted
         spectral_note = f"spectral significance {attempt.decision.significance:.1f}, needs {tuning.significance_min:g}"
         if attempt.decision.found:
-            measured = _measure(scene, request, attempt, tuning, stage)
+            measured = _measure(scene, request, attempt, tuning, stage, methods)
             against = _shift_against(scene, measured)
             if against is None:
                 return measured
@@ -127,16 +129,28 @@ def analyze(
     # no wave pattern: look for the wake as lines (foam, calm band, radar arms), as real scenes mostly show it
     stage(0.5, "looking for wake lines")
     lines = look_for_lines(scene, start, request, tuning)
-    g = attempt.g if attempt is not None else _gravity(scene, start)[0]
+    g_u = attempt.g_u if attempt is not None else _gravity(scene, start)[1]
+    g = g_u.value
     moved, hull_px = _displaced_lines(scene, request, lines, tuning, stage)
     if (
         moved is not None
         and moved.wake is not None
         and (not lines.found or lines.wake is None or moved.wake.significance > lines.wake.significance)
     ):
-        return line_finding(scene, request, moved, g=g, spectral_note=spectral_note, tuning=tuning, hull_px=hull_px)
+        return line_finding(
+            scene,
+            request,
+            moved,
+            gravity=g_u,
+            spectral_note=spectral_note,
+            tuning=tuning,
+            hull_px=hull_px,
+            methods=methods,
+        )
     if lines.found:
-        return line_finding(scene, request, lines, g=g, spectral_note=spectral_note, tuning=tuning)
+        return line_finding(
+            scene, request, lines, gravity=g_u, spectral_note=spectral_note, tuning=tuning, methods=methods
+        )
     if attempt is None:
         return _no_wake_lines(scene, request, start, lines, g, spectral_note)
     return _no_wake(scene, request, attempt, tuning, lines_note=lines.why_not)
@@ -147,7 +161,7 @@ def _shift_against(scene: Scene, measured: WakeAnalysis) -> str | None:
     vessel moves against the heading of the wave fit (see :func:`band_shift.moves_against`)."""
     if measured.heading_deg is None or scene.info.count < 2:
         return None
-    timing = band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags)
+    timing = scene_band_timing(scene)
     if timing is None:
         return None
     try:
@@ -240,7 +254,7 @@ def _displaced_lines(
     if apex is None:
         return None, None
     h = chip.hull
-    axis = h.axis_deg if h.length_m >= HULL_ELONGATION * h.width_m else None
+    axis = h.axis_deg if h.length_m >= tuning.hull_elongation_min * h.width_m else None
     moved = look_for_lines(scene, apex.apex_px, request, tuning, hull_elsewhere=True, hull_axis_deg=axis)
     if not moved.found or moved.wake is None or moved.chip is None:
         return None, None
@@ -320,7 +334,12 @@ def _no_wake(
 
 
 def _measure(
-    scene: Scene, request: AnalysisRequest, a: _Attempt, tuning: Tuning, stage: Callable[[float, str], None]
+    scene: Scene,
+    request: AnalysisRequest,
+    a: _Attempt,
+    tuning: Tuning,
+    stage: Callable[[float, str], None],
+    speed_methods: tuple[SpeedMethod, ...],
 ) -> WakeAnalysis:
     look, g = a.look, a.g
     model = choose_depth_model(look, a.decision, g=g, depth_m=request.depth_m, tuning=tuning)
@@ -343,25 +362,23 @@ def _measure(
     )
     cond = inv.Conditions(g_mps2=a.g_u, depth_m=depth, pixel_scale_rel_std=request.pixel_rel_std)
     ctx = MethodContext(
-        scene,
-        request,
-        look,
-        model,
-        measures,
-        spread,
-        heading,
-        frame,
-        cond,
-        a.g_u,
-        np.random.default_rng(request.seed),
-        a.hull_px,
-        tuning,
+        scene=scene,
+        request=request,
+        heading_deg=heading,
+        frame=frame,
+        conditions=cond,
+        gravity=a.g_u,
+        rng=np.random.default_rng(request.seed),
+        hull_px=a.hull_px,
+        tuning=tuning,
+        waves=WaveStages(look=look, model=model, measures=measures, spread=spread),
     )
-    outputs = [method.estimate(ctx) for method in SPEED_METHODS]
-    methods = tuple(e for o in outputs for e in o.estimates)
+    outputs, methods, depth_source = run_methods(ctx, speed_methods)
     stage(0.9, "combining methods")
-    combined = inv.combine_estimates(list(methods))
-    regime = depth_regime(model, measures, spectral=methods[0], depth=depth, g=g, tuning=tuning)
+    combined = combine(methods)
+    if combined is None:
+        return _no_wake(scene, request, a, tuning, lines_note="no speed method gave a figure")
+    regime = depth_regime(model, measures, spectral=depth_source, depth=depth, g=g, tuning=tuning)
     cover = interval_cover(model, combined)
     widened = widen(combined, cover)
     shift_m = (

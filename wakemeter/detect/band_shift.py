@@ -27,7 +27,7 @@ from scipy import ndimage
 
 from ..physics import inversion as inv
 from ..scene.raster import Scene
-from ..scene.sensor import BandTiming
+from ..scene.sensor import BandTiming, band_timing
 
 #: standard uncertainty of one band's position from the co-registration of the bands (pixels per axis):
 #: Sentinel-2's multispectral registration requirement is 0.3 px at 3 sigma for the 10 m bands (from memory)
@@ -54,6 +54,11 @@ class BandShift:
     course_deg: float  #: true bearing of the shift
     estimate: inv.SpeedEstimate
     timing: BandTiming
+
+
+def scene_band_timing(scene: Scene) -> BandTiming | None:
+    """The published time between two of the scene's bands, when the sensor table recognises the scene."""
+    return band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags)
 
 
 def _edge(profile: np.ndarray, positions: np.ndarray) -> tuple[float, float]:

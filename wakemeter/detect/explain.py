@@ -21,17 +21,22 @@ def depth_regime(
     model: DepthModel,
     measures: WakeMeasures,
     *,
-    spectral: inv.SpeedEstimate,
+    spectral: inv.SpeedEstimate | None,
     depth: inv.Uncertain | None,
     g: float,
     tuning: Tuning,
 ) -> inv.DepthRegime:
-    """The regime with its explanation (given depth, fitted depth, deep water, or not told)."""
+    """The regime with its explanation (given depth, fitted depth, deep water, or not told); ``spectral``: the
+    estimate of the method that reads the depth (:attr:`SpeedMethod.reads_depth`)."""
     t = tuning
     u, fit_score = model.speed_mps, model.deep_score
     half, half_sd = measures.half_angle_deg, measures.half_angle_std_deg
     h_alt = u**2 / (g * t.fr_rule_out**2)
-    if depth is not None:
+    if depth is not None and spectral is None:
+        regime = inv.DepthRegime(
+            inv.Regime.UNKNOWN, None, None, None, None, "no speed method that reads the depth gave a figure"
+        )
+    elif depth is not None:
         regime = inv.assess_depth_regime(
             speed=spectral, depth_m=depth, g=g, depth_source="fitted" if model.fitted else "given"
         )

@@ -5,8 +5,9 @@ box).  A line that starts at a hull and stands out against the scene's other lin
 (:mod:`.wakeline`) is a wake: the finding gives the heading from the line with its uncertainty, lists
 the lines, and gives a speed only from what the scene allows:
 
-* the hull's shift between two bands recorded a known time apart (:mod:`.band_shift`; Sentinel-2),
-  a speed over ground;
+* from the speed methods that read lines (the same :data:`~.methods.SPEED_METHODS` as the wave path): the
+  hull's shift between two bands recorded a known time apart (Sentinel-2), a speed over ground, and the
+  narrow arms of a fast hull with its length, each inside its own domain;
 * otherwise none, with the reason (for example the transverse wavelength for 3-20 kn in pixels here).
 """
 
@@ -22,24 +23,15 @@ from ..physics import kelvin
 from ..physics.units import KNOT_MPS
 from ..scene import geodesy
 from ..scene.raster import Scene
-from ..scene.sensor import band_timing
-from .band_shift import BandShift, measure_band_shift
 from .explain import opening_cautions
 from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, Segment, SegmentKind
 from .line_chip import LineChip, prepare_line_chip
+from .methods import SPEED_METHODS, LineStages, MethodContext, SpeedMethod, combine, run_methods
 from .request import AnalysisRequest
 from .result import WakeAnalysis
 from .tuning import Tuning
 from .wakeline import LineWake, find_wake_line
 
-#: a hull this many times longer than wide shows its axis; its wake must leave along it within this angle
-#: (plus twice the line's own uncertainty; common practice, no source: drift and yaw are a few degrees)
-HULL_ELONGATION = 2.5
-HULL_AXIS_MAX_DEG = 10.0
-#: a hull is measured on the image only at pixels this small (m): coarser, its foam cannot be told apart
-RESOLVED_HULL_PIXEL_M = 2.0
-#: relative standard uncertainty of a hull length (given or measured; common practice, no source)
-HULL_LENGTH_REL_STD = 0.05
 #: speeds for which the "why no speed" note gives the transverse wavelength in pixels (knots)
 NOTE_SPEEDS_KN = (3.0, 20.0)
 #: fewer pixels per transverse wave than this cannot show crests (two samples per crest and some margin;
@@ -102,14 +94,20 @@ def look_for_lines(
             "lines along a quay's edge are not wakes); a moored vessel makes no wake",
         )
     axis = hull_axis_deg
-    if axis is None and hull is not None and not hull_elsewhere and hull.length_m >= HULL_ELONGATION * hull.width_m:
+    if (
+        axis is None
+        and hull is not None
+        and not hull_elsewhere
+        and hull.length_m >= tuning.hull_elongation_min * hull.width_m
+        and hull.length_m >= tuning.hull_axis_min_length_px * chip.m_per_px
+    ):
         axis = hull.axis_deg
     if axis is not None:
         # a wake leaves a hull along its long axis: a line across it belongs to something else (in radar, a
         # wake displaced from its hull, whose line from the hull runs obliquely into it; a displaced hull keeps
         # its orientation)
         off = abs((wake.back_deg - axis + 90.0) % 180.0 - 90.0)
-        if off > HULL_AXIS_MAX_DEG + 2 * wake.back_std_deg:
+        if off > tuning.hull_axis_max_deg + 2 * wake.back_std_deg:
             return LineLook(
                 chip,
                 wake,
@@ -147,14 +145,16 @@ def line_finding(
     request: AnalysisRequest,
     look: LineLook,
     *,
-    g: float,
+    gravity: inv.Uncertain,
     spectral_note: str,
     tuning: Tuning,
     hull_px: tuple[float, float] | None = None,
+    methods: tuple[SpeedMethod, ...] = SPEED_METHODS,
 ) -> WakeAnalysis:
     """The finding of a wake seen as a line (``look.found`` must be true); ``hull_px``: a radar hull seen
-    away from the wake's start (scene pixels)."""
+    away from the wake's start (scene pixels); ``gravity``: with its uncertainty, as the wave path has it."""
     chip, wake = look.chip, look.wake
+    g = gravity.value
     assert chip is not None and wake is not None and look.found
     vessel_px = chip.to_scene(*wake.vessel_rc)
     lonlat = None
@@ -163,12 +163,22 @@ def line_finding(
         lonlat = (float(lon), float(lat))
     heading = _heading(chip, wake.back_deg)
     frame = chip.frame
+    ctx = MethodContext(
+        scene=scene,
+        request=request,
+        heading_deg=heading,
+        frame=frame,
+        conditions=inv.Conditions(g_mps2=gravity, pixel_scale_rel_std=request.pixel_rel_std),
+        gravity=gravity,
+        rng=np.random.default_rng(request.seed),
+        hull_px=hull_px,
+        tuning=tuning,
+        lines=LineStages(chip=chip, wake=wake),
+    )
+    outputs, estimates, _depth_source = run_methods(ctx, methods)
     cautions = opening_cautions(
         hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
-    )
-    rng = np.random.default_rng(request.seed)
-    shift = None if chip.radar else _band_shift(scene, vessel_px, wake, rng)
-    methods: tuple[inv.SpeedEstimate, ...] = ()
+    ) + [c for o in outputs for c in o.cautions]
     segments = [_ray(chip, wake.vessel_rc, wake.back_deg, 2 * wake.length_px, SegmentKind.TRACK)]
     for ln in wake.lines:
         if ln.kind in (LineKind.NARROW_V, LineKind.KELVIN_ARM):
@@ -180,50 +190,19 @@ def line_finding(
                 (LineKind.KELVIN_ARM, False): SegmentKind.ARM_RIGHT,
             }[(ln.kind, left)]
             segments.append(_ray(chip, wake.vessel_rc, wake.back_deg + ln.angle_from_track_deg, ln.length_px, seg_kind))
-    reason = _no_speed_reason(chip, g, spectral_note)
-    if shift is not None:
-        off = abs((shift.course_deg - heading + 180.0) % 360.0 - 180.0)
-        if off <= tuning.band_shift_course_max_deg and shift.along_px > 0:
-            methods = (shift.estimate,)
-            cautions.append(
-                Caution(
-                    CautionCode.OVER_GROUND,
-                    f"the speed is over ground, from the hull's shift of {np.hypot(*shift.shift_px):.2f} pixels "
-                    f"between bands recorded {shift.timing.delay_s:.3f} s apart ({shift.timing.source}); it "
-                    f"equals the speed through the water only in still water. Course over ground "
-                    f"{shift.course_deg:.0f}\N{DEGREE SIGN}, {off:.0f}\N{DEGREE SIGN} from the wake's heading",
-                )
-            )
-        else:
-            cautions.append(
-                Caution(
-                    CautionCode.SHIFT_OFF_TRACK,
-                    f"the hull's shift between bands (course {shift.course_deg:.0f}\N{DEGREE SIGN}) does not follow "
-                    f"its wake (heading {heading:.0f}\N{DEGREE SIGN}): foam or a neighbour moved the hull's edge, "
-                    "so no speed is taken from it",
-                )
-            )
-    elif (
-        scene.info.count > 1
-        and band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags) is None
-    ):
-        reason += (
-            "; the time between this sensor's bands is not known to the program (recognised: Sentinel-2 with "
-            "named bands B02 and B04), so no speed over ground from the hull's shift between bands"
-        )
-    narrow = _narrow_arms_speed(chip, wake, request, g, rng)
-    if narrow is not None:
-        methods = (*methods, narrow)
-        reason = reason.replace("no speed from waves: ", "no speed from wave crests: ")
+    segments += [s for o in outputs for s in o.segments]
+    reason = "; ".join([_no_speed_reason(chip, g, spectral_note), *(o.why_not for o in outputs if o.why_not)])
     cautions.insert(1, Caution(CautionCode.LINES_ONLY, reason))
-    combined = (
-        _one_method(methods[0]) if len(methods) == 1 else (inv.combine_estimates(list(methods)) if methods else None)
-    )
+    combined = combine(estimates)
     kind = "dark calm band" if wake.dark else "bright foam line"
     decision = (
         f"wake found as a line from the vessel ({kind}): significance {wake.significance:.1f} against the scene's "
         f"other lines (needs {tuning.line_significance_min:g}); "
-        + ("speed from the hull's shift between bands" if combined else "no speed: see the cautions")
+        + (
+            "speed from " + " and ".join(dict.fromkeys(e.method for e in estimates))
+            if combined is not None
+            else "no speed: see the cautions"
+        )
     )
     regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no waves resolved: depth regime not judged")
     n = chip.img.shape[0]
@@ -240,9 +219,9 @@ def line_finding(
         vessel_px=vessel_px,
         vessel_lonlat=lonlat,
         heading_deg=heading,
-        heading_std_deg=wake.back_std_deg,
+        heading_std_deg=float(np.hypot(wake.back_std_deg, tuning.line_heading_model_std_deg)),
         speed=combined,
-        methods=methods,
+        methods=estimates,
         half_angle_deg=None if wake.half_angle is None else wake.half_angle[0],
         half_angle_std_deg=None if wake.half_angle is None else wake.half_angle[1],
         transverse_wavelength_m=None,
@@ -258,61 +237,6 @@ def line_finding(
         lines=wake.lines,
         request=request,
     )
-
-
-def _narrow_arms_speed(
-    chip: LineChip, wake: LineWake, request: AnalysisRequest, g: float, rng: np.random.Generator
-) -> inv.SpeedEstimate | None:
-    """Speed of a fast hull from its arms narrower than Kelvin's and its length (Rabaud & Moisy 2013): the
-    length given by the analyst, or measured on the image when the hull is resolved (pixels of at most
-    ``RESOLVED_HULL_PIXEL_M``, where the hull and its foam are told apart)."""
-    if wake.half_angle is None or not any(ln.kind == LineKind.KELVIN_ARM for ln in wake.lines):
-        return None
-    half, half_std = wake.half_angle
-    if half > kelvin.KELVIN_HALF_ANGLE_DEG - 2 * half_std - 1.0:
-        return None
-    if request.hull_length_m is not None:
-        length = inv.Uncertain(request.hull_length_m, HULL_LENGTH_REL_STD * request.hull_length_m)
-    elif chip.hull is not None and chip.m_per_px <= RESOLVED_HULL_PIXEL_M:
-        length = inv.Uncertain(chip.hull.length_m, 2 * chip.m_per_px + HULL_LENGTH_REL_STD * chip.hull.length_m)
-    else:
-        return None
-    try:
-        return inv.speed_from_arm_angle_and_hull_length(
-            inv.Uncertain(half, half_std), length, inv.Conditions(g_mps2=inv.Uncertain(g, 0.0005)), seed=rng
-        )
-    except ParameterError:  # the angle does not fit the fast-hull model
-        return None
-
-
-def _one_method(e: inv.SpeedEstimate) -> inv.CombinedSpeed:
-    """A single method's own Monte Carlo interval (a speed from a shift's length is not symmetric about its
-    median, so the normal interval of the combination would misstate it)."""
-    return inv.CombinedSpeed(
-        e.speed_mps,
-        e.std_mps,
-        e.ci95_low_mps,
-        e.ci95_high_mps,
-        0.0,
-        0,
-        1.0,
-        True,
-        None,
-        (e.method,),
-        "one method only: no cross-check possible",
-    )
-
-
-def _band_shift(
-    scene: Scene, vessel_px: tuple[float, float], wake: LineWake, rng: np.random.Generator
-) -> BandShift | None:
-    timing = band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags)
-    if timing is None:
-        return None
-    try:
-        return measure_band_shift(scene, vessel_px, wake.back_deg, timing, rng=rng)
-    except ParameterError:
-        return None
 
 
 def _ray(chip: LineChip, origin_rc: tuple[float, float], angle_deg: float, length: float, kind: SegmentKind) -> Segment:

@@ -86,6 +86,40 @@ class Tuning:
     line_reach_m: float = 1200.0  #: longest wake line scored, ground metres
     line_snap_radius_m: float = 60.0  #: a hull this close to the click is taken as the vessel
     band_shift_course_max_deg: float = 30.0  #: the hull's shift between bands must follow the wake this closely
+    # ---- the hull at the head of a wake line (line path) ----
+    #: a hull this many times longer than wide shows its axis (common practice, no source)
+    hull_elongation_min: float = 2.5
+    #: a wake line further off an elongated hull's axis than this (plus twice the line's own uncertainty) is not
+    #: its wake.  Measured on the real vessels with a wake (benchmarks/hull_axis_sweep.py): see README
+    hull_axis_max_deg: float = 10.0
+    #: the hull's axis is used to refuse a line only when the hull is at least this many pixels long (a short
+    #: blob's axis is noise)
+    hull_axis_min_length_px: float = 6.0
+    #: standard uncertainty of a line-path heading that the line's own fit does not see (a turning track, foam
+    #: drifting with wind or current, one arm of a V followed instead of its axis); added in quadrature.
+    #: Set from the real wakes read by eye (benchmarks/real_sweep.py): see README
+    line_heading_model_std_deg: float = 0.0
+    # ---- narrow arms and hull length (Rabaud & Moisy 2013) ----
+    #: a hull is measured on the image only at pixels this small (m): coarser, its outline cannot be told from
+    #: its foam (common practice, no source)
+    resolved_hull_pixel_m: float = 2.0
+    #: relative standard uncertainty of a hull length (given or measured; common practice, no source)
+    hull_length_rel_std: float = 0.05
+    #: the hull's outline is separated from its foam when the blob above a quarter of its peak reaches behind the
+    #: outline (above half its peak) by at most this many pixels or this share of its length (common practice,
+    #: no source: the blur of a resolved edge is 1-2 pixels)
+    hull_foam_margin_px: float = 2.0
+    hull_foam_margin_rel: float = 0.15
+    #: an outline longer than this many widths is a hull with its foam or a line, not a hull: ships' length to
+    #: beam ratios lie below about 10 (from memory: fast warships and racing hulls)
+    hull_outline_elongation_max: float = 10.0
+    #: largest hull Froude number for which the narrow-arms relation gives a speed.  Rabaud & Moisy 2013 found
+    #: the Mach-like regime on airborne images above Fr_L ~ 0.5 (the range of their data is not in front of us);
+    #: planing-hull model series reach volume Froude numbers of 3.5 (Radojcic et al. 2014, Polish Maritime
+    #: Research 21(2), 9-26: USCG and TUNS series, Fn_V 0.6-3.5), that is Fr_L ~ 1.75 at the stubbiest
+    #: slenderness L / V^(1/3) = 4; above 2.5 (a margin for racing craft, common practice, no source) a figure
+    #: is outside the method's domain and becomes a caution
+    narrow_arms_fr_max: float = 2.5
     # ---- radar azimuth offset (Raney 1971) ----
     radar_max_radial_mps: float = 20.0  #: largest radial speed searched for the wake line
     radar_wake_line_min: float = 5.0  #: significance of the wake line used for the offset

@@ -389,12 +389,29 @@ def speed_from_arm_angle_and_hull_length(
 def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) -> CombinedSpeed:
     """Combine independent speed estimates; test their consistency with chi-square.
 
-    When the test rejects at level ``alpha``, the method with the largest
-    normalised residual is named and the combined uncertainty is inflated by
-    the Birge ratio sqrt(chi2/dof) instead of pretending the estimates agree.
+    One estimate keeps its own Monte Carlo interval.  When the test rejects at level ``alpha``, the method
+    with the largest normalised residual is named and the combined uncertainty is inflated by the Birge
+    ratio sqrt(chi2/dof) instead of pretending the estimates agree.
     """
     if not estimates:
         raise ParameterError("combine_estimates needs at least one estimate, got none")
+    if len(estimates) == 1:
+        # one method: its own Monte Carlo interval (a speed from a length or a shift is not symmetric about its
+        # median, so a normal interval would misstate it); no cross-check is possible
+        e = estimates[0]
+        return CombinedSpeed(
+            e.speed_mps,
+            e.std_mps,
+            e.ci95_low_mps,
+            e.ci95_high_mps,
+            0.0,
+            0,
+            1.0,
+            True,
+            None,
+            (e.method,),
+            "one method only: no cross-check possible",
+        )
     x = np.array([e.speed_mps for e in estimates])
     s = np.array([e.std_mps for e in estimates])
     if np.any(s <= 0):

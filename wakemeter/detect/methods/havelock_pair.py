@@ -12,11 +12,14 @@ from .transverse import crest_spacing
 
 class HavelockPair:
     name = "transverse waves and Havelock half-angle"
+    reads_depth = False
 
     def estimate(self, ctx: MethodContext) -> MethodOutput:
         lam = crest_spacing(ctx)
-        half, half_sd = ctx.measures.half_angle_deg, ctx.measures.half_angle_std_deg
-        if lam is None or not ctx.model.fitted or half is None or half_sd is None:
+        if lam is None or ctx.waves is None:
+            return NOTHING
+        half, half_sd = ctx.waves.measures.half_angle_deg, ctx.waves.measures.half_angle_std_deg
+        if not ctx.waves.model.fitted or half is None or half_sd is None:
             return NOTHING
         if not (half > kelvin.KELVIN_HALF_ANGLE_DEG + 2 * half_sd and half_sd < ctx.tuning.havelock_pair_max_std_deg):
             return NOTHING

@@ -17,10 +17,11 @@ from .base import NOTHING, MethodContext, MethodOutput
 
 class RadarOffset:
     name = "radar azimuth offset"
+    reads_depth = False
 
     def estimate(self, ctx: MethodContext) -> MethodOutput:
         geo = ctx.request.radar_geometry
-        if geo is None:
+        if geo is None or ctx.waves is None:
             return NOTHING
         try:
             est = self._offset(ctx)
@@ -41,8 +42,8 @@ class RadarOffset:
 
     def _offset(self, ctx: MethodContext) -> inv.SpeedEstimate | None:
         geo, t = ctx.request.radar_geometry, ctx.tuning
-        assert geo is not None
-        chip = ctx.look.chip
+        assert geo is not None and ctx.waves is not None
+        chip = ctx.waves.look.chip
         if ctx.hull_px is not None:  # the hull is not at the wake's start: use where it was seen
             chip = replace(
                 chip,
@@ -50,7 +51,7 @@ class RadarOffset:
             )
         if chip.hull_rc is None:
             return None
-        back = ctx.measures.back_deg
+        back = ctx.waves.measures.back_deg
         # the wake line is found anywhere within the largest plausible displacement
         max_off_m = geo.slant_range_m / geo.platform_speed_mps * t.radar_max_radial_mps
         found = arms_mod.wake_line_offset(chip.data, chip.valid, back, max_offset_px=max_off_m / chip.m_per_px)

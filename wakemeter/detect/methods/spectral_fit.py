@@ -6,16 +6,19 @@ from __future__ import annotations
 from dataclasses import replace
 
 from ...physics import inversion as inv
-from .base import MethodContext, MethodOutput
+from .base import NOTHING, MethodContext, MethodOutput
 
 
 class SpectralFit:
     name = "spectral fit"
+    reads_depth = True
 
     def estimate(self, ctx: MethodContext) -> MethodOutput:
-        m = ctx.model
+        if ctx.waves is None:
+            return NOTHING
+        m = ctx.waves.model
         est = inv.speed_from_spectral_fit(
-            inv.Uncertain(m.speed_mps, ctx.spread.speed_std_mps), ctx.conditions, seed=ctx.rng
+            inv.Uncertain(m.speed_mps, ctx.waves.spread.speed_std_mps), ctx.conditions, seed=ctx.rng
         )
         if m.fitted:
             est = replace(

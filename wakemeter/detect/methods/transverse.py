@@ -10,7 +10,9 @@ from .base import NOTHING, MethodContext, MethodOutput
 
 def crest_spacing(ctx: MethodContext) -> inv.Uncertain | None:
     """The measured transverse spacing with its stated uncertainty, or None when not seen."""
-    w = ctx.measures
+    if ctx.waves is None:
+        return None
+    w = ctx.waves.measures
     if w.transverse_wavelength_m is None:
         return None
     t = ctx.tuning
@@ -20,9 +22,10 @@ def crest_spacing(ctx: MethodContext) -> inv.Uncertain | None:
 
 class TransverseCrests:
     name = "transverse crest spacing"
+    reads_depth = False
 
     def estimate(self, ctx: MethodContext) -> MethodOutput:
         lam = crest_spacing(ctx)
-        if lam is None or ctx.model.fitted:
+        if lam is None or ctx.waves is None or ctx.waves.model.fitted:
             return NOTHING
         return MethodOutput((inv.speed_from_transverse_wavelength(lam, ctx.conditions, seed=ctx.rng),))
