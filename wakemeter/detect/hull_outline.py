@@ -6,16 +6,23 @@ for boats of about 12 m and 60 m).  The outline is the hull's core (above half t
 the track; it is accepted only when
 
 * the pixels are small enough to resolve a hull at all;
-* nothing above a quarter of the peak continues behind the core (foam or wake attached to the stern would);
+* nothing above a quarter of the peak continues behind the core anywhere across the stern (a foam trail or a
+  planing boat's foam V attached to the stern would);
 * the core is no more elongated than a hull can be.
+
+And the other way round (:func:`line_is_the_hull`): a bright line from the point that is the rest of a white
+hull, not a wake (a bright superstructure is the blob's peak; the hull around it is then less than a quarter
+of that peak and is scored as a line).
 """
 
 from __future__ import annotations
 
 import numpy as np
+from scipy import ndimage
 
-from .line_chip import Hull
+from .line_chip import Hull, LineChip
 from .tuning import Tuning
+from .wakeline import LineWake
 
 
 def hull_outline_length_m(hull: Hull, back_deg: float, m_per_px: float, tuning: Tuning) -> tuple[float | None, str]:
@@ -26,18 +33,24 @@ def hull_outline_length_m(hull: Hull, back_deg: float, m_per_px: float, tuning: 
             f"at {m_per_px:.1f} m per pixel a hull's outline cannot be told from its foam (needs "
             f"{tuning.resolved_hull_pixel_m:g} m or finer)"
         )
-    angles = np.array([back_deg, back_deg + 180.0])
-    aft_core, fore_core = hull.extent_px(angles)
-    aft_blob = float(hull.extent_px(np.array([back_deg]), whole=True)[0])
+    a = np.radians(back_deg)
+
+    def aft_reach(mask: np.ndarray) -> float:
+        """How far the mask reaches behind the centre along the track, over its whole width."""
+        rr, cc = np.nonzero(mask)
+        return float(((cc - hull.rc[1]) * np.cos(a) - (rr - hull.rc[0]) * np.sin(a)).max(initial=0.0))
+
+    aft_core = aft_reach(hull.core)
+    fore_core = float(hull.extent_px(np.array([back_deg + 180.0]))[0])
     length_px = float(aft_core + fore_core + 1.0)
-    trailing = aft_blob - float(aft_core)
+    # foam attached anywhere across the stern (a trail on the centre line, or a foam V from its corners)
+    trailing = aft_reach(hull.mask) - aft_core
     if trailing > max(tuning.hull_foam_margin_px, tuning.hull_foam_margin_rel * length_px):
         return None, (
             f"bright foam or wake continues {trailing * m_per_px:.0f} m behind the hull's outline, so its length "
             "cannot be measured on the image"
         )
     rr, cc = np.nonzero(hull.core)
-    a = np.radians(back_deg)
     across = (cc - hull.rc[1]) * np.sin(a) + (rr - hull.rc[0]) * np.cos(a)
     width_px = float(np.ptp(across)) + 1.0 if across.size else 1.0
     if length_px > tuning.hull_outline_elongation_max * width_px:
@@ -46,3 +59,51 @@ def hull_outline_length_m(hull: Hull, back_deg: float, m_per_px: float, tuning: 
             "line, not a hull alone"
         )
     return length_px * m_per_px, ""
+
+
+#: a sharp edge spreads over this many pixels in a sensor's blur; an even plateau stays above this share of
+#: its start (speckle-free optical noise is a few per cent of a hull's contrast; common practice, no source)
+EDGE_BLUR_PX = 3
+PLATEAU_SHARE = 0.7
+
+
+def line_is_the_hull(chip: LineChip, wake: LineWake, tuning: Tuning) -> str:
+    """Why the bright line from the point is the vessel's own hull (or superstructure) rather than a wake, or
+    "" when it is not.
+
+    A hull seen from above is a plateau of brightness that ends sharply at its bow or stern with open water
+    beyond; foam and wakes fade away gradually or go on.  Along the line from the blob at the point: the
+    profile (the brightest of three samples across it) stays above 70 % of its start (the median of its first
+    five samples) until it falls below a quarter within the blur of an edge, nothing bright follows over twice
+    its length, and the whole object is no longer than a ship.
+    """
+    if wake.dark or chip.radar or chip.hull is None:
+        return ""
+    angle = wake.back_deg
+    start = float(chip.hull.extent_px(np.array([angle]), whole=True)[0])
+    r = np.arange(0.0, 0.42 * chip.img.shape[0] - start, 1.0)
+    if r.size < 12:
+        return ""
+    a = np.radians(angle)
+    ur, uc = -np.sin(a), np.cos(a)
+    lat = np.array([-1.0, 0.0, 1.0])
+    rows = chip.vessel_rc[0] + (start + r)[:, None] * ur + lat[None, :] * uc
+    cols = chip.vessel_rc[1] + (start + r)[:, None] * uc - lat[None, :] * ur
+    prof = ndimage.map_coordinates(chip.img, [rows.ravel(), cols.ravel()], order=1).reshape(rows.shape).max(axis=1)
+    p0 = float(np.median(prof[:5]))
+    if p0 < tuning.hull_line_min_z:
+        return ""
+    below = np.nonzero(prof < 0.25 * p0)[0]
+    if below.size == 0 or below[0] < 4:
+        return ""
+    e = int(below[0])
+    plateau = float(prof[: e - EDGE_BLUR_PX].min()) >= PLATEAU_SHARE * p0  # the last pixels: the blurred edge
+    beyond = prof[e + 1 : e + 1 + max(2 * e, 10)]
+    quiet = beyond.size > 0 and float(np.mean(beyond)) < 0.1 * p0
+    length_m = (start + e + float(chip.hull.extent_px(np.array([angle + 180.0]))[0])) * chip.m_per_px
+    if plateau and quiet and length_m <= tuning.hull_length_max_m:
+        return (
+            f"the bright line from the point is {length_m:.0f} m of even brightness ending sharply with open water "
+            "beyond, as a hull or its superstructure does; a wake fades or goes on: this is the vessel itself"
+        )
+    return ""

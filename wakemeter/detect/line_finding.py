@@ -25,6 +25,7 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from .explain import opening_cautions
 from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, Segment, SegmentKind
+from .hull_outline import line_is_the_hull
 from .line_chip import LineChip, prepare_line_chip
 from .methods import SPEED_METHODS, LineStages, MethodContext, SpeedMethod, combine, run_methods
 from .request import AnalysisRequest
@@ -85,6 +86,9 @@ def look_for_lines(
             "may be the wake of a vessel elsewhere; mark that vessel, or ask again assuming a vessel here",
         )
     hull = chip.hull
+    own_hull = "" if hull_elsewhere else line_is_the_hull(chip, wake, tuning)
+    if own_hull and not request.force:
+        return LineLook(chip, wake, False, f"no wake: {own_hull}")
     if chip.hull_at_land and not request.force:
         return LineLook(
             chip,
@@ -107,7 +111,7 @@ def look_for_lines(
         # wake displaced from its hull, whose line from the hull runs obliquely into it; a displaced hull keeps
         # its orientation)
         off = abs((wake.back_deg - axis + 90.0) % 180.0 - 90.0)
-        if off > tuning.hull_axis_max_deg + 2 * wake.back_std_deg:
+        if off > tuning.hull_axis_max_deg + 2 * float(np.hypot(wake.back_std_deg, tuning.line_heading_model_std_deg)):
             return LineLook(
                 chip,
                 wake,

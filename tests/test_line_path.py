@@ -1,0 +1,206 @@
+"""The line path's stages on their typed inputs: the hull's own outline, a white hull that is not its own
+wake, the narrow-arms method inside its domain, the heading uncertainty's model term, and results that name
+only the methods that gave a figure.
+
+Scenes from :mod:`wakemeter.synth.hull_scenes` (synthetic, invented pixel values): each holds one failure
+class met on real 1.5-3 m images (issue notes: a white hull called a "turbulent wake (bright)", a planing
+boat's foam V and foam-covered hull read as narrow Kelvin arms and a 101 m hull, giving 90 kn).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from wakemeter.detect.analysis import AnalysisRequest, analyze
+from wakemeter.detect.findings import CautionCode, LineKind
+from wakemeter.detect.hull_outline import hull_outline_length_m
+from wakemeter.detect.line_chip import Hull
+from wakemeter.detect.tuning import DEFAULT_TUNING
+from wakemeter.physics.hull import hull_froude_from_arm_angle
+from wakemeter.physics.units import KNOT_MPS
+from wakemeter.scene.raster import open_scene
+from wakemeter.synth.hull_scenes import white_hull_scene
+
+
+def _hull(core: np.ndarray, mask: np.ndarray, m_px: float = 1.0) -> Hull:
+    rr, cc = np.nonzero(core)
+    return Hull((float(rr.mean()), float(cc.mean())), 0.0, 0.0, 0.0, 100.0, mask, core)
+
+
+def _bar(n: int = 40, r0: int = 19, c0: int = 10, length: int = 8, width: int = 3) -> np.ndarray:
+    m = np.zeros((n, n), bool)
+    m[r0 : r0 + width, c0 : c0 + length] = True
+    return m
+
+
+def test_hull_outline_of_a_clean_hull_is_its_length():
+    # an 8 x 3 pixel hull along the columns, moving right (the wake at image angle 180 deg): 8 pixels long
+    # (hand-worked: the outline spans columns 10-17; extents from the centre 3.5 + 3.5, plus the centre pixel)
+    core = _bar()
+    length, why = hull_outline_length_m(_hull(core, core), 180.0, 1.5, DEFAULT_TUNING)
+    assert why == "" and length == pytest.approx(8 * 1.5)
+
+
+def test_hull_outline_refused_when_foam_trails_it():
+    # the same hull with 20 pixels of foam behind it (above a quarter of the peak, below half): the blob is 28
+    # pixels long, and its length is not the hull's (the real failure: 101 m "hulls" of 12 m boats)
+    core = _bar()
+    mask = core | _bar(c0=0, length=10, width=3)
+    length, why = hull_outline_length_m(_hull(core, mask), 180.0, 1.5, DEFAULT_TUNING)
+    assert length is None and "foam" in why
+
+
+def test_hull_outline_refused_with_a_foam_v_from_the_stern_corners():
+    # foam arms leave the stern's corners, off the centre line: still foam attached to the hull
+    core = _bar()
+    mask = core.copy()
+    for k in range(1, 10):
+        mask[19 - k // 3, 10 - k] = True
+        mask[21 + k // 3, 10 - k] = True
+    length, why = hull_outline_length_m(_hull(core, mask), 180.0, 1.5, DEFAULT_TUNING)
+    assert length is None and "foam" in why
+
+
+def test_hull_outline_refused_when_too_long_for_a_hull_or_too_coarse():
+    core = _bar(length=36, width=2)  # 18 widths long: a line, not a hull (length/beam below ~10, from memory)
+    assert hull_outline_length_m(_hull(core, core), 180.0, 1.5, DEFAULT_TUNING)[0] is None
+    core = _bar()
+    length, why = hull_outline_length_m(_hull(core, core), 180.0, 10.0, DEFAULT_TUNING)  # Sentinel-2 pixels
+    assert length is None and "per pixel" in why
+
+
+@pytest.mark.parametrize("superstructure", [1.0, 6.0])
+@pytest.mark.parametrize("where", [-0.45, -0.25, 0.0, 0.25, 0.45])
+def test_a_white_hull_on_calm_water_is_not_its_own_wake(tmp_path, superstructure, where):
+    # a 60 m white hull at 1.5 m per pixel, no wake; with a superstructure six times brighter than the hull the
+    # blob at a click is the superstructure and the rest of the hull used to be a bright line "from the vessel":
+    # 5 of 5 clicks gave a wake heading 243 deg before (synthetic)
+    hs = white_hull_scene(tmp_path / "hull.tif", superstructure_factor=superstructure)
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(where)))
+    assert not a.wake_found, a.decision
+    assert a.speed is None
+
+
+def test_a_white_hull_with_its_foam_trail_is_a_wake_with_the_right_heading(tmp_path):
+    hs = white_hull_scene(tmp_path / "hull.tif", superstructure_factor=6.0, foam_trail_m=150.0)
+    with open_scene(hs.path) as sc:
+        for where in (-0.4, 0.0, 0.4):
+            a = analyze(sc, AnalysisRequest(vessel_px=hs.at(where)))
+            assert a.wake_found and a.heading_deg is not None and a.heading_std_deg is not None
+            err = abs((a.heading_deg - hs.heading_deg + 180) % 360 - 180)
+            assert err <= 2 * a.heading_std_deg, (a.heading_deg, a.heading_std_deg)
+
+
+def test_a_planing_boats_foam_v_gives_no_speed_from_a_foam_covered_hull(tmp_path):
+    # a 12 m boat at 1.5 m per pixel with a foam V of 6 deg from its stern corners: the V is found and read as
+    # narrow arms, but the hull's length cannot be read from a blob that holds the foam: no narrow-arms speed,
+    # and the reason is said (before: a hull length from the blob and a speed; synthetic)
+    hs = white_hull_scene(
+        tmp_path / "v.tif",
+        length_m=12.0,
+        superstructure_factor=1.5,
+        hull_contrast=900.0,
+        foam_v_half_angle_deg=6.0,
+        foam_v_length_m=200.0,
+    )
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
+    assert a.wake_found and a.half_angle_deg is not None and a.half_angle_deg < 19.47
+    assert any(ln.kind == LineKind.KELVIN_ARM for ln in a.lines)
+    assert a.speed is None and not a.methods
+    why = next(c.text for c in a.cautions if c.code == CautionCode.LINES_ONLY)
+    assert "narrow arms" in why and "foam" in why
+    assert "speed from" not in a.decision
+
+
+def test_narrow_arms_with_a_given_hull_length_follow_the_published_relation(tmp_path):
+    # with the length given the method applies: U = Fr_L(phi) sqrt(g L) with Fr_L from the measured half-angle
+    # (Rabaud & Moisy 2013, Phys. Rev. Lett. 110, 214503; the inverse in physics.hull, tested there)
+    hs = white_hull_scene(
+        tmp_path / "v.tif",
+        length_m=12.0,
+        superstructure_factor=1.5,
+        hull_contrast=900.0,
+        foam_v_half_angle_deg=6.0,
+        foam_v_length_m=200.0,
+    )
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0), hull_length_m=12.0))
+    assert a.speed is not None and a.half_angle_deg is not None
+    expected = float(hull_froude_from_arm_angle(a.half_angle_deg)) * np.sqrt(a.gravity_mps2 * 12.0)
+    assert a.speed.speed_mps == pytest.approx(expected, rel=0.03)
+    assert [m.method for m in a.methods] == ["narrow arms and hull length"]
+    assert "speed from narrow arms and hull length" in a.decision
+
+
+def test_narrow_arms_outside_the_domain_give_a_caution_not_a_speed(tmp_path):
+    # arms at about 3 deg: by the fast-hull relation Fr_L = 3.6 whatever the length (Rabaud & Moisy 2013; at the
+    # bound 2.5 the arms lie at 4.56 deg), above what hulls reach (planing series about 1.75, Radojcic et al.
+    # 2014): no speed, a coded caution that says why, even with the length given
+    hs = white_hull_scene(
+        tmp_path / "v.tif",
+        length_m=12.0,
+        beam_m=1.5,
+        superstructure_factor=1.5,
+        hull_contrast=900.0,
+        foam_v_half_angle_deg=2.0,
+        foam_v_length_m=300.0,
+    )
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0), hull_length_m=12.0))
+    assert a.wake_found and a.half_angle_deg is not None
+    fr = float(hull_froude_from_arm_angle(a.half_angle_deg))
+    assert fr > DEFAULT_TUNING.narrow_arms_fr_max  # the case is outside the domain by construction
+    assert a.speed is None and not a.methods
+    assert a.has_caution(CautionCode.OUT_OF_DOMAIN)
+
+
+def test_line_heading_uncertainty_carries_the_model_term(tmp_path):
+    # the stated heading uncertainty of a line finding is never below the model term measured on real wakes
+    # (straight-line fits miss turning tracks, drifting foam, one arm followed; issue notes: median error 2.3
+    # deg on 13 real wakes, two near 10 deg stated +/-1.1 and +/-1.4)
+    hs = white_hull_scene(tmp_path / "hull.tif", foam_trail_m=150.0)
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
+    assert a.heading_std_deg is not None
+    assert a.heading_std_deg >= DEFAULT_TUNING.line_heading_model_std_deg
+    # a 10 deg error is inside 3 sigma
+    assert 10.0 <= 3 * a.heading_std_deg
+
+
+def test_result_texts_name_only_methods_that_gave_a_figure(tmp_path):
+    # every "speed from ..." in a decision names a method of the result's methods list, and a result without
+    # a speed names none (the real failure: "speed from the hull's shift between bands" for a figure from the
+    # narrow arms)
+    cases = [
+        dict(foam_trail_m=150.0),
+        dict(length_m=12.0, superstructure_factor=1.5, hull_contrast=900.0, foam_v_half_angle_deg=6.0),
+    ]
+    for i, kw in enumerate(cases):
+        hs = white_hull_scene(tmp_path / f"c{i}.tif", **kw)
+        with open_scene(hs.path) as sc:
+            for req in (
+                AnalysisRequest(vessel_px=hs.at(0.0)),
+                AnalysisRequest(vessel_px=hs.at(0.0), hull_length_m=12.0),
+            ):
+                a = analyze(sc, req)
+                named = a.decision.split("speed from ", 1)[1] if "speed from " in a.decision else ""
+                if a.speed is None:
+                    assert named == "" and not a.methods
+                else:
+                    assert named == " and ".join(dict.fromkeys(m.method for m in a.methods)), a.decision
+                    assert set(a.speed.methods) == {m.method for m in a.methods}
+
+
+def test_speeds_given_are_plausible_for_the_hull(tmp_path):
+    # a figure from the narrow arms never exceeds the hull Froude bound (speed in knots for the reader)
+    hs = white_hull_scene(
+        tmp_path / "v.tif", length_m=12.0, superstructure_factor=1.5, hull_contrast=900.0, foam_v_half_angle_deg=8.0
+    )
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0), hull_length_m=12.0))
+    if a.speed is not None:
+        fr = a.speed.speed_mps / np.sqrt(a.gravity_mps2 * 12.0)
+        assert fr <= DEFAULT_TUNING.narrow_arms_fr_max, a.speed.speed_mps / KNOT_MPS
