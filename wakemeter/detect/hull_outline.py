@@ -71,13 +71,14 @@ def line_is_the_hull(chip: LineChip, wake: LineWake, tuning: Tuning) -> str:
     """Why the bright line from the point is the vessel's own hull (or superstructure) rather than a wake, or
     "" when it is not.
 
-    A hull seen from above is a plateau of brightness that ends sharply at its bow or stern with open water
+    Only at pixels of ``hull_line_max_pixel_m`` and finer, where a hull's plateau spans many pixels.  A hull
+    seen from above is a plateau of brightness that ends sharply at its bow or stern with open water
     beyond; foam and wakes fade away gradually or go on.  Along the line from the blob at the point: the
     profile (the brightest of three samples across it) stays above 70 % of its start (the median of its first
     five samples) until it falls below a quarter within the blur of an edge, nothing bright follows over twice
     its length, and the whole object is no longer than a ship.
     """
-    if wake.dark or chip.radar or chip.hull is None:
+    if wake.dark or chip.radar or chip.hull is None or chip.m_per_px > tuning.hull_line_max_pixel_m:
         return ""
     angle = wake.back_deg
     start = float(chip.hull.extent_px(np.array([angle]), whole=True)[0])

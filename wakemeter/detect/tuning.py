@@ -110,6 +110,9 @@ class Tuning:
     hull_line_min_z: float = 6.0
     #: the longest ship (m; the largest container ships are about 400 m long, from memory)
     hull_length_max_m: float = 400.0
+    #: ... checked only at pixels this fine (m): the white hulls taken for wakes were on 1.5-3 m images; at 10 m
+    #: a small boat with a short even foam tail (a real sea tile, marseille_r768_c512) looks the same
+    hull_line_max_pixel_m: float = 5.0
     # ---- narrow arms and hull length (Rabaud & Moisy 2013) ----
     #: a hull is measured on the image only at pixels this small (m): coarser, its outline cannot be told from
     #: its foam (common practice, no source)
