@@ -61,12 +61,6 @@ def hull_outline_length_m(hull: Hull, back_deg: float, m_per_px: float, tuning: 
     return length_px * m_per_px, ""
 
 
-#: a sharp edge spreads over this many pixels in a sensor's blur; an even plateau stays above this share of
-#: its start (speckle-free optical noise is a few per cent of a hull's contrast; common practice, no source)
-EDGE_BLUR_PX = 3
-PLATEAU_SHARE = 0.7
-
-
 def line_is_the_hull(chip: LineChip, wake: LineWake, tuning: Tuning) -> str:
     """Why the bright line from the point is the vessel's own hull (or superstructure) rather than a wake, or
     "" when it is not.
@@ -98,7 +92,9 @@ def line_is_the_hull(chip: LineChip, wake: LineWake, tuning: Tuning) -> str:
     if below.size == 0 or below[0] < 4:
         return ""
     e = int(below[0])
-    plateau = float(prof[: e - EDGE_BLUR_PX].min()) >= PLATEAU_SHARE * p0  # the last pixels: the blurred edge
+    plateau = (
+        float(prof[: e - int(tuning.hull_edge_blur_px)].min()) >= tuning.hull_plateau_share * p0
+    )  # the last pixels: the blurred edge
     beyond = prof[e + 1 : e + 1 + max(2 * e, 10)]
     quiet = beyond.size > 0 and float(np.mean(beyond)) < 0.1 * p0
     length_m = (start + e + float(chip.hull.extent_px(np.array([angle + 180.0]))[0])) * chip.m_per_px

@@ -34,27 +34,7 @@ from ..scene.raster import Scene
 from .blob_shape import blob_shape
 from .pixels import index_to_scene, scene_to_index
 from .robust import median_spread
-
-#: dry areas by the water index: at least this wide (radius, m; at least one pixel) and larger than any hull
-#: (the largest ships are about 400 m x 60 m; some decks are as dry as a quay, NDWI near 0)
-DRY_DISK_M = 10.0
-DRY_AREA_M2 = 30_000.0
-#: bright areas without a water index: wider than a broad foam wake (radius, m; common practice, no source);
-#: capped at 20 px
-LAND_BRIGHT_DISK_M = 150.0
-#: and covers at least this area: larger than a hull with its foam (60 000 m^2 is a 1.2 km x 50 m band;
-#: common practice, no source)
-LAND_AREA_M2 = 60_000.0
-#: standardised brightness above which a pixel counts as bright for the land mask and the hull search
-BRIGHT_Z = 4.0
-#: a hull this close to land or a quay (pixels) is taken as moored alongside
-MOORED_GAP_PX = 4
-#: a hull in optical imagery stands this far above the water (standardised, smoothed): ships on water are
-#: tens of spreads brighter (Sentinel-2 crops: 58-266); a textured photograph's bright parts are not (the
-#: scikit-image rocket: 6.9)
-HULL_Z = 12.0
-#: in radar, in units of the smoothed decibel image's own robust spread (speckle): the prepare stage's rule
-HULL_Z_RADAR_SPREADS = 8.0
+from .tuning import DEFAULT_TUNING, Tuning
 
 
 @dataclass(frozen=True)
@@ -117,6 +97,7 @@ def prepare_line_chip(
     size_px: int = 320,
     radar: bool | None = None,
     snap_radius_m: float = 60.0,
+    tuning: Tuning = DEFAULT_TUNING,
 ) -> LineChip:
     """Read and prepare a ``size_px`` square around ``vessel_px`` (scene col, row) at full resolution."""
     col, row = vessel_px
@@ -163,11 +144,13 @@ def prepare_line_chip(
     med, spread = median_spread(img[valid])
     img = np.where(valid, (img - med) / spread, 0.0)
     m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up))
-    land = _land_mask(img, valid, full, scene.info.band_descriptions, bands, radar=bool(radar), m_px=m_px)
+    land = _land_mask(
+        img, valid, full, scene.info.band_descriptions, bands, radar=bool(radar), m_px=m_px, tuning=tuning
+    )
     in_scene = max(int(valid.sum()), 1)
     water = valid & ~land
     click = scene_to_index((c0, r0), 1, col, row)
-    hull = _find_hull(img, water, click, max(snap_radius_m / m_px, 3.0), m_px, radar=bool(radar))
+    hull = _find_hull(img, water, click, max(snap_radius_m / m_px, 3.0), m_px, radar=bool(radar), tuning=tuning)
     if water.sum() < 64:
         raise ParameterError(
             "the area around the vessel is land, cloud or nodata: there is no open water to look for a wake in"
@@ -185,7 +168,9 @@ def prepare_line_chip(
         bool(radar),
         bands,
         float((land & valid).sum() / in_scene),
-        bool(hull is not None and (ndimage.binary_dilation(hull.mask, iterations=MOORED_GAP_PX) & land).any()),
+        bool(
+            hull is not None and (ndimage.binary_dilation(hull.mask, iterations=int(tuning.moored_gap_px)) & land).any()
+        ),
     )
 
 
@@ -198,13 +183,14 @@ def _land_mask(
     *,
     radar: bool,
     m_px: float,
+    tuning: Tuning,
 ) -> np.ndarray:
     gn = None if radar else _green_nir(descriptions, bands)
     ndwi = None
     if gn is not None:
         g, nir = bands_data[gn[0]], bands_data[gn[1]]
         ndwi = (g - nir) / np.maximum(g + nir, 1e-6)
-    return land_mask(img, valid, m_px=m_px, ndwi=ndwi)
+    return land_mask(img, valid, m_px=m_px, ndwi=ndwi, tuning=tuning)
 
 
 def green_nir_bands(descriptions: tuple[str | None, ...]) -> tuple[int, int] | None:
@@ -214,17 +200,23 @@ def green_nir_bands(descriptions: tuple[str | None, ...]) -> tuple[int, int] | N
 
 
 def land_mask(
-    img_z: np.ndarray, valid: np.ndarray, *, m_px: float, ndwi: np.ndarray | None = None, bright: bool = True
+    img_z: np.ndarray,
+    valid: np.ndarray,
+    *,
+    m_px: float,
+    ndwi: np.ndarray | None = None,
+    bright: bool = True,
+    tuning: Tuning = DEFAULT_TUNING,
 ) -> np.ndarray:
     """Land, cloud and quays in a standardised image (water median 0, spread 1), dilated by 3 pixels for their
     bright edges:
 
-    * with a water index: dry areas (NDWI < 0) a few pixels wide and more (``DRY_DISK_M``, ``DRY_AREA_M2``):
+    * with a water index: dry areas (NDWI < 0) a few pixels wide and more (``dry_disk_m``, ``dry_area_m2``):
       quays and breakwaters included.  Hulls and foam stay wet: on the Sentinel-2 crops NDWI is 0.13-0.31 on
       hulls, 0.3-0.55 on foam, 0.58 on open water and -0.2 to 0 on a breakwater;
-    * by brightness alone: large bright areas that hold a disk of ``LAND_BRIGHT_DISK_M``, wider than any
+    * by brightness alone: large bright areas that hold a disk of ``land_bright_disk_m``, wider than any
       foam wake, so a broad bright wake is not taken for land (quays narrower than that stay in), and cover
-      at least ``LAND_AREA_M2`` (with ``bright``)."""
+      at least ``land_area_m2`` (with ``bright``)."""
 
     def opened(cand: np.ndarray, radius_m: float, cap: int, area_m2: float) -> np.ndarray:
         radius = int(np.clip(round(radius_m / m_px), 1, cap))
@@ -238,14 +230,24 @@ def land_mask(
 
     land = np.zeros_like(valid)
     if bright:
-        land |= opened(valid & (ndimage.uniform_filter(img_z, 3) > BRIGHT_Z), LAND_BRIGHT_DISK_M, 20, LAND_AREA_M2)
+        t = tuning
+        land |= opened(
+            valid & (ndimage.uniform_filter(img_z, 3) > t.bright_z), t.land_bright_disk_m, 20, t.land_area_m2
+        )
     if ndwi is not None:
-        land |= opened(valid & (ndwi < 0.0), DRY_DISK_M, 10, DRY_AREA_M2)
+        land |= opened(valid & (ndwi < 0.0), tuning.dry_disk_m, 10, tuning.dry_area_m2)
     return ndimage.binary_dilation(land, iterations=3)
 
 
 def _find_hull(
-    img: np.ndarray, water: np.ndarray, click_rc: tuple[float, float], radius_px: float, m_px: float, *, radar: bool
+    img: np.ndarray,
+    water: np.ndarray,
+    click_rc: tuple[float, float],
+    radius_px: float,
+    m_px: float,
+    *,
+    radar: bool,
+    tuning: Tuning,
 ) -> Hull | None:
     """The bright compact blob nearest the click within ``radius_px``."""
     sm = ndimage.gaussian_filter(np.where(water, img, 0.0), 0.7)
@@ -254,9 +256,9 @@ def _find_hull(
     near = (rr - click_rc[0]) ** 2 + (cc - click_rc[1]) ** 2 <= radius_px**2
     if radar:
         med, spread = median_spread(sm[water])
-        floor = med + HULL_Z_RADAR_SPREADS * spread
+        floor = med + tuning.hull_z_radar_spreads * spread
     else:
-        floor = HULL_Z
+        floor = tuning.hull_z
     peaks = (sm == ndimage.maximum_filter(sm, size=3)) & near & water & (sm > floor)
     if not peaks.any():
         return None

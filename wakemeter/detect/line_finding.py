@@ -63,10 +63,12 @@ def look_for_lines(
     ``hull_elsewhere``: the search starts where a radar hull's displaced wake begins (the hull is the
     evidence of a vessel)."""
     try:
-        chip = prepare_line_chip(scene, px, size_px=tuning.line_chip_px, snap_radius_m=tuning.line_snap_radius_m)
+        chip = prepare_line_chip(
+            scene, px, size_px=tuning.line_chip_px, snap_radius_m=tuning.line_snap_radius_m, tuning=tuning
+        )
     except ParameterError as err:
         return LineLook(None, None, False, str(err))
-    wake = find_wake_line(chip, reach_m=tuning.line_reach_m, rng_seed=request.seed)
+    wake = find_wake_line(chip, reach_m=tuning.line_reach_m, rng_seed=request.seed, tuning=tuning)
     if wake is None:
         return LineLook(chip, None, False, "too little open water around the vessel to compare lines")
     if wake.significance < tuning.line_significance_min:
@@ -111,7 +113,14 @@ def look_for_lines(
         # wake displaced from its hull, whose line from the hull runs obliquely into it; a displaced hull keeps
         # its orientation)
         off = abs((wake.back_deg - axis + 90.0) % 180.0 - 90.0)
-        if off > tuning.hull_axis_max_deg + 2 * float(np.hypot(wake.back_std_deg, tuning.line_heading_model_std_deg)):
+        # optical: the spread measured on real wakes with the heading's whole uncertainty; radar: tighter, as a
+        # line from a hull displaced in azimuth runs obliquely into its wake (synthetic radar, 8 m pixels)
+        tol = (
+            tuning.hull_axis_max_deg_radar + 2 * wake.back_std_deg
+            if chip.radar
+            else tuning.hull_axis_max_deg + 2 * float(np.hypot(wake.back_std_deg, tuning.line_heading_model_std_deg))
+        )
+        if off > tol:
             return LineLook(
                 chip,
                 wake,

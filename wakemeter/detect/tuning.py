@@ -86,6 +86,46 @@ class Tuning:
     line_reach_m: float = 1200.0  #: longest wake line scored, ground metres
     line_snap_radius_m: float = 60.0  #: a hull this close to the click is taken as the vessel
     band_shift_course_max_deg: float = 30.0  #: the hull's shift between bands must follow the wake this closely
+    # ---- the wake-line search (wakeline.py; values as set with benchmarks/real_sweep.py and the radar line
+    # scenes of tests/test_lines.py) ----
+    hull_clearance_px: float = 1.5  #: rays start this far beyond the hull's edge (chip pixels)
+    #: lines are scored over these lengths (fractions of the longest): short bright wakes and long faint ones
+    line_length_fractions: tuple[float, ...] = (0.125, 0.25, 0.5, 1.0)
+    #: the rays beside a line that give its local background start this far to its side at mid-length (px) ...
+    line_side_gap_px: float = 6.0
+    line_side_span_deg: float = 10.0  #: ... and span this many degrees
+    line_refine_half_px: float = 8.0  #: half-width of the strip across a line in which its ridge is followed
+    line_refine_max_deg: float = 12.0  #: largest correction of the fan's angle by the ridge fit
+    #: a second line counts as the other arm of a V at half-angles in this range (radar narrow V to supercritical
+    #: arms) ...
+    line_partner_min_half_deg: float = 1.0
+    line_partner_max_half_deg: float = 70.0
+    line_partner_fraction: float = 0.3  #: ... when it reaches this share of the first line's significance
+    line_partner_significance_min: float = 8.0  #: ... and at least this
+    line_partner_dip: float = 0.5  #: ... and the fan between them falls below this share of the weaker one
+    narrow_v_max_deg: float = 6.0  #: a radar V narrower than this (half-angle) is the narrow (Bragg) V
+    #: in optical scenes a dark line counts only this long (m): a hull's or a quay's shadow is a short dark line
+    #: from a bright object, a calm wake in sun glint runs on for kilometres (common practice, no source)
+    optical_dark_line_min_m: float = 400.0
+    line_null_points: int = 160  #: water points whose best lines make the scene's own background
+    line_clip_z: float = 12.0  #: standardised values are clipped here so one very bright spot cannot make a line
+    # ---- the line chip: land, quays and the hull (line_chip.py; real_sweep.py) ----
+    #: dry areas by the water index: at least this wide (radius, m; at least one pixel) and larger than any hull
+    #: (the largest ships are about 400 m x 60 m; some decks are as dry as a quay, NDWI near 0)
+    dry_disk_m: float = 10.0
+    dry_area_m2: float = 30_000.0
+    #: bright areas without a water index: wider than a broad foam wake (radius, m; capped at 20 px) and at least
+    #: this area (60 000 m^2 is a 1.2 km x 50 m band; both common practice, no source)
+    land_bright_disk_m: float = 150.0
+    land_area_m2: float = 60_000.0
+    bright_z: float = 4.0  #: standardised brightness above which a pixel counts as bright for the land mask
+    moored_gap_px: int = 4  #: a hull this close to land or a quay (pixels) is taken as moored alongside
+    #: a hull in optical imagery stands this far above the water (standardised, smoothed): ships on water are
+    #: tens of spreads brighter (Sentinel-2 crops: 58-266); a textured photograph's bright parts are not (the
+    #: scikit-image rocket: 6.9)
+    hull_z: float = 12.0
+    #: in radar, in units of the smoothed decibel image's own robust spread (speckle): the prepare stage's rule
+    hull_z_radar_spreads: float = 8.0
     # ---- the hull at the head of a wake line (line path) ----
     #: a hull this many times longer than wide shows its axis (common practice, no source)
     hull_elongation_min: float = 2.5
@@ -95,6 +135,9 @@ class Tuning:
     #: 12 + 2 x 3.5 = 19 deg keeps them; the shared real wakes' angles are in benchmarks/results/real_sweep-.json
     #: (hull_axis_off_deg_of_found_wakes)
     hull_axis_max_deg: float = 12.0
+    #: in radar the rule stays at its earlier width (plus twice the line fit's own uncertainty): a line from a hull
+    #: displaced in azimuth (Raney 1971) runs obliquely into the wake (tests/test_real_imagery.py, radar 8 m)
+    hull_axis_max_deg_radar: float = 10.0
     #: the hull's axis is used to refuse a line only when the hull is at least this many pixels long (a short
     #: blob's axis is noise)
     hull_axis_min_length_px: float = 6.0
@@ -110,6 +153,11 @@ class Tuning:
     hull_line_min_z: float = 6.0
     #: the longest ship (m; the largest container ships are about 400 m long, from memory)
     hull_length_max_m: float = 400.0
+    #: an even plateau (a hull) stays above this share of its start until its edge, which spreads over this many
+    #: pixels in a sensor's blur (speckle-free optical noise is a few per cent of a hull's contrast; common
+    #: practice, no source)
+    hull_plateau_share: float = 0.7
+    hull_edge_blur_px: int = 3
     #: ... checked only at pixels this fine (m): the white hulls taken for wakes were on 1.5-3 m images; at 10 m
     #: a small boat with a short even foam tail (a real sea tile, marseille_r768_c512) looks the same
     hull_line_max_pixel_m: float = 5.0

@@ -36,36 +36,10 @@ from .findings import LineKind
 from .line_chip import LineChip
 from .lines import WakeLine
 from .robust import median_spread
+from .tuning import DEFAULT_TUNING, Tuning
 
 #: directions searched (image angles, degrees)
 ANGLE_STEP_DEG = 1.0
-#: rays start this far beyond the hull's edge (chip pixels)
-HULL_CLEARANCE_PX = 1.5
-#: lines are scored over these lengths (fractions of the longest): short bright wakes and long faint ones
-LENGTH_FRACTIONS = (0.125, 0.25, 0.5, 1.0)
-#: the rays beside the line that give its local background start this far to its side at mid-length (px)
-#: and span this many degrees
-SIDE_GAP_PX = 6.0
-SIDE_SPAN_DEG = 10.0
-#: half-width of the strip across the line in which its ridge is followed (px), and the largest correction
-REFINE_HALF_PX = 8.0
-REFINE_MAX_DEG = 12.0
-#: a second line counts as the other arm of a V at half-angles of 1-70 degrees (radar narrow V to
-#: supercritical arms) when it reaches this share of the first line's significance (and at least this)
-PARTNER_MIN_HALF_DEG = 1.0
-PARTNER_MAX_HALF_DEG = 70.0
-PARTNER_FRACTION = 0.3
-PARTNER_SIGNIFICANCE_MIN = 8.0
-NARROW_V_MAX_DEG = 6.0
-#: ... and the fan between the two must fall below this share of the weaker one (two lines, not one wide one)
-PARTNER_DIP = 0.5
-#: in optical scenes a dark line counts only this long (m): a hull's or a quay's shadow is a short dark line
-#: from a bright object, a calm wake in sun glint runs on for kilometres (common practice, no source)
-OPTICAL_DARK_LINE_MIN_M = 400.0
-#: number of water points whose best lines make the scene's own background
-NULL_POINTS = 160
-#: standardised values are clipped here so one very bright spot cannot make a line
-CLIP_Z = 12.0
 
 
 @dataclass(frozen=True)
@@ -119,15 +93,15 @@ def _profiles(vals: np.ndarray, ok: np.ndarray, n_r: int) -> np.ndarray:
     return np.where(cnt >= 0.5 * n_r, _nanmedian_last(v), np.nan)
 
 
-def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float) -> np.ndarray:
+def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float, t: Tuning) -> np.ndarray:
     """One-sided line score for every direction (bright sign); ``prof`` covers 0-360 degrees evenly.  The
-    rays beside the line lie ``SIDE_GAP_PX`` and more to either side of it at mid-length."""
+    rays beside the line lie ``line_side_gap_px`` and more to either side of it at mid-length."""
     m = angles.size
     step = 360.0 / m
     opp = np.roll(prof, -m // 2)
-    lo_deg = max(np.degrees(np.arctan(SIDE_GAP_PX / max(r_mid, 1.0))), 3.0)
+    lo_deg = max(np.degrees(np.arctan(t.line_side_gap_px / max(r_mid, 1.0))), 3.0)
     lo = int(np.ceil(lo_deg / step))
-    hi = lo + int(round(SIDE_SPAN_DEG / step))
+    hi = lo + int(round(t.line_side_span_deg / step))
     shifts = np.array(list(range(lo, hi + 1)) + list(range(-hi, -lo + 1)))
     stack = prof[(np.arange(m)[:, None] - shifts[None, :]) % m]  # column k: the profile turned by shifts[k]
     side = _nanmedian_last(stack)  # directions with no valid ray beside them: NaN, as wanted
@@ -144,25 +118,26 @@ def _line_scores(
     r_max: float,
     start=None,
     *,
+    t: Tuning,
     keep: list | None = None,
     min_dark_px: float = 0.0,
 ) -> np.ndarray:
-    """Best one-sided score for each length of ``LENGTH_FRACTIONS`` and each sign: shape (lengths, 2), with
+    """Best one-sided score for each length of ``line_length_fractions`` and each sign: shape (lengths, 2), with
     the angle of each best: (scores, angles).  ``start``: per-direction offset of the rays (past the hull).
     ``keep``: a list that receives every direction's scores, one array (directions,) per length and sign.
     Dark lines shorter than ``min_dark_px`` are not scored."""
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     r = np.arange(r0, r_max, 1.0)
     vals, ok = _rays(img, valid, origin_rc, angles, r, start)
-    out = np.full((len(LENGTH_FRACTIONS), 2), -np.inf)
-    where = np.full((len(LENGTH_FRACTIONS), 2), np.nan)
-    for i, frac in enumerate(LENGTH_FRACTIONS):
+    out = np.full((len(t.line_length_fractions), 2), -np.inf)
+    where = np.full((len(t.line_length_fractions), 2), np.nan)
+    for i, frac in enumerate(t.line_length_fractions):
         n_r = max(int(frac * r.size), 6)
         full, near = _profiles(vals, ok, n_r), _profiles(vals, ok, max(n_r // 2, 4))
         for j, sign in enumerate((1.0, -1.0)):
             # a wake is there from its start: the line's value is the lesser of its whole and its first half
             prof = np.fmin(sign * full, sign * near)
-            s = _scores(prof, angles, r0 + n_r / 2)
+            s = _scores(prof, angles, r0 + n_r / 2, t)
             if sign < 0 and n_r < min_dark_px:
                 s = np.full_like(s, np.nan)
             if keep is not None:
@@ -173,7 +148,9 @@ def _line_scores(
     return np.stack([out, where])
 
 
-def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0) -> LineWake | None:
+def find_wake_line(
+    chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0, tuning: Tuning = DEFAULT_TUNING
+) -> LineWake | None:
     """The most significant line starting at the vessel, or None when the chip has no room for one.
 
     Parameters
@@ -184,10 +161,13 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
         Longest line scored, ground metres (capped by the chip).
     rng_seed : int
         Seed of the background points (the result is deterministic for a given seed).
+    tuning : Tuning
+        The line search's thresholds (``line_*``, ``hull_clearance_px``, ``narrow_v_max_deg``).
     """
-    img = np.clip(ndimage.gaussian_filter(chip.img, 0.7), -CLIP_Z, CLIP_Z)
+    t = tuning
+    img = np.clip(ndimage.gaussian_filter(chip.img, 0.7), -t.line_clip_z, t.line_clip_z)
     valid = chip.valid
-    r0 = HULL_CLEARANCE_PX
+    r0 = t.hull_clearance_px
     img = np.where(valid, img, 0.0)
     n = img.shape[0]
     r_max = float(min(reach_m / chip.m_per_px, 0.42 * n))
@@ -200,8 +180,8 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     start = None if chip.hull is None else chip.hull.extent_px(angles, whole=True)
     fans: list = []
     # optical: a short dark line from a hull is its shadow (or a quay's), not a calm wake
-    min_dark = 0.0 if chip.radar else OPTICAL_DARK_LINE_MIN_M / chip.m_per_px
-    own, own_angle = _line_scores(img, valid, origin, r0, r_max, start, keep=fans, min_dark_px=min_dark)
+    min_dark = 0.0 if chip.radar else t.optical_dark_line_min_m / chip.m_per_px
+    own, own_angle = _line_scores(img, valid, origin, r0, r_max, start, t=t, keep=fans, min_dark_px=min_dark)
     # the scene's own lines: the same scores from water points away from the vessel
     rng = np.random.default_rng(rng_seed)
     wr, wc = np.nonzero(chip.valid)
@@ -209,9 +189,9 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     wr, wc = wr[far], wc[far]
     if wr.size < 50:
         return None
-    pick = rng.choice(wr.size, size=min(NULL_POINTS, wr.size), replace=False)
+    pick = rng.choice(wr.size, size=min(t.line_null_points, wr.size), replace=False)
     null = np.stack(
-        [_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max, min_dark_px=min_dark)[0] for k in pick]
+        [_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max, t=t, min_dark_px=min_dark)[0] for k in pick]
     )
     # standardise each length and sign on the background points, then take the best: the background's best
     # standardised scores are the reference for the vessel's best
@@ -231,21 +211,21 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     i, j = np.unravel_index(int(np.argmax(z_own)), z_own.shape)
     sig = float((z_own[i, j] - med) / sp)
     score, angle, dark = float(own[i, j]), float(own_angle[i, j]), bool(j == 1)
-    n_r = max(int(LENGTH_FRACTIONS[i] * np.arange(r0, r_max, 1.0).size), 6)
+    n_r = max(int(t.line_length_fractions[i] * np.arange(r0, r_max, 1.0).size), 6)
     # from the centre, past the core behind the vessel: the line's own start
     behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([angle]), whole=True)[0])
     r_a = r0 + behind
-    back, back_std = _refine(img, valid, origin, angle, r_a, min(r_a + 2 * n_r, r_max + behind), dark)
+    back, back_std = _refine(img, valid, origin, angle, r_a, min(r_a + 2 * n_r, r_max + behind), dark, t)
     # a V: a second line of the same kind from the vessel, as strong, on the other side of a track between
     # them (Kelvin arms, supercritical arms, radar arms); then the track is their bisector, not either line
     # (in radar the two arms can differ in sign: the look direction tilts one bright and the other dark)
     sig_fans = [((fans[2 * i + jj] - centre[i, jj]) / spread[i, jj] - med) / sp for jj in (0, 1)]
     sig_fan = np.fmax(sig_fans[0], sig_fans[1])
-    partner = _partner(sig_fan, angle, sig)
+    partner = _partner(sig_fan, angle, sig, t)
     half_angle = None
     if partner is not None:
         b2 = float(chip.hull.extent_px(np.array([partner]), whole=True)[0]) if chip.hull is not None else 0.0
-        p_ang, p_std = _refine(img, valid, origin, partner, r0 + b2, min(r0 + b2 + 2 * n_r, r_max + b2), dark)
+        p_ang, p_std = _refine(img, valid, origin, partner, r0 + b2, min(r0 + b2 + 2 * n_r, r_max + b2), dark, t)
         gap = (p_ang - back + 180.0) % 360.0 - 180.0
         half_angle = (abs(gap) / 2, 0.5 * float(np.hypot(back_std, p_std)))
         back, back_std = (back + gap / 2) % 360.0, half_angle[1]
@@ -259,7 +239,7 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
         lines = [WakeLine(main_kind, 0.0, float(sig), float(n_r))]
         lines += _arms(img, valid, origin, back, r_a, r_max + behind, centre[-1, 0], spread[-1, 0], radar=chip.radar)
     else:
-        arm_kind = LineKind.NARROW_V if chip.radar and half_angle[0] < NARROW_V_MAX_DEG else LineKind.KELVIN_ARM
+        arm_kind = LineKind.NARROW_V if chip.radar and half_angle[0] < t.narrow_v_max_deg else LineKind.KELVIN_ARM
         assert partner is not None
         lines = [
             WakeLine(arm_kind, float((angle - back + 180.0) % 360.0 - 180.0), float(sig), float(n_r)),
@@ -283,12 +263,12 @@ def find_wake_line(chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0
     )
 
 
-def _partner(sig_fan: np.ndarray, angle: float, sig: float) -> float | None:
+def _partner(sig_fan: np.ndarray, angle: float, sig: float, t: Tuning) -> float | None:
     """The other arm of a V with the line at ``angle``: the strongest direction 2-140 degrees away whose
-    significance reaches ``PARTNER_FRACTION`` of the line's and the line threshold; None without one."""
+    significance reaches ``line_partner_fraction`` of the line's and the line threshold; None without one."""
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     sep = np.abs((angles - angle + 180.0) % 360.0 - 180.0)
-    cand = (sep >= 2 * PARTNER_MIN_HALF_DEG) & (sep <= 2 * PARTNER_MAX_HALF_DEG) & np.isfinite(sig_fan)
+    cand = (sep >= 2 * t.line_partner_min_half_deg) & (sep <= 2 * t.line_partner_max_half_deg) & np.isfinite(sig_fan)
     if not cand.any():
         return None
     k = int(np.argmax(np.where(cand, sig_fan, -np.inf)))
@@ -296,7 +276,7 @@ def _partner(sig_fan: np.ndarray, angle: float, sig: float) -> float | None:
     left, right = sig_fan[(k - 1) % angles.size], sig_fan[(k + 1) % angles.size]
     if not (sig_fan[k] >= left and sig_fan[k] >= right):
         return None
-    if sig_fan[k] < max(PARTNER_FRACTION * sig, PARTNER_SIGNIFICANCE_MIN):
+    if sig_fan[k] < max(t.line_partner_fraction * sig, t.line_partner_significance_min):
         return None
     # two lines, not one broad one: the fan must dip well below both between them
     i0 = int(round(angle / ANGLE_STEP_DEG)) % angles.size
@@ -306,18 +286,21 @@ def _partner(sig_fan: np.ndarray, angle: float, sig: float) -> float | None:
         if d <= angles.size // 2
         else [(k + t) % angles.size for t in range(1, angles.size - d)]
     )
-    if not between or np.nanmin(sig_fan[between]) > PARTNER_DIP * min(sig, float(sig_fan[k])):
+    if not between or np.nanmin(sig_fan[between]) > t.line_partner_dip * min(sig, float(sig_fan[k])):
         return None
     return float(angles[k])
 
 
-def _refine(img, valid, origin_rc, angle_deg: float, r0: float, r1: float, dark: bool) -> tuple[float, float]:
+def _refine(
+    img, valid, origin_rc, angle_deg: float, r0: float, r1: float, dark: bool, t: Tuning
+) -> tuple[float, float]:
     """Angle of the line from a weighted straight-line fit, through the vessel, of the ridge's lateral
     centroid against distance; its standard uncertainty from the fit's residuals, with the vessel position
     (one pixel) over the fit's length and a floor of half a degree."""
     sign = -1.0 if dark else 1.0
     r = np.arange(r0, r1, 1.0)
-    lat = np.arange(-REFINE_HALF_PX, REFINE_HALF_PX + 1e-9, 0.5)
+    half = t.line_refine_half_px
+    lat = np.arange(-half, half + 1e-9, 0.5)
     a = np.radians(angle_deg)
     ur, uc = -np.sin(a), np.cos(a)  # along the line (row, col)
     pr, pc = -uc, ur  # lateral unit vector (row, col): to the left of the line
@@ -326,12 +309,12 @@ def _refine(img, valid, origin_rc, angle_deg: float, r0: float, r1: float, dark:
     coords = [rows.ravel(), cols.ravel()]
     v = sign * ndimage.map_coordinates(img, coords, order=1, mode="constant").reshape(rows.shape)
     ok = ndimage.map_coordinates(valid.astype(np.float32), coords, order=0, mode="constant").reshape(rows.shape) > 0.5
-    edge = np.abs(lat) >= REFINE_HALF_PX - 2
+    edge = np.abs(lat) >= half - 2
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)
         level = np.nanmedian(np.where(ok[:, edge], v[:, edge], np.nan), axis=1)
     level = np.where(np.isfinite(level), level, 0.0)
-    w = np.where(ok & (np.abs(lat)[None, :] <= REFINE_HALF_PX - 2), np.clip(v - level[:, None], 0, None), 0.0)
+    w = np.where(ok & (np.abs(lat)[None, :] <= half - 2), np.clip(v - level[:, None], 0, None), 0.0)
     tot = w.sum(axis=1)
     use = tot > 0.05 * max(float(tot.max()), 1e-9)
     if use.sum() < 6:
@@ -344,7 +327,7 @@ def _refine(img, valid, origin_rc, angle_deg: float, r0: float, r1: float, dark:
     s2 = float(np.sum(wt * resid**2) / np.sum(wt)) * n_eff / max(n_eff - 1, 1.0)
     slope_se = float(np.sqrt(s2 / (np.sum(wt * rr**2) / np.sum(wt) * n_eff)))
     corr = float(np.degrees(np.arctan(slope)))  # a centroid to the left turns the line counter-clockwise
-    if abs(corr) > REFINE_MAX_DEG:  # the fit left the line: keep the fan's angle
+    if abs(corr) > t.line_refine_max_deg:  # the fit left the line: keep the fan's angle
         return angle_deg, 2.0 * ANGLE_STEP_DEG
     fit_std = float(np.degrees(np.arctan(slope_se)))
     place_std = float(np.degrees(np.arctan(1.0 / max(float(np.average(rr, weights=wt)), 1.0))))
