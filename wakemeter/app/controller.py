@@ -117,7 +117,6 @@ class Controller(QObject):
         request = self.doc.project.request_for(vid)  # a frozen copy, taken on the GUI thread
         self.doc.requests[vid] = request
         from ..detect.analysis import analyze
-        from ..detect.findings import CautionCode
 
         def work(progress, cancelled):
             return analyze(scene, request, progress=progress, cancelled=cancelled)
@@ -128,7 +127,7 @@ class Controller(QObject):
                 f"{v.name}: "
                 + (
                     f"{result.speed.speed_mps:.2f} m/s"
-                    + (" over ground" if result.has_caution(CautionCode.OVER_GROUND) else "")
+                    + (" over ground" if result.speed_over_ground else "")
                     + f", 95 % {result.speed.ci95_low_mps:.2f}–{result.speed.ci95_high_mps:.2f} m/s"
                     if result.speed is not None
                     else (

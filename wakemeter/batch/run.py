@@ -19,6 +19,7 @@ from pathlib import Path
 
 from .. import fileio
 from ..detect.request import AnalysisRequest
+from ..detect.result import stored_speed_basis
 from ..errors import ParameterError, WakemeterError
 from ..physics.units import KNOT_MPS
 from .tasks import BatchTask, done, evidence_task, find_task, result_path, run_task
@@ -183,7 +184,6 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
         except (OSError, ValueError):
             rec = {"status": "not run"}
         r = rec.get("result") or {}
-        codes = {c.get("code") for c in r.get("cautions", []) if isinstance(c, dict)}
         ci = r.get("speed_ci95_mps") or [None, None]
         ll = r.get("vessel_lonlat") or [None, None]
         px = r.get("vessel_px") or [None, None]
@@ -199,7 +199,7 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
                 "speed_kn": None if r.get("speed_mps") is None else r["speed_mps"] / KNOT_MPS,
                 "speed_ci95_low_kn": None if ci[0] is None else ci[0] / KNOT_MPS,
                 "speed_ci95_high_kn": None if ci[1] is None else ci[1] / KNOT_MPS,
-                "speed_basis": "over ground" if "over-ground" in codes else "through the water",
+                "speed_basis": stored_speed_basis(r) or "through the water",
                 "heading_deg": r.get("heading_deg"),
                 "heading_std_deg": r.get("heading_std_deg"),
                 "regime": r.get("regime"),

@@ -34,7 +34,6 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from ..detect.analysis import analyze
-    from ..detect.findings import CautionCode
     from ..evidence.export import export_evidence
     from ..evidence.from_session import is_session, report_from_session
     from ..scene.raster import open_scene
@@ -79,7 +78,7 @@ def run(args: argparse.Namespace) -> int:
         )
     _say_written(files)
     if a.speed is not None:
-        kind = "speed over ground" if a.has_caution(CautionCode.OVER_GROUND) else "speed through the water"
+        kind = f"speed {a.speed_basis}"
         print(
             f"{kind} {a.speed.speed_mps:.2f} m/s, 95 % interval {a.speed.ci95_low_mps:.2f}-"
             f"{a.speed.ci95_high_mps:.2f} m/s; heading {a.heading_deg:.1f}°"

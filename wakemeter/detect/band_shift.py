@@ -156,6 +156,7 @@ def measure_band_shift(
             f"band co-registration {CO_REGISTRATION_STD_PX} px per axis (from memory: 0.3 px at 3 sigma)",
             "speed over ground: equals the speed through the water only in still water",
         ),
+        over_ground=True,
     )
     return BandShift(
         (float(dcol), float(drow)),

@@ -105,6 +105,20 @@ class WakeAnalysis:
         return any(c.code == code for c in self.cautions)
 
     @property
+    def speed_over_ground(self) -> bool:
+        """The speed given is over ground: every method combined into it measured the hull against the Earth
+        (a mix with methods through the water is taken as through the water, as the waves are)."""
+        used = [m for m in self.methods if self.speed is not None and m.method in self.speed.methods]
+        return bool(used) and all(m.over_ground for m in used)
+
+    @property
+    def speed_basis(self) -> str | None:
+        """What the speed is: "over ground" or "through the water" (None without a speed)."""
+        if self.speed is None:
+            return None
+        return "over ground" if self.speed_over_ground else "through the water"
+
+    @property
     def narrow_v_half_angle_deg(self) -> float | None:
         """Mean half-angle of the radar narrow-V arms found (None when none was)."""
         nv = [abs(ln.angle_from_track_deg) for ln in self.lines if ln.kind == LineKind.NARROW_V]
@@ -121,6 +135,7 @@ class WakeAnalysis:
             "speed_knots": _num(sp.speed_mps / KNOT_MPS) if sp else None,
             "speed_ci95_mps": [_num(sp.ci95_low_mps), _num(sp.ci95_high_mps)] if sp else None,
             "speed_ci95_knots": ([_num(sp.ci95_low_mps / KNOT_MPS), _num(sp.ci95_high_mps / KNOT_MPS)] if sp else None),
+            "speed_basis": self.speed_basis,
             "consistency": sp.verdict if sp else None,
             "combination": None
             if sp is None
@@ -155,6 +170,7 @@ class WakeAnalysis:
                     "draws": m.draws,
                     "valid_fraction": _num(m.valid_fraction),
                     "by_hand": m.by_hand,
+                    "over_ground": m.over_ground,
                     "assumptions": list(m.assumptions),
                 }
                 for m in self.methods
@@ -191,7 +207,7 @@ class WakeAnalysis:
         return check_speed(
             sp.speed_mps,
             (sp.ci95_low_mps, sp.ci95_high_mps),
-            measured_over_ground=self.has_caution(CautionCode.OVER_GROUND),
+            measured_over_ground=self.speed_over_ground,
             heading_deg=self.heading_deg,
             heading_std_deg=self.heading_std_deg,
             current=req.current,
@@ -238,6 +254,8 @@ def _from_json(cls: type[WakeAnalysis], j: dict, drawing: Any) -> WakeAnalysis:
             _f(m.get("valid_fraction", 1.0)),
             tuple(m.get("assumptions") or ()),
             bool(m.get("by_hand", "(by hand)" in m["name"])),
+            # older records: the method's name says it ("hull shift between bands (speed over ground)")
+            bool(m.get("over_ground", "speed over ground" in m["name"] or m["name"] == "radar azimuth offset")),
         )
         for m in j.get("methods") or ()
     )
@@ -324,3 +342,15 @@ def _pair_json(x: tuple[float, float] | None) -> list | None:
 
 def _num(x: float | None) -> float | None:
     return None if x is None or not np.isfinite(x) else float(x)
+
+
+def stored_speed_basis(j: dict) -> str | None:
+    """What a stored result's speed is ("over ground" or "through the water"; None without a speed): the typed
+    field written by :meth:`WakeAnalysis.to_json`, or for records written before it, the caution code."""
+    if j.get("speed_mps") is None:
+        return None
+    basis = j.get("speed_basis")
+    if basis in ("over ground", "through the water"):
+        return str(basis)
+    codes = {c.get("code") for c in j.get("cautions") or () if isinstance(c, dict)}
+    return "over ground" if str(CautionCode.OVER_GROUND) in codes else "through the water"

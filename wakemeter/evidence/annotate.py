@@ -18,7 +18,7 @@ import cv2
 import numpy as np
 from PIL import Image, ImageDraw, ImageFont
 
-from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, CautionCode, SegmentKind
+from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, SegmentKind
 from ..detect.result import WakeAnalysis
 from ..physics.units import KNOT_MPS
 from ..scene import display, geodesy
@@ -273,7 +273,7 @@ def result_lines(analysis: WakeAnalysis) -> list[str]:
             "No speed: no wave crests resolved (see the report)",
         ]
     sp = analysis.speed
-    over_ground = analysis.has_caution(CautionCode.OVER_GROUND)
+    over_ground = analysis.speed_over_ground
     lines = [
         f"Speed {'over ground ' if over_ground else ''}{sp.speed_mps / KNOT_MPS:.1f} kn = {sp.speed_mps:.2f} m/s",
         f"95% interval {sp.ci95_low_mps / KNOT_MPS:.1f}-{sp.ci95_high_mps / KNOT_MPS:.1f} kn "

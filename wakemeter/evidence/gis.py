@@ -44,14 +44,13 @@ def vessel_features(scene: Scene, name: str, analysis: WakeAnalysis, comparison:
         raise ParameterError("GIS files need a georeferenced scene (an image calibrated by hand has no longitude)")
     r = analysis.to_json()
     check = r.get("speed_check") or {}
-    codes = {c["code"] for c in r["cautions"]}
     attrs = {
         "name": name,
         "wake_found": bool(r["wake_found"]),
         "speed_kn": r["speed_knots"],
         "speed_ci95_low_kn": None if r["speed_ci95_knots"] is None else r["speed_ci95_knots"][0],
         "speed_ci95_high_kn": None if r["speed_ci95_knots"] is None else r["speed_ci95_knots"][1],
-        "speed_basis": "over ground" if "over-ground" in codes else "through the water",
+        "speed_basis": analysis.speed_basis or "through the water",
         "heading_deg": r["heading_deg"],
         "heading_std_deg": r["heading_std_deg"],
         "regime": r["regime"],

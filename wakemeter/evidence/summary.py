@@ -6,6 +6,7 @@ three renderers only lay them out (and escape them for their markup).
 
 from __future__ import annotations
 
+from ..detect.result import stored_speed_basis
 from ..physics.units import KNOT_MPS
 
 _LINE_LABELS = (
@@ -48,12 +49,11 @@ def summary_rows(r: dict) -> list[tuple[str, str]]:
     if not r["wake_found"]:
         rows = [("Result", "No wake found: no speed estimate is given"), ("Decision", r["decision"])]
     else:
-        codes = {c.get("code") for c in r["cautions"] if isinstance(c, dict)}
         if r["speed_mps"] is None:
             speed, interval = "not estimated (see the cautions for why)", "none"
         else:
             speed, interval = speed_text(r)
-        label = "Speed over ground" if "over-ground" in codes else "Speed through water"
+        label = "Speed over ground" if stored_speed_basis(r) == "over ground" else "Speed through water"
         rows = [
             (label, speed),
             ("95 % interval", interval),
@@ -124,12 +124,11 @@ def overview_cells(r: dict) -> list[str]:
     """Speed, 95 % interval, heading and depth regime of a result, for the overview of several vessels."""
     if not r["wake_found"]:
         return ["no wake found", "-", "-", "-"]
-    codes = {c.get("code") for c in r["cautions"] if isinstance(c, dict)}
     heading = f"{r['heading_deg']:.1f}° (± {r['heading_std_deg']:.1f}°)"
     if r["speed_mps"] is None:
         return ["not estimated", "-", heading, r["regime"]]
     lo, hi = r["speed_ci95_mps"]
-    speed = f"{r['speed_mps'] / KNOT_MPS:.1f} kn" + (" over ground" if "over-ground" in codes else "")
+    speed = f"{r['speed_mps'] / KNOT_MPS:.1f} kn" + (" over ground" if stored_speed_basis(r) == "over ground" else "")
     return [speed, f"{lo / KNOT_MPS:.1f} - {hi / KNOT_MPS:.1f} kn", heading, r["regime"]]
 
 

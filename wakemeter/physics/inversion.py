@@ -17,7 +17,7 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from enum import StrEnum
 
 import numpy as np
@@ -92,6 +92,9 @@ class SpeedEstimate:
     valid_fraction: float  #: share of draws that gave a physical speed
     assumptions: tuple[str, ...] = field(default_factory=tuple)
     by_hand: bool = False  #: from a hand measurement (crest ruler, hand-drawn arm), not from the image analysis
+    #: a speed over ground (the hull's motion against the Earth: shift between bands, radar azimuth offset), not
+    #: through the water (waves move with the water)
+    over_ground: bool = False
 
     @property
     def speed_knots(self) -> float:
@@ -273,7 +276,7 @@ def speed_from_radar_offset(
         f"incidence {incidence_deg:.1f}°, look bearing {look_bearing_deg:.1f}°",
         "speed over ground (the radar sees motion relative to the Earth, not the water)",
     )
-    return _summarise("radar azimuth offset", u, draws, assumptions)
+    return replace(_summarise("radar azimuth offset", u, draws, assumptions), over_ground=True)
 
 
 @dataclass(frozen=True)

@@ -23,6 +23,7 @@ import numpy as np
 from pyproj import Geod
 from scipy.optimize import linear_sum_assignment
 
+from ..detect.result import stored_speed_basis
 from ..errors import ParameterError
 from ..physics.units import KNOT_MPS
 from .reports import PositionReport
@@ -239,7 +240,6 @@ def seen_from_result(name: str, result: dict) -> SeenVessel | None:
         return None
     lon, lat = result["vessel_lonlat"]
     check = result.get("speed_check") or {}
-    codes = {c.get("code") for c in result.get("cautions", []) if isinstance(c, dict)}
     speed = ci = None
     basis = "through the water"
     if check.get("over_ground") and (check.get("current") or check.get("measured") == "over ground"):
@@ -249,7 +249,7 @@ def seen_from_result(name: str, result: dict) -> SeenVessel | None:
         speed = result["speed_knots"]
         lo, hi = result["speed_ci95_knots"]
         ci = (lo, hi)
-        basis = "over ground" if "over-ground" in codes else "through the water"
+        basis = stored_speed_basis(result) or "through the water"
     return SeenVessel(name, lon, lat, speed, ci, result.get("heading_deg"), result.get("heading_std_deg"), basis)
 
 
