@@ -31,6 +31,7 @@ from ..errors import ParameterError
 from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
+from ..scene.sensor import BandRole, band_roles
 from .blob_shape import blob_shape
 from .pixels import index_to_scene, scene_to_index
 from .robust import median_spread
@@ -83,11 +84,12 @@ class LineChip:
 
 
 def _green_nir(descriptions: tuple[str | None, ...], bands: tuple[int, ...]) -> tuple[int, int] | None:
-    """Indices into ``bands`` of a green and a near-infrared band, from band names (Sentinel-2 or plain)."""
-    names = {(descriptions[b - 1] or "").strip().upper(): i for i, b in enumerate(bands) if b - 1 < len(descriptions)}
-    green = next((names[n] for n in ("B03", "B3", "GREEN") if n in names), None)
-    nir = next((names[n] for n in ("B08", "B8", "NIR") if n in names), None)
-    return None if green is None or nir is None else (green, nir)
+    """Indices into ``bands`` of a green and a near-infrared band, from the sensor table's band roles."""
+    roles = band_roles(descriptions)
+    green, nir = roles.get(BandRole.GREEN), roles.get(BandRole.NIR)
+    if green is None or nir is None or green not in bands or nir not in bands:
+        return None
+    return bands.index(green), bands.index(nir)
 
 
 def prepare_line_chip(

@@ -36,6 +36,7 @@ from scipy import ndimage, stats
 from ..errors import CancelledError, ParameterError
 from ..scene import display, geodesy
 from ..scene.raster import Scene, one_pass_cache
+from ..scene.sensor import BandRole, band_roles
 from .blob_shape import blob_shape
 from .line_chip import green_nir_bands
 from .pixels import index_to_scene
@@ -238,8 +239,8 @@ def find_vessels(
 
 def _detection_bands(scene: Scene) -> tuple[int, ...]:
     """Near-infrared and visible bands where named (hulls are bright in both); else every band up to four."""
-    names = [str(d or "").upper() for d in scene.info.band_descriptions]
-    want = [i + 1 for i, n in enumerate(names) if n in ("B08", "B8", "NIR", "B04", "B4", "RED", "B02", "B2", "BLUE")]
+    roles = band_roles(scene.info.band_descriptions)
+    want = sorted(b for r, b in roles.items() if r in (BandRole.NIR, BandRole.RED, BandRole.BLUE))
     return tuple(want) if want else tuple(range(1, min(scene.info.count, 4) + 1))
 
 
@@ -279,8 +280,7 @@ def _islands(dry: np.ndarray, m_px: float) -> np.ndarray:
 
 
 def _nir_band(scene: Scene) -> int | None:
-    names = [str(d or "").upper() for d in scene.info.band_descriptions]
-    return next((i + 1 for i, n in enumerate(names) if n in ("B08", "B8", "NIR")), None)
+    return band_roles(scene.info.band_descriptions).get(BandRole.NIR)
 
 
 def _anomaly_optical(bands, water, guard, back) -> list[np.ndarray]:

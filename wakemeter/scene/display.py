@@ -9,6 +9,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import ParameterError
+from .sensor import BandRole, band_roles
 
 
 def to_db(intensity: np.ndarray, *, floor: float = 1e-10) -> np.ndarray:
@@ -134,10 +135,10 @@ def looks_like_radar(dtype: str, count: int, sample: np.ndarray) -> bool:
 
 
 def true_colour_bands(band_descriptions: tuple[str | None, ...]) -> tuple[int, int, int]:
-    """Red, green and blue band numbers (1-based): from band names (Sentinel-2 B04 B03 B02, or red/green/blue)
-    when the file names them, else the first three bands."""
-    names = {(d or "").strip().upper(): i + 1 for i, d in enumerate(band_descriptions)}
-    for trio in (("B04", "B03", "B02"), ("B4", "B3", "B2"), ("RED", "GREEN", "BLUE")):
-        if all(t in names for t in trio):
-            return names[trio[0]], names[trio[1]], names[trio[2]]
+    """Red, green and blue band numbers (1-based): from the band roles of the sensor table
+    (:func:`~.sensor.band_roles`: Sentinel-2 B04 B03 B02, or red/green/blue) when the file names them, else
+    the first three bands."""
+    roles = band_roles(band_descriptions)
+    if all(r in roles for r in (BandRole.RED, BandRole.GREEN, BandRole.BLUE)):
+        return roles[BandRole.RED], roles[BandRole.GREEN], roles[BandRole.BLUE]
     return 1, 2, 3
