@@ -16,6 +16,11 @@ class ParameterError(WakemeterError, ValueError):
     """A parameter is outside what the method allows (names it, its value and the range)."""
 
 
+class TooLittleWaterError(ParameterError):
+    """The area around the vessel has too little open water (valid pixels) for the analysis asked for; another
+    stage with a smaller footprint may still look (the wave spectrum's box -> the line search)."""
+
+
 class SceneReadError(WakemeterError, OSError):
     """A scene cannot be opened or read (names the file and what is wrong)."""
 

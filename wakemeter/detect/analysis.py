@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import CancelledError, ParameterError
+from ..errors import CancelledError, ParameterError, TooLittleWaterError
 from ..physics import inversion as inv
 from ..physics.gravity import STANDARD_GRAVITY, normal_gravity
 from ..scene import geodesy
@@ -26,18 +26,18 @@ from .apex import find_displaced_apex
 from .band_shift import moves_against, scene_band_timing
 from .chip_measures import chip_outline
 from .decision import Decision, decide, decision_text, vessel_evidence
-from .depth_model import choose_depth_model
+from .depth_model import DepthModel, choose_depth_model
 from .explain import closing_cautions, depth_regime, interval_cover, opening_cautions, widen
 from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segment, SegmentKind
 from .line_finding import LineLook, line_finding, look_for_lines
 from .look import Look, choose_look
-from .methods import SPEED_METHODS, MethodContext, SpeedMethod, WaveStages, combine, run_methods
+from .methods import SPEED_METHODS, MethodContext, MethodOutput, SpeedMethod, WaveStages, combine, run_methods
 from .request import AnalysisRequest, RadarGeometry
 from .result import WakeAnalysis
 from .spectral import curve_points
 from .spread import estimate_spread
 from .tuning import DEFAULT_TUNING, Tuning
-from .wake_measures import measure_wake
+from .wake_measures import WakeMeasures, measure_wake
 
 __all__ = ["analyze", "AnalysisRequest", "RadarGeometry", "WakeAnalysis"]
 
@@ -106,9 +106,7 @@ def analyze(
     start = _start_px(scene, request)
     try:
         attempt: _Attempt | None = _attempt(scene, request, start, radar=request.radar, hull_px=None, tuning=tuning)
-    except ParameterError as err:
-        if "valid pixels" not in str(err):
-            raise
+    except TooLittleWaterError:
         attempt = None  # too little open water for the wave spectrum's box: the line search uses what is there
         spectral_note = "too little open water around the vessel for the wave spectrum"
     if attempt is not None:
@@ -381,6 +379,77 @@ def _measure(
     regime = depth_regime(model, measures, spectral=depth_source, depth=depth, g=g, tuning=tuning)
     cover = interval_cover(model, combined)
     widened = widen(combined, cover)
+    cautions = _cautions(
+        a,
+        frame,
+        outputs,
+        model,
+        measures,
+        widened,
+        widened_from=combined,
+        request=request,
+        evidence=evidence,
+        g=g,
+        tuning=tuning,
+    )
+    drawing = measures.drawing.plus(s for o in outputs for s in o.segments)
+    if a.hull_px is not None:  # from the hull as imaged to where its wake starts
+        drawing = drawing.plus([Segment(SegmentKind.HULL_SHIFT, (a.hull_px, a.vessel_px))])
+    depth_ci = None if depth is None else (max(depth.value - 1.96 * depth.std, 0.0), depth.value + 1.96 * depth.std)
+    plots = _plots(a, model, measures, g)
+    return WakeAnalysis(
+        wake_found=True,
+        decision=decision_text(a.decision, look, tuning),
+        significance=a.decision.significance,
+        vessel_px=a.vessel_px,
+        vessel_lonlat=a.vessel_lonlat,
+        heading_deg=heading,
+        heading_std_deg=spread.heading_std_deg,
+        speed=widened,
+        methods=methods,
+        half_angle_deg=measures.half_angle_deg,
+        half_angle_std_deg=measures.half_angle_std_deg,
+        transverse_wavelength_m=measures.transverse_wavelength_m,
+        transverse_wavelength_std_m=measures.transverse_wavelength_std_m,
+        regime=regime,
+        depth_m=None if depth is None else depth.value,
+        depth_ci95_m=depth_ci,
+        gravity_mps2=g,
+        pixel_m=look.chip.m_per_px,
+        cautions=tuple(cautions),
+        drawing=drawing,
+        diagnostics=Diagnostics(
+            side_contrast=look.side_contrast,
+            fit_speed_mps=look.fit.speed_mps,
+            depth_gain=model.depth_gain,
+            shallow_rule_out=model.rule_out,
+            boot_speeds_mps=spread.boot_speeds_mps,
+            look_step=look.step,
+            vessel_evidence=evidence,
+        ),
+        lines=measures.lines,
+        interval_cover=cover,
+        request=request,
+        plots=plots,
+    )
+
+
+def _cautions(
+    a: _Attempt,
+    frame: geodesy.LocalFrame,
+    outputs: list[MethodOutput],
+    model: DepthModel,
+    measures: WakeMeasures,
+    widened: inv.CombinedSpeed,
+    *,
+    widened_from: inv.CombinedSpeed,
+    request: AnalysisRequest,
+    evidence: str,
+    g: float,
+    tuning: Tuning,
+) -> list[Caution]:
+    """The result's cautions in their order: opening ones, each method's, closing ones; and the analyst's
+    insistence when neither a hull nor a wake line showed a vessel."""
     shift_m = (
         None
         if a.hull_px is None
@@ -393,7 +462,7 @@ def _measure(
             model,
             measures,
             widened,
-            widened=widened is not combined,
+            widened=widened is not widened_from,
             depth_given=request.depth is not None,
             hull_length_m=request.hull_length_m,
             g=g,
@@ -409,10 +478,12 @@ def _measure(
                 "wake line starts at this point, so these waves may belong to another vessel",
             ),
         )
-    drawing = measures.drawing.plus(s for o in outputs for s in o.segments)
-    if a.hull_px is not None:  # from the hull as imaged to where its wake starts
-        drawing = drawing.plus([Segment(SegmentKind.HULL_SHIFT, (a.hull_px, a.vessel_px))])
-    depth_ci = None if depth is None else (max(depth.value - 1.96 * depth.std, 0.0), depth.value + 1.96 * depth.std)
+    return cautions
+
+
+def _plots(a: _Attempt, model: DepthModel, measures: WakeMeasures, g: float) -> PlotData:
+    """The arrays behind the result's plots (spectrum, fitted curve, crest profile, Radon transform)."""
+    look = a.look
     sp = a.decision.spectrum
     tw = look.turbulent
     plots = PlotData(
@@ -432,38 +503,4 @@ def _measure(
         radon_angles_deg=None if tw is None else tw.angles_deg,
         radon_pick=None if tw is None else (tw.radon_angle_deg, tw.offset_px, tw.significance),
     )
-    return WakeAnalysis(
-        True,
-        decision_text(a.decision, look, tuning),
-        a.decision.significance,
-        a.vessel_px,
-        a.vessel_lonlat,
-        heading,
-        spread.heading_std_deg,
-        widened,
-        methods,
-        measures.half_angle_deg,
-        measures.half_angle_std_deg,
-        measures.transverse_wavelength_m,
-        measures.transverse_wavelength_std_m,
-        regime,
-        None if depth is None else depth.value,
-        depth_ci,
-        g,
-        look.chip.m_per_px,
-        tuple(cautions),
-        drawing=drawing,
-        diagnostics=Diagnostics(
-            look.side_contrast,
-            look.fit.speed_mps,
-            model.depth_gain,
-            model.rule_out,
-            spread.boot_speeds_mps,
-            look.step,
-            evidence,
-        ),
-        lines=measures.lines,
-        interval_cover=cover,
-        request=request,
-        plots=plots,
-    )
+    return plots

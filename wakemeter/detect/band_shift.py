@@ -143,14 +143,14 @@ def measure_band_shift(
     speeds = np.hypot(e_m, n_m) / delay
     lo, med, hi = np.percentile(speeds, [2.5, 50, 97.5])
     est = inv.SpeedEstimate(
-        "hull shift between bands (speed over ground)",
-        float(med),
-        float(np.std(speeds)),
-        float(lo),
-        float(hi),
-        n,
-        1.0,
-        (
+        method="hull shift between bands (speed over ground)",
+        speed_mps=float(med),
+        std_mps=float(np.std(speeds)),
+        ci95_low_mps=float(lo),
+        ci95_high_mps=float(hi),
+        draws=n,
+        valid_fraction=1.0,
+        assumptions=(
             f"bands {timing.first_band} and {timing.last_band} of a {timing.sensor} scene, {timing.source}",
             "the hull's leading edge moves with the hull; its foam and the land stand still",
             f"band co-registration {CO_REGISTRATION_STD_PX} px per axis (from memory: 0.3 px at 3 sigma)",

@@ -34,7 +34,12 @@ def depth_regime(
     h_alt = u**2 / (g * t.fr_rule_out**2)
     if depth is not None and spectral is None:
         regime = inv.DepthRegime(
-            inv.Regime.UNKNOWN, None, None, None, None, "no speed method that reads the depth gave a figure"
+            regime=inv.Regime.UNKNOWN,
+            froude_depth=None,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation="no speed method that reads the depth gave a figure",
         )
     elif depth is not None:
         regime = inv.assess_depth_regime(
@@ -44,14 +49,16 @@ def depth_regime(
         alt = model.shallow_alt
         assert alt is not None
         regime = inv.DepthRegime(
-            inv.Regime.UNKNOWN,
-            None,
-            None,
-            None,
-            None,
-            f"the wave spectrum cannot tell deep water from water about {h_alt:.0f} m deep (Fr_h {t.fr_rule_out}): "
-            f"the shallow-water curve fits almost as well (score {alt.score:.1f} against "
-            f"{fit_score:.1f}, at {alt.speed_mps:.2f} m/s); the 95 % interval covers both",
+            regime=inv.Regime.UNKNOWN,
+            froude_depth=None,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation=(
+                f"the wave spectrum cannot tell deep water from water about {h_alt:.0f} m deep "
+                f"(Fr_h {t.fr_rule_out}): the shallow-water curve fits almost as well (score {alt.score:.1f} "
+                f"against {fit_score:.1f}, at {alt.speed_mps:.2f} m/s); the 95 % interval covers both"
+            ),
         )
     else:
         worse = (
@@ -61,12 +68,12 @@ def depth_regime(
             f"(score {model.shallow_alt.score:.1f} against {fit_score:.1f})"
         )
         regime = inv.DepthRegime(
-            inv.Regime.DEEP,
-            None,
-            None,
-            None,
-            None,
-            "the wave spectrum fits the deep-water dispersion curve: no depth effect found"
+            regime=inv.Regime.DEEP,
+            froude_depth=None,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation="the wave spectrum fits the deep-water dispersion curve: no depth effect found"
             + worse
             + "".join(
                 f"; water with Fr_h {f:.2f} (about {u**2 / (g * f * f):.0f} m) fits almost as well, "

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import ndimage
 
-from ..errors import ParameterError
+from ..errors import ParameterError, TooLittleWaterError
 from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
@@ -52,7 +52,7 @@ def _mad_sigma(a: np.ndarray) -> float:
 
 def _check_coverage(valid: np.ndarray) -> None:
     if valid.sum() < 0.3 * valid.size:
-        raise ParameterError(
+        raise TooLittleWaterError(
             "less than 30 % of the area around the vessel has valid pixels: it is too close "
             "to the edge of the scene, or the area is nodata or land"
         )

@@ -28,7 +28,7 @@ SOFTWARE = f"wakemeter {__version__}"
 _REGIME_OF_JSON = {r.value.replace(" ", "-"): r for r in inv.Regime}
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class WakeAnalysis:
     """Everything the analysis found for one vessel (units in field names)."""
 
@@ -74,7 +74,14 @@ class WakeAnalysis:
         **more: Any,
     ) -> WakeAnalysis:
         """A result that found no wake: no speed, heading or wave measures; the regime unknown."""
-        regime = inv.DepthRegime(inv.Regime.UNKNOWN, None, None, None, None, "no wake: nothing to judge")
+        regime = inv.DepthRegime(
+            regime=inv.Regime.UNKNOWN,
+            froude_depth=None,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation="no wake: nothing to judge",
+        )
         return cls(
             wake_found=False,
             decision=decision,
@@ -245,17 +252,19 @@ class WakeAnalysis:
 def _from_json(cls: type[WakeAnalysis], j: dict, drawing: Any) -> WakeAnalysis:
     methods = tuple(
         inv.SpeedEstimate(
-            m["name"],
-            _f(m["speed_mps"]),
-            _f(m["std_mps"]),
-            _f(m["speed_ci95_mps"][0]),
-            _f(m["speed_ci95_mps"][1]),
-            int(m.get("draws") or 0),
-            _f(m.get("valid_fraction", 1.0)),
-            tuple(m.get("assumptions") or ()),
-            bool(m.get("by_hand", "(by hand)" in m["name"])),
+            method=m["name"],
+            speed_mps=_f(m["speed_mps"]),
+            std_mps=_f(m["std_mps"]),
+            ci95_low_mps=_f(m["speed_ci95_mps"][0]),
+            ci95_high_mps=_f(m["speed_ci95_mps"][1]),
+            draws=int(m.get("draws") or 0),
+            valid_fraction=_f(m.get("valid_fraction", 1.0)),
+            assumptions=tuple(m.get("assumptions") or ()),
+            by_hand=bool(m.get("by_hand", "(by hand)" in m["name"])),
             # older records: the method's name says it ("hull shift between bands (speed over ground)")
-            bool(m.get("over_ground", "speed over ground" in m["name"] or m["name"] == "radar azimuth offset")),
+            over_ground=bool(
+                m.get("over_ground", "speed over ground" in m["name"] or m["name"] == "radar azimuth offset")
+            ),
         )
         for m in j.get("methods") or ()
     )
@@ -265,25 +274,25 @@ def _from_json(cls: type[WakeAnalysis], j: dict, drawing: Any) -> WakeAnalysis:
         lo, hi = j["speed_ci95_mps"]
         std = c.get("std_mps")
         speed = inv.CombinedSpeed(
-            _f(j["speed_mps"]),
-            _f(std if std is not None else (hi - lo) / 3.92),
-            _f(lo),
-            _f(hi),
-            _f(c.get("chi2", 0.0)),
-            int(c.get("dof", max(len(methods) - 1, 0))),
-            _f(c.get("p_value", 1.0)),
-            bool(c.get("consistent", True)),
-            c.get("outlier"),
-            tuple(m.method for m in methods),
-            str(j.get("consistency") or ""),
+            speed_mps=_f(j["speed_mps"]),
+            std_mps=_f(std if std is not None else (hi - lo) / 3.92),
+            ci95_low_mps=_f(lo),
+            ci95_high_mps=_f(hi),
+            chi2=_f(c.get("chi2", 0.0)),
+            dof=int(c.get("dof", max(len(methods) - 1, 0))),
+            p_value=_f(c.get("p_value", 1.0)),
+            consistent=bool(c.get("consistent", True)),
+            outlier=c.get("outlier"),
+            methods=tuple(m.method for m in methods),
+            verdict=str(j.get("consistency") or ""),
         )
     regime = inv.DepthRegime(
-        _REGIME_OF_JSON[j["regime"]],
-        _opt(j.get("depth_froude")),
-        _opt_pair(j.get("depth_froude_ci95")),
-        _opt(j.get("depth_m")),
-        _opt_pair(j.get("depth_ci95_m")),
-        str(j.get("regime_explanation") or ""),
+        regime=_REGIME_OF_JSON[j["regime"]],
+        froude_depth=_opt(j.get("depth_froude")),
+        froude_ci95=_opt_pair(j.get("depth_froude_ci95")),
+        depth_m=_opt(j.get("depth_m")),
+        depth_ci95_m=_opt_pair(j.get("depth_ci95_m")),
+        explanation=str(j.get("regime_explanation") or ""),
     )
     lines = tuple(
         WakeLine(

@@ -79,7 +79,7 @@ class Conditions:
         return tuple(out)
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class SpeedEstimate:
     """A speed through the water from one method, with its 95 % interval."""
 
@@ -139,7 +139,14 @@ def _summarise(method: str, samples: np.ndarray, n: int, assumptions: tuple[str,
     lo, med, hi = np.percentile(s, [2.5, 50.0, 97.5])
     extra = () if frac > 0.999 else (f"{100 * (1 - frac):.1f} % of draws had no steady wave and were dropped",)
     return SpeedEstimate(
-        method, float(med), float(np.std(s, ddof=1)), float(lo), float(hi), int(n), frac, assumptions + extra
+        method=method,
+        speed_mps=float(med),
+        std_mps=float(np.std(s, ddof=1)),
+        ci95_low_mps=float(lo),
+        ci95_high_mps=float(hi),
+        draws=int(n),
+        valid_fraction=frac,
+        assumptions=assumptions + extra,
     )
 
 
@@ -336,7 +343,7 @@ def speed_and_depth_from_transverse_wavelength_and_half_angle(
     return est, DepthEstimate(float(med), float(lo), float(hi), float(fmed), (float(flo), float(fhi)))
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class CombinedSpeed:
     """Inverse-variance weighted speed and the chi-square consistency test."""
 
@@ -403,17 +410,17 @@ def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) ->
         # median, so a normal interval would misstate it); no cross-check is possible
         e = estimates[0]
         return CombinedSpeed(
-            e.speed_mps,
-            e.std_mps,
-            e.ci95_low_mps,
-            e.ci95_high_mps,
-            0.0,
-            0,
-            1.0,
-            True,
-            None,
-            (e.method,),
-            "one method only: no cross-check possible",
+            speed_mps=e.speed_mps,
+            std_mps=e.std_mps,
+            ci95_low_mps=e.ci95_low_mps,
+            ci95_high_mps=e.ci95_high_mps,
+            chi2=0.0,
+            dof=0,
+            p_value=1.0,
+            consistent=True,
+            outlier=None,
+            methods=(e.method,),
+            verdict="one method only: no cross-check possible",
         )
     x = np.array([e.speed_mps for e in estimates])
     s = np.array([e.std_mps for e in estimates])
@@ -447,7 +454,17 @@ def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) ->
             "Birge ratio)"
         )
     return CombinedSpeed(
-        mean, std, mean - 1.959964 * std, mean + 1.959964 * std, chi2, dof, p, consistent, outlier, methods, verdict
+        speed_mps=mean,
+        std_mps=std,
+        ci95_low_mps=mean - 1.959964 * std,
+        ci95_high_mps=mean + 1.959964 * std,
+        chi2=chi2,
+        dof=dof,
+        p_value=p,
+        consistent=consistent,
+        outlier=outlier,
+        methods=methods,
+        verdict=verdict,
     )
 
 
@@ -472,7 +489,7 @@ _REGIME_BANDS = (
 )
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, kw_only=True)
 class DepthRegime:
     regime: Regime
     froude_depth: float | None
@@ -521,34 +538,34 @@ def assess_depth_regime(
             f"{depth_m.value:.1f} m: {regime}"
         )
         return DepthRegime(
-            regime,
-            float(med),
-            (float(lo), float(hi)),
-            depth_m.value,
-            (depth_m.value - 1.96 * depth_m.std, depth_m.value + 1.96 * depth_m.std),
-            expl,
+            regime=regime,
+            froude_depth=float(med),
+            froude_ci95=(float(lo), float(hi)),
+            depth_m=depth_m.value,
+            depth_ci95_m=(depth_m.value - 1.96 * depth_m.std, depth_m.value + 1.96 * depth_m.std),
+            explanation=expl,
         )
     if half_angle_deg is not None:
         a, sa = half_angle_deg.value, max(half_angle_deg.std, 0.1)
         k = kelvin.KELVIN_HALF_ANGLE_DEG
         if abs(a - k) <= 2 * sa:
             return DepthRegime(
-                Regime.DEEP,
-                None,
-                None,
-                None,
-                None,
-                f"half-angle {a:.1f} ± {half_angle_deg.std:.1f}° agrees with Kelvin's {k:.2f}°: "
+                regime=Regime.DEEP,
+                froude_depth=None,
+                froude_ci95=None,
+                depth_m=None,
+                depth_ci95_m=None,
+                explanation=f"half-angle {a:.1f} ± {half_angle_deg.std:.1f}° agrees with Kelvin's {k:.2f}°: "
                 "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told",
             )
         if a < k:
             return DepthRegime(
-                Regime.UNKNOWN,
-                None,
-                None,
-                None,
-                None,
-                f"half-angle {a:.1f}° is narrower than Kelvin's: not a depth effect; "
+                regime=Regime.UNKNOWN,
+                froude_depth=None,
+                froude_ci95=None,
+                depth_m=None,
+                depth_ci95_m=None,
+                explanation=f"half-angle {a:.1f}° is narrower than Kelvin's: not a depth effect; "
                 "a fast, short hull (high hull Froude number) or a supercritical vessel without "
                 "transverse waves could explain it",
             )
@@ -563,25 +580,37 @@ def assess_depth_regime(
                 depth = speed.speed_mps**2 / (g * sub**2)
                 depth_ci = (speed.ci95_low_mps**2 / (g * fr_hi**2), speed.ci95_high_mps**2 / (g * fr_lo**2))
             return DepthRegime(
-                _band(sub),
-                sub,
-                (fr_lo, fr_hi),
-                depth,
-                depth_ci,
-                f"half-angle {a:.1f}° wider than Kelvin's with transverse waves: subcritical "
+                regime=_band(sub),
+                froude_depth=sub,
+                froude_ci95=(fr_lo, fr_hi),
+                depth_m=depth,
+                depth_ci95_m=depth_ci,
+                explanation=f"half-angle {a:.1f}° wider than Kelvin's with transverse waves: subcritical "
                 f"Fr_h = {sub:.2f} (Havelock 1908)",
             )
         if transverse_seen is False:
             return DepthRegime(
-                Regime.SUPERCRITICAL,
-                br.supercritical,
-                None,
-                None,
-                None,
-                f"half-angle {a:.1f}° and no transverse waves: supercritical, "
+                regime=Regime.SUPERCRITICAL,
+                froude_depth=br.supercritical,
+                froude_ci95=None,
+                depth_m=None,
+                depth_ci95_m=None,
+                explanation=f"half-angle {a:.1f}° and no transverse waves: supercritical, "
                 f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}",
             )
-        return DepthRegime(Regime.UNKNOWN, None, None, None, None, br.note)
+        return DepthRegime(
+            regime=Regime.UNKNOWN,
+            froude_depth=None,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation=br.note,
+        )
     return DepthRegime(
-        Regime.UNKNOWN, None, None, None, None, "neither depth nor half-angle known: the depth regime cannot be told"
+        regime=Regime.UNKNOWN,
+        froude_depth=None,
+        froude_ci95=None,
+        depth_m=None,
+        depth_ci95_m=None,
+        explanation="neither depth nor half-angle known: the depth regime cannot be told",
     )
