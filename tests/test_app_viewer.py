@@ -218,3 +218,28 @@ def test_help_menu_opens_its_texts(win):
         act.trigger()
         assert win.last_help
     assert "wakemeter 0." in win.last_help and "GDAL" in win.last_help  # About: versions
+
+
+def test_no_key_is_bound_twice(win):
+    # every action's keys, menus and tool bar together: a key bound twice makes Qt call it ambiguous and do
+    # nothing (Redo had Ctrl+Shift+Z twice: "Ambiguous shortcut overload") (self-consistency)
+    from PySide6.QtGui import QAction, QKeySequence
+
+    seen: dict[str, str] = {}
+    for act in win.findChildren(QAction):
+        for seq in act.shortcuts():
+            key = seq.toString(QKeySequence.SequenceFormat.PortableText)
+            assert key not in seen, f"{key!r} bound to {seen[key]!r} and {act.text()!r}"
+            seen[key] = act.text()
+    redo = [a for a in win.findChildren(QAction) if a.text().replace("&", "").startswith("Redo")]
+    assert redo and redo[0].shortcuts(), "Redo has a key"
+
+
+def test_the_actions_table_names_methods_the_window_has(win):
+    from wakemeter.app import actions
+
+    for _title, attribute, entries in actions.MENUS:
+        assert getattr(win, attribute) is not None
+        for e in entries:
+            if e.text != actions.SEPARATOR and not e.slot.startswith("<"):
+                assert callable(getattr(win, e.slot)), e.slot

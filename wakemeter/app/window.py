@@ -26,7 +26,7 @@ from PySide6.QtWidgets import (
 
 from ..errors import WakemeterError
 from ..scene import geodesy
-from . import help_texts
+from . import actions, help_texts
 from .canvas import Canvas
 from .document import ChangeItem, Document, Measurement, RemoveItem, SetCalibration, Vessel
 from .results import ResultsPanel
@@ -85,63 +85,52 @@ class MainWindow(QMainWindow):
         return QIcon(str(p)) if p.exists() else QIcon()
 
     def _build_actions(self) -> None:
+        """Menus from the table in :mod:`.actions`, then the tool bar."""
         mb = self.menuBar()
-        fm = mb.addMenu("&File")
-        a = fm.addAction("&Open scene…", self.open_dialog)
-        a.setShortcut(QKeySequence.StandardKey.Open)
-        self.recent_menu = fm.addMenu("Open &recent")
-        self._fill_recent()
-        fm.addAction("&Save session…", self.save_dialog).setShortcut(QKeySequence.StandardKey.Save)
-        fm.addAction("Open &session…", self.open_session_dialog)
-        fm.addAction("&Export evidence…", self.export_dialog).setShortcut(QKeySequence("Ctrl+E"))
-        fm.addSeparator()
-        fm.addAction("Load position &reports (AIS)…", self.load_reports_dialog)
-        fm.addAction("&Import vessel positions…", self.import_vessels_dialog)
-        fm.addAction("Export &map layers (GeoPackage, GeoJSON)…", self.export_gis_dialog)
-        self.file_menu = fm
-        fm.addSeparator()
-        fm.addAction("&Quit", self.close).setShortcut(QKeySequence.StandardKey.Quit)
-        em = mb.addMenu("&Edit")
-        undo = self.doc.undo.createUndoAction(self, "&Undo")
-        undo.setShortcut(QKeySequence.StandardKey.Undo)
-        redo = self.doc.undo.createRedoAction(self, "&Redo")
-        redo.setShortcuts([QKeySequence("Ctrl+Shift+Z"), QKeySequence(QKeySequence.StandardKey.Redo)])
-        em.addAction(undo)
-        em.addAction(redo)
-        self.addAction(undo)
-        self.addAction(redo)
-        d = em.addAction("&Delete selected", self.delete_selected)
-        d.setShortcut(QKeySequence.StandardKey.Delete)
-        em.addAction("Re&name vessel…", self.rename_selected)
-        vm = mb.addMenu("&View")
-        for text, key, fn in (
-            ("Zoom &in", "+", lambda: self.canvas.set_zoom(self.canvas.zoom * 1.25)),
-            ("Zoom &out", "-", lambda: self.canvas.set_zoom(self.canvas.zoom / 1.25)),
-            ("&Fit to window", "F", self.canvas.fit),
-            ("&1:1", "1", lambda: self.canvas.set_zoom(1.0)),
-        ):
-            act = vm.addAction(text, fn)
-            act.setShortcut(QKeySequence(key))
-        vm.addSeparator()
-        self.panels_menu = vm.addMenu("&Panels")  # docks closed by the user come back from here
-        vm.addSeparator()
-        vm.addAction("Brighter (gamma up)", lambda: self._contrast(1.25))
-        vm.addAction("Darker (gamma down)", lambda: self._contrast(0.8))
-        vm.addAction("Choose &bands…", self.choose_bands)
-        self.db_action = vm.addAction("Radar intensity in dB", self._toggle_db)
-        self.db_action.setCheckable(True)
+        for title, attribute, entries in actions.MENUS:
+            menu = mb.addMenu(title)
+            setattr(self, attribute, menu)
+            for e in entries:
+                self._add_entry(menu, e)
+        self._build_toolbar()
+
+    def _add_entry(self, menu, e: actions.Entry) -> None:
+        if e.text == actions.SEPARATOR:
+            menu.addSeparator()
+            return
+        if e.slot == actions.RECENT:
+            self.recent_menu = menu.addMenu(e.text)
+            self._fill_recent()
+            return
+        if e.slot == actions.PANELS:
+            self.panels_menu = menu.addMenu(e.text)
+            return
+        if e.slot in (actions.UNDO, actions.REDO):
+            make = self.doc.undo.createUndoAction if e.slot == actions.UNDO else self.doc.undo.createRedoAction
+            act = make(self, e.text)
+            menu.addAction(act)
+            self.addAction(act)
+        else:
+            act = menu.addAction(e.text, getattr(self, e.slot))
+        act.setShortcuts(actions.sequences(e.keys))
+        if e.checkable:
+            act.setCheckable(True)
+        if e.attribute:
+            setattr(self, e.attribute, act)
+
+    def _build_toolbar(self) -> None:
         tb = self.addToolBar("Tools")
         tb.setObjectName("tools")
         tb.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextUnderIcon)
         tb.setMovable(False)
         self.tool_actions: dict[str, QAction] = {}
         group = QActionGroup(self)
-        for i, tool in enumerate(TOOL_INFO):
-            label, tip = TOOL_INFO[tool]
+        for tool, (label, tip) in TOOL_INFO.items():
+            key = actions.TOOL_KEYS[tool]
             act = QAction(self._icon(tool), label, self)
             act.setCheckable(True)
-            act.setToolTip(f"{label} ({i + 1 if i else 'Esc'}): {tip}")
-            act.setShortcut(QKeySequence(str(i + 1)) if i else QKeySequence("Esc"))
+            act.setToolTip(f"{label} ({key}): {tip}")
+            act.setShortcut(QKeySequence(key))
             act.triggered.connect(lambda _=False, t=tool: self.set_tool(t))
             group.addAction(act)
             tb.addAction(act)
@@ -149,24 +138,51 @@ class MainWindow(QMainWindow):
         self.tool_actions["look"].setChecked(True)
         tb.addSeparator()
         run = QAction(self._icon("analyse"), "Analyse", self)
-        run.setToolTip("Analyse (Ctrl+R): find the selected vessel's wake and estimate speed, heading and depth regime")
-        run.setShortcut(QKeySequence("Ctrl+R"))
+        run.setToolTip(
+            f"Analyse ({actions.ANALYSE_KEY}): find the selected vessel's wake and estimate speed, heading and depth "
+            "regime"
+        )
+        run.setShortcut(QKeySequence(actions.ANALYSE_KEY))
         run.triggered.connect(lambda: self.controller.analyse_selected())
         tb.addAction(run)
         self.toolbar = tb
-        fv = mb.addMenu("Ve&ssels")
-        fv.addAction("Find vessels in &view", lambda: self.find_vessels(whole=False))
-        fv.addAction("Find vessels in the whole &scene", lambda: self.find_vessels(whole=True))
-        fv.addAction("Find vessels in a &rectangle you drag…", self.pick_find_area)
-        fv.addAction("&Analyse all vessels", lambda: self.controller.analyse_all())
-        self.vessels_menu = fv
-        hm = mb.addMenu("&Help")
-        hm.addAction("&Keys and tools", lambda: self._show_text("Keys and tools", help_texts.keys_text(TOOL_INFO)))
-        hm.addAction(
-            "&How the speed is measured", lambda: self._show_text("How the speed is measured", help_texts.METHODS)
-        )
-        hm.addAction("&About wakemeter", lambda: self._show_text("About wakemeter", help_texts.about_text()))
-        self.help_menu = hm
+
+    # ---- the menus' small commands -------------------------------------------
+    def zoom_in(self) -> None:
+        self.canvas.set_zoom(self.canvas.zoom * 1.25)
+
+    def zoom_out(self) -> None:
+        self.canvas.set_zoom(self.canvas.zoom / 1.25)
+
+    def zoom_fit(self) -> None:
+        self.canvas.fit()
+
+    def zoom_one(self) -> None:
+        self.canvas.set_zoom(1.0)
+
+    def brighter(self) -> None:
+        self._contrast(1.25)
+
+    def darker(self) -> None:
+        self._contrast(0.8)
+
+    def find_in_view(self) -> None:
+        self.find_vessels(whole=False)
+
+    def find_in_scene(self) -> None:
+        self.find_vessels(whole=True)
+
+    def analyse_all(self) -> None:
+        self.controller.analyse_all()
+
+    def help_keys(self) -> None:
+        self._show_text("Keys and tools", help_texts.keys_text(TOOL_INFO))
+
+    def help_methods(self) -> None:
+        self._show_text("How the speed is measured", help_texts.METHODS)
+
+    def help_about(self) -> None:
+        self._show_text("About wakemeter", help_texts.about_text())
 
     def _build_panels(self) -> None:
         self.items = QListWidget()
