@@ -55,6 +55,7 @@ class MainWindow(QMainWindow):
         self.settings = QSettings("wakemeter", "wakemeter")
         self.last_error = ""
         self.job: Job | None = None
+        self.db_action: QAction  # set from the actions table (its entry names it)
         self._build_actions()
         self._build_panels()
         self._build_status()
