@@ -204,3 +204,25 @@ def test_speeds_given_are_plausible_for_the_hull(tmp_path):
     if a.speed is not None:
         fr = a.speed.speed_mps / np.sqrt(a.gravity_mps2 * 12.0)
         assert fr <= DEFAULT_TUNING.narrow_arms_fr_max, a.speed.speed_mps / KNOT_MPS
+
+
+@pytest.mark.parametrize("off", [-17.0, 20.0])
+def test_a_wake_turned_off_the_hull_axis_is_not_refused(tmp_path, off):
+    # a trail leaving the stern 17-20 deg off the hull's axis (a turning track, a crabbing hull, drifting foam):
+    # before, refused as "13-16 deg off the hull's long axis, so it is not this hull's wake" (synthetic; real
+    # wakes were refused at 14-17 deg in the same way); now found, the heading along the trail within 2 sigma
+    hs = white_hull_scene(
+        tmp_path / "t.tif",
+        foam_trail_m=300.0,
+        trail_off_axis_deg=off,
+        superstructure_factor=1.0,
+        hull_contrast=1500.0,
+        foam_contrast=250.0,
+        seed=3,
+    )
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
+    assert a.wake_found, a.decision
+    assert a.heading_deg is not None and a.heading_std_deg is not None
+    err = abs((a.heading_deg - (hs.heading_deg + off) + 180) % 360 - 180)
+    assert err <= 2 * a.heading_std_deg, (a.heading_deg, a.heading_std_deg)

@@ -5,7 +5,7 @@ switchable on its own:
 
 * a white hull with a brighter superstructure (the blob around a click is then the superstructure; the rest
   of the hull is a bright line from it, which must not be taken for a wake);
-* a foam trail fading behind the stern (a wake seen as a line);
+* a foam trail fading behind the stern (a wake seen as a line), along the hull's axis or turned off it;
 * a planing boat's foam V: two bright foam arms from the stern at a small half-angle (not Kelvin wave ridges;
   attached to the hull, so the hull's length cannot be read from the blob).
 
@@ -51,8 +51,10 @@ def white_hull_scene(
     beam_m: float | None = None,
     heading_deg: float = 60.0,
     hull_contrast: float = 300.0,
+    foam_contrast: float | None = None,
     superstructure_factor: float = 6.0,
     foam_trail_m: float = 0.0,
+    trail_off_axis_deg: float = 0.0,
     foam_v_half_angle_deg: float | None = None,
     foam_v_length_m: float = 150.0,
     bands: int = 4,
@@ -75,7 +77,15 @@ def white_hull_scene(
     behind = -(along + length_m / 2)  # distance behind the stern (m)
     foam = np.zeros((n, n))
     if foam_trail_m > 0:
-        foam = np.maximum(foam, np.where((behind > 0) & (np.abs(across) <= beam / 2), 1 - behind / foam_trail_m, 0))
+        # the trail leaves the stern turned by trail_off_axis_deg from the hull's axis (a turning track, a hull
+        # crabbing in a cross current, foam drifting with the wind)
+        t = np.radians(trail_off_axis_deg)
+        sx, sy = (cc + 0.5 - c0) * pixel_m + length_m / 2 * ux * 1.0, (rr + 0.5 - r0) * pixel_m + length_m / 2 * uy
+        bx, by = -(ux * np.cos(t) - uy * np.sin(t)), -(ux * np.sin(t) + uy * np.cos(t))  # back along the trail
+        t_along = sx * bx + sy * by
+        t_across = -sx * by + sy * bx
+        trail = (t_along > 0) & (np.abs(t_across) <= beam / 2)
+        foam = np.maximum(foam, np.where(trail, 1 - t_along / foam_trail_m, 0))
     if foam_v_half_angle_deg is not None:
         t = np.tan(np.radians(foam_v_half_angle_deg))
         for side in (1.0, -1.0):
@@ -83,11 +93,12 @@ def white_hull_scene(
             arm = (behind > 0) & (behind < foam_v_length_m) & (off <= 1.2 * pixel_m)
             foam = np.maximum(foam, np.where(arm, 1 - behind / foam_v_length_m, 0))
     foam = np.clip(foam, 0, 1)
+    foam_level = 0.8 * hull_contrast if foam_contrast is None else foam_contrast
     out = np.empty((bands, n, n), np.float32)
     for i in range(bands):
         white = WATER[i] + hull_contrast
         b = WATER[i] + rng.normal(0, 15, (n, n))
-        b = np.where(foam > 0, WATER[i] + 0.8 * hull_contrast * foam, b)
+        b = np.where(foam > 0, WATER[i] + foam_level * foam, b)
         b = np.where(hull, white + rng.normal(0, 20, (n, n)), b)
         b = np.where(deck, WATER[i] + superstructure_factor * hull_contrast, b)
         out[i] = ndimage.gaussian_filter(b, 0.6)
