@@ -196,7 +196,7 @@ def sea_tiles(root: Path, pics: Path, tuning) -> list[dict]:
                     **_row(a, group="sea", file=item["file"], point=list(p), label=label, holds_boat=holds_boat),
                     **_axis_off(sc, a, tuning),
                 }
-                rows.append(_heading_error(r, headings.get(f"{item['file']}@{int(p[0])},{int(p[1])}")))
+                rows.append(_heading_error(r, headings.get(f"{item['file']}@{int(p[0])}_{int(p[1])}")))
                 if a.wake_found or i == 0:
                     shot = pics / f"sea_{Path(item['file']).stem}_{i}.png"
                     _picture(sc, a, f"{Path(item['file']).stem} {i}", shot)
