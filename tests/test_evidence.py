@@ -212,3 +212,39 @@ def test_report_plots_have_axes_units_and_a_colour_scale(exported):
     prof = profile_figure(a)
     assert prof.axes[0].get_xlabel() == "distance behind the vessel (m)"
     assert prof.axes[0].get_xlim()[1] == pytest.approx((len(a.plots.profile) - 1) * a.plots.profile_m_per_px)
+
+
+def test_one_result_schema_for_sessions_and_evidence(exported, tmp_path):
+    # the result written by an analysis is described once (detect/result.schema.json); the session and the
+    # evidence schemas both refer to it: the same result passes both, and the same damage fails both
+    # (self-consistency; jsonschema is the reference validator)
+    import copy
+
+    from wakemeter.detect.result import WakeAnalysis, result_schema
+    from wakemeter.project import session
+    from wakemeter.project.model import Project, Vessel
+
+    a, files, _ = exported
+    record = json.loads(files.data.read_text())
+    result = record["vessels"][0]["result"]
+    assert result == json.loads(json.dumps(a.to_json()))  # the record holds the result as written
+    p = Project()
+    with open_scene(SCENE) as sc:
+        p.scene = sc
+        p.put(Vessel(1, "Saltmarsh Wren", a.vessel_px))
+        p.findings[1] = a
+        data = {"schema": session.SCHEMA, "saved_at": "2026-06-20T09:00:00+00:00", **session.to_session(p)}
+    assert session.schema_problem(data) is None
+    # the session holds the effective finding (with its crest lines drawn): the same fields, same speed
+    assert set(data["findings"]["1"]["result"]) == set(result)
+    assert data["findings"]["1"]["result"]["speed_mps"] == result["speed_mps"]
+    validate(record)
+    assert WakeAnalysis.from_json(result).speed_basis == a.speed_basis
+    for damage in ({"speed_basis": "sideways"}, {"methods": [{"name": 3}]}):
+        bad_data, bad_record = copy.deepcopy(data), copy.deepcopy(record)
+        bad_data["findings"]["1"]["result"].update(damage)
+        bad_record["vessels"][0]["result"].update(damage)
+        assert session.schema_problem(bad_data) is not None, damage
+        with pytest.raises(Exception, match="."):
+            validate(bad_record)
+    assert result_schema()["$id"] == "urn:wakemeter:result"

@@ -1,13 +1,14 @@
 """What an analysis returns: the frozen :class:`WakeAnalysis` with its JSON form and the way back.
 
-The JSON (documented in ``wakemeter/evidence/evidence.schema.json``, object ``result``) echoes the
-request it answers and the software version.  :meth:`WakeAnalysis.from_json` rebuilds everything but
-the plot arrays, so a finding read from a session can be revised, drawn and reported; the arrays come
-back by running the same request again (the analysis is deterministic).
+The JSON (documented in ``wakemeter/detect/result.schema.json``, which the session and evidence schemas both
+refer to) echoes the request it answers and the software version.  :meth:`WakeAnalysis.from_json` rebuilds
+everything but the plot arrays, so a finding read from a session can be revised, drawn and reported; the
+arrays come back by running the same request again (the analysis is deterministic).
 """
 
 from __future__ import annotations
 
+import json
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -363,3 +364,23 @@ def stored_speed_basis(j: dict) -> str | None:
         return str(basis)
     codes = {c.get("code") for c in j.get("cautions") or () if isinstance(c, dict)}
     return "over ground" if str(CautionCode.OVER_GROUND) in codes else "through the water"
+
+
+#: the identifier by which the session and evidence schemas refer to the one result schema
+RESULT_SCHEMA_ID = "urn:wakemeter:result"
+
+
+def result_schema() -> dict:
+    """The JSON Schema (draft 2020-12) of :meth:`WakeAnalysis.to_json`: ``detect/result.schema.json``, the one
+    description of a result that the session and the evidence schemas both refer to (``$ref``)."""
+    from importlib import resources
+
+    return json.loads(resources.files(__package__).joinpath("result.schema.json").read_text())
+
+
+def schema_registry() -> Any:
+    """A ``referencing`` registry that resolves :data:`RESULT_SCHEMA_ID` for a jsonschema validator."""
+    from referencing import Registry
+    from referencing.jsonschema import DRAFT202012
+
+    return Registry().with_resource(RESULT_SCHEMA_ID, DRAFT202012.create_resource(result_schema()))

@@ -97,7 +97,9 @@ def validate(record: dict) -> None:
     """Raise ``jsonschema.ValidationError`` when the record does not follow the schema."""
     import jsonschema
 
-    jsonschema.validate(record, schema())
+    from ..detect.result import schema_registry
+
+    jsonschema.Draft202012Validator(schema(), registry=schema_registry()).validate(record)
 
 
 def schema_path() -> Path:

@@ -152,7 +152,9 @@ def schema_problem(data: dict) -> str | None:
     import jsonschema
     from jsonschema.exceptions import best_match
 
-    validator = jsonschema.Draft202012Validator(_schema_cached())
+    from ..detect.result import schema_registry
+
+    validator = jsonschema.Draft202012Validator(_schema_cached(), registry=schema_registry())
     err = best_match(validator.iter_errors(data))
     if err is None:
         return None
