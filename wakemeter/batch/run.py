@@ -19,9 +19,8 @@ from pathlib import Path
 
 from .. import fileio
 from ..detect.request import AnalysisRequest
-from ..detect.result import stored_speed_basis
+from ..detect.result import RESULT_ROW_FIELDS, result_row
 from ..errors import ParameterError, WakemeterError
-from ..physics.units import KNOT_MPS
 from .tasks import BatchTask, done, evidence_task, find_task, result_path, run_task
 
 
@@ -156,14 +155,7 @@ COLUMNS = (
     "lat",
     "col",
     "row",
-    "speed_kn",
-    "speed_ci95_low_kn",
-    "speed_ci95_high_kn",
-    "speed_basis",
-    "heading_deg",
-    "heading_std_deg",
-    "regime",
-    "method",
+    *RESULT_ROW_FIELDS,
     "reason",
     "report_verdict",
     "report_id",
@@ -184,7 +176,6 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
         except (OSError, ValueError):
             rec = {"status": "not run"}
         r = rec.get("result") or {}
-        ci = r.get("speed_ci95_mps") or [None, None]
         ll = r.get("vessel_lonlat") or [None, None]
         px = r.get("vessel_px") or [None, None]
         out_rows.append(
@@ -196,14 +187,7 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
                 "lat": ll[1],
                 "col": px[0],
                 "row": px[1],
-                "speed_kn": None if r.get("speed_mps") is None else r["speed_mps"] / KNOT_MPS,
-                "speed_ci95_low_kn": None if ci[0] is None else ci[0] / KNOT_MPS,
-                "speed_ci95_high_kn": None if ci[1] is None else ci[1] / KNOT_MPS,
-                "speed_basis": stored_speed_basis(r) or "through the water",
-                "heading_deg": r.get("heading_deg"),
-                "heading_std_deg": r.get("heading_std_deg"),
-                "regime": r.get("regime"),
-                "method": " + ".join(m["name"] for m in r.get("methods", [])) or None,
+                **result_row(r),
                 "reason": rec.get("reason") or (None if r.get("wake_found", True) else r.get("decision")),
                 "report_verdict": None,
                 "report_id": None,

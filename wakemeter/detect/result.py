@@ -384,3 +384,39 @@ def schema_registry() -> Any:
     from referencing.jsonschema import DRAFT202012
 
     return Registry().with_resource(RESULT_SCHEMA_ID, DRAFT202012.create_resource(result_schema()))
+
+
+#: the columns of one analysed vessel that the batch table and the GIS layer both show (in this order)
+RESULT_ROW_FIELDS = (
+    "speed_kn",
+    "speed_ci95_low_kn",
+    "speed_ci95_high_kn",
+    "speed_basis",
+    "heading_deg",
+    "heading_std_deg",
+    "regime",
+    "depth_m",
+    "method",
+    "limit_kn",
+    "p_over_limit",
+)
+
+
+def result_row(j: dict) -> dict:
+    """One vessel's result as a flat row (:data:`RESULT_ROW_FIELDS`) from its JSON (:meth:`WakeAnalysis.to_json`
+    or a stored record; an empty dict gives a row of None): the one row the batch table and the GIS layer share."""
+    speed, ci = j.get("speed_mps"), j.get("speed_ci95_mps") or [None, None]
+    check = j.get("speed_check") or {}
+    return {
+        "speed_kn": None if speed is None else speed / KNOT_MPS,
+        "speed_ci95_low_kn": None if ci[0] is None else ci[0] / KNOT_MPS,
+        "speed_ci95_high_kn": None if ci[1] is None else ci[1] / KNOT_MPS,
+        "speed_basis": stored_speed_basis(j) or ("through the water" if j else None),
+        "heading_deg": j.get("heading_deg"),
+        "heading_std_deg": j.get("heading_std_deg"),
+        "regime": j.get("regime"),
+        "depth_m": j.get("depth_m"),
+        "method": " + ".join(m["name"] for m in j.get("methods") or ()) or None,
+        "limit_kn": (check.get("limit") or {}).get("limit_knots"),
+        "p_over_limit": check.get("probability_over_limit"),
+    }

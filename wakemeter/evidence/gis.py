@@ -17,7 +17,7 @@ import shapely
 
 from .. import fileio
 from ..detect.findings import ARM_KINDS, SegmentKind
-from ..detect.result import WakeAnalysis
+from ..detect.result import WakeAnalysis, result_row
 from ..errors import ParameterError, SceneReadError, SceneWriteError
 from ..scene import geodesy
 from ..scene.raster import Scene
@@ -43,21 +43,10 @@ def vessel_features(scene: Scene, name: str, analysis: WakeAnalysis, comparison:
     if not scene.info.georeferenced:
         raise ParameterError("GIS files need a georeferenced scene (an image calibrated by hand has no longitude)")
     r = analysis.to_json()
-    check = r.get("speed_check") or {}
     attrs = {
         "name": name,
         "wake_found": bool(r["wake_found"]),
-        "speed_kn": r["speed_knots"],
-        "speed_ci95_low_kn": None if r["speed_ci95_knots"] is None else r["speed_ci95_knots"][0],
-        "speed_ci95_high_kn": None if r["speed_ci95_knots"] is None else r["speed_ci95_knots"][1],
-        "speed_basis": analysis.speed_basis or "through the water",
-        "heading_deg": r["heading_deg"],
-        "heading_std_deg": r["heading_std_deg"],
-        "regime": r["regime"],
-        "depth_m": r["depth_m"],
-        "method": " + ".join(m["name"] for m in r["methods"]) or None,
-        "limit_kn": (check.get("limit") or {}).get("limit_knots"),
-        "p_over_limit": check.get("probability_over_limit"),
+        **result_row(r),
         "verdict": None if comparison is None else comparison["verdict"],
         "report_id": None if comparison is None else comparison.get("report_id"),
         "caution": "estimate from imagery, not a certified measurement",
