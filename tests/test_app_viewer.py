@@ -243,3 +243,18 @@ def test_the_actions_table_names_methods_the_window_has(win):
         for e in entries:
             if e.text != actions.SEPARATOR and not e.slot.startswith("<"):
                 assert callable(getattr(win, e.slot)), e.slot
+
+
+def test_canvas_and_evidence_picture_share_one_palette():
+    # the same mark has the same colour on screen and in the evidence picture (they had drifted apart: the
+    # vessel was (70, 230, 110) on screen and (60, 230, 90) in the picture) (self-consistency)
+    from wakemeter import palette
+    from wakemeter.app.canvas import ITEM_COLOURS, SEGMENT_STYLES
+    from wakemeter.evidence import annotate
+
+    assert annotate.COLOURS is palette.COLOURS
+    for name in ("vessel", "track", "arm", "crest"):
+        assert ITEM_COLOURS[name].getRgb()[:3] == palette.COLOURS[name]
+    for style, _w, _dash in SEGMENT_STYLES.values():
+        rgb = ITEM_COLOURS[style].getRgb()[:3]
+        assert rgb in palette.COLOURS.values(), style

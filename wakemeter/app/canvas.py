@@ -18,23 +18,18 @@ from PySide6.QtWidgets import QWidget
 from ..detect.findings import SegmentKind
 from ..detect.handmeasure import placement_px
 from ..errors import WakemeterError
+from ..palette import COLOURS, FINDING_ALPHA
 from .document import AddItem, ChangeItem, Document, Measurement, Vessel
 from .tiles import TILE, TileLoader, estimate_contrast
 
 # Our own palette (not borrowed from any program): calm blue-greys for chrome, clear hues for items.
 ITEM_COLOURS = {
-    "vessel": QColor(70, 230, 110),
-    "track": QColor(255, 200, 0),
-    "arm": QColor(255, 60, 170),
-    "crest": QColor(80, 200, 255),
-    "ruler": QColor(240, 240, 240),
-    "calibration": QColor(255, 140, 40),
-    "report": QColor(190, 150, 255),
-    "finding_track": QColor(255, 200, 0, 170),
-    "finding_arm": QColor(255, 60, 170, 170),
-    "chip": QColor(120, 170, 255, 150),
-    "crest_fit": QColor(80, 200, 255, 150),
-    "finding_narrow_v": QColor(170, 255, 240, 190),
+    **{name: QColor(*COLOURS[name]) for name in ("vessel", "track", "arm", "crest", "ruler", "calibration", "report")},
+    "finding_track": QColor(*COLOURS["track"], FINDING_ALPHA["track"]),
+    "finding_arm": QColor(*COLOURS["arm"], FINDING_ALPHA["arm"]),
+    "chip": QColor(*COLOURS["chip"], FINDING_ALPHA["chip"]),
+    "crest_fit": QColor(*COLOURS["crest"], FINDING_ALPHA["crest"]),
+    "finding_narrow_v": QColor(*COLOURS["narrow_v"], FINDING_ALPHA["narrow_v"]),
 }
 TOOLS = ("look", "vessel", "track", "arm", "crest", "ruler", "calibrate")
 HANDLE_PX = 7

@@ -20,21 +20,12 @@ from PIL import Image, ImageDraw, ImageFont
 
 from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, SegmentKind
 from ..detect.result import WakeAnalysis
+from ..palette import COLOURS
 from ..physics.units import KNOT_MPS
 from ..scene import display, geodesy
 from ..scene.raster import Scene
 
 #: Our colours (RGB).  The arms colour is used for nothing else, so tests can find it.
-COLOURS = {
-    "track": (255, 200, 0),
-    "arm": (255, 60, 170),
-    "vessel": (60, 230, 90),
-    "chip": (120, 170, 255),
-    "narrow_v": (170, 255, 240),
-    "text": (255, 255, 255),
-    "box": (20, 24, 32),
-    "north": (255, 255, 255),
-}
 FONT = cv2.FONT_HERSHEY_SIMPLEX
 
 
