@@ -377,12 +377,12 @@ def test_speed_limit_and_current_from_the_panel(win, qtbot):
     # demo truth: 14.0 kn through the water (sample_scenes/harbour_approach_optical.truth.json); with a limit of
     # 16 kn the speed is well below it, and a 1 kn current setting against the course lowers the speed over ground
     p = win.controller.panel
-    p.use_limit.setChecked(True)
-    p.limit.setValue(16.0)
-    p.use_current.setChecked(True)
-    p.current_speed.setValue(1.0)
-    p.current_toward.setValue((TRUTH["heading_deg"] + 180.0) % 360.0)
-    p.current_source.setText("Hallow Sound tide table")
+    p.form.use_limit.setChecked(True)
+    p.form.limit.setValue(16.0)
+    p.form.use_current.setChecked(True)
+    p.form.current_speed.setValue(1.0)
+    p.form.current_toward.setValue((TRUTH["heading_deg"] + 180.0) % 360.0)
+    p.form.current_source.setText("Hallow Sound tide table")
     _analyse(win, qtbot)
     vid = next(iter(win.doc.vessels))
     check = win.doc.effective_finding(vid).to_json()["speed_check"]
@@ -391,7 +391,7 @@ def test_speed_limit_and_current_from_the_panel(win, qtbot):
     html = p.text.toHtml()
     assert "is below the 16.0 kn limit" in html and "Hallow Sound tide table" in html
     p.set_request(win.doc.requests.get(vid) or win.doc.effective_finding(vid).request)
-    assert p.use_current.isChecked() and p.limit.value() == pytest.approx(16.0)
+    assert p.form.use_current.isChecked() and p.form.limit.value() == pytest.approx(16.0)
 
 
 def test_position_reports_layer_comparison_and_map_layers(win, qtbot, tmp_path):

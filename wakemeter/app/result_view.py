@@ -1,0 +1,139 @@
+"""The result view of the results panel: the numbers with their intervals, methods, assumptions and cautions
+(as the CLI and the PDF give them: :mod:`wakemeter.evidence.summary`), and the plots behind them."""
+
+from __future__ import annotations
+
+import html
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtWidgets import QTabWidget, QTextBrowser, QVBoxLayout, QWidget
+
+from ..evidence import summary
+
+
+class ResultView(QTabWidget):
+    """Tabs "Numbers" and "Plots" for one result."""
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.text = QTextBrowser()
+        self.text.setOpenExternalLinks(False)
+        self.addTab(self.text, "Numbers")
+        pg.setConfigOptions(antialias=True, imageAxisOrder="row-major")
+        self.spec_plot = pg.PlotWidget(title="Wave spectrum behind the vessel, fitted curve")
+        self.spec_plot.setLabel("bottom", "wavenumber along the track", units="rad/m")
+        self.spec_plot.setLabel("left", "across", units="rad/m")
+        self.spec_img = pg.ImageItem()
+        self.spec_plot.addItem(self.spec_img)
+        self.spec_curve = [self.spec_plot.plot(pen=pg.mkPen((255, 80, 80), width=2)) for _ in range(2)]
+        self.prof_plot = pg.PlotWidget(title="Intensity along the track, crest spacing")
+        self.prof_plot.setLabel("bottom", "distance behind the vessel", units="m")
+        self.prof_line = self.prof_plot.plot(pen=pg.mkPen((220, 220, 220)))
+        self.prof_marks = self.prof_plot.plot(pen=None, symbol="t", symbolBrush=(255, 60, 170), symbolSize=9)
+        self.radon_plot = pg.PlotWidget(title="Radon transform around the vessel (behind it), picked wake line")
+        self.radon_plot.setLabel("bottom", "line normal angle", units="°")
+        self.radon_plot.setLabel("left", "offset from the vessel", units="px")
+        self.radon_img = pg.ImageItem()
+        self.radon_plot.addItem(self.radon_img)
+        self.radon_pick = self.radon_plot.plot(
+            pen=None, symbol="o", symbolPen=pg.mkPen((255, 200, 0), width=2), symbolBrush=None, symbolSize=14
+        )
+        plots = QWidget()
+        pl = QVBoxLayout(plots)
+        pl.setContentsMargins(0, 0, 0, 0)
+        for w in (self.spec_plot, self.prof_plot, self.radon_plot):
+            w.setMinimumHeight(60)
+        pl.addWidget(self.spec_plot, 3)
+        pl.addWidget(self.prof_plot, 2)
+        pl.addWidget(self.radon_plot, 2)
+        self.addTab(plots, "Plots")
+
+    def show_result(self, result: dict | None, *, rejected: bool = False, analysis=None) -> None:
+        """``result`` is the analysis JSON (``WakeAnalysis.to_json()``), ``analysis`` the object when at hand."""
+        if result is None:
+            self.text.setHtml(
+                "<p>No analysis yet. Mark a vessel with the <b>Vessel</b> tool, select it, give "
+                "what you know, and press <b>Analyse vessel</b>.</p><p>Every figure comes with its "
+                "95 % interval, method and assumptions.</p>"
+            )
+            self._clear_plots()
+            return
+        self.text.setHtml(result_html(result, rejected))
+        self._plots(analysis)
+
+    def _clear_plots(self) -> None:
+        self.spec_img.clear()
+        for c in self.spec_curve:
+            c.setData([], [])
+        self.prof_line.setData([], [])
+        self.prof_marks.setData([], [])
+        self.radon_img.clear()
+        self.radon_pick.setData([], [])
+
+    def _plots(self, a) -> None:
+        if a is None or a.plots is None:
+            self._clear_plots()
+            return
+        p = a.plots
+        white = p.whitened_spectrum
+        dk_u, dk_v = p.spectrum_dk
+        n_v, n_u = white.shape
+        self.spec_img.setImage(np.clip(white, -2, 6), levels=(-2, 6))
+        self.spec_img.setColorMap(pg.colormap.get("viridis"))
+        from PySide6.QtCore import QRectF
+
+        self.spec_img.setRect(QRectF(-n_u / 2 * dk_u, -n_v / 2 * dk_v, n_u * dk_u, n_v * dk_v))
+        ku, kv = p.fitted_curve  # computed by the analysis; the panel only draws
+        for c, sgn in zip(self.spec_curve, (1, -1)):
+            c.setData(sgn * ku, sgn * kv, connect="finite")
+        prof = np.asarray(p.profile, float)
+        x = np.arange(prof.size) * p.profile_m_per_px
+        self.prof_line.setData(x, prof)
+        lam = p.transverse_wavelength_m
+        if lam:
+            xs = np.arange(0, x[-1], lam)
+            self.prof_marks.setData(xs, np.full(xs.size, np.nanmax(prof)))
+        else:
+            self.prof_marks.setData([], [])
+        sino = p.radon
+        if sino is not None:
+            from PySide6.QtCore import QRectF
+
+            n = sino.shape[0]
+            lo, hi = np.percentile(sino, [1, 99.5])
+            self.radon_img.setImage(sino, levels=(lo, hi))
+            self.radon_img.setColorMap(pg.colormap.get("viridis"))
+            self.radon_img.setRect(QRectF(0, -n / 2, 180, n))
+            ang, off, _sig = p.radon_pick
+            self.radon_pick.setData([ang % 180], [off])
+
+
+def result_html(r: dict, rejected: bool = False) -> str:
+    """The result as HTML for the panel (the same rows as the CLI and the PDF: evidence.summary)."""
+    esc = html.escape
+    if not r.get("wake_found"):
+        return (
+            f"<h3>No wake found</h3><p>{esc(r.get('decision', ''))}</p><p>No speed is given for a vessel "
+            "without a detectable wake. You can still measure by hand (crest ruler, track, arm).</p>"
+        )
+    main = summary.summary_rows(r)
+    speed, interval = main[0][1], main[1][1]  # "not estimated" when the wake was seen as a line only
+    if r.get("speed_mps") is not None:
+        speed = f"{main[0][0]}: {speed}"
+    else:
+        speed = "Wake seen as a line: no speed (see the cautions)"
+    extra = [("Position report", r["position_report"]["text"])] if r.get("position_report") else []
+    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in main[2:] + extra)
+    methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(r))
+    return (
+        ("<p style='color:#c33'><b>Rejected:</b> kept on record, not used or exported.</p>" if rejected else "")
+        + f"<h2 style='margin-bottom:2px'>{esc(speed)}</h2>"
+        f"<p style='margin-top:0'>95 % interval <b>{esc(interval)}</b></p>"
+        f"<table cellspacing=4>{rows}</table>"
+        "<h4>Methods</h4><table border=0 cellspacing=4><tr><th align=left>method</th><th>m/s</th>"
+        f"<th>95 % (m/s)</th><th>kn</th></tr>{methods}</table>"
+        "<h4>Assumptions</h4><ul>" + "".join(f"<li>{esc(a)}</li>" for a in summary.assumption_texts(r)) + "</ul>"
+        "<h4>Cautions</h4><ul>" + "".join(f"<li>{esc(c)}</li>" for c in summary.caution_texts(r)) + "</ul>"
+        f"<p><small>{esc(r['decision'])}</small></p>"
+    )
