@@ -127,3 +127,18 @@ def test_the_line_path_thresholds_are_reachable_by_tune():
     # the line path's decision numbers moved into Tuning can be overridden like any other
     t = DEFAULT_TUNING.with_overrides(["line_partner_fraction=0.4", "hull_z=10", "line_length_fractions=0.25,1"])
     assert t.line_partner_fraction == 0.4 and t.hull_z == 10.0 and t.line_length_fractions == (0.25, 1.0)
+
+
+def test_no_function_longer_than_a_page():
+    # functions of at most 100 lines, so each reads as one page (house rule; self-consistency)
+    import wakemeter
+
+    root = Path(wakemeter.__file__).parent
+    long = []
+    for path in sorted(root.rglob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text())):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)) and node.end_lineno is not None:
+                n = node.end_lineno - node.lineno + 1
+                if n > 100:
+                    long.append(f"{path.relative_to(root)}:{node.name} ({n} lines)")
+    assert not long, long

@@ -35,7 +35,7 @@ from .methods import SPEED_METHODS, MethodContext, MethodOutput, SpeedMethod, Wa
 from .request import AnalysisRequest, RadarGeometry
 from .result import WakeAnalysis
 from .spectral import curve_points
-from .spread import estimate_spread
+from .spread import Spread, estimate_spread
 from .tuning import DEFAULT_TUNING, Tuning
 from .wake_measures import WakeMeasures, measure_wake
 
@@ -353,11 +353,7 @@ def _measure(
     frame = scene.local_frame(*a.vessel_px)
     back = np.radians(measures.back_deg + 180)
     heading = float(frame.bearing_of(np.cos(back), -np.sin(back)))
-    depth = (
-        request.depth
-        if request.depth is not None
-        else (inv.Uncertain(model.depth_m, spread.depth_std_m) if model.fitted else None)
-    )
+    depth = _depth(request, model, spread)
     cond = inv.Conditions(g_mps2=a.g_u, depth_m=depth, pixel_scale_rel_std=request.pixel_rel_std)
     ctx = MethodContext(
         scene=scene,
@@ -395,7 +391,6 @@ def _measure(
     drawing = measures.drawing.plus(s for o in outputs for s in o.segments)
     if a.hull_px is not None:  # from the hull as imaged to where its wake starts
         drawing = drawing.plus([Segment(SegmentKind.HULL_SHIFT, (a.hull_px, a.vessel_px))])
-    depth_ci = None if depth is None else (max(depth.value - 1.96 * depth.std, 0.0), depth.value + 1.96 * depth.std)
     plots = _plots(a, model, measures, g)
     return WakeAnalysis(
         wake_found=True,
@@ -413,7 +408,9 @@ def _measure(
         transverse_wavelength_std_m=measures.transverse_wavelength_std_m,
         regime=regime,
         depth_m=None if depth is None else depth.value,
-        depth_ci95_m=depth_ci,
+        depth_ci95_m=None
+        if depth is None
+        else (max(depth.value - 1.96 * depth.std, 0.0), depth.value + 1.96 * depth.std),
         gravity_mps2=g,
         pixel_m=look.chip.m_per_px,
         cautions=tuple(cautions),
@@ -504,3 +501,10 @@ def _plots(a: _Attempt, model: DepthModel, measures: WakeMeasures, g: float) -> 
         radon_pick=None if tw is None else (tw.radon_angle_deg, tw.offset_px, tw.significance),
     )
     return plots
+
+
+def _depth(request: AnalysisRequest, model: DepthModel, spread: Spread) -> inv.Uncertain | None:
+    """The depth the speed methods use: given, or fitted to the waves (with the quarter boxes' spread)."""
+    if request.depth is not None:
+        return request.depth
+    return inv.Uncertain(model.depth_m, spread.depth_std_m) if model.fitted else None

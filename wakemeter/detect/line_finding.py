@@ -192,18 +192,7 @@ def line_finding(
     cautions = opening_cautions(
         hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
     ) + [c for o in outputs for c in o.cautions]
-    segments = [_ray(chip, wake.vessel_rc, wake.back_deg, 2 * wake.length_px, SegmentKind.TRACK)]
-    for ln in wake.lines:
-        if ln.kind in (LineKind.NARROW_V, LineKind.KELVIN_ARM):
-            left = ln.angle_from_track_deg > 0
-            seg_kind = {
-                (LineKind.NARROW_V, True): SegmentKind.NARROW_V_LEFT,
-                (LineKind.NARROW_V, False): SegmentKind.NARROW_V_RIGHT,
-                (LineKind.KELVIN_ARM, True): SegmentKind.ARM_LEFT,
-                (LineKind.KELVIN_ARM, False): SegmentKind.ARM_RIGHT,
-            }[(ln.kind, left)]
-            segments.append(_ray(chip, wake.vessel_rc, wake.back_deg + ln.angle_from_track_deg, ln.length_px, seg_kind))
-    segments += [s for o in outputs for s in o.segments]
+    segments = _line_segments(chip, wake) + [s for o in outputs for s in o.segments]
     reason = "; ".join([_no_speed_reason(chip, g, spectral_note), *(o.why_not for o in outputs if o.why_not)])
     cautions.insert(1, Caution(CautionCode.LINES_ONLY, reason))
     combined = combine(estimates)
@@ -257,6 +246,22 @@ def line_finding(
         lines=wake.lines,
         request=request,
     )
+
+
+def _line_segments(chip: LineChip, wake: LineWake) -> list[Segment]:
+    """The track and any arms (narrow V or Kelvin arms) of a wake seen as lines, in scene pixels."""
+    segments = [_ray(chip, wake.vessel_rc, wake.back_deg, 2 * wake.length_px, SegmentKind.TRACK)]
+    for ln in wake.lines:
+        if ln.kind in (LineKind.NARROW_V, LineKind.KELVIN_ARM):
+            left = ln.angle_from_track_deg > 0
+            seg_kind = {
+                (LineKind.NARROW_V, True): SegmentKind.NARROW_V_LEFT,
+                (LineKind.NARROW_V, False): SegmentKind.NARROW_V_RIGHT,
+                (LineKind.KELVIN_ARM, True): SegmentKind.ARM_LEFT,
+                (LineKind.KELVIN_ARM, False): SegmentKind.ARM_RIGHT,
+            }[(ln.kind, left)]
+            segments.append(_ray(chip, wake.vessel_rc, wake.back_deg + ln.angle_from_track_deg, ln.length_px, seg_kind))
+    return segments
 
 
 def _ray(chip: LineChip, origin_rc: tuple[float, float], angle_deg: float, length: float, kind: SegmentKind) -> Segment:

@@ -136,7 +136,29 @@ def prepare_chip(
         vals = full[fvalid]
         med, sig = float(np.median(vals)), _mad_sigma(vals)
     centre = scene_to_index((c0, r0), step, col, row)
-    # hull: brightest smoothed blob within the snap radius
+    hull_rc, fvalid = _snap_hull(full, fvalid, med, sig, centre, m_px, snap_radius_m, hull_mask_m)
+    # background removal and normalisation
+    filled = np.where(fvalid, full, med)
+    bg = wide_gaussian(filled, max(size_px / 24, 4.0))
+    tex = np.where(fvalid, filled - bg, 0.0)
+    tex /= _mad_sigma(tex[fvalid])
+    tex = np.clip(tex, -8, 8)  # tame bright point targets and speckle spikes
+    return Chip(tex.astype(np.float32), fvalid, centre, (c0, r0), step, m_px, frame, bool(radar), hull_rc)
+
+
+def _snap_hull(
+    full: np.ndarray,
+    fvalid: np.ndarray,
+    med: float,
+    sig: float,
+    centre: tuple[float, float],
+    m_px: float,
+    snap_radius_m: float,
+    hull_mask_m: float,
+) -> tuple[tuple[float, float] | None, np.ndarray]:
+    """The hull: the brightest smoothed blob within the snap radius (chip row, col, or None), and the valid
+    mask with the hull taken out (a hull, not a whole bright region)."""
+    size_px = full.shape[0]
     sm = ndimage.gaussian_filter(np.where(fvalid, full - med, 0.0), 1.0)
     rr, cc = np.mgrid[:size_px, :size_px]
     near = (rr - centre[0]) ** 2 + (cc - centre[1]) ** 2 <= max(snap_radius_m / m_px, 3.0) ** 2
@@ -156,10 +178,4 @@ def prepare_chip(
             hull = lab == lab[pr[k], pc[k]]
             if hull.sum() * m_px**2 < (4 * hull_mask_m) ** 2:  # a hull, not a whole bright region
                 fvalid &= ~ndimage.binary_dilation(hull, iterations=2)
-    # background removal and normalisation
-    filled = np.where(fvalid, full, med)
-    bg = wide_gaussian(filled, max(size_px / 24, 4.0))
-    tex = np.where(fvalid, filled - bg, 0.0)
-    tex /= _mad_sigma(tex[fvalid])
-    tex = np.clip(tex, -8, 8)  # tame bright point targets and speckle spikes
-    return Chip(tex.astype(np.float32), fvalid, centre, (c0, r0), step, m_px, frame, bool(radar), hull_rc)
+    return hull_rc, fvalid

@@ -182,31 +182,11 @@ def find_wake_line(
     # optical: a short dark line from a hull is its shadow (or a quay's), not a calm wake
     min_dark = 0.0 if chip.radar else t.optical_dark_line_min_m / chip.m_per_px
     own, own_angle = _line_scores(img, valid, origin, r0, r_max, start, t=t, keep=fans, min_dark_px=min_dark)
-    # the scene's own lines: the same scores from water points away from the vessel
-    rng = np.random.default_rng(rng_seed)
-    wr, wc = np.nonzero(chip.valid)
-    far = (wr - chip.vessel_rc[0]) ** 2 + (wc - chip.vessel_rc[1]) ** 2 > (r0 + 8) ** 2
-    wr, wc = wr[far], wc[far]
-    if wr.size < 50:
+    background = _scene_lines(img, chip, r0, r_max, min_dark, rng_seed, t)
+    if background is None:
         return None
-    pick = rng.choice(wr.size, size=min(t.line_null_points, wr.size), replace=False)
-    null = np.stack(
-        [_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max, t=t, min_dark_px=min_dark)[0] for k in pick]
-    )
-    # standardise each length and sign on the background points, then take the best: the background's best
-    # standardised scores are the reference for the vessel's best
-    scored = np.isfinite(null).any(axis=0)  # (length, sign) pairs that are scored at all
-    ok_null = np.isfinite(null[:, scored]).all(axis=1)
-    null = null[ok_null]
-    if null.shape[0] < 20:
-        return None
-    null = np.where(scored[None], null, 0.0)
-    centre = np.median(null, axis=0)
-    spread = np.maximum(1.4826 * np.median(np.abs(null - centre), axis=0), 1e-3)
-    null = np.where(scored[None], null, -np.inf)
+    scored, centre, spread, med, sp = background
     own = np.where(scored, own, -np.inf)
-    z_null = ((null - centre) / spread).reshape(null.shape[0], -1).max(axis=1)
-    med, sp = median_spread(z_null, floor=1e-3)
     z_own = np.nan_to_num((own - centre) / spread, nan=-np.inf)
     i, j = np.unravel_index(int(np.argmax(z_own)), z_own.shape)
     sig = float((z_own[i, j] - med) / sp)
@@ -261,6 +241,37 @@ def find_wake_line(
         vessel,
         half_angle,
     )
+
+
+def _scene_lines(img, chip: LineChip, r0: float, r_max: float, min_dark: float, rng_seed: int, t: Tuning):
+    """The scene's own lines: the same best scores from ``line_null_points`` water points away from the vessel,
+    standardised per length and sign; (scored pairs, centre, spread, median and robust spread of the points'
+    best standardised scores), or None with too little open water."""
+    rng = np.random.default_rng(rng_seed)
+    wr, wc = np.nonzero(chip.valid)
+    far = (wr - chip.vessel_rc[0]) ** 2 + (wc - chip.vessel_rc[1]) ** 2 > (r0 + 8) ** 2
+    wr, wc = wr[far], wc[far]
+    if wr.size < 50:
+        return None
+    pick = rng.choice(wr.size, size=min(t.line_null_points, wr.size), replace=False)
+    valid = chip.valid
+    null = np.stack(
+        [_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max, t=t, min_dark_px=min_dark)[0] for k in pick]
+    )
+    # standardise each length and sign on the background points, then take the best: the background's best
+    # standardised scores are the reference for the vessel's best
+    scored = np.isfinite(null).any(axis=0)  # (length, sign) pairs that are scored at all
+    ok_null = np.isfinite(null[:, scored]).all(axis=1)
+    null = null[ok_null]
+    if null.shape[0] < 20:
+        return None
+    null = np.where(scored[None], null, 0.0)
+    centre = np.median(null, axis=0)
+    spread = np.maximum(1.4826 * np.median(np.abs(null - centre), axis=0), 1e-3)
+    null = np.where(scored[None], null, -np.inf)
+    z_null = ((null - centre) / spread).reshape(null.shape[0], -1).max(axis=1)
+    med, sp = median_spread(z_null, floor=1e-3)
+    return scored, centre, spread, med, sp
 
 
 def _partner(sig_fan: np.ndarray, angle: float, sig: float, t: Tuning) -> float | None:

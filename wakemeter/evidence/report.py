@@ -90,19 +90,7 @@ def write_pdf(
     for i, (v, img, vplots) in enumerate(zip(vessels, evidence_imgs, plots, strict=True), 1):
         story += _vessel_section(v, i, len(vessels), img, vplots, width, st, small)
     if record.get("unmatched_reports"):
-        story.append(Paragraph("Reporting vessels matched to none analysed", st["Heading2"]))
-        urows = [["Identifier", "Position at the scene time", "Speed over ground", "Course", "From"]]
-        for u in record["unmatched_reports"]:
-            urows.append(
-                [
-                    str(u["vessel_id"]),
-                    f"lat {u['lat']:.5f}°, lon {u['lon']:.5f}°",
-                    "-" if u.get("sog_kn") is None else f"{u['sog_kn']:.1f} kn",
-                    "-" if u.get("cog_deg") is None else f"{u['cog_deg']:.0f}°",
-                    str(u.get("how", "")),
-                ]
-            )
-        story.append(_table(urows, [30 * mm, 50 * mm, 28 * mm, 18 * mm, width - 126 * mm], small, header=True))
+        story += _unmatched_section(record["unmatched_reports"], width, st, small)
     story.append(Paragraph("Provenance", st["Heading2"]))
     g = prov["georeference"]
     params = dict(prov["analysis_parameters"])
@@ -139,6 +127,25 @@ def write_pdf(
         canvas.restoreState()
 
     doc.build(story, onFirstPage=footer, onLaterPages=footer)
+
+
+def _unmatched_section(unmatched: list, width, st, small) -> list:
+    """The reporting vessels that no analysed vessel matched, as a heading and a table."""
+    urows = [["Identifier", "Position at the scene time", "Speed over ground", "Course", "From"]]
+    for u in unmatched:
+        urows.append(
+            [
+                str(u["vessel_id"]),
+                f"lat {u['lat']:.5f}°, lon {u['lon']:.5f}°",
+                "-" if u.get("sog_kn") is None else f"{u['sog_kn']:.1f} kn",
+                "-" if u.get("cog_deg") is None else f"{u['cog_deg']:.0f}°",
+                str(u.get("how", "")),
+            ]
+        )
+    return [
+        Paragraph("Reporting vessels matched to none analysed", st["Heading2"]),
+        _table(urows, [30 * mm, 50 * mm, 28 * mm, 18 * mm, width - 126 * mm], small, header=True),
+    ]
 
 
 def _vessel_section(v: dict, i: int, n: int, img: np.ndarray, vplots, width, st, small) -> list:

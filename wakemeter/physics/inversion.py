@@ -546,66 +546,7 @@ def assess_depth_regime(
             explanation=expl,
         )
     if half_angle_deg is not None:
-        a, sa = half_angle_deg.value, max(half_angle_deg.std, 0.1)
-        k = kelvin.KELVIN_HALF_ANGLE_DEG
-        if abs(a - k) <= 2 * sa:
-            return DepthRegime(
-                regime=Regime.DEEP,
-                froude_depth=None,
-                froude_ci95=None,
-                depth_m=None,
-                depth_ci95_m=None,
-                explanation=f"half-angle {a:.1f} ± {half_angle_deg.std:.1f}° agrees with Kelvin's {k:.2f}°: "
-                "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told",
-            )
-        if a < k:
-            return DepthRegime(
-                regime=Regime.UNKNOWN,
-                froude_depth=None,
-                froude_ci95=None,
-                depth_m=None,
-                depth_ci95_m=None,
-                explanation=f"half-angle {a:.1f}° is narrower than Kelvin's: not a depth effect; "
-                "a fast, short hull (high hull Froude number) or a supercritical vessel without "
-                "transverse waves could explain it",
-            )
-        br = havelock.froude_from_half_angle(a)
-        if transverse_seen is True:
-            fr_lo = float(havelock.subcritical_froude_from_half_angle(max(a - 1.96 * sa, k + 1e-3)))
-            fr_hi = float(havelock.subcritical_froude_from_half_angle(min(a + 1.96 * sa, 89.9)))
-            sub = br.subcritical if br.subcritical is not None else fr_lo
-            depth = None
-            depth_ci = None
-            if speed is not None:
-                depth = speed.speed_mps**2 / (g * sub**2)
-                depth_ci = (speed.ci95_low_mps**2 / (g * fr_hi**2), speed.ci95_high_mps**2 / (g * fr_lo**2))
-            return DepthRegime(
-                regime=_band(sub),
-                froude_depth=sub,
-                froude_ci95=(fr_lo, fr_hi),
-                depth_m=depth,
-                depth_ci95_m=depth_ci,
-                explanation=f"half-angle {a:.1f}° wider than Kelvin's with transverse waves: subcritical "
-                f"Fr_h = {sub:.2f} (Havelock 1908)",
-            )
-        if transverse_seen is False:
-            return DepthRegime(
-                regime=Regime.SUPERCRITICAL,
-                froude_depth=br.supercritical,
-                froude_ci95=None,
-                depth_m=None,
-                depth_ci95_m=None,
-                explanation=f"half-angle {a:.1f}° and no transverse waves: supercritical, "
-                f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}",
-            )
-        return DepthRegime(
-            regime=Regime.UNKNOWN,
-            froude_depth=None,
-            froude_ci95=None,
-            depth_m=None,
-            depth_ci95_m=None,
-            explanation=br.note,
-        )
+        return _regime_from_half_angle(half_angle_deg, speed, transverse_seen, g)
     return DepthRegime(
         regime=Regime.UNKNOWN,
         froude_depth=None,
@@ -613,4 +554,71 @@ def assess_depth_regime(
         depth_m=None,
         depth_ci95_m=None,
         explanation="neither depth nor half-angle known: the depth regime cannot be told",
+    )
+
+
+def _regime_from_half_angle(
+    half_angle_deg: Uncertain, speed: SpeedEstimate | None, transverse_seen: bool | None, g: float
+) -> DepthRegime:
+    """The regime told by a half-angle (Havelock 1908): Kelvin's, narrower (not a depth effect), or wider
+    (subcritical with transverse waves, supercritical without them)."""
+    a, sa = half_angle_deg.value, max(half_angle_deg.std, 0.1)
+    k = kelvin.KELVIN_HALF_ANGLE_DEG
+    if abs(a - k) <= 2 * sa:
+        return DepthRegime(
+            regime=Regime.DEEP,
+            froude_depth=None,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation=f"half-angle {a:.1f} ± {half_angle_deg.std:.1f}° agrees with Kelvin's {k:.2f}°: "
+            "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told",
+        )
+    if a < k:
+        return DepthRegime(
+            regime=Regime.UNKNOWN,
+            froude_depth=None,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation=f"half-angle {a:.1f}° is narrower than Kelvin's: not a depth effect; "
+            "a fast, short hull (high hull Froude number) or a supercritical vessel without "
+            "transverse waves could explain it",
+        )
+    br = havelock.froude_from_half_angle(a)
+    if transverse_seen is True:
+        fr_lo = float(havelock.subcritical_froude_from_half_angle(max(a - 1.96 * sa, k + 1e-3)))
+        fr_hi = float(havelock.subcritical_froude_from_half_angle(min(a + 1.96 * sa, 89.9)))
+        sub = br.subcritical if br.subcritical is not None else fr_lo
+        depth = None
+        depth_ci = None
+        if speed is not None:
+            depth = speed.speed_mps**2 / (g * sub**2)
+            depth_ci = (speed.ci95_low_mps**2 / (g * fr_hi**2), speed.ci95_high_mps**2 / (g * fr_lo**2))
+        return DepthRegime(
+            regime=_band(sub),
+            froude_depth=sub,
+            froude_ci95=(fr_lo, fr_hi),
+            depth_m=depth,
+            depth_ci95_m=depth_ci,
+            explanation=f"half-angle {a:.1f}° wider than Kelvin's with transverse waves: subcritical "
+            f"Fr_h = {sub:.2f} (Havelock 1908)",
+        )
+    if transverse_seen is False:
+        return DepthRegime(
+            regime=Regime.SUPERCRITICAL,
+            froude_depth=br.supercritical,
+            froude_ci95=None,
+            depth_m=None,
+            depth_ci95_m=None,
+            explanation=f"half-angle {a:.1f}° and no transverse waves: supercritical, "
+            f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}",
+        )
+    return DepthRegime(
+        regime=Regime.UNKNOWN,
+        froude_depth=None,
+        froude_ci95=None,
+        depth_m=None,
+        depth_ci95_m=None,
+        explanation=br.note,
     )

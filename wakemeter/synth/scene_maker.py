@@ -286,22 +286,7 @@ def render(spec: SceneSpec) -> RenderedScene:
             shape, dx_m=dx, dy_m=dy, sea=spec.sea, direction_xy=_grid_direction(centre, spec.sea.direction_deg), rng=rng
         )
         sx, sy = sx + spec.sea.strength * ax, sy + spec.sea.strength * ay
-    # normalise so that the strongest wake slopes reach a few units of the rms
-    scale = 1.0 / max(np.percentile(np.hypot(sx, sy), 99.5), 1e-9) * 3.0
-    if radar_m is not None:
-        lx, ly = _grid_direction(centre, radar_m.look_bearing_deg)
-        pixels = radar_pixels(
-            (sx * lx + sy * ly) * scale,
-            wake,
-            hulls,
-            radar_m,
-            rng,
-            narrow if radar_m.narrow_v_half_angle_deg > 0 else None,
-        )
-    else:
-        assert optical_m is not None
-        lx, ly = _grid_direction(centre, optical_m.sun_azimuth_deg)
-        pixels = optical_pixels((sx * lx + sy * ly) * scale, wake, hulls, optical_m, rng)
+    pixels = _image(sx, sy, centre, wake, hulls, narrow, radar_m, optical_m, rng)
     truth = {
         **truth_header(spec, georef, g),
         "imaging": {"kind": "radar" if is_radar else "optical", **asdict(spec.imaging)},
@@ -379,3 +364,22 @@ def write(
         for f in tmp_files:
             Path(f).unlink(missing_ok=True)
     return tif, sidecar
+
+
+def _image(sx, sy, centre, wake, hulls, narrow, radar_m, optical_m, rng) -> np.ndarray:
+    """The sensor's image of the surface slopes: radar backscatter along the look, or optical brightness along
+    the sun's azimuth; normalised so that the strongest wake slopes reach a few units of the rms."""
+    scale = 1.0 / max(np.percentile(np.hypot(sx, sy), 99.5), 1e-9) * 3.0
+    if radar_m is not None:
+        lx, ly = _grid_direction(centre, radar_m.look_bearing_deg)
+        return radar_pixels(
+            (sx * lx + sy * ly) * scale,
+            wake,
+            hulls,
+            radar_m,
+            rng,
+            narrow if radar_m.narrow_v_half_angle_deg > 0 else None,
+        )
+    assert optical_m is not None
+    lx, ly = _grid_direction(centre, optical_m.sun_azimuth_deg)
+    return optical_pixels((sx * lx + sy * ly) * scale, wake, hulls, optical_m, rng)
