@@ -33,14 +33,7 @@ def depth_regime(
     half, half_sd = measures.half_angle_deg, measures.half_angle_std_deg
     h_alt = u**2 / (g * t.fr_rule_out**2)
     if depth is not None and spectral is None:
-        regime = inv.DepthRegime(
-            regime=inv.Regime.UNKNOWN,
-            froude_depth=None,
-            froude_ci95=None,
-            depth_m=None,
-            depth_ci95_m=None,
-            explanation="no speed method that reads the depth gave a figure",
-        )
+        regime = inv.DepthRegime.unmeasured(inv.Regime.UNKNOWN, "no speed method that reads the depth gave a figure")
     elif depth is not None:
         regime = inv.assess_depth_regime(
             speed=spectral, depth_m=depth, g=g, depth_source="fitted" if model.fitted else "given"
@@ -48,13 +41,9 @@ def depth_regime(
     elif model.shallow_open(t):
         alt = model.shallow_alt
         assert alt is not None
-        regime = inv.DepthRegime(
-            regime=inv.Regime.UNKNOWN,
-            froude_depth=None,
-            froude_ci95=None,
-            depth_m=None,
-            depth_ci95_m=None,
-            explanation=(
+        regime = inv.DepthRegime.unmeasured(
+            inv.Regime.UNKNOWN,
+            (
                 f"the wave spectrum cannot tell deep water from water about {h_alt:.0f} m deep "
                 f"(Fr_h {t.fr_rule_out}): the shallow-water curve fits almost as well (score {alt.score:.1f} "
                 f"against {fit_score:.1f}, at {alt.speed_mps:.2f} m/s); the 95 % interval covers both"
@@ -67,13 +56,9 @@ def depth_regime(
             else f"; water shallow enough for Fr_h {t.fr_rule_out} (about {h_alt:.0f} m) fits clearly worse "
             f"(score {model.shallow_alt.score:.1f} against {fit_score:.1f})"
         )
-        regime = inv.DepthRegime(
-            regime=inv.Regime.DEEP,
-            froude_depth=None,
-            froude_ci95=None,
-            depth_m=None,
-            depth_ci95_m=None,
-            explanation="the wave spectrum fits the deep-water dispersion curve: no depth effect found"
+        regime = inv.DepthRegime.unmeasured(
+            inv.Regime.DEEP,
+            "the wave spectrum fits the deep-water dispersion curve: no depth effect found"
             + worse
             + "".join(
                 f"; water with Fr_h {f:.2f} (about {u**2 / (g * f * f):.0f} m) fits almost as well, "

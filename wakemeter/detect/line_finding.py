@@ -206,14 +206,7 @@ def line_finding(
             else "no speed: see the cautions"
         )
     )
-    regime = inv.DepthRegime(
-        regime=inv.Regime.UNKNOWN,
-        froude_depth=None,
-        froude_ci95=None,
-        depth_m=None,
-        depth_ci95_m=None,
-        explanation="no waves resolved: depth regime not judged",
-    )
+    regime = inv.DepthRegime.unmeasured(inv.Regime.UNKNOWN, "no waves resolved: depth regime not judged")
     n = chip.img.shape[0]
     outline = Segment(
         SegmentKind.AREA, tuple(chip.to_scene(r - 0.5, c - 0.5) for r, c in ((0, 0), (0, n), (n, n), (n, 0), (0, 0)))

@@ -75,14 +75,7 @@ class WakeAnalysis:
         **more: Any,
     ) -> WakeAnalysis:
         """A result that found no wake: no speed, heading or wave measures; the regime unknown."""
-        regime = inv.DepthRegime(
-            regime=inv.Regime.UNKNOWN,
-            froude_depth=None,
-            froude_ci95=None,
-            depth_m=None,
-            depth_ci95_m=None,
-            explanation="no wake: nothing to judge",
-        )
+        regime = inv.DepthRegime.unmeasured(inv.Regime.UNKNOWN, "no wake: nothing to judge")
         return cls(
             wake_found=False,
             decision=decision,

@@ -498,6 +498,13 @@ class DepthRegime:
     depth_ci95_m: tuple[float, float] | None
     explanation: str
 
+    @classmethod
+    def unmeasured(cls, regime: Regime, explanation: str) -> DepthRegime:
+        """A regime told without a depth Froude number or a depth (only its explanation)."""
+        return cls(
+            regime=regime, froude_depth=None, froude_ci95=None, depth_m=None, depth_ci95_m=None, explanation=explanation
+        )
+
 
 def _band(fr: float) -> Regime:
     return next(name for top, name in _REGIME_BANDS if fr < top)
@@ -547,14 +554,7 @@ def assess_depth_regime(
         )
     if half_angle_deg is not None:
         return _regime_from_half_angle(half_angle_deg, speed, transverse_seen, g)
-    return DepthRegime(
-        regime=Regime.UNKNOWN,
-        froude_depth=None,
-        froude_ci95=None,
-        depth_m=None,
-        depth_ci95_m=None,
-        explanation="neither depth nor half-angle known: the depth regime cannot be told",
-    )
+    return DepthRegime.unmeasured(Regime.UNKNOWN, "neither depth nor half-angle known: the depth regime cannot be told")
 
 
 def _regime_from_half_angle(
@@ -565,23 +565,15 @@ def _regime_from_half_angle(
     a, sa = half_angle_deg.value, max(half_angle_deg.std, 0.1)
     k = kelvin.KELVIN_HALF_ANGLE_DEG
     if abs(a - k) <= 2 * sa:
-        return DepthRegime(
-            regime=Regime.DEEP,
-            froude_depth=None,
-            froude_ci95=None,
-            depth_m=None,
-            depth_ci95_m=None,
-            explanation=f"half-angle {a:.1f} ± {half_angle_deg.std:.1f}° agrees with Kelvin's {k:.2f}°: "
+        return DepthRegime.unmeasured(
+            Regime.DEEP,
+            f"half-angle {a:.1f} ± {half_angle_deg.std:.1f}° agrees with Kelvin's {k:.2f}°: "
             "no visible shallow-water effect (Fr_h below about 0.6); depth cannot be told",
         )
     if a < k:
-        return DepthRegime(
-            regime=Regime.UNKNOWN,
-            froude_depth=None,
-            froude_ci95=None,
-            depth_m=None,
-            depth_ci95_m=None,
-            explanation=f"half-angle {a:.1f}° is narrower than Kelvin's: not a depth effect; "
+        return DepthRegime.unmeasured(
+            Regime.UNKNOWN,
+            f"half-angle {a:.1f}° is narrower than Kelvin's: not a depth effect; "
             "a fast, short hull (high hull Froude number) or a supercritical vessel without "
             "transverse waves could explain it",
         )
@@ -614,11 +606,4 @@ def _regime_from_half_angle(
             explanation=f"half-angle {a:.1f}° and no transverse waves: supercritical, "
             f"Fr_h = 1/sin(angle) = {br.supercritical:.2f}",
         )
-    return DepthRegime(
-        regime=Regime.UNKNOWN,
-        froude_depth=None,
-        froude_ci95=None,
-        depth_m=None,
-        depth_ci95_m=None,
-        explanation=br.note,
-    )
+    return DepthRegime.unmeasured(Regime.UNKNOWN, br.note)
