@@ -21,7 +21,6 @@ NOT_TUNING = {
     "wide_blur.py:REACH_SIGMAS": "numerics: kernel reach",
     "speed_check.py:DRAWS": "Monte Carlo draws",
     "band_shift.py:MC_DRAWS": "Monte Carlo draws",
-    "band_shift.py:CO_REGISTRATION_STD_PX": "a sensor's published registration, belongs with the sensor",
     "request.py:MAX_DEPTH_M": "input bound (absurd parameters refused)",
     "request.py:MAX_SPEED_MPS": "input bound (absurd parameters refused)",
     "handmeasure.py:PLACEMENT_PX": "hand-placement uncertainty of a point, not a decision",
@@ -39,12 +38,6 @@ NOT_TUNING = {
 }
 #: tuned numbers not yet moved into Tuning (each module is a step of its own, with its sweeps re-run)
 NOT_YET_MOVED = {
-    "apex.py:LINE_SIGNIFICANCE_MIN",
-    "apex.py:STEP_CONTRAST_MIN",
-    "band_shift.py:EDGE_STD_FLOOR_PX",
-    "band_shift.py:ACROSS_STD_PX",
-    "band_shift.py:EDGE_REACH_PX",
-    "band_shift.py:CLEAR_SHIFT_SIGMAS",
     "chip_measures.py:K_HI_FACTOR",
     "chip_measures.py:DRAW_LENGTH_FRACTION",
     "lines.py:LINE_SIGNIFICANCE_MIN",

@@ -118,7 +118,7 @@ def analyze(
         spectral_note = f"spectral significance {attempt.decision.significance:.1f}, needs {tuning.significance_min:g}"
         if attempt.decision.found:
             measured = _measure(scene, request, attempt, tuning, stage, methods)
-            against = _shift_against(scene, measured)
+            against = _shift_against(scene, measured, tuning)
             if against is None:
                 return measured
             # the wave fit read the wake on the wrong side of the hull: its heading and speed are not the
@@ -154,7 +154,7 @@ def analyze(
     return _no_wake(scene, request, attempt, tuning, lines_note=lines.why_not)
 
 
-def _shift_against(scene: Scene, measured: WakeAnalysis) -> str | None:
+def _shift_against(scene: Scene, measured: WakeAnalysis, tuning: Tuning) -> str | None:
     """For an optical scene whose band timing is known: a reason when the hull's shift between bands says the
     vessel moves against the heading of the wave fit (see :func:`band_shift.moves_against`)."""
     if measured.heading_deg is None or scene.info.count < 2:
@@ -163,7 +163,7 @@ def _shift_against(scene: Scene, measured: WakeAnalysis) -> str | None:
     if timing is None:
         return None
     try:
-        return moves_against(scene, measured.vessel_px, measured.heading_deg, timing)
+        return moves_against(scene, measured.vessel_px, measured.heading_deg, timing, tuning)
     except ParameterError:
         return None
 
@@ -225,7 +225,7 @@ def _from_displaced_apex(scene: Scene, request: AnalysisRequest, first: _Attempt
     wake starts (only from a bright hull: without one there is nothing displaced)."""
     try:
         apex = find_displaced_apex(
-            scene, first.vessel_px, step=first.look.chip.step, size_px=tuning.chip_px, radar=True
+            scene, first.vessel_px, step=first.look.chip.step, size_px=tuning.chip_px, radar=True, tuning=tuning
         )
         if apex is None:
             return None
@@ -246,7 +246,7 @@ def _displaced_lines(
     stage(0.7, "looking for a wake displaced from the hull")
     hull_px = chip.to_scene(*chip.hull.rc)
     try:
-        apex = find_displaced_apex(scene, hull_px, size_px=tuning.chip_px, radar=True)
+        apex = find_displaced_apex(scene, hull_px, size_px=tuning.chip_px, radar=True, tuning=tuning)
     except ParameterError:
         return None, None
     if apex is None:

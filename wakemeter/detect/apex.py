@@ -27,12 +27,9 @@ from ..scene.raster import Scene
 from .prepare import prepare_chip
 from .radon import radon
 from .robust import median_spread
+from .tuning import DEFAULT_TUNING, Tuning
 
 _ANGLES = np.arange(0.0, 180.0, 1.0)
-#: the dark line must stand this far below the Radon background (robust spreads), and the darkness
-#: must step up this far (robust spreads of the along-line profile) at the apex
-LINE_SIGNIFICANCE_MIN = 5.0
-STEP_CONTRAST_MIN = 1.0
 
 
 @dataclass(frozen=True)
@@ -54,6 +51,7 @@ def find_displaced_apex(
     size_px: int = 640,
     max_distance_m: float = 2500.0,
     radar: bool | None = True,
+    tuning: Tuning = DEFAULT_TUNING,
 ) -> Apex | None:
     """Find the dark wake line near a radar hull and the point where it starts (None if there is none)."""
     chip = prepare_chip(scene, hull_px, size_px=size_px, step=step, radar=radar)
@@ -74,12 +72,14 @@ def find_displaced_apex(
     tried: list[float] = []
     for flat in np.argsort(np.where(band[:, None], z, np.inf), axis=None)[:400]:
         i, j = np.unravel_index(flat, z.shape)
-        if -z[i, j] < LINE_SIGNIFICANCE_MIN or len(tried) >= 3:
+        if -z[i, j] < tuning.apex_line_significance_min or len(tried) >= 3:
             break
         if any(abs(((_ANGLES[j] - t) + 90) % 180 - 90) < 6 for t in tried):
             continue
         tried.append(float(_ANGLES[j]))
-        cand = _apex_on_line(img, chip.valid, float(offs[i]), float(_ANGLES[j]), float(-z[i, j]))
+        cand = _apex_on_line(
+            img, chip.valid, float(offs[i]), float(_ANGLES[j]), float(-z[i, j]), tuning.apex_step_contrast_min
+        )
         if cand is None:
             continue
         row, col, back, contrast = cand
@@ -93,7 +93,13 @@ def find_displaced_apex(
 
 
 def _apex_on_line(
-    img: np.ndarray, valid: np.ndarray, s: float, theta_deg: float, significance: float, half_width: int = 3
+    img: np.ndarray,
+    valid: np.ndarray,
+    s: float,
+    theta_deg: float,
+    significance: float,
+    step_contrast_min: float,
+    half_width: int = 3,
 ) -> tuple[float, float, float, float] | None:
     """Start of the darkness along the Radon line (s, theta): (row, col, back angle, step contrast)."""
     n = img.shape[0]
@@ -135,7 +141,7 @@ def _apex_on_line(
             if np.isfinite(d) and d > best[0]:
                 best = (d, i, sign)
     contrast, i, sign = best
-    if not contrast >= STEP_CONTRAST_MIN:
+    if not contrast >= step_contrast_min:
         return None
     row, col = float(rows[i, half_width]), float(cols[i, half_width])
     back = float(np.degrees(np.arctan2(sign * dy, sign * dx)) % 360.0)

@@ -28,18 +28,8 @@ from scipy import ndimage
 from ..physics import inversion as inv
 from ..scene.raster import Scene
 from ..scene.sensor import BandTiming, band_timing
+from .tuning import DEFAULT_TUNING, Tuning
 
-#: standard uncertainty of one band's position from the co-registration of the bands (pixels per axis):
-#: Sentinel-2's multispectral registration requirement is 0.3 px at 3 sigma for the 10 m bands (from memory)
-CO_REGISTRATION_STD_PX = 0.1
-#: smallest standard uncertainty of one band's leading edge (px): the half-peak edge of a blurred hull a few
-#: pixels long moves with its sub-pixel phase; with this floor 95 % of the along-track shifts of 24 synthetic
-#: Sentinel-2-like hulls (benchmarks/multispectral_sweep.py) fell within their 95 % interval
-EDGE_STD_FLOOR_PX = 0.1
-#: standard uncertainty of one band's across-track centre (px), same sweep (largest |error| 0.19 px of 24)
-ACROSS_STD_PX = 0.1
-#: the edge search runs this far ahead of and behind the vessel along the track (pixels)
-EDGE_REACH_PX = 12
 MC_DRAWS = 4000
 
 
@@ -61,10 +51,10 @@ def scene_band_timing(scene: Scene) -> BandTiming | None:
     return band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags)
 
 
-def _edge(profile: np.ndarray, positions: np.ndarray) -> tuple[float, float]:
+def _edge(profile: np.ndarray, positions: np.ndarray, reach_px: int) -> tuple[float, float]:
     """Position where ``profile`` (ordered from ahead of the vessel towards its stern) first reaches half of
     its peak above the level ahead, and its standard uncertainty from the noise ahead; NaN if no edge."""
-    ahead = profile[: EDGE_REACH_PX // 2]
+    ahead = profile[: reach_px // 2]
     base = float(np.median(ahead))
     noise = float(np.std(ahead)) or 1e-6
     k = int(np.argmax(profile))
@@ -89,12 +79,14 @@ def measure_band_shift(
     timing: BandTiming,
     *,
     rng: np.random.Generator,
+    tuning: Tuning = DEFAULT_TUNING,
 ) -> BandShift | None:
     """The hull's shift between ``timing.first_band`` and ``timing.last_band`` at ``vessel_px`` (scene col,
     row), travelling opposite to the image angle ``back_deg`` of its wake; None when no clear edge is found
     in either band."""
     col, row = vessel_px
-    half = EDGE_REACH_PX + 4
+    reach = int(tuning.band_shift_edge_reach_px)
+    half = reach + 4
     c0, r0 = int(np.floor(col)) - half, int(np.floor(row)) - half
     if c0 < 0 or r0 < 0 or c0 + 2 * half + 1 > scene.width or r0 + 2 * half + 1 > scene.height:
         return None
@@ -104,7 +96,7 @@ def measure_band_shift(
     a = np.radians(back_deg + 180.0)  # direction of travel (image angle)
     fr, fc = -np.sin(a), np.cos(a)  # forwards (row, col)
     lr, lc = -fc, fr  # to the left
-    t = np.arange(EDGE_REACH_PX, -EDGE_REACH_PX - 1e-9, -0.25)  # from ahead to behind, in px along the track
+    t = np.arange(reach, -reach - 1e-9, -0.25)  # from ahead to behind, in px along the track
     lat = np.arange(-1.0, 1.0 + 1e-9, 0.5)
     vr, vc = row - r0, col - c0
     edges, stds, across = [], [], []
@@ -114,11 +106,11 @@ def measure_band_shift(
         cols = vc + t[:, None] * fc + lat[None, :] * lc
         prof = ndimage.map_coordinates(img, [rows.ravel(), cols.ravel()], order=1, mode="nearest")
         prof = prof.reshape(rows.shape).mean(axis=1)
-        e, s = _edge(prof, -t)  # positions measured backwards from the vessel; the edge is where the hull starts
+        e, s = _edge(prof, -t, reach)  # positions measured backwards from the vessel; the edge is where the hull starts
         if not np.isfinite(e):
             return None
         edges.append(-e)  # forwards coordinate of the leading edge
-        stds.append(max(s, EDGE_STD_FLOOR_PX))
+        stds.append(max(s, tuning.band_shift_edge_std_floor_px))
         # across: the brightness-weighted lateral centre of the cross-section two pixels behind the edge
         cross = np.arange(-4.0, 4.0 + 1e-9, 0.5)
         at = -e - 2.0
@@ -133,8 +125,9 @@ def measure_band_shift(
     frame = scene.local_frame(col, row)
     # Monte Carlo (JCGM 101:2008): edge and co-registration errors per band and axis, the delay's uncertainty
     n = MC_DRAWS
-    s_along = np.sqrt(stds[0] ** 2 + stds[1] ** 2 + 2 * CO_REGISTRATION_STD_PX**2)
-    s_across = np.sqrt(2 * ACROSS_STD_PX**2 + 2 * CO_REGISTRATION_STD_PX**2)
+    reg = timing.co_registration_std_px
+    s_along = np.sqrt(stds[0] ** 2 + stds[1] ** 2 + 2 * reg**2)
+    s_across = np.sqrt(2 * tuning.band_shift_across_std_px**2 + 2 * reg**2)
     da = along + rng.normal(0, s_along, n)
     dx = acr + rng.normal(0, s_across, n)
     delay = timing.delay_s * (1 + rng.normal(0, timing.delay_rel_std, n))
@@ -153,7 +146,7 @@ def measure_band_shift(
         assumptions=(
             f"bands {timing.first_band} and {timing.last_band} of a {timing.sensor} scene, {timing.source}",
             "the hull's leading edge moves with the hull; its foam and the land stand still",
-            f"band co-registration {CO_REGISTRATION_STD_PX} px per axis (from memory: 0.3 px at 3 sigma)",
+            f"band co-registration {reg} px per axis ({timing.sensor}; from memory: 0.3 px at 3 sigma)",
             "speed over ground: equals the speed through the water only in still water",
         ),
         over_ground=True,
@@ -169,11 +162,13 @@ def measure_band_shift(
     )
 
 
-#: a shift counts as clear when it exceeds this many of its standard uncertainties
-CLEAR_SHIFT_SIGMAS = 3.0
-
-
-def moves_against(scene: Scene, vessel_px: tuple[float, float], heading_deg: float, timing: BandTiming) -> str | None:
+def moves_against(
+    scene: Scene,
+    vessel_px: tuple[float, float],
+    heading_deg: float,
+    timing: BandTiming,
+    tuning: Tuning = DEFAULT_TUNING,
+) -> str | None:
     """A reason when the hull's shift between bands shows it moving against the true bearing ``heading_deg``:
     read along the opposite direction its leading edge moves forwards clearly, read along ``heading_deg`` it
     does not.  None when the shift cannot be read, or agrees, or is unclear either way.
@@ -184,13 +179,16 @@ def moves_against(scene: Scene, vessel_px: tuple[float, float], heading_deg: flo
     dc, dr = frame.image_direction(heading_deg)
     travel = float(np.degrees(np.arctan2(-dr, dc)))
     rng = np.random.default_rng(0)
-    along, against = (measure_band_shift(scene, vessel_px, back, timing, rng=rng) for back in (travel + 180.0, travel))
+    along, against = (
+        measure_band_shift(scene, vessel_px, back, timing, rng=rng, tuning=tuning) for back in (travel + 180.0, travel)
+    )
 
     def clear(s: BandShift | None) -> bool:
         if s is None:
             return False
-        std = float(np.sqrt(s.edge_std_px[0] ** 2 + s.edge_std_px[1] ** 2 + 2 * CO_REGISTRATION_STD_PX**2))
-        return s.along_px > CLEAR_SHIFT_SIGMAS * std
+        reg = timing.co_registration_std_px
+        std = float(np.sqrt(s.edge_std_px[0] ** 2 + s.edge_std_px[1] ** 2 + 2 * reg**2))
+        return s.along_px > tuning.band_shift_clear_sigmas * std
 
     if against is None or not clear(against) or clear(along):
         return None

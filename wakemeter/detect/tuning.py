@@ -86,6 +86,21 @@ class Tuning:
     line_reach_m: float = 1200.0  #: longest wake line scored, ground metres
     line_snap_radius_m: float = 60.0  #: a hull this close to the click is taken as the vessel
     band_shift_course_max_deg: float = 30.0  #: the hull's shift between bands must follow the wake this closely
+    #: smallest standard uncertainty of one band's leading edge (px): the half-peak edge of a blurred hull a few
+    #: pixels long moves with its sub-pixel phase; with this floor 95 % of the along-track shifts of 24 synthetic
+    #: Sentinel-2-like hulls (benchmarks/multispectral_sweep.py) fell within their 95 % interval
+    band_shift_edge_std_floor_px: float = 0.1
+    #: standard uncertainty of one band's across-track centre (px), same sweep (largest |error| 0.19 px of 24)
+    band_shift_across_std_px: float = 0.1
+    band_shift_edge_reach_px: int = 12  #: the edge search runs this far ahead of and behind the vessel (px)
+    #: a shift counts as clear when it exceeds this many of its standard uncertainties (the wave fit set aside
+    #: against the hull's shift: a real crop, marseille_01 whole, tests/test_real_imagery.py)
+    band_shift_clear_sigmas: float = 3.0
+    # ---- displaced radar hull (apex.py; benchmarks/displaced_hull_sweep.py) ----
+    #: the dark line must stand this far below the Radon background (robust spreads) ...
+    apex_line_significance_min: float = 5.0
+    #: ... and its darkness must step up this far (robust spreads of the along-line profile) at the apex
+    apex_step_contrast_min: float = 1.0
     # ---- the wake-line search (wakeline.py; values as set with benchmarks/real_sweep.py and the radar line
     # scenes of tests/test_lines.py) ----
     hull_clearance_px: float = 1.5  #: rays start this far beyond the hull's edge (chip pixels)

@@ -52,6 +52,7 @@ class BandTiming:
     delay_rel_std: float
     source: str  #: where the timing comes from, for the result's assumptions
     recognised_from: str  #: what in the file told us the sensor
+    co_registration_std_px: float = 0.0  #: standard uncertainty of one band's position (pixels per axis)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -72,6 +73,8 @@ class SensorRecord:
     timing_source: str = ""
     #: the two bands whose published delay the hull's shift uses
     timing_pair: tuple[str, str] | None = None
+    #: standard uncertainty of one band's position from the registration of the bands (pixels per axis)
+    co_registration_std_px: float = 0.0
 
     def band_numbers(self, descriptions: tuple[str | None, ...]) -> dict[str, int]:
         """Canonical band name -> 1-based band number, for the bands the file names in this sensor's way."""
@@ -112,6 +115,7 @@ class SensorRecord:
             self.delay_rel_std,
             self.timing_source,
             how,
+            self.co_registration_std_px,
         )
 
 
@@ -146,6 +150,8 @@ SENTINEL2 = SensorRecord(
     delay_rel_std=SENTINEL2_DELAY_REL_STD,
     timing_source="Sentinel-2 MSI: B04 recorded 1.005 s after B02 (Markuse 2017), ±2 % (Binet et al. 2022)",
     timing_pair=("B02", "B04"),
+    # Sentinel-2's multispectral registration requirement is 0.3 px at 3 sigma for the 10 m bands (from memory)
+    co_registration_std_px=0.1,
 )
 #: any sensor whose bands are named by what they see
 PLAIN_NAMES = SensorRecord(

@@ -30,7 +30,9 @@ class HullBandShift:
             return NOTHING
         chip, wake = ctx.lines.chip, ctx.lines.wake
         try:
-            shift = measure_band_shift(ctx.scene, chip.to_scene(*wake.vessel_rc), wake.back_deg, timing, rng=ctx.rng)
+            shift = measure_band_shift(
+                ctx.scene, chip.to_scene(*wake.vessel_rc), wake.back_deg, timing, rng=ctx.rng, tuning=ctx.tuning
+            )
         except ParameterError:
             return NOTHING
         if shift is None:
