@@ -258,3 +258,19 @@ def test_canvas_and_evidence_picture_share_one_palette():
     for style, _w, _dash in SEGMENT_STYLES.values():
         rgb = ITEM_COLOURS[style].getRgb()[:3]
         assert rgb in palette.COLOURS.values(), style
+
+
+def test_measurement_list_lists_vessels_and_selects_them(win):
+    # the measurement list is a panel of its own: it shows the document's vessels and selecting a row selects
+    # the vessel in the document (self-consistency)
+    from wakemeter.app.document import AddItem, Vessel
+
+    assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
+    a = Vessel(win.doc.new_id(), "Saltmarsh Wren", (100.0, 100.0))
+    win.doc.undo.push(AddItem(win.doc, a, "mark"))
+    b = Vessel(win.doc.new_id(), "Tern", (300.0, 300.0))
+    win.doc.undo.push(AddItem(win.doc, b, "mark"))
+    rows = [win.items.item(i).text() for i in range(win.items.count())]
+    assert rows == ["Vessel: Saltmarsh Wren", "Vessel: Tern"]
+    win.items.setCurrentRow(0)
+    assert win.doc.selected == a.id

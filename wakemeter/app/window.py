@@ -14,8 +14,6 @@ from PySide6.QtWidgets import (
     QHBoxLayout,
     QInputDialog,
     QLabel,
-    QListWidget,
-    QListWidgetItem,
     QMainWindow,
     QMessageBox,
     QProgressBar,
@@ -29,6 +27,7 @@ from ..scene import geodesy
 from . import actions, help_texts
 from .canvas import Canvas
 from .document import ChangeItem, Document, Measurement, RemoveItem, SetCalibration, Vessel
+from .measurement_list import MeasurementList
 from .results import ResultsPanel
 from .workers import Job, Relay
 
@@ -68,7 +67,6 @@ class MainWindow(QMainWindow):
         self.canvas.message.connect(self.say)
         self.canvas.calibration_line.connect(self._ask_calibration)
         self.canvas.area_drawn.connect(lambda area: self.find_vessels(area=area))
-        self.doc.changed.connect(self._refresh_list)
         self.doc.scene_changed.connect(self._on_scene)
         self.setStyleSheet(
             "QMainWindow { background: #1c2028; } QDockWidget { color: #dfe6ee; } "
@@ -186,11 +184,7 @@ class MainWindow(QMainWindow):
         self._show_text("About wakemeter", help_texts.about_text())
 
     def _build_panels(self) -> None:
-        self.items = QListWidget()
-        self.items.setToolTip("Vessels and measurements; select one to highlight it, Delete removes it")
-        self.items.setWordWrap(True)
-        self.items.itemSelectionChanged.connect(self._list_selected)
-        self.items.itemDoubleClicked.connect(self._list_go)
+        self.items = MeasurementList(self.doc, self.canvas)
         dock = QDockWidget("Measurements", self)
         dock.setObjectName("measurements")
         dock.setWidget(self.items)
@@ -342,49 +336,6 @@ class MainWindow(QMainWindow):
             if not ok or not name.strip():
                 return
         self.doc.undo.push(ChangeItem(self.doc, v, Vessel(v.id, name.strip(), v.position), "rename vessel"))
-
-    def _refresh_list(self) -> None:
-        self.items.blockSignals(True)
-        self.items.clear()
-        for v in self.doc.vessels.values():
-            it = QListWidgetItem(f"Vessel: {v.name}")
-            it.setData(Qt.ItemDataRole.UserRole, v.id)
-            self.items.addItem(it)
-            for m in self.doc.measurements.values():
-                if m.vessel_id == v.id:
-                    self._add_row(m, indent=True)
-            hand = self.doc.speed_from_hand(v.id)
-            if hand:
-                it2 = QListWidgetItem("    → " + hand)
-                it2.setData(Qt.ItemDataRole.UserRole, v.id)
-                self.items.addItem(it2)
-        for m in self.doc.measurements.values():
-            if m.vessel_id is None:
-                self._add_row(m, indent=False)
-        for i in range(self.items.count()):
-            if self.items.item(i).data(Qt.ItemDataRole.UserRole) == self.doc.selected:
-                self.items.setCurrentRow(i)
-                break
-        self.items.blockSignals(False)
-
-    def _add_row(self, m: Measurement, indent: bool) -> None:
-        names = {"track": "track", "arm": "arm", "crest": "crest ruler", "ruler": "ruler", "calibration": "calibration"}
-        text = f"{'    ' if indent else ''}{names[m.kind]}: {m.error or m.text}"
-        it = QListWidgetItem(text)
-        it.setData(Qt.ItemDataRole.UserRole, m.id)
-        self.items.addItem(it)
-
-    def _list_selected(self) -> None:
-        it = self.items.currentItem()
-        if it is not None:
-            self.doc.select(int(it.data(Qt.ItemDataRole.UserRole)))
-
-    def _list_go(self, it: QListWidgetItem) -> None:
-        item = self.doc.item(int(it.data(Qt.ItemDataRole.UserRole)))
-        if isinstance(item, Vessel):
-            self.canvas.centre_on(*item.position)
-        elif item is not None:
-            self.canvas.centre_on(*np.mean(item.points, axis=0))
 
     # ---- calibration ------------------------------------------------------
     def _ask_calibration(self, p0, p1) -> None:
