@@ -93,18 +93,17 @@ def test_a_white_hull_with_its_foam_trail_is_a_wake_with_the_right_heading(tmp_p
             assert err <= 2 * a.heading_std_deg, (a.heading_deg, a.heading_std_deg)
 
 
+def _planing_boat(tmp_path, **kw):
+    """A 12 m boat at 1.5 m per pixel with a 6 deg foam V from its stern corners (synthetic)."""
+    args = dict(length_m=12.0, superstructure_factor=1.5, hull_contrast=900.0, foam_v_half_angle_deg=6.0)
+    return white_hull_scene(tmp_path / "v.tif", **{**args, "foam_v_length_m": 200.0, **kw})
+
+
 def test_a_planing_boats_foam_v_gives_no_speed_from_a_foam_covered_hull(tmp_path):
     # a 12 m boat at 1.5 m per pixel with a foam V of 6 deg from its stern corners: the V is found and read as
     # narrow arms, but the hull's length cannot be read from a blob that holds the foam: no narrow-arms speed,
     # and the reason is said (before: a hull length from the blob and a speed; synthetic)
-    hs = white_hull_scene(
-        tmp_path / "v.tif",
-        length_m=12.0,
-        superstructure_factor=1.5,
-        hull_contrast=900.0,
-        foam_v_half_angle_deg=6.0,
-        foam_v_length_m=200.0,
-    )
+    hs = _planing_boat(tmp_path)
     with open_scene(hs.path) as sc:
         a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
     assert a.wake_found and a.half_angle_deg is not None and a.half_angle_deg < 19.47
@@ -118,14 +117,7 @@ def test_a_planing_boats_foam_v_gives_no_speed_from_a_foam_covered_hull(tmp_path
 def test_narrow_arms_with_a_given_hull_length_follow_the_published_relation(tmp_path):
     # with the length given the method applies: U = Fr_L(phi) sqrt(g L) with Fr_L from the measured half-angle
     # (Rabaud & Moisy 2013, Phys. Rev. Lett. 110, 214503; the inverse in physics.hull, tested there)
-    hs = white_hull_scene(
-        tmp_path / "v.tif",
-        length_m=12.0,
-        superstructure_factor=1.5,
-        hull_contrast=900.0,
-        foam_v_half_angle_deg=6.0,
-        foam_v_length_m=200.0,
-    )
+    hs = _planing_boat(tmp_path)
     with open_scene(hs.path) as sc:
         a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0), hull_length_m=12.0))
     assert a.speed is not None and a.half_angle_deg is not None
