@@ -35,6 +35,8 @@ NOT_TUNING = {
     "analysis.py:GRAVITY_STD_UNKNOWN": "uncertainty of a physical value (covers 9.780-9.832)",
     "spectral.py:FR_MAX": "edge of the physics searched (Froude numbers)",
     "spectral.py:FR_SUPER_RANGE": "edge of the physics searched (Froude numbers)",
+    "vessel_finder.py:TILE": "size of the windows read (memory and speed, not a decision)",
+    "vessel_finder.py:PFA_PER_KM2": "default of the user's --pfa option (the false-alarm rate asked for)",
 }
 #: tuned numbers not yet moved into Tuning (each module is a step of its own, with its sweeps re-run)
 NOT_YET_MOVED = {
@@ -49,24 +51,6 @@ NOT_YET_MOVED = {
     "spectral.py:RING_MIN_BINS",
     "spectral.py:HANN_SAMPLES_PER_ESTIMATE",
     "spectral.py:CURVE_MIN_POINTS",
-    "vessel_finder.py:TILE",
-    "vessel_finder.py:PFA_PER_KM2",
-    "vessel_finder.py:GUARD_M",
-    "vessel_finder.py:BACKGROUND_M",
-    "vessel_finder.py:MIN_PIXELS",
-    "vessel_finder.py:MAX_LENGTH_M",
-    "vessel_finder.py:MAX_AREA_M2",
-    "vessel_finder.py:TAIL_SHARE",
-    "vessel_finder.py:CENSOR_FACTOR",
-    "vessel_finder.py:DRY_SHARE_MAX",
-    "vessel_finder.py:HULL_SHARE",
-    "vessel_finder.py:LINK_SHARE",
-    "vessel_finder.py:OWN_SHARE",
-    "vessel_finder.py:TRAIL_MIN_ELONGATION",
-    "vessel_finder.py:TRAIL_MIN_PX",
-    "vessel_finder.py:TRAIL_FADE",
-    "vessel_finder.py:TRAIL_HEAD_PX",
-    "vessel_finder.py:CENTRE_SHARE",
 }
 
 

@@ -168,10 +168,9 @@ def test_two_vessels_side_by_side_stay_two(tmp_path, monkeypatch):
         for col in (102.5, 114.5):  # the hulls' centres
             assert min(np.hypot(c.px[0] - col, c.px[1] - 151.0) for c in cands) <= 3.0  # as the fleet test
         # the foam does join them into one object: were only the strongest part kept, one would remain
-        from wakemeter.detect import vessel_finder
+        from wakemeter.detect.tuning import DEFAULT_TUNING
 
-        monkeypatch.setattr(vessel_finder, "OWN_SHARE", 1.0)
-        assert len(find_vessels(sc)) == 1
+        assert len(find_vessels(sc, tuning=DEFAULT_TUNING.with_overrides(["finder_own_share=1.0"]))) == 1
 
 
 @pytest.mark.parametrize("connectivity", [8, 4])

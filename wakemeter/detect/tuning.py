@@ -197,6 +197,43 @@ class Tuning:
     #: slenderness L / V^(1/3) = 4; above 2.5 (a margin for racing craft, common practice, no source) a figure
     #: is outside the method's domain and becomes a caution
     narrow_arms_fr_max: float = 2.5
+    # ---- the vessel finder (vessel_finder.py; benchmarks/vessel_finder_sweep.py, bench_vessel_finder.py) ----
+    #: guard and background windows in metres (the guard holds the longest hull; the ring beyond it is sea)
+    finder_guard_m: float = 400.0
+    finder_background_m: float = 900.0
+    #: a candidate needs this many pixels above the threshold (a lone bright pixel is noise or a buoy)
+    finder_min_pixels: int = 2
+    #: longer or larger blobs are harbour walls, quays or land (the largest ships are about 400 m x 60 m)
+    finder_max_length_m: float = 450.0
+    finder_max_area_m2: float = 40_000.0
+    #: the share of a window's water whose excesses model the tail of the sea clutter
+    finder_tail_share: float = 0.01
+    #: pixels above this multiple of the normal threshold (hulls, fresh foam) are left out of the sea's tail
+    finder_censor_factor: float = 1.0
+    #: a detection more than this share of which lies next to dry land (NDWI <= 0) is a quay edge, not a hull;
+    #: a moored hull touches its quay along one side only
+    finder_dry_share_max: float = 0.5
+    #: the hull is the part of a detection above this share of its peak (in the near infrared when there is one;
+    #: fresh foam reflects about half as much as a hull there, common practice, no source)
+    finder_hull_share: float = 0.65
+    #: detections joined by pixels above this share of the threshold are one object (a hull with its foam, its
+    #: wake or the plume it stirs up): its weaker parts are not separate vessels (hysteresis grouping, as in Canny
+    #: 1986, A computational approach to edge detection, IEEE PAMI 8(6))
+    finder_link_share: float = 0.5
+    #: ... unless they are at least this share of the strongest part's score (two vessels side by side)
+    finder_own_share: float = 0.5
+    #: a detection at least this many times longer than wide, and at least finder_trail_min_px long, whose one
+    #: end is brighter than its other by finder_trail_fade (mean of the end thirds) is a hull leading its foam
+    #: trail, which fades aft; the hull is sought within finder_trail_head_px of the brighter end (a small hull
+    #: covers its pixels only in part, so the fresh foam just aft of it can be brighter than the hull; common
+    #: practice, no source)
+    finder_trail_min_elongation: float = 3.0
+    finder_trail_min_px: float = 6.0
+    finder_trail_fade: float = 1.5
+    finder_trail_head_px: float = 3.0
+    #: its centre is the weighted centre of the pixels next to the peak, weighted by their excess over this share
+    #: of the peak
+    finder_centre_share: float = 0.5
     # ---- radar azimuth offset (Raney 1971) ----
     radar_max_radial_mps: float = 20.0  #: largest radial speed searched for the wake line
     radar_wake_line_min: float = 5.0  #: significance of the wake line used for the offset

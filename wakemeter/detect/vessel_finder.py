@@ -40,47 +40,13 @@ from ..scene.sensor import BandRole, band_roles
 from .blob_shape import blob_shape
 from .line_chip import green_nir_bands
 from .pixels import index_to_scene
+from .tuning import DEFAULT_TUNING, Tuning
 
 #: windows are read this many pixels square, plus the margin on every side
 TILE = 1024
 #: default false-alarm rate per km^2 of sea (common practice for ship detection: 1e-6 to 1e-8 per pixel at
 #: 10-20 m pixels, i.e. roughly 1e-2 to 1e-4 per km^2; no single source)
 PFA_PER_KM2 = 1e-3
-#: guard and background windows in metres (the guard holds the longest hull; the ring beyond it is sea)
-GUARD_M = 400.0
-BACKGROUND_M = 900.0
-#: a candidate needs this many pixels above the threshold (a lone bright pixel is noise or a buoy)
-MIN_PIXELS = 2
-#: longer or larger blobs are harbour walls, quays or land (the largest ships are about 400 m x 60 m)
-MAX_LENGTH_M = 450.0
-MAX_AREA_M2 = 40_000.0
-#: the share of a window's water whose excesses model the tail of the sea clutter
-TAIL_SHARE = 0.01
-#: pixels above this multiple of the normal threshold (hulls, fresh foam) are left out of the sea's tail
-CENSOR_FACTOR = 1.0
-#: a detection more than this share of which lies next to dry land (NDWI <= 0) is a quay edge, not a hull;
-#: a moored hull touches its quay along one side only
-DRY_SHARE_MAX = 0.5
-#: the hull is the part of a detection above this share of its peak (in the near infrared when there is one;
-#: fresh foam reflects about half as much as a hull there, common practice, no source)
-HULL_SHARE = 0.65
-#: detections joined by pixels above this share of the threshold are one object (a hull with its foam, its wake
-#: or the plume it stirs up): its weaker parts are not separate vessels (hysteresis grouping, as in Canny 1986,
-#: A computational approach to edge detection, IEEE PAMI 8(6))
-LINK_SHARE = 0.5
-#: ... unless they are at least this share of the strongest part's score (two vessels side by side)
-OWN_SHARE = 0.5
-#: a detection at least this many times longer than wide, and at least TRAIL_MIN_PX long, whose one end is
-#: brighter than its other by TRAIL_FADE (mean of the end thirds) is a hull leading its foam trail, which fades
-#: aft; the hull is sought within TRAIL_HEAD_PX of the brighter end (a small hull covers its pixels only in part,
-#: so the fresh foam just aft of it can be brighter than the hull; common practice, no source)
-TRAIL_MIN_ELONGATION = 3.0
-TRAIL_MIN_PX = 6.0
-TRAIL_FADE = 1.5
-TRAIL_HEAD_PX = 3.0
-#: its centre is the weighted centre of the pixels next to the peak, weighted by their excess over this share
-#: of the peak
-CENTRE_SHARE = 0.5
 
 
 @dataclass(frozen=True)
@@ -169,8 +135,11 @@ def find_vessels(
     progress: Callable[[float], None] | None = None,
     cancelled: Callable[[], bool] | None = None,
     tile: int = TILE,
+    tuning: Tuning = DEFAULT_TUNING,
 ) -> list[VesselCandidate]:
-    """Every vessel-like target in ``area`` (col, row, width, height; default the whole scene)."""
+    """Every vessel-like target in ``area`` (col, row, width, height; default the whole scene); the finder's
+    thresholds are the ``finder_*`` fields of ``tuning``."""
+    t = tuning
     if not 0 < pfa_per_km2 < 1e3:
         raise ParameterError(f"the false-alarm rate must be > 0 and below 1000 per km², got {pfa_per_km2}")
     c0, r0, w, h = area if area is not None else (0, 0, scene.width, scene.height)
@@ -180,8 +149,8 @@ def find_vessels(
         raise ParameterError("the area to search is smaller than 16 x 16 pixels")
     frame = scene.local_frame((c0 + c1) / 2, (r0 + r1) / 2)
     m_px = float(math.sqrt(frame.length_of(1, 0) * frame.length_of(0, 1)))
-    guard = max(3, int(round(GUARD_M / m_px)) | 1)
-    back = max(guard + 4, int(round(BACKGROUND_M / m_px)) | 1)
+    guard = max(3, int(round(t.finder_guard_m / m_px)) | 1)
+    back = max(guard + 4, int(round(t.finder_background_m / m_px)) | 1)
     margin = back // 2 + 1
     pfa_px = min(pfa_per_km2 * (m_px * m_px) / 1e6, 0.01)
     gn = green_nir_bands(scene.info.band_descriptions)
@@ -219,19 +188,19 @@ def find_vessels(
                 det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
                 water = ok
                 locate = score
-                link = ok & (score > LINK_SHARE)  # score: intensity over its threshold
+                link = ok & (score > t.finder_link_share)  # score: intensity over its threshold
             else:
                 water = ok.copy()
                 if gn is not None:
                     g, n = data[idx[gn[0]]], data[idx[gn[1]]]
                     ndwi = (g - n) / np.maximum(g + n, 1e-6)
-                    water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px)
+                    water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px, t)
                 zs = _anomaly_optical([data[idx[b]] for b in bands], water, guard, back)
-                det, score, pfa_at, thr = _threshold(zs, water, pfa_px)
-                link = water & (score > LINK_SHARE * thr)
+                det, score, pfa_at, thr = _threshold(zs, water, pfa_px, t)
+                link = water & (score > t.finder_link_share * thr)
                 # the hull is told from its foam in the near infrared, where foam is far darker than a hull
                 locate = zs[bands.index(nir)] if nir in bands else score
-            found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar)
+            found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar, t)
             if progress is not None:
                 progress((k + 1) / len(tiles))
     return sorted(found, key=lambda c: -c.score)
@@ -265,7 +234,7 @@ def _label(mask: np.ndarray, connectivity: int = 8) -> tuple[np.ndarray, int]:
     return lab, int(n) - 1
 
 
-def _islands(dry: np.ndarray, m_px: float) -> np.ndarray:
+def _islands(dry: np.ndarray, m_px: float, t: Tuning) -> np.ndarray:
     """Dry patches no larger than a ship that do not touch the window's edge: hulls (a white deck can be as
     'dry' by NDWI as a quay) or rocks, to be judged as targets on the water rather than masked as land."""
     lab, n = _label(dry, connectivity=4)
@@ -273,7 +242,7 @@ def _islands(dry: np.ndarray, m_px: float) -> np.ndarray:
         return np.zeros_like(dry)
     sizes = np.bincount(lab.ravel())
     edge = np.unique(np.concatenate([lab[0], lab[-1], lab[:, 0], lab[:, -1]]))
-    small = sizes * m_px * m_px <= MAX_AREA_M2
+    small = sizes * m_px * m_px <= t.finder_max_area_m2
     small[0] = False
     small[edge] = False
     return small[lab]
@@ -293,7 +262,7 @@ def _anomaly_optical(bands, water, guard, back) -> list[np.ndarray]:
     return out
 
 
-def _threshold(zs, water, pfa_px):
+def _threshold(zs, water, pfa_px, t: Tuning):
     """The per-pixel rate at the normal tail, or at the water's own tail when it is heavier (sediment,
     glint and specks make real sea heavier tailed than a normal): an exponential fitted to the excesses
     over the 99th percentile of the window's water (peaks over threshold; Coles 2001, An Introduction to
@@ -303,18 +272,18 @@ def _threshold(zs, water, pfa_px):
     tail: tuple[float, float] | None = None
     # censored: what stands out at the normal threshold (hulls, their foam) and its surroundings are left out
     # of the sea's own tail, or a scene holding a large wake would hide its own vessel
-    strong = cv2.dilate((z_max > CENSOR_FACTOR * thr).astype(np.uint8), np.ones((7, 7), np.uint8))
+    strong = cv2.dilate((z_max > t.finder_censor_factor * thr).astype(np.uint8), np.ones((7, 7), np.uint8))
     sea = z_max[water & (strong == 0)]
     if sea.size > 200_000:  # the tail from a regular sample of the sea (its order does not matter)
         sea = sea[:: sea.size // 200_000]
     if sea.size > 2000:
-        u = float(np.percentile(sea, 100 * (1 - TAIL_SHARE)))
+        u = float(np.percentile(sea, 100 * (1 - t.finder_tail_share)))
         excess = sea[sea > u] - u
         # the scale from the median excess (ln 2 times the scale for an exponential): a few huge excesses
         # (hulls, the edges of land) would swell a mean
         beta = float(np.median(excess)) / math.log(2.0) if excess.size else 0.0
         if beta > 0:
-            thr_tail = u + beta * math.log(TAIL_SHARE / pfa_px)
+            thr_tail = u + beta * math.log(t.finder_tail_share / pfa_px)
             if thr_tail > thr:
                 thr, tail = thr_tail, (u, beta)
     det = water & (z_max > thr)
@@ -323,18 +292,18 @@ def _threshold(zs, water, pfa_px):
         z = float(z_max[r, c])
         if tail is None:
             return float(stats.norm.sf(z))
-        return TAIL_SHARE * math.exp(-min((z - tail[0]) / tail[1], 700.0)) if z > tail[0] else 1.0
+        return t.finder_tail_share * math.exp(-min((z - tail[0]) / tail[1], 700.0)) if z > tail[0] else 1.0
 
     return det, z_max, pfa_at, thr
 
 
-def _trail_head(m: np.ndarray, loc: np.ndarray) -> np.ndarray:
+def _trail_head(m: np.ndarray, loc: np.ndarray, t: Tuning) -> np.ndarray:
     """The pixels of a detection (mask ``m``) where its hull can be: all of them, or the leading end of a trail."""
     rr, cc = np.nonzero(m)
-    if rr.size < TRAIL_MIN_PX:
+    if rr.size < t.finder_trail_min_px:
         return m
     length, width, axis = blob_shape(rr, cc, 1.0)
-    if length < TRAIL_MIN_PX or length < TRAIL_MIN_ELONGATION * width:
+    if length < t.finder_trail_min_px or length < t.finder_trail_min_elongation * width:
         return m
     a = math.radians(axis)
     u = (cc - cc.mean()) * math.cos(a) - (rr - rr.mean()) * math.sin(a)  # along the axis (image up positive)
@@ -342,21 +311,21 @@ def _trail_head(m: np.ndarray, loc: np.ndarray) -> np.ndarray:
     lo, hi = u.min(), u.max()
     third = (hi - lo) / 3.0
     end_lo, end_hi = float(np.mean(v[u <= lo + third])), float(np.mean(v[u >= hi - third]))
-    if max(end_lo, end_hi) < TRAIL_FADE * max(min(end_lo, end_hi), 1e-9):
+    if max(end_lo, end_hi) < t.finder_trail_fade * max(min(end_lo, end_hi), 1e-9):
         return m  # evenly bright: a long hull, not a fading trail
-    keep = (u >= hi - TRAIL_HEAD_PX) if end_hi > end_lo else (u <= lo + TRAIL_HEAD_PX)
+    keep = (u >= hi - t.finder_trail_head_px) if end_hi > end_lo else (u <= lo + t.finder_trail_head_px)
     head = np.zeros_like(m)
     head[rr[keep], cc[keep]] = True
     return head
 
 
 def _blobs(
-    scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar: bool
+    scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar: bool, t: Tuning
 ) -> list[VesselCandidate]:
     lab, n = _label(det)
     if n == 0:
         return []
-    # each detection's object (detections joined above LINK_SHARE of the threshold) and the object's peak
+    # each detection's object (detections joined above finder_link_share of the threshold) and the object's peak
     groups, n_groups = _label(link | det)
     group_peak = np.full(n_groups + 1, -np.inf)
     np.maximum.at(group_peak, groups[det], score[det])
@@ -369,27 +338,27 @@ def _blobs(
             continue
         m = lab[sl] == i
         npx = int(m.sum())
-        if npx < MIN_PIXELS:
+        if npx < t.finder_min_pixels:
             continue
         r0_, c0_ = max(sl[0].start - 2, 0), max(sl[1].start - 2, 0)
         near = ndimage.binary_dilation(land[r0_ : sl[0].stop + 2, c0_ : sl[1].stop + 2], iterations=2)
         near = near[
             sl[0].start - r0_ : sl[0].start - r0_ + m.shape[0], sl[1].start - c0_ : sl[1].start - c0_ + m.shape[1]
         ]
-        if np.mean(near[m]) > DRY_SHARE_MAX:
+        if np.mean(near[m]) > t.finder_dry_share_max:
             continue
         # a weak part of a stronger object (its foam, wake or plume) is not a vessel of its own
         blob_peak = float(np.max(score[sl][m]))
         pr0, pc0 = np.unravel_index(int(np.argmax(np.where(m, score[sl], -np.inf))), m.shape)
         strongest = float(group_peak[groups[sl][pr0, pc0]])
-        if blob_peak < strongest and blob_peak < OWN_SHARE * strongest:
+        if blob_peak < strongest and blob_peak < t.finder_own_share * strongest:
             continue
         # the hull: the part of the blob above half its peak that holds the peak (foam behind a moving hull is
         # bright too, but less so, above all in the near infrared)
-        head = m if radar else _trail_head(m, locate[sl])  # foam trails: optical (radar sees no bright foam)
+        head = m if radar else _trail_head(m, locate[sl], t)  # foam trails: optical (radar sees no bright foam)
         sub = np.where(head, locate[sl], -np.inf)
         peak = float(sub.max())
-        core_lab, _ = ndimage.label(sub >= HULL_SHARE * peak, structure=np.ones((3, 3)))
+        core_lab, _ = ndimage.label(sub >= t.finder_hull_share * peak, structure=np.ones((3, 3)))
         pr, pc = np.unravel_index(int(np.argmax(sub)), sub.shape)
         hull = core_lab == core_lab[pr, pc]
         rr, cc = np.nonzero(hull)
@@ -401,14 +370,14 @@ def _blobs(
         r_pk, c_pk = int(rr[np.argmax(locate[rr, cc])]), int(cc[np.argmax(locate[rr, cc])])
         r_lo, c_lo = max(r_pk - 1, 0), max(c_pk - 1, 0)
         nb = locate[r_lo : r_pk + 2, c_lo : c_pk + 2]
-        wts = np.clip(nb - CENTRE_SHARE * nb.max(), 0.0, None)
+        wts = np.clip(nb - t.finder_centre_share * nb.max(), 0.0, None)
         gr, gc = np.mgrid[r_lo : r_lo + nb.shape[0], c_lo : c_lo + nb.shape[1]]
         cy, cx = float(np.average(gr, weights=wts + 1e-12)), float(np.average(gc, weights=wts + 1e-12))
         col, row = index_to_scene(win, 1, cy, cx)
         if not (core[0] <= col < core[0] + core[2] and core[1] <= row < core[1] + core[3]):
             continue  # found again by the tile whose core holds it
         length_m, width_m, axis = blob_shape(rr, cc, m_px)
-        if length_m > MAX_LENGTH_M or npx_core * m_px * m_px > MAX_AREA_M2:
+        if length_m > t.finder_max_length_m or npx_core * m_px * m_px > t.finder_max_area_m2:
             continue
         dc, dr = math.cos(math.radians(axis)), -math.sin(math.radians(axis))
         try:
