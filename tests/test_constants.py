@@ -35,14 +35,12 @@ NOT_TUNING = {
     "analysis.py:GRAVITY_STD_UNKNOWN": "uncertainty of a physical value (covers 9.780-9.832)",
     "spectral.py:FR_MAX": "edge of the physics searched (Froude numbers)",
     "spectral.py:FR_SUPER_RANGE": "edge of the physics searched (Froude numbers)",
+    "chip_measures.py:DRAW_LENGTH_FRACTION": "how long the drawn arms are (a picture, not a decision)",
     "vessel_finder.py:TILE": "size of the windows read (memory and speed, not a decision)",
     "vessel_finder.py:PFA_PER_KM2": "default of the user's --pfa option (the false-alarm rate asked for)",
 }
 #: tuned numbers not yet moved into Tuning (each module is a step of its own, with its sweeps re-run)
 NOT_YET_MOVED = {
-    "chip_measures.py:K_HI_FACTOR",
-    "chip_measures.py:DRAW_LENGTH_FRACTION",
-    "lines.py:LINE_SIGNIFICANCE_MIN",
     "spectral.py:SMOOTH_BINS",
     "spectral.py:Z_CLIP",
     "spectral.py:BAND_MIN_WAVES_PER_BOX",

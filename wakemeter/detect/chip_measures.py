@@ -12,7 +12,6 @@ from .robust import median_spread
 from .trackframe import track_frame
 from .tuning import REACH_FRACTION
 
-K_HI_FACTOR = 1.8  # wave-energy band for the arms: 0.5 to 1.8 x the transverse wavenumber
 #: drawn lines reach this fraction of the chip side from the vessel (inside the chip for any direction)
 DRAW_LENGTH_FRACTION = 0.45
 
@@ -27,7 +26,7 @@ def track_profile(chip: Chip, back: float, lam_pred: float, m: float, *, gap_px:
 
 
 def wedge_arms(
-    chip: Chip, back: float, lam_pred: float, m: float, *, gap_px: int
+    chip: Chip, back: float, lam_pred: float, m: float, *, gap_px: int, k_hi_factor: float
 ) -> tuple[arms_mod.Arms | None, np.ndarray, np.ndarray, int]:
     """Half-angle from the outer edge of the wave energy in a wide track frame; also returns the energy
     map, its valid mask and the vessel's column in it."""
@@ -42,7 +41,7 @@ def wedge_arms(
         wide,
         m,
         k_lo=0.5 * k_t,
-        k_hi=min(K_HI_FACTOR * k_t, 2 * np.pi / (2.6 * m)),
+        k_hi=min(k_hi_factor * k_t, 2 * np.pi / (2.6 * m)),
         smooth_px=max(1.5, 0.3 * lam_pred / m if np.isfinite(lam_pred) else 3),
     )
     ahead_e = energy[:, : reach - gap_px][wvalid[:, : reach - gap_px]]

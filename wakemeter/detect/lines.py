@@ -32,11 +32,7 @@ from scipy import ndimage
 
 from .findings import LineKind
 from .robust import median_spread
-from .tuning import REACH_FRACTION
-
-#: A line is reported when it stands this many robust spreads above the ahead fan (set on the deep
-#: sweep's radar scenes, which have no narrow V: no false narrow V in 30 scenes; see DEVELOPERS.md).
-LINE_SIGNIFICANCE_MIN = 6.0
+from .tuning import DEFAULT_TUNING, REACH_FRACTION
 
 
 @dataclass(frozen=True)
@@ -109,6 +105,7 @@ def narrow_v_lines(
     r_min_px: float = 8.0,
     max_angle_deg: float = 7.0,
     min_angle_deg: float = 0.8,
+    significance_min: float = DEFAULT_TUNING.wave_line_significance_min,
 ) -> list[WakeLine]:
     """Bright thin lines through the vessel within ``min_angle_deg``-``max_angle_deg`` of the track, each side."""
     n = chip_data.shape[0]
@@ -122,7 +119,7 @@ def narrow_v_lines(
     return [
         WakeLine(LineKind.NARROW_V, a, s, r_max - r_min_px)
         for a, s in _best_each_side(angles, sig, min_angle_deg, max_angle_deg)
-        if s >= LINE_SIGNIFICANCE_MIN
+        if s >= significance_min
     ]
 
 
@@ -134,6 +131,7 @@ def kelvin_arm_lines(
     near_deg: float | None,
     r_min_px: float = 8.0,
     window_deg: float = 8.0,
+    significance_min: float = DEFAULT_TUNING.wave_line_significance_min,
 ) -> list[WakeLine]:
     """Ridges of wave energy through the vessel in a track-frame energy map (rows: lateral, centred;
     columns: along the track, the vessel at column ``u0``, behind to the right).
@@ -156,5 +154,5 @@ def kelvin_arm_lines(
     return [
         WakeLine(LineKind.KELVIN_ARM, a, s, r_max - r_min_px)
         for a, s in _best_each_side(angles, sig, lo, hi)
-        if s >= LINE_SIGNIFICANCE_MIN
+        if s >= significance_min
     ]

@@ -60,6 +60,11 @@ class Tuning:
     transverse_band_finite: tuple[float, float] = (0.85, 1.18)  #: ... with the depth known or fitted
     transverse_std_inflation: float = 1.25  #: stated crest-spacing uncertainty x this (common practice, no source)
     transverse_rel_std_floor: float = 0.006  #: smallest relative uncertainty of a crest spacing
+    arms_k_hi_factor: float = 1.8  #: wave-energy band for the arms: 0.5 to this x the transverse wavenumber
+    #: a wave-path line (Kelvin arm ridge, radar narrow V, turbulent wake) is reported when it stands this many
+    #: robust spreads above the ahead fan (set on the deep sweep's radar scenes, which have no narrow V: no
+    #: false narrow V in 30 scenes; see DEVELOPERS.md)
+    wave_line_significance_min: float = 6.0
     arms_draw_max_std_deg: float = 6.0  #: arms drawn and used as the line search centre when this well measured
     turbulent_line_max_off_deg: float = 4.0  #: a turbulent wake line further off the fitted track is not reported
     narrow_arm_margin_deg: float = 2.0  #: arms narrower than Kelvin's by max(2 sigma, this) get the fast-hull caution

@@ -54,6 +54,7 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
         lam_pred if np.isfinite(lam_pred) else float(kelvin.transverse_wavelength(u, g=g)),
         m,
         gap_px=t.gap_px,
+        k_hi_factor=t.arms_k_hi_factor,
     )
     half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
     well_measured = half is not None and half_sd is not None and half_sd <= t.arms_draw_max_std_deg
@@ -64,15 +65,19 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
     near = half if well_measured else expected
     found = [
         replace(ln, angle_from_track_deg=-ln.angle_from_track_deg)
-        for ln in lines_mod.kelvin_arm_lines(energy, evalid, u0=reach, near_deg=near)
+        for ln in lines_mod.kelvin_arm_lines(
+            energy, evalid, u0=reach, near_deg=near, significance_min=t.wave_line_significance_min
+        )
     ]
     if chip.radar:
-        found += lines_mod.narrow_v_lines(chip.data, chip.valid, chip.vessel_rc, back)
+        found += lines_mod.narrow_v_lines(
+            chip.data, chip.valid, chip.vessel_rc, back, significance_min=t.wave_line_significance_min
+        )
     tw = look.turbulent
     # the turbulent wake runs along the track the spectrum gives; a line well off it is something else
     if tw is not None:
         tw_angle = float((tw.angle_deg - back + 180.0) % 360.0 - 180.0)
-        if tw.significance >= lines_mod.LINE_SIGNIFICANCE_MIN and abs(tw_angle) <= t.turbulent_line_max_off_deg:
+        if tw.significance >= t.wave_line_significance_min and abs(tw_angle) <= t.turbulent_line_max_off_deg:
             kind = LineKind.TURBULENT_DARK if tw.dark else LineKind.TURBULENT_BRIGHT
             found.insert(
                 0,
