@@ -36,7 +36,9 @@ class Look:
 
     def spectrum(self, tuning: Tuning) -> SpectrumPair:
         """The whitened spectrum behind the vessel (boxes of ``tuning.box_px``)."""
-        return whitened_spectrum(self.tf[:, -tuning.box_px :], self.tf[:, : tuning.box_px][:, ::-1], self.chip.m_per_px)
+        return whitened_spectrum(
+            self.tf[:, -tuning.box_px :], self.tf[:, : tuning.box_px][:, ::-1], self.chip.m_per_px, tuning
+        )
 
     def passes(self, tuning: Tuning) -> bool:
         """Whether the deep-water fit alone would call a wake."""
@@ -76,7 +78,7 @@ def take_look(
     reach = t.gap_px + t.box_px
     for back in candidates:
         tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=t.box_px / 2)
-        sp = whitened_spectrum(tf[:, -t.box_px :], tf[:, : t.box_px][:, ::-1], chip.m_per_px)
+        sp = whitened_spectrum(tf[:, -t.box_px :], tf[:, : t.box_px][:, ::-1], chip.m_per_px, t)
         fit = fit_curve(sp, g=g, depth_m=depth_m, delta_max_deg=t.delta_max_deg, delta_step_deg=t.delta_step_deg)
         cand = Look(chip, back, side.contrast, fit, tf, tw, step)
         if best is None or (np.isfinite(fit.score) and not fit.score <= best.fit.score):

@@ -29,25 +29,9 @@ from scipy import ndimage, optimize
 
 from ..physics.dispersion import steady_wavenumber, steady_wavenumber_fast
 from .robust import group_median_spread
+from .tuning import DEFAULT_TUNING, Tuning
 
-#: The reference (ahead) spectrum is an upper envelope (3x3 maximum, then smoothing), so a sharp swell
-#: peak present on both sides cancels instead of leaving an excess where plain smoothing would lower it.
-SMOOTH_BINS = 1.0
-#: whitened values are clipped at +/- this many ring spreads: a wake raises the whole curve, a blob a few points
-Z_CLIP = 4.0
 _THETA = np.radians(np.arange(-84.0, 84.5, 1.0))
-#: fitting band: at least this many wavelengths across the box ...
-BAND_MIN_WAVES_PER_BOX = 4.0
-#: ... and crests at least this many pixels apart (below ~2.5 px a crest train aliases)
-BAND_MIN_PIXELS_PER_WAVE = 2.6
-#: bins either side of k_u = 0 masked: the turbulent-wake ridge along the track is not part of the wave pattern
-TRACK_RIDGE_BINS = 1.5
-#: a |k| ring is standardised by its own median and spread when it has at least this many bins
-RING_MIN_BINS = 8
-#: correlated samples per independent spectral estimate under a Hann window (common practice, no source)
-HANN_SAMPLES_PER_ESTIMATE = 3.0
-#: a curve is scored when at least this many of its points fall in the band
-CURVE_MIN_POINTS = 12
 
 
 def _hann2(n_v: int, n_u: int) -> np.ndarray:
@@ -70,11 +54,16 @@ class SpectrumPair:
     k_lo: float  #: band used for fitting, rad/m
     k_hi: float
     m_per_px: float
+    z_clip: float  #: whitened values are clipped here when curves are scored (Tuning.spectrum_z_clip)
+    curve_min_points: int  #: a curve is scored with at least this many points in the band
+    hann_samples_per_estimate: float  #: correlated samples per independent estimate (Hann window)
 
 
-def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) -> SpectrumPair:
+def whitened_spectrum(
+    behind: np.ndarray, ahead: np.ndarray, m_per_px: float, tuning: Tuning = DEFAULT_TUNING
+) -> SpectrumPair:
     pb = power_spectrum(behind)
-    pa = ndimage.gaussian_filter(ndimage.maximum_filter(power_spectrum(ahead), size=3), SMOOTH_BINS)
+    pa = ndimage.gaussian_filter(ndimage.maximum_filter(power_spectrum(ahead), size=3), tuning.spectrum_smooth_bins)
     eps = 1e-6 * float(np.mean(pa)) + 1e-30
     white = np.log((pb + eps) / (pa + eps))
     n_v, n_u = behind.shape
@@ -86,13 +75,25 @@ def whitened_spectrum(behind: np.ndarray, ahead: np.ndarray, m_per_px: float) ->
     kv = (np.arange(n_v) - n_v // 2) * dk_v
     kk = np.hypot(ku[None, :], kv[:, None])
     ring = np.minimum((kk / max(dk_u, dk_v)).astype(int), max(n_u, n_v))
-    med, spread = group_median_spread(white, ring, int(ring.max()) + 1, min_count=RING_MIN_BINS, floor=1.0)
+    med, spread = group_median_spread(
+        white, ring, int(ring.max()) + 1, min_count=int(tuning.spectrum_ring_min_bins), floor=1.0
+    )
     white = (white - med[ring]) / spread[ring]
     # the turbulent-wake ridge (along the track: k_u ~ 0) is not part of the wave pattern
-    white[:, np.abs(ku) <= TRACK_RIDGE_BINS * dk_u] = 0.0
-    k_lo = BAND_MIN_WAVES_PER_BOX * max(dk_u, dk_v)
-    k_hi = 2 * np.pi / (BAND_MIN_PIXELS_PER_WAVE * m_per_px)
-    return SpectrumPair(white, dk_u, dk_v, k_lo, k_hi, m_per_px)
+    white[:, np.abs(ku) <= tuning.spectrum_track_ridge_bins * dk_u] = 0.0
+    k_lo = tuning.spectrum_band_min_waves_per_box * max(dk_u, dk_v)
+    k_hi = 2 * np.pi / (tuning.spectrum_band_min_pixels_per_wave * m_per_px)
+    return SpectrumPair(
+        white,
+        dk_u,
+        dk_v,
+        k_lo,
+        k_hi,
+        m_per_px,
+        tuning.spectrum_z_clip,
+        int(tuning.spectrum_curve_min_points),
+        tuning.spectrum_hann_samples_per_estimate,
+    )
 
 
 def curve_score(
@@ -125,7 +126,7 @@ def _scores(
 
 
 def _sum_along(
-    sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray, min_points: int = CURVE_MIN_POINTS
+    sp: SpectrumPair, k: np.ndarray, angle: np.ndarray, ok: np.ndarray, min_points: int | None = None
 ) -> np.ndarray:
     """z-like score of curves given as wavenumbers ``k`` at image angles ``angle`` (last axis: points)."""
     ku, kv = k * np.cos(angle), k * np.sin(angle)
@@ -133,11 +134,12 @@ def _sum_along(
     cu = n_u // 2 + np.where(ok, ku, 0) / sp.dk_u
     cv = n_v // 2 + np.where(ok, kv, 0) / sp.dk_v
     vals = ndimage.map_coordinates(sp.white, [cv.ravel(), cu.ravel()], order=1, mode="nearest").reshape(k.shape)
-    vals = np.clip(vals, -Z_CLIP, Z_CLIP)  # winsorise (see Z_CLIP)
+    vals = np.clip(vals, -sp.z_clip, sp.z_clip)  # winsorise (see Tuning.spectrum_z_clip)
     cnt = ok.sum(axis=-1)
     # mean standardised power along the curve, scaled to a z-like figure
     total = np.sum(np.where(ok, vals, 0), axis=-1)
-    return np.where(cnt >= min_points, total / np.sqrt(np.maximum(cnt, 1) * HANN_SAMPLES_PER_ESTIMATE), np.nan)
+    need = sp.curve_min_points if min_points is None else min_points
+    return np.where(cnt >= need, total / np.sqrt(np.maximum(cnt, 1) * sp.hann_samples_per_estimate), np.nan)
 
 
 @dataclass(frozen=True)

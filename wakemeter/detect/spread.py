@@ -37,7 +37,7 @@ def quarter_box_fits(look: Look, model: DepthModel, *, g: float, tuning: Tuning)
     out = []
     for rv in (slice(0, half), slice(half, box)):
         for ru in (slice(0, half), slice(half, box)):
-            sp = whitened_spectrum(behind[rv, ru], ahead[rv, ru], look.chip.m_per_px)
+            sp = whitened_spectrum(behind[rv, ru], ahead[rv, ru], look.chip.m_per_px, tuning)
             f = fit_curve(
                 sp,
                 g=g,

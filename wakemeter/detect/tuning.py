@@ -38,6 +38,23 @@ class Tuning:
     coarse_scene_factor: float = 1.6  #: a half-resolution look needs a scene side >= this x chip_px x step
     coarse_wave_box_fraction: float = 0.2  #: look coarser when the transverse wave exceeds this x box_px
     coarse_looks_max: int = 3  #: at most this many halvings
+    # ---- the whitened spectrum (spectral.py; accuracy_sweep.py and null_sweep.py) ----
+    #: the reference (ahead) spectrum is an upper envelope (3x3 maximum, then smoothing by this many bins), so a
+    #: sharp swell peak present on both sides cancels instead of leaving an excess where plain smoothing would
+    #: lower it
+    spectrum_smooth_bins: float = 1.0
+    #: whitened values are clipped at +/- this many ring spreads: a wake raises the whole curve, a blob a few
+    #: points
+    spectrum_z_clip: float = 4.0
+    spectrum_band_min_waves_per_box: float = 4.0  #: fitting band: at least this many wavelengths across the box ...
+    #: ... and crests at least this many pixels apart (below ~2.5 px a crest train aliases)
+    spectrum_band_min_pixels_per_wave: float = 2.6
+    #: bins either side of k_u = 0 masked: the turbulent-wake ridge along the track is not part of the waves
+    spectrum_track_ridge_bins: float = 1.5
+    spectrum_ring_min_bins: int = 8  #: a |k| ring is standardised on its own with at least this many bins
+    #: correlated samples per independent spectral estimate under a Hann window (common practice, no source)
+    spectrum_hann_samples_per_estimate: float = 3.0
+    spectrum_curve_min_points: int = 12  #: a curve is scored when at least this many points fall in the band
     # ---- track candidates ----
     turbulent_candidate_min: float = 8.0  #: a turbulent wake this significant is tried as the track
     turbulent_candidate_sep_deg: float = 2.0  #: ... when it differs from the wedge's centre by more than this
