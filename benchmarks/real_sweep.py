@@ -104,22 +104,36 @@ def _row(a, **kw) -> dict:
     }
 
 
-def crops(root: Path, pics: Path, tuning) -> list[dict]:
-    folder = root / "sentinel2_wake_crops"
+def _crop_group(folder: Path, items: list[dict], group: str, tuning, pics: Path) -> list[dict]:
+    """Each crop analysed at its vessel point (``item["point"]``), pictured, compared with its eye heading."""
     rows, shots = [], []
-    eye = _eye_headings()
-    for item in csv.DictReader((folder / "index.csv").open()):
-        col, row = (float(v) for v in item["ship_px_in_crop"].split(","))
+    for item in items:
+        col, row = item["point"]
         with open_scene(folder / item["file"]) as sc:
             a = analyze(sc, AnalysisRequest(vessel_px=(col, row)), tuning)
-            shot = pics / f"crop_{Path(item['file']).stem[:12]}.png"
-            _picture(sc, a, Path(item["file"]).stem[:12], shot)
-            r = {**_row(a, group="crop", file=item["file"], point=[col, row]), **_axis_off(sc, a, tuning)}
+            name = Path(item["file"]).stem[:12]
+            shot = pics / f"{group}_{name}.png"
+            _picture(sc, a, name, shot)
+            r = {**_row(a, group=group, file=item["file"], point=[col, row]), **_axis_off(sc, a, tuning)}
         shots.append(shot)
-        rows.append(_heading_error(r, eye.get(item["file"])))
+        rows.append(_heading_error(r, item["eye"]))
         print(rows[-1], flush=True)
-    _sheet(shots, pics / "sheet_crops.png", cols=3)
+    _sheet(shots, pics / f"sheet_{group}.png", cols=3)
     return rows
+
+
+def crops(root: Path, pics: Path, tuning) -> list[dict]:
+    folder = root / "sentinel2_wake_crops"
+    eye = _eye_headings()
+    items = [
+        {
+            "file": it["file"],
+            "point": tuple(float(v) for v in it["ship_px_in_crop"].split(",")),
+            "eye": eye.get(it["file"]),
+        }
+        for it in csv.DictReader((folder / "index.csv").open())
+    ]
+    return _crop_group(folder, items, "crop", tuning, pics)
 
 
 def _eye_headings() -> dict:
@@ -158,20 +172,16 @@ def more_crops(root: Path, pics: Path, tuning) -> list[dict]:
     folder = root / "sentinel2_wake_crops_more"
     if not (folder / "index.csv").exists():
         return []
-    rows, shots = [], []
-    for item in csv.DictReader((folder / "index.csv").open()):
-        # index.csv gives the hull pixel's 0-based index; the analysis takes GDAL's continuous coordinates
-        col, row = float(item["vessel_col"]) + 0.5, float(item["vessel_row"]) + 0.5
-        with open_scene(folder / item["file"]) as sc:
-            a = analyze(sc, AnalysisRequest(vessel_px=(col, row)), tuning)
-            shot = pics / f"more_{Path(item['file']).stem[:12]}.png"
-            _picture(sc, a, Path(item["file"]).stem[:12], shot)
-            r = {**_row(a, group="crop_more", file=item["file"], point=[col, row]), **_axis_off(sc, a, tuning)}
-        shots.append(shot)
-        rows.append(_heading_error(r, float(item["heading_deg_by_eye"])))
-        print(rows[-1], flush=True)
-    _sheet(shots, pics / "sheet_crops_more.png", cols=3)
-    return rows
+    # index.csv gives the hull pixel's 0-based index; the analysis takes GDAL's continuous coordinates
+    items = [
+        {
+            "file": it["file"],
+            "point": (float(it["vessel_col"]) + 0.5, float(it["vessel_row"]) + 0.5),
+            "eye": float(it["heading_deg_by_eye"]),
+        }
+        for it in csv.DictReader((folder / "index.csv").open())
+    ]
+    return _crop_group(folder, items, "crop_more", tuning, pics)
 
 
 def sea_tiles(root: Path, pics: Path, tuning) -> list[dict]:
