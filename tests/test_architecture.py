@@ -62,3 +62,47 @@ def test_dependencies_point_one_way(layer, forbidden):
     for f in (PKG / layer).rglob("*.py"):
         for imp in _imports(f):
             assert forbidden not in imp.split("."), f"{f} imports {imp}"
+
+
+#: keys only a result's JSON has (WakeAnalysis.to_json); reading them by string is a view reading JSON
+RESULT_ONLY_KEYS = (
+    "wake_found",
+    "speed_ci95_mps",
+    "speed_ci95_knots",
+    "speed_check",
+    "speed_basis",
+    "consistency",
+    "regime_explanation",
+    "transverse_wavelength_m",
+    "heading_std_deg",
+    "cautions",
+    "decision",
+    "combination",
+)
+#: where results are stored and read back (through WakeAnalysis.from_json)
+STORAGE_EDGE = ("detect/result.py",)
+
+
+def test_views_read_the_typed_result_not_its_json():
+    # the evidence summary, PDF, GIS layer, batch table, results panel and position comparison take
+    # WakeAnalysis; a result's JSON is read only where it is stored (project architecture rule, no source)
+    found = []
+    for path in PKG.rglob("*.py"):
+        rel = path.relative_to(PKG).as_posix()
+        if rel in STORAGE_EDGE:
+            continue
+        for node in ast.walk(ast.parse(path.read_text())):
+            key = None
+            if isinstance(node, ast.Subscript) and isinstance(node.slice, ast.Constant):
+                key = node.slice.value
+            elif (
+                isinstance(node, ast.Call)
+                and isinstance(node.func, ast.Attribute)
+                and node.func.attr == "get"
+                and node.args
+                and isinstance(node.args[0], ast.Constant)
+            ):
+                key = node.args[0].value
+            if key in RESULT_ONLY_KEYS:
+                found.append(f"{rel}:{node.lineno} {key}")
+    assert found == []

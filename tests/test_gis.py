@@ -135,10 +135,20 @@ def test_batch_table_and_gis_layer_share_one_vessel_row():
     # the columns of an analysed vessel are built once (detect.result.result_row) for both the batch table and
     # the GIS layer (self-consistency)
     from wakemeter.batch.run import COLUMNS
-    from wakemeter.detect.result import RESULT_ROW_FIELDS, result_row
+    from wakemeter.detect.result import RESULT_ROW_FIELDS, WakeAnalysis, result_row
 
     assert all(f in COLUMNS for f in RESULT_ROW_FIELDS)
-    assert set(result_row({})) == set(RESULT_ROW_FIELDS) and all(v is None for v in result_row({}).values())
-    row = result_row({"speed_mps": 5.144444, "speed_ci95_mps": [4.0, 6.0], "methods": [{"name": "spectral fit"}]})
+    assert set(result_row(None)) == set(RESULT_ROW_FIELDS) and all(v is None for v in result_row(None).values())
+    stored = {
+        "wake_found": True,
+        "vessel_px": [10.0, 10.0],
+        "regime": "deep",
+        "gravity_mps2": 9.81,
+        "pixel_m": 2.0,
+        "speed_mps": 5.144444,
+        "speed_ci95_mps": [4.0, 6.0],
+        "methods": [{"name": "spectral fit", "speed_mps": 5.144444, "std_mps": 0.5, "speed_ci95_mps": [4.0, 6.0]}],
+    }
+    row = result_row(WakeAnalysis.from_json(stored))
     assert row["speed_kn"] == pytest.approx(10.0, rel=1e-5)  # 1 kn = 1852/3600 m/s (BIPM SI Brochure, Table 8)
     assert row["method"] == "spectral fit" and row["speed_basis"] == "through the water"

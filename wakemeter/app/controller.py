@@ -77,12 +77,11 @@ class Controller(QObject):
         if eff is None:
             self.panel.show_result(name, None)
             return
-        j = eff.to_json()
+        compared = None
         if self.reports:
-            comps = self.report_comparisons()
-            c = comps[0].get(vid) if comps else None
-            j["position_report"] = None if c is None else c.to_json()
-        self.panel.show_result(name, j, rejected=vid in self.doc.rejected, analysis=eff)
+            c = self.report_comparisons()[0].get(vid)
+            compared = None if c is None else c.text
+        self.panel.show_result(name, eff, rejected=vid in self.doc.rejected, position_report=compared)
 
     # ---- analysis ---------------------------------------------------------
     def analyse_selected(self) -> None:
@@ -312,7 +311,7 @@ class Controller(QObject):
             eff = self.doc.effective_finding(vid)
             if eff is not None and vid not in self.doc.rejected:
                 ids.append(vid)
-                named.append((v.name, eff.to_json()))
+                named.append((v.name, eff))
         if self.report_time is None:
             return {}, []
         comps, unmatched = compare_results(named, self.reports, self.report_time)

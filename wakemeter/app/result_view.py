@@ -9,6 +9,7 @@ import numpy as np
 import pyqtgraph as pg
 from PySide6.QtWidgets import QTabWidget, QTextBrowser, QVBoxLayout, QWidget
 
+from ..detect.result import WakeAnalysis
 from ..evidence import summary
 
 
@@ -49,9 +50,11 @@ class ResultView(QTabWidget):
         pl.addWidget(self.radon_plot, 2)
         self.addTab(plots, "Plots")
 
-    def show_result(self, result: dict | None, *, rejected: bool = False, analysis=None) -> None:
-        """``result`` is the analysis JSON (``WakeAnalysis.to_json()``), ``analysis`` the object when at hand."""
-        if result is None:
+    def show_result(
+        self, analysis: WakeAnalysis | None, *, rejected: bool = False, position_report: str | None = None
+    ) -> None:
+        """Show a result (None: the hint what to do first); ``position_report`` is its comparison's text."""
+        if analysis is None:
             self.text.setHtml(
                 "<p>No analysis yet. Mark a vessel with the <b>Vessel</b> tool, select it, give "
                 "what you know, and press <b>Analyse vessel</b>.</p><p>Every figure comes with its "
@@ -59,7 +62,7 @@ class ResultView(QTabWidget):
             )
             self._clear_plots()
             return
-        self.text.setHtml(result_html(result, rejected))
+        self.text.setHtml(result_html(analysis, rejected, position_report))
         self._plots(analysis)
 
     def _clear_plots(self) -> None:
@@ -71,8 +74,8 @@ class ResultView(QTabWidget):
         self.radon_img.clear()
         self.radon_pick.setData([], [])
 
-    def _plots(self, a) -> None:
-        if a is None or a.plots is None:
+    def _plots(self, a: WakeAnalysis) -> None:
+        if a.plots is None:
             self._clear_plots()
             return
         p = a.plots
@@ -109,23 +112,23 @@ class ResultView(QTabWidget):
             self.radon_pick.setData([ang % 180], [off])
 
 
-def result_html(r: dict, rejected: bool = False) -> str:
+def result_html(a: WakeAnalysis, rejected: bool = False, position_report: str | None = None) -> str:
     """The result as HTML for the panel (the same rows as the CLI and the PDF: evidence.summary)."""
     esc = html.escape
-    if not r.get("wake_found"):
+    if not a.wake_found:
         return (
-            f"<h3>No wake found</h3><p>{esc(r.get('decision', ''))}</p><p>No speed is given for a vessel "
+            f"<h3>No wake found</h3><p>{esc(a.decision)}</p><p>No speed is given for a vessel "
             "without a detectable wake. You can still measure by hand (crest ruler, track, arm).</p>"
         )
-    main = summary.summary_rows(r)
+    main = summary.summary_rows(a)
     speed, interval = main[0][1], main[1][1]  # "not estimated" when the wake was seen as a line only
-    if r.get("speed_mps") is not None:
+    if a.speed is not None:
         speed = f"{main[0][0]}: {speed}"
     else:
         speed = "Wake seen as a line: no speed (see the cautions)"
-    extra = [("Position report", r["position_report"]["text"])] if r.get("position_report") else []
+    extra = [("Position report", position_report)] if position_report else []
     rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in main[2:] + extra)
-    methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(r))
+    methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(a))
     return (
         ("<p style='color:#c33'><b>Rejected:</b> kept on record, not used or exported.</p>" if rejected else "")
         + f"<h2 style='margin-bottom:2px'>{esc(speed)}</h2>"
@@ -133,7 +136,7 @@ def result_html(r: dict, rejected: bool = False) -> str:
         f"<table cellspacing=4>{rows}</table>"
         "<h4>Methods</h4><table border=0 cellspacing=4><tr><th align=left>method</th><th>m/s</th>"
         f"<th>95 % (m/s)</th><th>kn</th></tr>{methods}</table>"
-        "<h4>Assumptions</h4><ul>" + "".join(f"<li>{esc(a)}</li>" for a in summary.assumption_texts(r)) + "</ul>"
-        "<h4>Cautions</h4><ul>" + "".join(f"<li>{esc(c)}</li>" for c in summary.caution_texts(r)) + "</ul>"
-        f"<p><small>{esc(r['decision'])}</small></p>"
+        "<h4>Assumptions</h4><ul>" + "".join(f"<li>{esc(x)}</li>" for x in summary.assumption_texts(a)) + "</ul>"
+        "<h4>Cautions</h4><ul>" + "".join(f"<li>{esc(c)}</li>" for c in summary.caution_texts(a)) + "</ul>"
+        f"<p><small>{esc(a.decision)}</small></p>"
     )

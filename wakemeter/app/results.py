@@ -6,6 +6,7 @@ from PySide6.QtCore import Signal
 from PySide6.QtWidgets import QCheckBox, QHBoxLayout, QLabel, QPushButton, QVBoxLayout, QWidget
 
 from ..detect.request import AnalysisRequest, SpeedLimit, WaterCurrent
+from ..detect.result import WakeAnalysis
 from .request_form import RequestForm
 from .result_view import ResultView, result_html
 
@@ -88,12 +89,19 @@ class ResultsPanel(QWidget):
         self.form.set_request(req)
 
     # ---- the result: the view's -----------------------------------------------
-    def show_result(self, name: str | None, result, *, rejected: bool = False, analysis=None) -> None:
-        """``result`` is the analysis JSON (``WakeAnalysis.to_json()``), ``analysis`` the object when at hand."""
+    def show_result(
+        self,
+        name: str | None,
+        result: WakeAnalysis | None,
+        *,
+        rejected: bool = False,
+        position_report: str | None = None,
+    ) -> None:
+        """Show a vessel's result (None: not analysed yet) and its position-report comparison's text."""
         self.title.setText(f"Vessel: {name}" if name else "Select a vessel, then Analyse")
         self.reject.blockSignals(True)
         self.reject.setChecked(rejected)
         self.reject.blockSignals(False)
         self.reject.setEnabled(result is not None)
         self.export_button.setEnabled(result is not None and not rejected)
-        self.view.show_result(result, rejected=rejected, analysis=analysis)
+        self.view.show_result(result, rejected=rejected, position_report=position_report)

@@ -19,7 +19,7 @@ from pathlib import Path
 
 from .. import fileio
 from ..detect.request import AnalysisRequest
-from ..detect.result import RESULT_ROW_FIELDS, result_row
+from ..detect.result import RESULT_ROW_FIELDS, WakeAnalysis, result_row
 from ..errors import ParameterError, WakemeterError
 from .tasks import BatchTask, done, evidence_task, find_task, result_path, run_task
 
@@ -168,6 +168,17 @@ COLUMNS = (
 )
 
 
+def stored_result(rec: dict) -> tuple[WakeAnalysis | None, str | None]:
+    """A task record's result read back (None when it has none) and, when it cannot be read, why."""
+    j = rec.get("result")
+    if not j:
+        return None, None
+    try:
+        return WakeAnalysis.from_json(j), None
+    except ParameterError as err:
+        return None, f"the stored result cannot be read: {err}"
+
+
 def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
     out_rows = []
     for t in tasks:
@@ -175,9 +186,9 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
             rec = json.loads(result_path(out, t).read_text())
         except (OSError, ValueError):
             rec = {"status": "not run"}
-        r = rec.get("result") or {}
-        ll = r.get("vessel_lonlat") or [None, None]
-        px = r.get("vessel_px") or [None, None]
+        a, problem = stored_result(rec)
+        ll = (a and a.vessel_lonlat) or (None, None)
+        px = (None, None) if a is None else a.vessel_px
         out_rows.append(
             {
                 "scene": Path(t.scene_path).name,
@@ -187,8 +198,8 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
                 "lat": ll[1],
                 "col": px[0],
                 "row": px[1],
-                **result_row(r),
-                "reason": rec.get("reason") or (None if r.get("wake_found", True) else r.get("decision")),
+                **result_row(a),
+                "reason": rec.get("reason") or problem or (None if a is None or a.wake_found else a.decision),
                 "report_verdict": None,
                 "report_id": None,
                 "report_text": None,
@@ -217,20 +228,23 @@ def compare_reports(
     for path, idx in by_scene.items():
         with open_scene(path) as sc:
             acquired = sc.info.acquisition_time
-        named = []
+        named, placed = [], []
         for i in idx:
             try:
                 rec = json.loads(result_path(out, tasks[i]).read_text())
             except (OSError, ValueError):
                 rec = {}
-            named.append((tasks[i].vessel_name, rec.get("result") or {}))
+            a, _problem = stored_result(rec)
+            if a is not None:
+                named.append((tasks[i].vessel_name, a))
+                placed.append(i)
         try:
             comps, _unmatched = compare_results(named, reports, scene_time(acquired, None), gate_m=gate_m)
         except WakemeterError as err:
             for i in idx:
                 rs[i]["report_text"] = f"not compared: {err}"
             continue
-        for i, c in zip(idx, comps, strict=True):
+        for i, c in zip(placed, comps, strict=True):
             if c is not None:
                 rs[i].update(
                     report_verdict=c.verdict, report_id=c.reported and c.reported.vessel_id, report_text=c.text

@@ -68,7 +68,7 @@ def run(args: argparse.Namespace) -> int:
 def _write(args: argparse.Namespace, scene: Scene, named: list[tuple[str, WakeAnalysis]]) -> None:
     from ..evidence.gis import vessel_features, write_features
 
-    compared = compare_with_reports(args, [(n, a.to_json()) for n, a in named], scene.info.acquisition_time)
+    compared = compare_with_reports(args, list(named), scene.info.acquisition_time)
     features = []
     for i, (name, a) in enumerate(named):
         features += vessel_features(scene, name, a, None if compared is None else compared[0][i])

@@ -10,6 +10,7 @@ from ..errors import ParameterError
 
 if TYPE_CHECKING:  # the analysis is imported when a command runs, not when the CLI starts
     from ..detect.request import AnalysisRequest
+    from ..detect.result import WakeAnalysis
     from ..scene.raster import Scene
 
 #: options whose value is a comma-separated list that may start with a minus sign (``--vessel -35,36``)
@@ -206,7 +207,7 @@ def add_reports_options(p: argparse.ArgumentParser) -> None:
 
 
 def compare_with_reports(
-    args: argparse.Namespace, named_results: list[tuple[str, dict]], acquisition_time: str | None
+    args: argparse.Namespace, named_results: list[tuple[str, WakeAnalysis]], acquisition_time: str | None
 ) -> tuple[list[dict | None], list[dict]] | None:
     """The comparisons (JSON) of each result and the reporting vessels matched to none; None without --reports."""
     if not getattr(args, "reports", None):

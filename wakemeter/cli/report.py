@@ -57,9 +57,7 @@ def run(args: argparse.Namespace) -> int:
     with open_scene(args.scene) as scene:
         apply_calibration(scene, args)
         a = analyze(scene, request)
-        compared = compare_with_reports(
-            args, [(args.vessel_name or "vessel", a.to_json())], scene.info.acquisition_time
-        )
+        compared = compare_with_reports(args, [(args.vessel_name or "vessel", a)], scene.info.acquisition_time)
         files = export_evidence(
             scene,
             a,

@@ -26,6 +26,8 @@ from .speed_check import SpeedCheck, check_speed
 __all__ = ["RadarGeometry", "WakeAnalysis", "SOFTWARE"]
 
 SOFTWARE = f"wakemeter {__version__}"
+#: what a limit or current asked for says when the analysis gave no speed to apply it to
+NO_SPEED_TO_CHECK = "no speed estimate: the limit and the current cannot be applied to this image"
 _REGIME_OF_JSON = {r.value.replace(" ", "-"): r for r in inv.Regime}
 
 
@@ -216,6 +218,11 @@ class WakeAnalysis:
             seed=req.seed,
         )
 
+    @property
+    def check_asked(self) -> bool:
+        """The request gives a speed limit or a water current to apply to the speed."""
+        return self.request is not None and (self.request.current is not None or self.request.speed_limit is not None)
+
     def speed_check_json(self) -> dict | None:
         req = self.request
         if req is None or (req.current is None and req.speed_limit is None):
@@ -223,7 +230,7 @@ class WakeAnalysis:
         check = self.speed_check()
         if check is None:
             return {
-                "statement": "no speed estimate: the limit and the current cannot be applied to this image",
+                "statement": NO_SPEED_TO_CHECK,
                 "limit": None if req.speed_limit is None else req.speed_limit.to_json(),
                 "current": None if req.current is None else req.current.to_json(),
             }
@@ -347,18 +354,6 @@ def _num(x: float | None) -> float | None:
     return None if x is None or not np.isfinite(x) else float(x)
 
 
-def stored_speed_basis(j: dict) -> str | None:
-    """What a stored result's speed is ("over ground" or "through the water"; None without a speed): the typed
-    field written by :meth:`WakeAnalysis.to_json`, or for records written before it, the caution code."""
-    if j.get("speed_mps") is None:
-        return None
-    basis = j.get("speed_basis")
-    if basis in ("over ground", "through the water"):
-        return str(basis)
-    codes = {c.get("code") for c in j.get("cautions") or () if isinstance(c, dict)}
-    return "over ground" if str(CautionCode.OVER_GROUND) in codes else "through the water"
-
-
 #: the identifier by which the session and evidence schemas refer to the one result schema
 RESULT_SCHEMA_ID = "urn:wakemeter:result"
 
@@ -395,21 +390,24 @@ RESULT_ROW_FIELDS = (
 )
 
 
-def result_row(j: dict) -> dict:
-    """One vessel's result as a flat row (:data:`RESULT_ROW_FIELDS`) from its JSON (:meth:`WakeAnalysis.to_json`
-    or a stored record; an empty dict gives a row of None): the one row the batch table and the GIS layer share."""
-    speed, ci = j.get("speed_mps"), j.get("speed_ci95_mps") or [None, None]
-    check = j.get("speed_check") or {}
+def result_row(a: WakeAnalysis | None) -> dict:
+    """One vessel's result as a flat row (:data:`RESULT_ROW_FIELDS`; None gives a row of None): the one row the
+    batch table and the GIS layer share."""
+    if a is None:
+        return dict.fromkeys(RESULT_ROW_FIELDS)
+    sp = a.speed
+    check = a.speed_check()
+    judged = None if check is None or check.judged is None else check.judged
     return {
-        "speed_kn": None if speed is None else speed / KNOT_MPS,
-        "speed_ci95_low_kn": None if ci[0] is None else ci[0] / KNOT_MPS,
-        "speed_ci95_high_kn": None if ci[1] is None else ci[1] / KNOT_MPS,
-        "speed_basis": stored_speed_basis(j) or ("through the water" if j else None),
-        "heading_deg": j.get("heading_deg"),
-        "heading_std_deg": j.get("heading_std_deg"),
-        "regime": j.get("regime"),
-        "depth_m": j.get("depth_m"),
-        "method": " + ".join(m["name"] for m in j.get("methods") or ()) or None,
-        "limit_kn": (check.get("limit") or {}).get("limit_knots"),
-        "p_over_limit": check.get("probability_over_limit"),
+        "speed_kn": None if sp is None else _num(sp.speed_mps / KNOT_MPS),
+        "speed_ci95_low_kn": None if sp is None else _num(sp.ci95_low_mps / KNOT_MPS),
+        "speed_ci95_high_kn": None if sp is None else _num(sp.ci95_high_mps / KNOT_MPS),
+        "speed_basis": a.speed_basis or "through the water",
+        "heading_deg": _num(a.heading_deg),
+        "heading_std_deg": _num(a.heading_std_deg),
+        "regime": a.regime.regime.value.replace(" ", "-"),
+        "depth_m": _num(a.depth_m),
+        "method": " + ".join(m.method for m in a.methods) or None,
+        "limit_kn": None if check is None or check.limit is None else check.limit.limit_mps / KNOT_MPS,
+        "p_over_limit": None if judged is None else judged.probability_over,
     }

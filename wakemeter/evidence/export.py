@@ -190,7 +190,7 @@ def export_evidence_set(
                 raise SceneWriteError("cannot encode the evidence image as PNG")
             _write(tmp / name, buf.tobytes())
             fileio.step(f"image {name}")
-        write_pdf(str(tmp / report_name), record, images, plots, paper=paper)
+        write_pdf(str(tmp / report_name), record, [v.analysis for v in vessels], images, plots, paper=paper)
         fileio.step("report")
         _write(tmp / data_name, (json.dumps(record, indent=2, sort_keys=False) + "\n").encode())
         fileio.step("data")

@@ -94,13 +94,14 @@ def report_from_session(
     force: bool = False,
     vessel_name: str | None = None,
     paper: str | None = None,
-    compare: Callable[[list[tuple[str, dict]], str | None], tuple[list[dict | None], list[dict]] | None] | None = None,
+    compare: Callable[[list[tuple[str, WakeAnalysis]], str | None], tuple[list[dict | None], list[dict]] | None]
+    | None = None,
 ) -> EvidenceFiles:
     """One evidence set for the session's vessels (every one not rejected, or the one named)."""
     with open_session_vessels(path, vessel_name) as (scene, vessels):
         unmatched = None
         if compare is not None:
-            compared = compare([(v.name, v.analysis.to_json()) for v in vessels], scene.info.acquisition_time)
+            compared = compare([(v.name, v.analysis) for v in vessels], scene.info.acquisition_time)
             if compared is not None:
                 vessels = [replace(v, position_report=c) for v, c in zip(vessels, compared[0], strict=True)]
                 unmatched = compared[1]

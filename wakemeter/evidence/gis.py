@@ -42,11 +42,10 @@ def vessel_features(scene: Scene, name: str, analysis: WakeAnalysis, comparison:
     """The features of one analysed vessel: its point, its track, its wake lines and its analysed area."""
     if not scene.info.georeferenced:
         raise ParameterError("GIS files need a georeferenced scene (an image calibrated by hand has no longitude)")
-    r = analysis.to_json()
     attrs = {
         "name": name,
-        "wake_found": bool(r["wake_found"]),
-        **result_row(r),
+        "wake_found": analysis.wake_found,
+        **result_row(analysis),
         "verdict": None if comparison is None else comparison["verdict"],
         "report_id": None if comparison is None else comparison.get("report_id"),
         "caution": "estimate from imagery, not a certified measurement",

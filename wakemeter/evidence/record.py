@@ -15,7 +15,7 @@ from .. import __version__
 from ..caution import CAUTION
 from ..detect.result import WakeAnalysis
 from ..scene.raster import Scene
-from .summary import assumption_texts
+from .summary import method_assumptions
 
 SCHEMA_VERSION = "wakemeter.evidence/3"
 
@@ -72,7 +72,7 @@ def build_record(
                 "name": name or None,
                 "result": result,
                 "request": analysis.request.to_json() if analysis.request is not None else None,
-                "assumptions": assumption_texts(result)[:-1],
+                "assumptions": method_assumptions(analysis),
                 "hand_measurements": hand,
                 "position_report": compared,
                 "image": files["images"][i],

@@ -7,6 +7,7 @@ import datetime as _dt
 import io
 import locale
 import os
+from collections.abc import Sequence
 from xml.sax.saxutils import escape as xml_escape
 
 import cv2
@@ -18,6 +19,7 @@ from reportlab.lib.units import mm
 from reportlab.platypus import Image, PageBreak, Paragraph, SimpleDocTemplate, Spacer, Table, TableStyle
 
 from ..caution import CAUTION
+from ..detect.result import WakeAnalysis
 from .summary import assumption_texts, caution_texts, method_rows, overview_cells, summary_rows
 
 
@@ -41,6 +43,7 @@ def _png(img: np.ndarray) -> io.BytesIO:
 def write_pdf(
     path: str,
     record: dict,
+    analyses: Sequence[WakeAnalysis],
     evidence_imgs: list[np.ndarray],
     plots: list[list[np.ndarray]],
     *,
@@ -48,7 +51,8 @@ def write_pdf(
 ) -> None:
     """Write the report to ``path`` (the caller makes it atomic): the case and, when several, an overview of
     the vessels on the first page; then per vessel its numbers, image, methods, plots, hand measurements,
-    assumptions and cautions; then the provenance and the caution again."""
+    assumptions and cautions; then the provenance and the caution again.  ``record`` is the evidence record
+    (case, provenance, names, hand measurements), ``analyses`` the results in the record's vessel order."""
     size = letter if (paper or page_size_for_locale()) == "Letter" else A4
     case, prov, vessels = record["case"], record["provenance"], record["vessels"]
     doc = SimpleDocTemplate(
@@ -84,11 +88,11 @@ def write_pdf(
     if len(vessels) > 1:
         story += [Spacer(1, 3 * mm), Paragraph("Vessels", st["Heading2"])]
         orows = [["#", "Vessel", "Speed", "95 % interval", "Heading", "Depth regime"]]
-        for i, v in enumerate(vessels, 1):
-            orows.append([str(i), v["name"] or f"vessel {i}", *overview_cells(v["result"])])
+        for i, (v, a) in enumerate(zip(vessels, analyses, strict=True), 1):
+            orows.append([str(i), v["name"] or f"vessel {i}", *overview_cells(a)])
         story.append(_table(orows, [8 * mm, 42 * mm, 32 * mm, 40 * mm, 28 * mm, width - 150 * mm], small, header=True))
-    for i, (v, img, vplots) in enumerate(zip(vessels, evidence_imgs, plots, strict=True), 1):
-        story += _vessel_section(v, i, len(vessels), img, vplots, width, st, small)
+    for i, (v, a, img, vplots) in enumerate(zip(vessels, analyses, evidence_imgs, plots, strict=True), 1):
+        story += _vessel_section(v, a, i, len(vessels), img, vplots, width, st, small)
     if record.get("unmatched_reports"):
         story += _unmatched_section(record["unmatched_reports"], width, st, small)
     story.append(Paragraph("Provenance", st["Heading2"]))
@@ -103,10 +107,10 @@ def write_pdf(
         ["Software", prov["software"]],
         ["Analysis parameters", describe_parameters(params) or "defaults"],
     ]
-    for i, v in enumerate(vessels, 1):
-        if v.get("request"):
+    for i, (v, a) in enumerate(zip(vessels, analyses, strict=True), 1):
+        if a.request is not None:
             label = "Request" + (f" ({v['name'] or f'vessel {i}'})" if len(vessels) > 1 else "")
-            prow.append([label, describe_parameters(v["request"])])
+            prow.append([label, describe_parameters(a.request.to_json())])
     prow += [["Exported (UTC)", case["exported_at"]], ["Analyst", case["analyst"] or "not given"]]
     story.append(_table(prow, [45 * mm, width - 45 * mm], small))
     story.append(Spacer(1, 4 * mm))
@@ -148,8 +152,7 @@ def _unmatched_section(unmatched: list, width, st, small) -> list:
     ]
 
 
-def _vessel_section(v: dict, i: int, n: int, img: np.ndarray, vplots, width, st, small) -> list:
-    r = v["result"]
+def _vessel_section(v: dict, r: WakeAnalysis, i: int, n: int, img: np.ndarray, vplots, width, st, small) -> list:
     title = v["name"] or (f"Vessel {i}" if n > 1 else "")
     out: list = [PageBreak()] if n > 1 else [Spacer(1, 3 * mm)]
     if title:

@@ -23,7 +23,7 @@ import numpy as np
 from pyproj import Geod
 from scipy.optimize import linear_sum_assignment
 
-from ..detect.result import stored_speed_basis
+from ..detect.result import WakeAnalysis
 from ..errors import ParameterError
 from ..physics.units import KNOT_MPS
 from .reports import PositionReport
@@ -234,34 +234,38 @@ def match(
     return out, [r for j, r in enumerate(states) if j not in matched]
 
 
-def seen_from_result(name: str, result: dict) -> SeenVessel | None:
-    """A seen vessel from a result's JSON (WakeAnalysis.to_json); None without a longitude and latitude."""
-    if not result.get("vessel_lonlat"):
+def seen_from_result(name: str, a: WakeAnalysis) -> SeenVessel | None:
+    """A seen vessel from a result; None without a longitude and latitude.  Its speed is over ground when the
+    analysis measured it so, or when a current turned the speed through the water into one."""
+    if not a.vessel_lonlat:
         return None
-    lon, lat = result["vessel_lonlat"]
-    check = result.get("speed_check") or {}
+    lon, lat = a.vessel_lonlat
+    check = a.speed_check()
     speed = ci = None
     basis = "through the water"
-    if check.get("over_ground") and (check.get("current") or check.get("measured") == "over ground"):
-        g = check["over_ground"]
-        speed, ci, basis = g["median_knots"], (g["ci95_knots"][0], g["ci95_knots"][1]), "over ground"
-    elif result.get("speed_knots") is not None:
-        speed = result["speed_knots"]
-        lo, hi = result["speed_ci95_knots"]
-        ci = (lo, hi)
-        basis = stored_speed_basis(result) or "through the water"
-    return SeenVessel(name, lon, lat, speed, ci, result.get("heading_deg"), result.get("heading_std_deg"), basis)
+    if (
+        check is not None
+        and check.over_ground is not None
+        and (check.current is not None or check.measured_over_ground)
+    ):
+        g = check.over_ground
+        speed, ci, basis = g.median_mps / KNOT_MPS, (g.ci95_mps[0] / KNOT_MPS, g.ci95_mps[1] / KNOT_MPS), "over ground"
+    elif a.speed is not None:
+        sp = a.speed
+        speed, ci = sp.speed_mps / KNOT_MPS, (sp.ci95_low_mps / KNOT_MPS, sp.ci95_high_mps / KNOT_MPS)
+        basis = a.speed_basis or "through the water"
+    return SeenVessel(name, lon, lat, speed, ci, a.heading_deg, a.heading_std_deg, basis)
 
 
 def compare_results(
-    named_results: Sequence[tuple[str, dict]],
+    named_results: Sequence[tuple[str, WakeAnalysis]],
     reports: Sequence[PositionReport],
     when: _dt.datetime,
     *,
     gate_m: float = GATE_M,
     max_gap_s: float = MAX_REPORT_GAP_S,
 ) -> tuple[list[Comparison | None], list[ReportedState]]:
-    """For results (name, WakeAnalysis JSON): a comparison each (None for a result without longitude and
+    """For results (name, analysis): a comparison each (None for a result without longitude and
     latitude, which cannot be placed), and the reporting vessels matched to none."""
     seen = [(i, seen_from_result(name, r)) for i, (name, r) in enumerate(named_results)]
     placed = [(i, s) for i, s in seen if s is not None]
