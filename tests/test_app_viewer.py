@@ -274,3 +274,35 @@ def test_measurement_list_lists_vessels_and_selects_them(win):
     assert rows == ["Vessel: Saltmarsh Wren", "Vessel: Tern"]
     win.items.setCurrentRow(0)
     assert win.doc.selected == a.id
+
+
+def test_calibrate_on_a_georeferenced_scene_says_so_before_asking(win, monkeypatch):
+    # the Calibrate tool on a georeferenced scene says at once that it is not needed: no distance is asked
+    # for first (program behaviour, no external source)
+    from PySide6.QtWidgets import QInputDialog
+
+    asked = []
+    monkeypatch.setattr(QInputDialog, "getDouble", lambda *a, **k: asked.append(a) or (100.0, True))
+    assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
+    win._ask_calibration((10.0, 10.0), (60.0, 10.0))
+    assert asked == [] and "not needed" in win.last_error
+
+
+def test_file_dialogs_start_at_the_scene_and_name_the_session_after_it(win, tmp_path):
+    # a dialog starts in the folder last used for its kind of file, else the scene's folder, never the
+    # program's own; a new session file is named after its scene (program behaviour, no external source)
+    import shutil
+
+    for kind in ("scene", "session", "reports", "positions", "gis"):
+        win.settings.remove(f"folders/{kind}")
+    scene = tmp_path / "cases" / "quay_north.tif"
+    scene.parent.mkdir()
+    shutil.copy(ROOT / "sample_scenes" / "harbour_approach_optical.tif", scene)
+    assert win.open_path(str(scene))
+    assert win.start_folder("session") == str(scene.parent)
+    assert win.suggested_session_path() == str(scene.parent / "quay_north.wakemeter.json")
+    elsewhere = tmp_path / "reports_in"
+    elsewhere.mkdir()
+    win.used_folder("reports", str(elsewhere / "ais.csv"))
+    assert win.start_folder("reports") == str(elsewhere)
+    assert win.start_folder("gis") == str(scene.parent)

@@ -10,7 +10,6 @@ from PySide6.QtCore import QSettings, Qt, QTimer
 from PySide6.QtGui import QAction, QActionGroup, QGuiApplication, QIcon, QKeySequence
 from PySide6.QtWidgets import (
     QDockWidget,
-    QFileDialog,
     QHBoxLayout,
     QInputDialog,
     QLabel,
@@ -24,11 +23,14 @@ from PySide6.QtWidgets import (
 
 from ..errors import WakemeterError
 from ..scene import geodesy
-from . import actions, help_texts
+from . import actions, help_texts, style
+from .calibration import Calibration
 from .canvas import Canvas
-from .document import ChangeItem, Document, Measurement, RemoveItem, SetCalibration, Vessel
+from .document import ChangeItem, Document, RemoveItem, Vessel
+from .file_dialogs import FileDialogs
 from .measurement_list import MeasurementList
 from .results import ResultsPanel
+from .vessel_search import VesselSearch
 from .workers import Job, Relay
 
 ICONS = Path(__file__).resolve().parents[2] / "icons"
@@ -43,7 +45,9 @@ TOOL_INFO = {
 }
 
 
-class MainWindow(QMainWindow):
+class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
+    """The window; its file questions, vessel search and calibration live in their own modules (mixed in)."""
+
     def __init__(self) -> None:
         super().__init__()
         self.setWindowTitle("wakemeter")
@@ -68,15 +72,7 @@ class MainWindow(QMainWindow):
         self.canvas.calibration_line.connect(self._ask_calibration)
         self.canvas.area_drawn.connect(lambda area: self.find_vessels(area=area))
         self.doc.scene_changed.connect(self._on_scene)
-        self.setStyleSheet(
-            "QMainWindow { background: #1c2028; } QDockWidget { color: #dfe6ee; } "
-            "QToolBar { background: #232935; border: none; spacing: 4px; } "
-            "QToolButton { color: #dfe6ee; padding: 4px 8px; } "
-            "QToolButton:checked { background: #3a4a63; border-radius: 4px; } "
-            "QListWidget { background: #232935; color: #dfe6ee; border: none; } "
-            "QListWidget::item:selected { background: #3a4a63; } "
-            "QStatusBar { background: #232935; color: #dfe6ee; } QStatusBar QLabel { color: #dfe6ee; }"
-        )
+        self.setStyleSheet(style.WINDOW)
 
     # ---- construction -----------------------------------------------------
     def _icon(self, name: str) -> QIcon:
@@ -165,12 +161,6 @@ class MainWindow(QMainWindow):
     def darker(self) -> None:
         self._contrast(0.8)
 
-    def find_in_view(self) -> None:
-        self.find_vessels(whole=False)
-
-    def find_in_scene(self) -> None:
-        self.find_vessels(whole=True)
-
     def analyse_all(self) -> None:
         self.controller.analyse_all()
 
@@ -198,9 +188,7 @@ class MainWindow(QMainWindow):
         scroll = QScrollArea()
         scroll.setWidgetResizable(True)
         scroll.setFrameShape(QScrollArea.Shape.NoFrame)
-        scroll.setStyleSheet(
-            "QScrollArea { background: #1c2028; } QScrollArea > QWidget > QWidget { background: #1c2028; }"
-        )
+        scroll.setStyleSheet(style.RESULTS_SCROLL)
         scroll.setWidget(self.panel)
         results.setWidget(scroll)
         self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, results)
@@ -233,16 +221,6 @@ class MainWindow(QMainWindow):
         sb.addPermanentWidget(box)
 
     # ---- scene ------------------------------------------------------------
-    def open_dialog(self) -> None:
-        path, _ = QFileDialog.getOpenFileName(
-            self,
-            "Open scene",
-            str(Path.cwd()),
-            "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;All files (*)",
-        )
-        if path:
-            self.open_path(path)
-
     def open_path(self, path: str) -> bool:
         """Open a scene; a bad file gives a clear message and the program keeps what it had.  A file that
         reads system or private files (a crafted VRT) is opened only when the analyst confirms."""
@@ -337,39 +315,6 @@ class MainWindow(QMainWindow):
                 return
         self.doc.undo.push(ChangeItem(self.doc, v, Vessel(v.id, name.strip(), v.position), "rename vessel"))
 
-    # ---- calibration ------------------------------------------------------
-    def _ask_calibration(self, p0, p1) -> None:
-        dist, ok = QInputDialog.getDouble(
-            self, "Calibrate", "Ground distance between the two points (m):", 100.0, 0.01, 1e7, 2
-        )
-        if not ok:
-            return
-        north, ok2 = QInputDialog.getDouble(
-            self, "Calibrate", "True bearing of image up (deg; cancel if unknown):", 0.0, 0.0, 359.99, 1
-        )
-        self.calibrate_two_points(p0, p1, dist, north if ok2 else None)
-
-    def calibrate_two_points(self, p0, p1, distance_m: float, north_up_deg: float | None = None) -> bool:
-        sc = self.doc.scene
-        if sc is None:
-            return False
-        if sc.info.georeferenced:
-            self.error("Calibration not needed", "This scene is georeferenced; distances already use its geodesy.")
-            return False
-        try:
-            px = geodesy.pixel_size_from_two_points(p0, p1, distance_m)
-            frame = geodesy.calibrated_frame(pixel_size_m=px, north_up_deg=north_up_deg)
-        except WakemeterError as err:
-            self.error("Calibration not possible", str(err))
-            return False
-        marker = Measurement(self.doc.new_id(), "calibration", (p0, p1), None, values={"distance_m": distance_m})
-        self.doc.undo.push(SetCalibration(self.doc, frame, marker))
-        self.say(
-            f"calibrated: {px:.3f} m per pixel"
-            + ("" if north_up_deg is not None else "; headings relative to image up")
-        )
-        return True
-
     # ---- status, jobs, errors --------------------------------------------
     def say(self, text: str) -> None:
         self.message.setText(text)
@@ -377,135 +322,6 @@ class MainWindow(QMainWindow):
     # ---- questions the controller asks (modal dialogs live here, not in the controller) ----
     def confirm(self, title: str, text: str) -> bool:
         return QMessageBox.question(self, title, text) == QMessageBox.StandardButton.Yes
-
-    def locate_scene(self, old: str | None, problem: str) -> str | None:
-        if not self.confirm("Scene not found", f"{problem}:\n{old}\n\nLocate the scene?"):
-            return None
-        path, _ = QFileDialog.getOpenFileName(self, "Locate scene", str(Path(old or ".").parent))
-        return path or None
-
-    def save_dialog(self) -> None:
-        path, _ = QFileDialog.getSaveFileName(
-            self,
-            "Save session",
-            self.controller.session_path or "analysis.wakemeter.json",
-            "wakemeter sessions (*.json)",
-        )
-        if path:
-            self.controller.save_session(path)
-
-    def open_session_dialog(self) -> None:
-        path, _ = QFileDialog.getOpenFileName(self, "Open session", "", "wakemeter sessions (*.json)")
-        if path:
-            self.controller.open_session(path)
-
-    def pick_find_area(self) -> None:
-        """The next drag on the image draws the rectangle to search (Esc gives it up)."""
-        if self.doc.scene is None:
-            self.say("open a scene first")
-            return
-        self.canvas.pick_area()
-        self.say("drag a rectangle over the water to search for vessels in it (Esc: give up)")
-
-    def find_vessels(self, *, whole: bool = False, area: tuple[int, int, int, int] | None = None) -> None:
-        """Find vessel-like targets (in the view, the whole scene or ``area``: col, row, width, height) in the
-        background; each becomes a vessel named "found N" (one undo step for all); delete the ones that are
-        not vessels, then Analyse all."""
-        sc = self.doc.scene
-        if sc is None:
-            self.say("open a scene first")
-            return
-        if area is None and whole:
-            area = (0, 0, sc.width, sc.height)
-        elif area is None:
-            o = self.canvas.origin
-            w, h = self.canvas.width() / self.canvas.zoom, self.canvas.height() / self.canvas.zoom
-            c0, r0 = max(int(o.x()), 0), max(int(o.y()), 0)
-            area = (c0, r0, int(min(o.x() + w, sc.width)) - c0, int(min(o.y() + h, sc.height)) - r0)
-
-        def work(progress, cancelled):
-            from ..detect.vessel_finder import find_vessels
-
-            return find_vessels(sc, area=area, progress=lambda f: progress(f, ""), cancelled=cancelled)
-
-        def done(cands) -> None:
-            from ..project.model import Vessel
-            from .document import AddItems
-
-            if not cands:
-                self.say("no vessel-like target found here")
-                return
-            found = [Vessel(self.doc.new_id(), f"found {i} ({c.length_m:.0f} m)", c.px) for i, c in enumerate(cands, 1)]
-            self.doc.undo.push(AddItems(self.doc, found, f"find {len(cands)} vessels"))
-            self.say(
-                f"{len(cands)} vessel-like target(s) marked 'found N': delete those that are not vessels (Delete), "
-                "then Vessels → Analyse all"
-            )
-
-        self.run_job(Job(work, "finding vessels"), done)
-
-    def load_reports_dialog(self) -> None:
-        path, _ = QFileDialog.getOpenFileName(
-            self, "Position reports", "", "Position reports (*.csv *.nmea *.txt *.log);;All files (*)"
-        )
-        if path:
-            self.load_reports(path)
-
-    def load_reports(self, path: str, columns: str | None = None, when: str | None = None) -> bool:
-        """Load reports; asks for the scene time when the metadata lacks it, and for column names when needed."""
-        sc = self.doc.scene
-        if sc is not None and not sc.info.acquisition_time and when is None:
-            when, ok = QInputDialog.getText(
-                self, "Scene time", "The scene's metadata has no acquisition time. Its time (UTC, ISO 8601):"
-            )
-            if not ok or not when.strip():
-                return False
-        if not self.controller.load_reports(path, columns=columns, when=when):
-            if "no column for" in (self.last_error or "") and columns is None:
-                columns, ok = QInputDialog.getText(
-                    self, "Column names", "Name the CSV columns, e.g. id=MMSI,time=BaseDateTime,lat=LAT,lon=LON"
-                )
-                if ok and columns.strip():
-                    return self.load_reports(path, columns, when)
-            return False
-        self.canvas.report_marks = self.controller.report_marks()
-        self.canvas.update()
-        return True
-
-    def import_vessels_dialog(self) -> None:
-        path, _ = QFileDialog.getOpenFileName(
-            self, "Vessel positions", "", "Positions (*.csv *.geojson *.json *.gpkg);;All files (*)"
-        )
-        if path:
-            self.controller.import_vessels(path)
-
-    def export_gis_dialog(self) -> None:
-        path, _ = QFileDialog.getSaveFileName(
-            self, "Export map layers", "vessels.gpkg", "GeoPackage (*.gpkg);;GeoJSON (*.geojson)"
-        )
-        if path:
-            self.controller.export_gis(path, force=True)  # the file dialog has asked about replacing
-
-    def export_dialog(self) -> None:
-        vid = self.doc.vessel_of_selection()
-        if vid is None or vid not in self.doc.findings:
-            self.say("analyse a vessel first, then export its evidence")
-            return
-        from .export_dialog import ExportForm
-
-        every = [v for v in self.doc.vessels if v not in self.doc.rejected]
-        form = ExportForm(self, n_vessels=len(every), selected_name=self.doc.vessels[vid].name, settings=self.settings)
-        if form.exec() != ExportForm.DialogCode.Accepted:
-            return
-        c = form.choice()
-        self.controller.export(
-            every if c.all_vessels else vid,
-            c.folder,
-            ask=True,
-            analyst=c.analyst,
-            case_reference=c.case_reference,
-            basename=c.name or None,
-        )
 
     def error(self, title: str, text: str) -> None:
         self.last_error = f"{title}: {text}"

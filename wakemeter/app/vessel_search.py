@@ -1,0 +1,60 @@
+"""Finding vessel-like targets in the view, the whole scene or a dragged rectangle (the window's part)."""
+
+from __future__ import annotations
+
+from .workers import Job
+
+
+class VesselSearch:
+    """Mixed into the main window: the Vessels menu's finding commands, run off the GUI thread."""
+
+    def find_in_view(self) -> None:
+        self.find_vessels(whole=False)
+
+    def find_in_scene(self) -> None:
+        self.find_vessels(whole=True)
+
+    def pick_find_area(self) -> None:
+        """The next drag on the image draws the rectangle to search (Esc gives it up)."""
+        if self.doc.scene is None:
+            self.say("open a scene first")
+            return
+        self.canvas.pick_area()
+        self.say("drag a rectangle over the water to search for vessels in it (Esc: give up)")
+
+    def find_vessels(self, *, whole: bool = False, area: tuple[int, int, int, int] | None = None) -> None:
+        """Find vessel-like targets (in the view, the whole scene or ``area``: col, row, width, height) in the
+        background; each becomes a vessel named "found N" (one undo step for all); delete the ones that are
+        not vessels, then Analyse all."""
+        sc = self.doc.scene
+        if sc is None:
+            self.say("open a scene first")
+            return
+        if area is None and whole:
+            area = (0, 0, sc.width, sc.height)
+        elif area is None:
+            o = self.canvas.origin
+            w, h = self.canvas.width() / self.canvas.zoom, self.canvas.height() / self.canvas.zoom
+            c0, r0 = max(int(o.x()), 0), max(int(o.y()), 0)
+            area = (c0, r0, int(min(o.x() + w, sc.width)) - c0, int(min(o.y() + h, sc.height)) - r0)
+
+        def work(progress, cancelled):
+            from ..detect.vessel_finder import find_vessels
+
+            return find_vessels(sc, area=area, progress=lambda f: progress(f, ""), cancelled=cancelled)
+
+        self.run_job(Job(work, "finding vessels"), self._mark_found)
+
+    def _mark_found(self, cands) -> None:
+        from ..project.model import Vessel
+        from .document import AddItems
+
+        if not cands:
+            self.say("no vessel-like target found here")
+            return
+        found = [Vessel(self.doc.new_id(), f"found {i} ({c.length_m:.0f} m)", c.px) for i, c in enumerate(cands, 1)]
+        self.doc.undo.push(AddItems(self.doc, found, f"find {len(cands)} vessels"))
+        self.say(
+            f"{len(cands)} vessel-like target(s) marked 'found N': delete those that are not vessels (Delete), "
+            "then Vessels → Analyse all"
+        )
