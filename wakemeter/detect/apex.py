@@ -67,7 +67,6 @@ def find_displaced_apex(
     ref = sino[band]
     med, mad = median_spread(ref)
     z = (sino - med) / mad
-    best: Apex | None = None
     # the three darkest lines with distinct directions (a Kelvin arm can be dark in some looks)
     tried: list[float] = []
     for flat in np.argsort(np.where(band[:, None], z, np.inf), axis=None)[:400]:
@@ -87,9 +86,10 @@ def find_displaced_apex(
         dist = float(np.hypot(*(np.subtract(apex_px, hull_px)))) * chip.m_per_px / chip.step
         if dist > max_distance_m:
             continue
-        if best is None or contrast > best.step_contrast:
-            best = Apex(apex_px, back, float(-z[i, j]), contrast, dist)
-    return best
+        # the lines come darkest first: the first with a start is the wake (a fainter line a few degrees off
+        # crosses the wake's dark strip and shows a sharper but false step where it leaves it)
+        return Apex(apex_px, back, float(-z[i, j]), contrast, dist)
+    return None
 
 
 def _apex_on_line(

@@ -146,7 +146,7 @@ def measure_band_shift(
         assumptions=(
             f"bands {timing.first_band} and {timing.last_band} of a {timing.sensor} scene, {timing.source}",
             "the hull's leading edge moves with the hull; its foam and the land stand still",
-            f"band co-registration {reg} px per axis ({timing.sensor}; from memory: 0.3 px at 3 sigma)",
+            f"band co-registration {reg} px per axis ({timing.sensor}): an assumed value, not read from the product",
             "speed over ground: equals the speed through the water only in still water",
         ),
         over_ground=True,
