@@ -273,9 +273,11 @@ class Controller(QObject):
             return False
         self.reports, self.report_time = reports, t
         states = self.report_states()
+        dropped = reports.dropped_text()
         self.host.say(
             f"{len(reports)} position reports from {len({r.vessel_id for r in reports})} vessel(s); "
             f"{len(states)} heard within 10 minutes of the scene time {t.isoformat()}"
+            + (f"; {dropped}" if dropped else "")
         )
         self.refresh()
         return True

@@ -42,11 +42,30 @@ class Summary:
         return "\n".join(lines)
 
 
+#: how long a given scheduler has to answer (s)
+SCHEDULER_TIMEOUT_S = 10
+
+
+def _scheduler_address(text: str) -> str:
+    """A dask scheduler address (``tcp://host:port``, ``tls://...``, ``host:port``), checked before connecting."""
+    import re
+
+    if not re.fullmatch(r"(?:(?:tcp|tls|ws|wss|inproc|ucx)://)?[A-Za-z0-9_.\-\[\]:]+:\d{1,5}/?", text.strip()):
+        raise ParameterError(f"--scheduler {text!r} is not a scheduler address such as tcp://10.0.0.5:8786")
+    return text.strip()
+
+
 def _client(scheduler: str | None, workers: int):
     from distributed import Client, LocalCluster
 
     if scheduler:
-        return Client(scheduler), None
+        address = _scheduler_address(scheduler)
+        try:
+            return Client(address, timeout=SCHEDULER_TIMEOUT_S), None
+        except (OSError, TimeoutError, ValueError) as err:
+            raise ParameterError(
+                f"no scheduler answers at {address} (waited {SCHEDULER_TIMEOUT_S} s; {type(err).__name__})"
+            ) from err
     if not 1 <= workers <= 256:
         raise ParameterError(f"--workers must be 1-256, got {workers}")
     cluster = LocalCluster(

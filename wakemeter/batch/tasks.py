@@ -19,6 +19,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from .. import __version__, fileio
+from ..names import clean_name
 
 if TYPE_CHECKING:
     from ..scene.raster import Scene
@@ -31,6 +32,9 @@ class BatchTask:
     vessel_name: str
     request: dict  #: AnalysisRequest.to_json()
     found: dict | None = None  #: the vessel finder's candidate (VesselCandidate.to_json()) when it was found
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "vessel_name", clean_name(self.vessel_name))
 
     @property
     def key(self) -> str:

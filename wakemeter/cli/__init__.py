@@ -76,9 +76,13 @@ def main(argv: Sequence[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("wakemeter: interrupted", file=sys.stderr)
         return 130
-    except BrokenPipeError:  # output piped into a command that stopped reading (| head): not an error of ours
-        sys.stderr.close()
-        return 0
+    except OSError as err:  # the system refused a file (name too long, no space, no permission...)
+        if isinstance(err, BrokenPipeError):  # output piped into a command that stopped reading (| head)
+            sys.stderr.close()
+            return 0
+        where = f" ({err.filename if len(str(err.filename)) < 120 else str(err.filename)[:117] + '...'})"
+        print(f"wakemeter {args.command}: {err.strerror or err}{where if err.filename else ''}", file=sys.stderr)
+        return 2
 
 
 def _looks_like_a_command(word: str) -> bool:

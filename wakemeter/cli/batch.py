@@ -45,7 +45,6 @@ def run(args: argparse.Namespace) -> int:
     for opt in ("analyst", "case", "paper"):
         if getattr(args, opt) and not args.evidence:
             raise ParameterError(f"--{opt} is for the evidence sets: give --evidence too")
-    out.mkdir(parents=True, exist_ok=True)
     args.vessel = "0,0"  # the base request: every task puts its own vessel position in
     base = request_from_args(args)
     reports: list = []
@@ -54,6 +53,7 @@ def run(args: argparse.Namespace) -> int:
 
         reports = read_reports(args.reports, parse_columns(args.report_columns))
     client, cluster = _client(args.scheduler, args.workers)
+    out.mkdir(parents=True, exist_ok=True)
     try:
         tasks, unreadable = plan(
             args.scenes, base, vessels_file=args.vessels, find=args.find, pfa_per_km2=args.pfa, client=client

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 import re
+import sys
 from typing import TYPE_CHECKING
 
 from ..errors import ParameterError
@@ -185,8 +186,9 @@ def apply_calibration(scene: Scene, args: argparse.Namespace) -> None:
         raise ParameterError(
             f"{scene.info.path.name} is georeferenced: its own pixel size is used (leave out --pixel-size)"
         )
-    if not (size > 0 and size < 10_000):
-        raise ParameterError(f"--pixel-size must be a ground size in metres above 0 (and below 10 km), got {size}")
+    lo, hi = geodesy.CALIBRATED_PIXEL_RANGE_M
+    if not (lo <= size <= hi):
+        raise ParameterError(f"--pixel-size must be a ground size in metres from {lo:g} to {hi:g}, got {size:g}")
     if up is not None and not -360 <= up <= 360:
         raise ParameterError(f"--north-up must be a bearing in degrees (0-360), got {up}")
     scene.calibrate(geodesy.calibrated_frame(pixel_size_m=size, north_up_deg=up))
@@ -222,5 +224,8 @@ def compare_with_reports(
 
     when = scene_time(acquisition_time, args.scene_time)
     reports = read_reports(args.reports, parse_columns(args.report_columns))
+    dropped = reports.dropped_text()
+    if dropped:
+        print(f"wakemeter: {dropped}", file=sys.stderr)
     comps, unmatched = compare_results(named_results, reports, when, gate_m=args.match_distance)
     return [None if c is None else c.to_json() for c in comps], [asdict(u) for u in unmatched]

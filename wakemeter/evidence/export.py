@@ -23,6 +23,7 @@ import numpy as np
 from .. import fileio
 from ..detect.result import WakeAnalysis
 from ..errors import ParameterError, SceneWriteError
+from ..names import clean_name
 from ..scene.raster import Scene
 from . import plots as plots_mod
 from .annotate import render_evidence
@@ -40,6 +41,9 @@ class VesselEvidence:
     hand_measurements: tuple[dict, ...] = ()
     position_report: dict | None = None  #: the comparison with position reports (positions.match), as JSON
 
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "name", clean_name(self.name))
+
 
 @dataclass(frozen=True)
 class CaseDetails:
@@ -47,6 +51,11 @@ class CaseDetails:
 
     analyst: str | None = None
     reference: str | None = None
+
+    def __post_init__(self) -> None:
+        for f in ("analyst", "reference"):
+            value = getattr(self, f)
+            object.__setattr__(self, f, None if value is None else clean_name(value) or None)
 
 
 @dataclass(frozen=True)

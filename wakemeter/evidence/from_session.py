@@ -60,14 +60,19 @@ def open_session_vessels(
     """The session's scene (opened, checked against its SHA-256, calibrated as saved) and its vessels."""
     data = session_mod.load(path)
     scene_path = data["scene"].get("resolved_path")
-    if not scene_path or not Path(scene_path).exists():
+    if not scene_path or not Path(scene_path).is_file():
         raise ParameterError(
             f"the session's scene was not found ({data['scene'].get('absolute_path')}); "
             "open the session in the program to locate it"
         )
     with open_scene(scene_path) as scene:
         saved = data["scene"].get("sha256")
-        if saved and saved != scene.sha256():
+        if not saved:
+            raise ParameterError(
+                "the session does not record its scene's SHA-256, so the scene cannot be checked to be the one "
+                "analysed; open the session in the program (which checks the scene) and save it again"
+            )
+        if saved != scene.sha256():
             raise ParameterError(
                 f"the scene {scene.info.path.name} has changed since the session was saved (SHA-256 was "
                 f"{saved[:12]}..., is now {scene.sha256()[:12]}...): the marked positions and findings may not "

@@ -7,6 +7,7 @@ GeoPackage.  No file format is written by hand.
 from __future__ import annotations
 
 import csv
+import math
 import os
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -19,9 +20,12 @@ from .. import fileio
 from ..detect.findings import ARM_KINDS, SegmentKind
 from ..detect.result import WakeAnalysis, result_row
 from ..errors import ParameterError, SceneReadError, SceneWriteError
+from ..names import clean_name
 from ..scene import geodesy
 from ..scene.raster import Scene
 
+#: the largest vessel list read (a list of positions, not a track archive)
+MAX_LIST_BYTES = 64 * 1024**2
 DRIVERS = {".gpkg": "GPKG", ".geojson": "GeoJSON", ".json": "GeoJSON"}
 WGS84 = "EPSG:4326"
 
@@ -42,6 +46,7 @@ def vessel_features(scene: Scene, name: str, analysis: WakeAnalysis, comparison:
     """The features of one analysed vessel: its point, its track, its wake lines and its analysed area."""
     if not scene.info.georeferenced:
         raise ParameterError("GIS files need a georeferenced scene (an image calibrated by hand has no longitude)")
+    name = clean_name(name)
     attrs = {
         "name": name,
         "wake_found": analysis.wake_found,
@@ -134,6 +139,9 @@ class VesselPosition:
     lon: float
     lat: float
 
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "name", clean_name(self.name))
+
 
 NAME_FIELDS = ("name", "vessel", "id", "mmsi", "label")
 
@@ -158,23 +166,44 @@ def read_vessel_positions(path: str | os.PathLike) -> list[VesselPosition]:
     crs = meta.get("crs") or WGS84
     to_wgs = Transformer.from_crs(CRS.from_user_input(crs), CRS.from_epsg(4326), always_xy=True)
     out = []
+    skipped = 0
     for i, wkb in enumerate(geoms):
         if wkb is None:
             continue
         g = shapely.from_wkb(wkb)
         if g.geom_type != "Point":
             continue
+        if g.is_empty:  # GDAL reads a point with NaN coordinates as an empty point
+            skipped += 1
+            continue
         lon, lat = to_wgs.transform(g.x, g.y)
+        if not (np.isfinite(lon) and np.isfinite(lat) and -180 <= lon <= 360 and -90 <= lat <= 90):
+            skipped += 1  # NaN, infinite or off the Earth: not a position
+            continue
         name = (
             str(fields[name_col][i]) if name_col is not None and fields[name_col][i] is not None else f"vessel {i + 1}"
         )
         out.append(VesselPosition(name, float(lon), float(lat)))
     if not out:
-        raise SceneReadError(f"{p.name}: no point features (vessel positions) in the file")
+        extra = f" ({skipped} point(s) with coordinates that are not a place on the Earth)" if skipped else ""
+        raise SceneReadError(f"{p.name}: no point features (vessel positions) in the file{extra}")
     return out
 
 
 def _positions_csv(p: Path) -> list[VesselPosition]:
+    if p.stat().st_size > MAX_LIST_BYTES:
+        raise SceneReadError(f"{p.name}: larger than {MAX_LIST_BYTES // 1024**2} MB; a vessel list is shorter")
+    try:
+        return _read_positions_csv(p)
+    except UnicodeDecodeError as err:
+        raise SceneReadError(
+            f"{p.name}: not UTF-8 text ({err.reason} at byte {err.start}); save the list as UTF-8 CSV"
+        ) from err
+    except csv.Error as err:
+        raise SceneReadError(f"{p.name}: not a readable CSV file ({err})") from err
+
+
+def _read_positions_csv(p: Path) -> list[VesselPosition]:
     with open(p, newline="", encoding="utf-8-sig") as fh:
         reader = csv.DictReader(fh)
         header = {h.strip().lower(): h for h in (reader.fieldnames or [])}
@@ -189,7 +218,7 @@ def _positions_csv(p: Path) -> list[VesselPosition]:
                 lon, lat = float(row[lon_c]), float(row[lat_c])
             except (TypeError, ValueError):
                 continue
-            if -180 <= lon <= 360 and -90 <= lat <= 90:
+            if math.isfinite(lon) and math.isfinite(lat) and -180 <= lon <= 360 and -90 <= lat <= 90:
                 out.append(VesselPosition((row.get(name_c) or "").strip() if name_c else f"vessel {i + 1}", lon, lat))
     if not out:
         raise SceneReadError(f"{p.name}: no vessel position (lon, lat) in the file")

@@ -46,11 +46,46 @@ COLUMN_ALIASES = {
 REQUIRED = ("id", "time", "lat", "lon")
 
 
+class ReportList(list):
+    """The position reports read from one file, and the lines left out of them by kind (for example
+    sentences whose checksum is wrong: they are not evidence) so a view can say what was dropped."""
+
+    def __init__(self, reports: Iterable[PositionReport] = (), dropped: dict[str, int] | None = None, name: str = ""):
+        super().__init__(reports)
+        self.dropped = dict(dropped or {})
+        self.name = name
+
+    def dropped_text(self) -> str:
+        """One line on what was left out ("" when nothing was)."""
+        if not self.dropped:
+            return ""
+        parts = ", ".join(f"{n} sentence(s) with a {k}" for k, n in self.dropped.items())
+        return f"{self.name}: left out {parts}"
+
+
+#: reports from before 1970 or after 2200 are typing or file errors, not times
+_UNIX_RANGE_S = (0.0, 7_258_118_400.0)
+
+
+def _unix_time(seconds: str) -> _dt.datetime | None:
+    """Seconds since 1970 as a UTC time; None outside the years 1970-2200."""
+    try:
+        value = float(seconds)
+    except ValueError:
+        return None
+    if not (_UNIX_RANGE_S[0] <= value <= _UNIX_RANGE_S[1]):
+        return None
+    return _dt.datetime.fromtimestamp(value, _dt.UTC)
+
+
 def parse_time(text: str) -> _dt.datetime:
     """An ISO 8601 time (a trailing Z or an offset; none: UTC), or seconds since 1970 (UTC)."""
     t = str(text).strip()
     if re.fullmatch(r"\d{9,11}(\.\d+)?", t):
-        return _dt.datetime.fromtimestamp(float(t), _dt.UTC)
+        value = _unix_time(t)
+        if value is None:
+            raise ParameterError(f"time {t} s since 1970 lies outside the years 1970-2200")
+        return value
     t = t.replace(" ", "T", 1) if re.match(r"\d{4}-\d\d-\d\d \d", t) else t
     if re.match(r"\d{4}:\d\d:\d\d \d", t):  # TIFF's own form YYYY:MM:DD HH:MM:SS
         t = t[:4] + "-" + t[5:7] + "-" + t[8:10] + "T" + t[11:]
@@ -96,7 +131,7 @@ def _num(value: object, lo: float, hi: float, missing: tuple[float, ...] = ()) -
     return v
 
 
-def read_csv(path: str | Path, columns: dict[str, str] | None = None) -> list[PositionReport]:
+def read_csv(path: str | Path, columns: dict[str, str] | None = None) -> ReportList:
     """Reports from a CSV file with a header row; rows without an id, a time or a position are skipped."""
     p = Path(path)
     _check_file(p)
@@ -116,7 +151,7 @@ def read_csv(path: str | Path, columns: dict[str, str] | None = None) -> list[Po
         raise SceneReadError(f"{p.name}: not a readable CSV file ({err})") from err
     if not out:
         raise SceneReadError(f"{p.name}: no usable position report (each needs an id, a time and a position)")
-    return out
+    return ReportList(out, {}, p.name)
 
 
 def _resolve(header: list[str], given: dict[str, str], name: str) -> dict[str, str | None]:
@@ -167,7 +202,7 @@ _TAG_BLOCK = re.compile(r"^\\(?P<tags>[^\\]*)\\(?P<sentence>[!$].*)$")
 _LEADING_TIME = re.compile(r"^(?P<time>[^!$\\]+?)[\s,;]+(?P<sentence>[!$]AIVD[MO].*)$")
 
 
-def read_nmea(path: str | Path) -> list[PositionReport]:
+def read_nmea(path: str | Path) -> ReportList:
     """Position reports (AIS types 1, 2, 3, 18 and 19) from NMEA sentences, each with its time either in a
     tag block (``\\c:UNIX_SECONDS*hh\\!AIVDM...``) or before the sentence (``2026-06-14T10:31:50Z !AIVDM...``)."""
     p = Path(path)
@@ -179,12 +214,13 @@ def read_nmea(path: str | Path) -> list[PositionReport]:
     return reports_from_nmea_lines(lines, p.name)
 
 
-def reports_from_nmea_lines(lines: Iterable[str], name: str = "sentences") -> list[PositionReport]:
+def reports_from_nmea_lines(lines: Iterable[str], name: str = "sentences") -> ReportList:
     from pyais import NMEAMessage
     from pyais.exceptions import AISBaseException
 
     out: list[PositionReport] = []
     untimed = bad = 0
+    dropped = {"wrong checksum": 0, "time out of range": 0}
     for raw in lines:
         line = raw.strip()
         if not line:
@@ -193,7 +229,10 @@ def reports_from_nmea_lines(lines: Iterable[str], name: str = "sentences") -> li
         m = _TAG_BLOCK.match(line)
         if m:
             stamp = re.search(r"(?:^|,)c:(\d+)", m["tags"])
-            time = _dt.datetime.fromtimestamp(int(stamp[1]), _dt.UTC) if stamp else None
+            time = _unix_time(stamp[1]) if stamp else None
+            if stamp and time is None:
+                dropped["time out of range"] += 1
+                continue
             line = m["sentence"]
         else:
             m = _LEADING_TIME.match(line)
@@ -208,6 +247,9 @@ def reports_from_nmea_lines(lines: Iterable[str], name: str = "sentences") -> li
             continue
         try:
             msg = NMEAMessage(line.encode("ascii"))
+            if not msg.is_valid:  # the sentence's checksum (NMEA 0183) does not match: not evidence
+                dropped["wrong checksum"] += 1
+                continue
             if msg.frag_cnt != 1:
                 continue  # positions fit one sentence; longer messages are static data
             d = msg.decode().asdict()
@@ -231,13 +273,19 @@ def reports_from_nmea_lines(lines: Iterable[str], name: str = "sentences") -> li
                 _num(d.get("heading"), 0, 359.99),
             )
         )
+    left_out = {k: v for k, v in dropped.items() if v}
     if not out:
-        why = f"{untimed} sentence(s) without a time" if untimed else f"{bad} sentence(s) that do not decode"
-        raise SceneReadError(f"{name}: no position report with a time ({why}); see the README for the forms read")
-    return out
+        why = [f"{n} with a {k}" for k, n in left_out.items()]
+        why += [f"{untimed} without a time"] if untimed else []
+        why += [f"{bad} that do not decode"] if bad else []
+        raise SceneReadError(
+            f"{name}: no position report that can be used (sentences: {', '.join(why) or 'none of a position'}); "
+            "see the README for the forms read"
+        )
+    return ReportList(out, left_out, name)
 
 
-def read_reports(path: str | Path, columns: dict[str, str] | None = None) -> list[PositionReport]:
+def read_reports(path: str | Path, columns: dict[str, str] | None = None) -> ReportList:
     """CSV or NMEA, told apart by content: NMEA lines start with '!', '$' or a tag block."""
     p = Path(path)
     _check_file(p)

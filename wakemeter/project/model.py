@@ -17,6 +17,7 @@ from ..detect.request import AnalysisRequest
 from ..detect.result import WakeAnalysis
 from ..detect.revise import HAND_ANGLE_MAX_DEG, HAND_ANGLE_STD_DEG, revise, with_crest_lines
 from ..errors import WakemeterError
+from ..names import clean_name
 from ..physics import inversion as inv
 from ..physics import units
 from ..scene.raster import Scene
@@ -40,8 +41,11 @@ HAND_ARM_STD_MIN_DEG = 0.5
 @dataclass(frozen=True)
 class Vessel:
     id: int
-    name: str
+    name: str  #: shown as one printable line of bounded length (names.clean_name)
     position: Point
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "name", clean_name(self.name))
 
 
 @dataclass(frozen=True)

@@ -134,9 +134,15 @@ def load(path: str | os.PathLike) -> dict:
     if problem:
         raise SessionError(f"{p.name}: {problem}")
     scene = data["scene"]
-    rel = Path(scene.get("path") or "")
-    candidate = (p.parent / rel) if not rel.is_absolute() else rel
-    scene["resolved_path"] = str(candidate.resolve()) if candidate.exists() else scene.get("absolute_path")
+    # the scene beside the session (its relative path) first, else where it was; a missing or empty path
+    # names no file (it must not resolve to the session's own folder)
+    resolved = scene.get("absolute_path")
+    if scene.get("path"):
+        rel = Path(scene["path"])
+        candidate = (p.parent / rel) if not rel.is_absolute() else rel
+        if candidate.is_file():
+            resolved = str(candidate.resolve())
+    scene["resolved_path"] = resolved
     return data
 
 

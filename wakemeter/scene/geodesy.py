@@ -224,14 +224,21 @@ def local_frame(georef: GeoRef, col: float, row: float) -> LocalFrame:
     return LocalFrame(float(d[0]), float(d[1]), float(az[0]), float(az[1]))
 
 
+#: ground sizes of a pixel an image can have (m): a close-up photograph's millimetre to a coarse scene's 10 km
+CALIBRATED_PIXEL_RANGE_M = (1e-3, 1e4)
+
+
 def calibrated_frame(*, pixel_size_m: float, north_up_deg: float | None = None) -> LocalFrame:
     """Frame for an image without georeference, from a pixel size and optionally a north direction.
 
     ``north_up_deg`` is the true bearing of image up (0 when the image is north-up).  When
     it is None, bearings are relative to image up and the frame says so (``north_known``).
     """
-    if not np.isfinite(pixel_size_m) or pixel_size_m <= 0:
-        raise ParameterError(f"pixel_size_m must be > 0, got {pixel_size_m!r}")
+    lo, hi = CALIBRATED_PIXEL_RANGE_M
+    if not np.isfinite(pixel_size_m) or not lo <= pixel_size_m <= hi:
+        raise ParameterError(
+            f"a pixel's ground size must lie between {lo * 1000:g} mm and {hi / 1000:g} km, got {pixel_size_m!r} m"
+        )
     up = 0.0 if north_up_deg is None else float(north_up_deg) % 360.0
     return LocalFrame(
         pixel_size_m, pixel_size_m, (up + 90.0) % 360.0, up, georeferenced=False, north_known=north_up_deg is not None

@@ -339,7 +339,7 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
         raise SceneReadError(
             f"{p}: cannot be opened as a raster - the file may be truncated or corrupt ({msg})"
         ) from err
-    except (MemoryError, OverflowError, ValueError) as err:
+    except (MemoryError, OverflowError, ValueError, TypeError) as err:
         raise SceneReadError(f"{p}: the file's header is not valid ({err})") from err
     return Scene(info)
 
@@ -347,6 +347,12 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
 def _read_info(p: Path, ds, size: int, files: tuple[str, ...] = ()) -> SceneInfo:
     if ds.width < 1 or ds.height < 1 or ds.count < 1:
         raise SceneReadError(f"{p}: the image has no pixels ({ds.width} x {ds.height}, {ds.count} bands)")
+    if any(str(t).startswith("complex") for t in ds.dtypes):
+        raise SceneReadError(
+            f"{p.name}: its pixels are complex numbers ({ds.dtypes[0]}: a radar single-look complex product); "
+            "wakemeter reads amplitude, intensity or dB: convert it first (for example a GDAL VRT with the 'mod' "
+            "pixel function, or use the product's ground-range detected edition)"
+        )
     limits.check_declared_sizes(p, ds)
     limits.check_not_empty(p, ds)
     crs = ds.crs
