@@ -186,3 +186,25 @@ def test_a_session_with_no_scene_path_does_not_take_its_own_folder(tmp_path):
     assert loaded["scene"]["resolved_path"] == str(tmp_path / "gone.tif")
     assert "not found" in _refused(["report", str(session), "--out", str(tmp_path)])
     shutil.rmtree(folder)
+
+
+def test_a_listed_vessel_outside_the_scene_is_recorded_and_passed_over_by_export_and_batch(tmp_path):
+    # the same rule in both commands: the vessel outside is named on stderr, the others are analysed
+    import contextlib
+    import io
+
+    from wakemeter.batch.run import plan
+    from wakemeter.cli import main
+    from wakemeter.detect.request import AnalysisRequest
+
+    listed = tmp_path / "vessels.csv"
+    listed.write_text("name,lon,lat\nKestrel Bay,-35.0,36.0\nFar Away,10.0,10.0\n")
+    err = io.StringIO()
+    out = tmp_path / "layers.gpkg"
+    with contextlib.redirect_stderr(err), contextlib.redirect_stdout(io.StringIO()):
+        rc = main(["export", str(SCENE), "--vessels", str(listed), "--out", str(out)])
+    assert rc == 0 and out.exists()
+    assert "not used: vessel Far Away" in err.getvalue()
+    tasks, not_used = plan([str(SCENE)], AnalysisRequest(vessel_px=(0.0, 0.0)), vessels_file=str(listed))
+    assert [t.vessel_name for t in tasks] == ["Kestrel Bay"]
+    assert [n for n, _why in not_used] == ["vessel Far Away"]

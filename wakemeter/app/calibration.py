@@ -7,9 +7,10 @@ from PySide6.QtWidgets import QInputDialog
 from ..errors import WakemeterError
 from ..scene import geodesy
 from .document import Measurement, SetCalibration
+from .window_part import WindowPart
 
 
-class Calibration:
+class Calibration(WindowPart):
     """Mixed into the main window: the Calibrate tool's questions and the calibration it sets (one undo step)."""
 
     def _ask_calibration(self, p0, p1) -> None:

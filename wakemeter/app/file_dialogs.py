@@ -10,12 +10,14 @@ from pathlib import Path
 
 from PySide6.QtWidgets import QFileDialog, QInputDialog
 
+from .window_part import WindowPart
+
 SCENE_FILTER = "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;All files (*)"
 SESSION_FILTER = "wakemeter sessions (*.json)"
 SESSION_SUFFIX = ".wakemeter.json"
 
 
-class FileDialogs:
+class FileDialogs(WindowPart):
     """Mixed into the main window (uses ``settings``, ``doc``, ``controller``, ``say``, ``confirm``)."""
 
     # ---- where a dialog starts -------------------------------------------------

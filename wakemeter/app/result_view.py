@@ -108,8 +108,11 @@ class ResultView(QTabWidget):
             self.radon_img.setImage(sino, levels=(lo, hi))
             self.radon_img.setColorMap(pg.colormap.get("viridis"))
             self.radon_img.setRect(QRectF(0, -n / 2, 180, n))
-            ang, off, _sig = p.radon_pick
-            self.radon_pick.setData([ang % 180], [off])
+            if p.radon_pick is not None:
+                ang, off, _sig = p.radon_pick
+                self.radon_pick.setData([ang % 180], [off])
+            else:
+                self.radon_pick.setData([], [])
 
 
 def result_html(a: WakeAnalysis, rejected: bool = False, position_report: str | None = None) -> str:

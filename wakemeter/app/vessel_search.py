@@ -2,10 +2,11 @@
 
 from __future__ import annotations
 
+from .window_part import WindowPart
 from .workers import Job
 
 
-class VesselSearch:
+class VesselSearch(WindowPart):
     """Mixed into the main window: the Vessels menu's finding commands, run off the GUI thread."""
 
     def find_in_view(self) -> None:

@@ -83,9 +83,9 @@ def plan(
     pfa_per_km2: float = 1e-3,
     client=None,
 ) -> tuple[list[BatchTask], list[tuple[str, str]]]:
-    """The tasks (one per vessel per scene), and the scenes that could not be used with the reason."""
+    """The tasks (one per vessel per scene), and what could not be used with the reason: scenes that cannot be
+    read, and listed vessels that lie in none of the scenes."""
     from ..evidence.gis import read_vessel_positions
-    from ..scene import geodesy
     from ..scene.raster import open_scene
 
     if not vessels_file and not find:
@@ -94,6 +94,7 @@ def plan(
     tasks: list[BatchTask] = []
     unreadable: list[tuple[str, str]] = []
     usable = []
+    placed: set[int] = set()
     for s in scenes:
         try:
             open_scene(s).close()
@@ -114,14 +115,19 @@ def plan(
                 raise ParameterError(
                     f"{Path(s).name} has no georeference: positions in longitude and latitude need one"
                 )
-            for p in positions:
-                col, row = (float(v) for v in geodesy.lonlat_to_pixel(sc.georef, p.lon, p.lat))
-                if 0 <= col < sc.width and 0 <= row < sc.height:
+            for k, p in enumerate(positions):
+                if sc.holds_lonlat(p.lon, p.lat):
+                    placed.add(k)
                     req = replace(base, vessel_lonlat=(p.lon, p.lat), vessel_px=None)
                     tasks.append(BatchTask(str(Path(s).resolve()), digest, p.name, req.to_json()))
             for i, c in enumerate(found.get(s, []), 1):
                 req = replace(base, vessel_px=tuple(c["px"]), vessel_lonlat=None)
                 tasks.append(BatchTask(str(Path(s).resolve()), digest, f"found {i}", req.to_json(), found=c))
+    unreadable += [
+        (f"vessel {p.name}", f"lon {p.lon:.6f}, lat {p.lat:.6f} lies in none of the scenes")
+        for k, p in enumerate(positions)
+        if k not in placed and usable
+    ]
     if not tasks:
         raise ParameterError(
             "no vessel lies in the given scenes" + "".join(f"; {n} not used: {w}" for n, w in unreadable)

@@ -59,7 +59,7 @@ def run(args: argparse.Namespace) -> int:
             args.scenes, base, vessels_file=args.vessels, find=args.find, pfa_per_km2=args.pfa, client=client
         )
         for name, why in unreadable:
-            print(f"scene not used: {name}: {why}", file=sys.stderr)
+            print(f"not used: {name}: {why}", file=sys.stderr)
         print(
             f"{len(tasks)} vessel(s) in {len(args.scenes)} scene(s); workers: {len(client.scheduler_info()['workers'])}"
         )

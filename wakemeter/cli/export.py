@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import sys
 from dataclasses import replace
 from typing import TYPE_CHECKING
 
@@ -35,6 +36,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from ..detect.analysis import analyze
+    from ..errors import ParameterError
     from ..evidence.from_session import is_session
     from ..evidence.gis import read_vessel_positions
     from ..scene.raster import open_scene
@@ -49,8 +51,6 @@ def run(args: argparse.Namespace) -> int:
         return 0
     positions = read_vessel_positions(args.vessels) if args.vessels else None
     if positions is not None and (args.vessel or args.vessel_px):
-        from ..errors import ParameterError
-
         raise ParameterError("give the vessels either with --vessels FILE or with --vessel/--vessel-px, not both")
     if positions is not None:
         args.vessel = f"{positions[0].lon},{positions[0].lat}"
@@ -60,7 +60,20 @@ def run(args: argparse.Namespace) -> int:
         if positions is None:
             named = [("vessel", analyze(scene, base))]
         else:
-            named = [(p.name, analyze(scene, replace(base, vessel_lonlat=(p.lon, p.lat)))) for p in positions]
+            if not scene.info.georeferenced:
+                raise ParameterError(
+                    f"{scene.info.path.name} has no georeference: positions in longitude and latitude need one"
+                )
+            inside = [p for p in positions if scene.holds_lonlat(p.lon, p.lat)]
+            for p in positions:
+                if p not in inside:  # recorded and passed over, as the batch does
+                    print(
+                        f"not used: vessel {p.name}: lon {p.lon:.6f}, lat {p.lat:.6f} lies outside the scene",
+                        file=sys.stderr,
+                    )
+            if not inside:
+                raise ParameterError(f"no listed vessel lies in {scene.info.path.name}")
+            named = [(p.name, analyze(scene, replace(base, vessel_lonlat=(p.lon, p.lat)))) for p in inside]
         _write(args, scene, named)
     return 0
 

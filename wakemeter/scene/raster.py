@@ -168,6 +168,11 @@ class Scene:
             )
         return geodesy.GeoRef(self.info.transform, self.info.crs)
 
+    def holds_lonlat(self, lon: float, lat: float) -> bool:
+        """The longitude and latitude fall on the scene's pixels (needs a georeference)."""
+        col, row = (float(v) for v in geodesy.lonlat_to_pixel(self.georef, lon, lat))
+        return bool(0 <= col < self.width and 0 <= row < self.height)
+
     def calibrate(self, frame: geodesy.LocalFrame | None) -> None:
         """Give an image without georeference a hand calibration (see :func:`geodesy.calibrated_frame`).
 
