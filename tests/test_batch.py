@@ -41,7 +41,7 @@ def test_batch_matches_single_runs_and_resumes(setup):
     d, client = setup
     scenes = [str(d / f"{n}.tif") for n in SCENES] + [str(d / "broken.tif")]
     base = AnalysisRequest(vessel_lonlat=(0.0, 0.0))
-    tasks, unreadable = plan(scenes, base, vessels_file=str(d / "vessels.csv"), client=client)
+    tasks, unreadable, _outside = plan(scenes, base, vessels_file=str(d / "vessels.csv"), client=client)
     assert len(tasks) == 4 and [n for n, _ in unreadable] == ["broken.tif"]
     out = d / "out"
     first = run(tasks, out, client=client)
@@ -67,7 +67,7 @@ def test_a_failing_vessel_is_recorded_and_the_others_finish(setup):
     scene = d / "changing.tif"
     shutil.copy(d / "channel_two_vessels.tif", scene)
     base = AnalysisRequest(vessel_lonlat=(0.0, 0.0))
-    tasks, _ = plan([str(scene), str(d / "harbour_approach_optical.tif")], base, vessels_file=str(d / "vessels.csv"))
+    tasks, _, _ = plan([str(scene), str(d / "harbour_approach_optical.tif")], base, vessels_file=str(d / "vessels.csv"))
     scene.write_bytes(scene.read_bytes() + b"\0")  # the scene changes after planning: its vessels must fail
     s = run(tasks, d / "out2", client=client)
     assert (s.done, s.failed) == (1, 2)
@@ -183,7 +183,7 @@ def test_a_killed_worker_has_its_task_redone(setup, tmp_path):
     )
     client = Client(cluster)
     try:
-        tasks, _ = plan(
+        tasks, _, _ = plan(
             [str(d / "channel_two_vessels.tif")],
             AnalysisRequest(vessel_lonlat=(0.0, 0.0)),
             vessels_file=str(d / "vessels.csv"),

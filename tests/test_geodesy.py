@@ -109,8 +109,9 @@ def test_calibrated_frames():
     assert gd.pixel_size_from_two_points((0, 0), (30, 40), 100.0) == pytest.approx(2.0)
     with pytest.raises(ParameterError, match="apart"):
         gd.pixel_size_from_two_points((0, 0), (1, 0), 10.0)
-    with pytest.raises(ParameterError, match="pixel_size_m"):
-        gd.calibrated_frame(pixel_size_m=0.0)
+    for absurd in (0.0, 1e-300, 1e9, float("nan")):  # a millimetre to 10 km (program's bound, no source)
+        with pytest.raises(ParameterError, match="ground size"):
+            gd.calibrated_frame(pixel_size_m=absurd)
 
 
 def test_bad_georeference():

@@ -18,6 +18,7 @@ from pypdf import PdfReader
 
 from wakemeter.cli import main
 from wakemeter.detect.analysis import AnalysisRequest, RadarGeometry, analyze
+from wakemeter.names import clean_name
 from wakemeter.physics.inversion import Uncertain
 from wakemeter.project import Measurement, Project, Vessel
 from wakemeter.project import session as session_mod
@@ -167,7 +168,7 @@ def test_session_errors_name_the_field(tmp_path):
 
 def test_names_with_markup_and_great_length_reach_the_report(tmp_path):
     # a scene named like markup, a vessel named like markup, and a 300-character name: the PDF must be
-    # written with the names as text, file names must stay short, and the whole names stay in the record
+    # written with the names as text, file names must stay short, and the names stay in the record as one bounded line
     folder = tmp_path / "in"
     folder.mkdir()
     long_stem = "pass " + "w" * 300
@@ -184,7 +185,7 @@ def test_names_with_markup_and_great_length_reach_the_report(tmp_path):
         assert len(files) == 4 and all(len(p.name) < 120 for p in files) and len(set_dir.name) < 120
         record = json.loads(next(p for p in files if p.suffix == ".json").read_text())
         assert record["provenance"]["scene_file"] == scene.name
-        assert record["vessels"][0]["name"] == vessel
+        assert record["vessels"][0]["name"] == clean_name(vessel)  # one line, bounded (names.MAX_NAME_CHARS)
         text = " ".join(
             page.extract_text() for page in PdfReader(str(next(p for p in files if p.suffix == ".pdf"))).pages
         )

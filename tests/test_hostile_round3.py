@@ -205,6 +205,54 @@ def test_a_listed_vessel_outside_the_scene_is_recorded_and_passed_over_by_export
         rc = main(["export", str(SCENE), "--vessels", str(listed), "--out", str(out)])
     assert rc == 0 and out.exists()
     assert "not used: vessel Far Away" in err.getvalue()
-    tasks, not_used = plan([str(SCENE)], AnalysisRequest(vessel_px=(0.0, 0.0)), vessels_file=str(listed))
-    assert [t.vessel_name for t in tasks] == ["Kestrel Bay"]
-    assert [n for n, _why in not_used] == ["vessel Far Away"]
+    tasks, unreadable, outside = plan([str(SCENE)], AnalysisRequest(vessel_px=(0.0, 0.0)), vessels_file=str(listed))
+    assert [t.vessel_name for t in tasks] == ["Kestrel Bay"] and unreadable == []
+    assert [n for n, _why in outside] == ["vessel Far Away"]
+
+
+def _dead_pid() -> int:
+    import subprocess
+    import sys
+
+    p = subprocess.Popen([sys.executable, "-c", "pass"])
+    p.wait()
+    return p.pid
+
+
+def test_a_refused_report_still_tidies_a_killed_writers_leftovers(tmp_path):
+    # a report killed after publishing its new set but before removing the old one leaves the old set hidden
+    # beside it; a later run that refuses to replace the set (no --force) removes it all the same
+    out = tmp_path / "out"
+    out.mkdir()
+    argv = ["report", str(SCENE), "--vessel", "-35,36", "--out", str(out), "--name", "case_set"]
+    assert _run(argv)[0] == 0
+    leftover = out / f".case_set.wmtmp-{_dead_pid()}-0123abcd.replaced"
+    shutil.copytree(out / "case_set", leftover)
+    assert "already exists" in _refused(argv)
+    assert not leftover.exists() and (out / "case_set").is_dir()
+
+
+def test_reading_a_session_tidies_a_killed_saves_temporary(tmp_path):
+    from wakemeter.project import session as session_mod
+
+    folder = tmp_path / "in"
+    folder.mkdir()
+    session = _session(folder)
+    leftover = folder / f".{session.name}.wmtmp-{_dead_pid()}-0123abcd"
+    leftover.write_bytes(b"{" * 1000)
+    session_mod.load(session)
+    assert not leftover.exists()
+
+
+def test_a_session_with_too_many_measurements_is_refused_quickly(tmp_path):
+    from wakemeter.project import session as session_mod
+
+    folder = tmp_path / "in"
+    folder.mkdir()
+    session = _session(folder)
+    data = json.loads(session.read_text())
+    m = data["measurements"][0]
+    data["measurements"] = [dict(m, id=100 + i) for i in range(session_mod.MAX_MEASUREMENTS + 1)]
+    session.write_text(json.dumps(data))
+    with pytest.raises(session_mod.SessionError, match="more than a session holds"):
+        session_mod.load(session)

@@ -113,7 +113,10 @@ def clean_stale(folder: str | os.PathLike) -> list[str]:
                 continue
             except OSError:
                 pass
-        _remove(p)
+        try:
+            _remove(p)
+        except OSError:  # a folder we may read but not change: leave it for a writer that can
+            continue
         done.append(f"removed {e.name}")
     return done
 

@@ -50,15 +50,17 @@ def _scheduler_address(text: str) -> str:
     """A dask scheduler address (``tcp://host:port``, ``tls://...``, ``host:port``), checked before connecting."""
     import re
 
-    if not re.fullmatch(r"(?:(?:tcp|tls|ws|wss|inproc|ucx)://)?[A-Za-z0-9_.\-\[\]:]+:\d{1,5}/?", text.strip()):
-        raise ParameterError(f"--scheduler {text!r} is not a scheduler address such as tcp://10.0.0.5:8786")
+    m = re.fullmatch(r"(?:(?:tcp|tls|ws|wss|inproc|ucx)://)?[A-Za-z0-9_.\-\[\]:]+:(\d{1,5})/?", text.strip())
+    if m is None or not 0 < int(m[1]) < 65536:
+        shown = text if len(text) <= 60 else text[:57] + "..."
+        raise ParameterError(f"--scheduler {shown!r} is not a scheduler address such as tcp://10.0.0.5:8786")
     return text.strip()
 
 
 def _client(scheduler: str | None, workers: int):
     from distributed import Client, LocalCluster
 
-    if scheduler:
+    if scheduler is not None:  # given, even empty: never fall back to a local cluster silently
         address = _scheduler_address(scheduler)
         try:
             return Client(address, timeout=SCHEDULER_TIMEOUT_S), None
@@ -82,9 +84,9 @@ def plan(
     find: bool = False,
     pfa_per_km2: float = 1e-3,
     client=None,
-) -> tuple[list[BatchTask], list[tuple[str, str]]]:
-    """The tasks (one per vessel per scene), and what could not be used with the reason: scenes that cannot be
-    read, and listed vessels that lie in none of the scenes."""
+) -> tuple[list[BatchTask], list[tuple[str, str]], list[tuple[str, str]]]:
+    """The tasks (one per vessel per scene), the scenes that could not be used with the reason, and the listed
+    vessels that lie in none of the scenes (name, where)."""
     from ..evidence.gis import read_vessel_positions
     from ..scene.raster import open_scene
 
@@ -123,7 +125,7 @@ def plan(
             for i, c in enumerate(found.get(s, []), 1):
                 req = replace(base, vessel_px=tuple(c["px"]), vessel_lonlat=None)
                 tasks.append(BatchTask(str(Path(s).resolve()), digest, f"found {i}", req.to_json(), found=c))
-    unreadable += [
+    outside = [
         (f"vessel {p.name}", f"lon {p.lon:.6f}, lat {p.lat:.6f} lies in none of the scenes")
         for k, p in enumerate(positions)
         if k not in placed and usable
@@ -132,7 +134,7 @@ def plan(
         raise ParameterError(
             "no vessel lies in the given scenes" + "".join(f"; {n} not used: {w}" for n, w in unreadable)
         )
-    return tasks, unreadable
+    return tasks, unreadable, outside
 
 
 def run(

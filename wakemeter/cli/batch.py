@@ -9,6 +9,9 @@ from collections.abc import Callable
 from .base import CAUTION_LINE, Command
 from .options import add_request_options, request_from_args
 
+#: the most local worker processes (each holds a scene chip and its analysis in memory)
+MAX_WORKERS = 64
+
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("scenes", nargs="+", metavar="SCENE", help="raster files")
@@ -52,13 +55,17 @@ def run(args: argparse.Namespace) -> int:
         from ..positions.reports import parse_columns, read_reports
 
         reports = read_reports(args.reports, parse_columns(args.report_columns))
+    if not 1 <= args.workers <= MAX_WORKERS:
+        raise ParameterError(f"--workers must be a number of processes from 1 to {MAX_WORKERS}, got {args.workers}")
+    if not (0.0 < args.pfa <= 10.0):  # also NaN
+        raise ParameterError(f"--pfa must be a false-alarm rate per km² above 0 and at most 10, got {args.pfa}")
     client, cluster = _client(args.scheduler, args.workers)
     out.mkdir(parents=True, exist_ok=True)
     try:
-        tasks, unreadable = plan(
+        tasks, unreadable, outside = plan(
             args.scenes, base, vessels_file=args.vessels, find=args.find, pfa_per_km2=args.pfa, client=client
         )
-        for name, why in unreadable:
+        for name, why in unreadable + outside:  # only a scene not read makes the run incomplete (exit 1)
             print(f"not used: {name}: {why}", file=sys.stderr)
         print(
             f"{len(tasks)} vessel(s) in {len(args.scenes)} scene(s); workers: {len(client.scheduler_info()['workers'])}"

@@ -65,14 +65,14 @@ def run(args: argparse.Namespace) -> int:
                     f"{scene.info.path.name} has no georeference: positions in longitude and latitude need one"
                 )
             inside = [p for p in positions if scene.holds_lonlat(p.lon, p.lat)]
+            if not inside:
+                raise ParameterError(f"none of the {len(positions)} listed vessel(s) lies in {scene.info.path.name}")
             for p in positions:
                 if p not in inside:  # recorded and passed over, as the batch does
                     print(
                         f"not used: vessel {p.name}: lon {p.lon:.6f}, lat {p.lat:.6f} lies outside the scene",
                         file=sys.stderr,
                     )
-            if not inside:
-                raise ParameterError(f"no listed vessel lies in {scene.info.path.name}")
             named = [(p.name, analyze(scene, replace(base, vessel_lonlat=(p.lon, p.lat)))) for p in inside]
         _write(args, scene, named)
     return 0

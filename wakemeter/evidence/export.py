@@ -166,6 +166,9 @@ def export_evidence_set(
         raise SceneWriteError(f"cannot export: folder {folder} is not writable")
     base = safe_stem(basename or set_basename(scene, vessels))
     target = folder / base
+    # a killed earlier writer's leftovers go first (a set moved aside and never replaced comes back), so a
+    # run that then refuses to replace a set still tidies the folder
+    cleaned_first = tuple(fileio.clean_stale(folder))
     if (target.exists() or target.is_symlink()) and not force:
         raise SceneWriteError(
             f"cannot export: {base} already exists in {folder} (choose another name or folder, or allow replacing)"
@@ -188,7 +191,7 @@ def export_evidence_set(
         exported_at=exported_at,
         unmatched_reports=unmatched_reports,
     )
-    cleaned = tuple(fileio.clean_stale(folder))
+    cleaned = cleaned_first + tuple(fileio.clean_stale(folder))
     tmp: Path | None = None
     try:
         tmp = fileio.new_temp_folder(target)

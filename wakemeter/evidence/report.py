@@ -22,6 +22,9 @@ from ..caution import CAUTION
 from ..detect.result import WakeAnalysis
 from .summary import assumption_texts, caution_texts, method_rows, overview_cells, summary_rows
 
+#: hand measurements listed per vessel in the PDF (all of them are in the JSON record)
+MAX_HAND_ROWS = 200
+
 
 def page_size_for_locale() -> str:
     """'Letter' for the US and Canada style locales, 'A4' elsewhere (common practice, no source)."""
@@ -186,8 +189,10 @@ def _vessel_section(v: dict, r: WakeAnalysis, i: int, n: int, img: np.ndarray, v
                 "; ".join(f"({p[0]:.1f}, {p[1]:.1f})" for p in m["points_px"]),
                 f"{m['placement_px']:.1f}",
             ]
-            for m in hand
+            for m in hand[:MAX_HAND_ROWS]
         ]
+        if len(hand) > MAX_HAND_ROWS:
+            hrows.append(["...", f"{len(hand) - MAX_HAND_ROWS:,} more: every one is in the JSON record", "", ""])
         out.append(_table(hrows, [22 * mm, 70 * mm, 60 * mm, width - 152 * mm], small, header=True))
     else:
         out.append(Paragraph("none made for this vessel", small))

@@ -24,7 +24,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import WakemeterError
-from ..fileio import atomic_write_bytes
+from ..fileio import atomic_write_bytes, clean_stale
 from .model import Measurement, Project, Vessel
 
 SCHEMA = "wakemeter.session/2"
@@ -87,6 +87,10 @@ def _plain(x: object) -> object:
 MAX_SESSION_BYTES = 64 << 20
 #: sessions are shallow (about 8 levels); deeper nesting is refused before validation
 MAX_DEPTH = 32
+#: the most vessels and measurements a session holds: the work of reading, checking and reporting it stays
+#: bounded (a whole-scene vessel search marks a few thousand; an analyst measures tens per vessel)
+MAX_VESSELS = 10_000
+MAX_MEASUREMENTS = 20_000
 
 
 def load(path: str | os.PathLike) -> dict:
@@ -97,6 +101,7 @@ def load(path: str | os.PathLike) -> dict:
     field and what was expected.  The file is never changed.
     """
     p = Path(path)
+    clean_stale(p.parent)  # a killed save's hidden temporaries beside the session go when it is next read
     try:
         size = p.stat().st_size
         if size > MAX_SESSION_BYTES:
@@ -130,6 +135,12 @@ def load(path: str | os.PathLike) -> dict:
             raise SessionError(f"{p.name}: the session is incomplete (no '{key}')")
     if _depth(data) > MAX_DEPTH:
         raise SessionError(f"{p.name}: not a valid session file (nested deeper than {MAX_DEPTH} levels)")
+    for key, most in (("vessels", MAX_VESSELS), ("measurements", MAX_MEASUREMENTS)):
+        if isinstance(data[key], list) and len(data[key]) > most:
+            raise SessionError(
+                f"{p.name}: {len(data[key]):,} {key} is more than a session holds (at most {most:,}); "
+                "the file may be damaged or generated"
+            )
     problem = schema_problem(data)
     if problem:
         raise SessionError(f"{p.name}: {problem}")
@@ -278,6 +289,7 @@ def orphaned_autosaves() -> list[Path]:
     """Autosaves whose window is gone without closing (its process died, or it was dropped in this one),
     newest first.  Another running window's autosave is never among them."""
     folder = autosave_folder()
+    clean_stale(folder)  # a killed autosave's hidden temporaries
     try:
         entries = [p for p in folder.iterdir() if _AUTOSAVE_NAME.match(p.name)]
     except OSError:
