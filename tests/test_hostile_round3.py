@@ -256,3 +256,16 @@ def test_a_session_with_too_many_measurements_is_refused_quickly(tmp_path):
     session.write_text(json.dumps(data))
     with pytest.raises(session_mod.SessionError, match="more than a session holds"):
         session_mod.load(session)
+
+
+def test_a_scene_file_named_over_two_lines_gives_a_report(tmp_path):
+    # file names may hold a new line; the picture draws one line, the record keeps the exact name
+    scene = tmp_path / "pass\nnight.tif"
+    shutil.copy(SCENE, scene)
+    out = tmp_path / "out"
+    out.mkdir()
+    rc, lines = _run(["report", str(scene), "--vessel", "-35,36", "--out", str(out)])
+    assert rc == 0, lines
+    (set_dir,) = out.iterdir()
+    record = json.loads(next(p for p in set_dir.iterdir() if p.suffix == ".json").read_text())
+    assert record["provenance"]["scene_file"] == "pass\nnight.tif"

@@ -20,6 +20,7 @@ from PIL import Image, ImageDraw, ImageFont
 
 from ..detect.findings import ARM_KINDS, NARROW_V_KINDS, SegmentKind
 from ..detect.result import WakeAnalysis
+from ..names import clean_name
 from ..palette import COLOURS
 from ..physics.units import KNOT_MPS
 from ..scene import display, geodesy
@@ -118,7 +119,8 @@ class Layout:
 def evidence_layout(
     scene: Scene, analysis: WakeAnalysis, *, scene_label: str = "", vessel_name: str = "", max_side: int = 2400
 ) -> tuple[np.ndarray, Layout]:
-    """The evidence picture and where its decorations were placed."""
+    """The evidence picture and where its decorations were placed (names drawn as one bounded line)."""
+    scene_label, vessel_name = clean_name(scene_label), clean_name(vessel_name)
     crop, step = crop_for(scene, analysis, max_side=max_side)
     oh, ow = crop.height // step, crop.width // step
     bands = display.true_colour_bands(scene.info.band_descriptions) if scene.info.count >= 3 else (1,)

@@ -20,6 +20,7 @@ from reportlab.platypus import Image, PageBreak, Paragraph, SimpleDocTemplate, S
 
 from ..caution import CAUTION
 from ..detect.result import WakeAnalysis
+from ..names import clean_name
 from .summary import assumption_texts, caution_texts, method_rows, overview_cells, summary_rows
 
 #: hand measurements listed per vessel in the PDF (all of them are in the JSON record)
@@ -128,7 +129,7 @@ def write_pdf(
         canvas.drawString(
             16 * mm,
             8 * mm,
-            f"wakemeter evidence report - {ref}{prov['scene_file'][:60]} - "
+            f"wakemeter evidence report - {ref}{clean_name(prov['scene_file'], limit=60)} - "
             f"sha256 {prov['scene_sha256'][:16]}... - page {doc_.page}",
         )
         canvas.restoreState()
