@@ -494,3 +494,76 @@ def test_find_vessels_then_analyse_all(qtbot, tmp_path, monkeypatch):
     qtbot.waitUntil(lambda: w.job is None and not w.controller.queue, timeout=120_000)
     assert len(w.doc.findings) == len(truth)
     w.close()
+
+
+def test_what_was_typed_for_a_vessel_stays_with_it_when_another_is_selected(win, qtbot):
+    # a limit, a depth and a current typed for one vessel are there when it is selected again (and saved),
+    # without analysing it first; the other vessel's form starts empty (program behaviour, no source)
+    p = win.controller.panel
+    first = next(iter(win.doc.vessels))
+    win.doc.select(first)
+    p.form.use_limit.setChecked(True)
+    p.form.limit.setValue(10.0)
+    p.form.depth_input.setValue(12.0)
+    second = win.doc.new_id()
+    win.doc.undo.push(AddItem(win.doc, Vessel(second, "Hollin Mere", (100.0, 100.0)), "mark vessel"))
+    win.doc.select(second)
+    assert p.form.limit.value() == 0.0 and not p.form.use_limit.isChecked()
+    win.doc.select(first)
+    assert p.form.use_limit.isChecked() and p.form.limit.value() == pytest.approx(10.0)
+    assert p.form.depth_input.value() == pytest.approx(12.0)
+    req = win.doc.requests[first]
+    assert req.speed_limit is not None and req.depth is not None and req.depth.value == pytest.approx(12.0)
+    assert second not in win.doc.requests  # nothing typed: nothing stored
+    assert win.controller.has_unsaved_work()
+
+
+def test_opening_another_scene_asks_about_unsaved_work_and_keeps_it(win, qtbot, monkeypatch):
+    # Open scene with unsaved work: cancelled, nothing changes; answered "keep" (as offscreen, where nobody
+    # can be asked), the work stays in its own autosave and is offered at the next start, and the new scene
+    # gets a new autosave (program behaviour, no source)
+    from wakemeter.project.session import orphaned_autosaves
+
+    other = ROOT / "sample_scenes" / "calm_no_wake.tif"
+    monkeypatch.setattr(win, "ask_unsaved", lambda: "cancel")
+    assert not win.open_path(str(other))
+    assert win.doc.scene.info.path.name == SCENE.name and len(win.doc.vessels) == 1
+    monkeypatch.setattr(win, "ask_unsaved", lambda: "keep")
+    before = win.controller.autosave_file
+    assert win.open_path(str(other))
+    assert win.doc.scene.info.path.name == other.name and not win.doc.vessels
+    assert win.controller.autosave_file != before and before.exists()
+    assert before in orphaned_autosaves()
+    offered = []
+    w2 = MainWindow()
+    qtbot.addWidget(w2)
+    w2.controller.offer_restore(ask=lambda text: offered.append(text) or False)
+    assert offered and SCENE.name in offered[0] and "1 vessel(s)" in offered[0]  # says which scene, how much
+
+
+def test_position_reports_of_one_scene_are_not_kept_for_the_next(win, qtbot, tmp_path, monkeypatch):
+    import datetime as _dt
+
+    from wakemeter.synth.reports import straight_track, to_csv_text
+
+    t = _dt.datetime(2026, 6, 14, 10, 32, 5, tzinfo=_dt.UTC)
+    f = tmp_path / "reports.csv"
+    f.write_text(to_csv_text(straight_track("235000001", -35.0, 36.0, 62.0, 14.0, t)))
+    assert win.load_reports(str(f)) and win.canvas.report_marks
+    monkeypatch.setattr(win, "ask_unsaved", lambda: "discard")
+    assert win.open_path(str(ROOT / "sample_scenes" / "calm_no_wake.tif"))
+    assert win.canvas.report_marks == [] and win.controller.reports == []
+
+
+def test_the_programs_own_launch_offers_recovery_with_a_scene_given(tmp_path, monkeypatch, qtbot):
+    # `python3 tasks.py run` passes the demo scene: the offer must still come (it came only without a scene)
+    from wakemeter.app import main as app_main
+    from wakemeter.app.controller import Controller
+
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    offered = []
+    monkeypatch.setattr(Controller, "offer_restore", lambda self, ask=None: offered.append(True) or False)
+    monkeypatch.setattr("PySide6.QtWidgets.QApplication.exec", lambda self: 0)
+    assert app_main.run_program([str(SCENE)]) == 0
+    assert offered == [True]

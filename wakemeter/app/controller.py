@@ -14,7 +14,7 @@ from PySide6.QtCore import QObject, QTimer
 
 from ..errors import WakemeterError
 from ..project import session as session_mod
-from .document import Document, SetFinding, SetRejected
+from .document import Document, SetFinding, SetRejected, SetRequest
 from .results import ResultsPanel
 from .workers import Job
 
@@ -66,12 +66,14 @@ class Controller(QObject):
     def refresh(self) -> None:
         vid = self.doc.vessel_of_selection()
         if vid is None or vid not in self.doc.vessels:
+            prev, self._shown_vid = self._shown_vid, None
+            self._keep_form(prev)
             self.panel.show_result(None, None)
-            self._shown_vid = None
             return
         if vid != self._shown_vid:
+            prev, self._shown_vid = self._shown_vid, vid
+            self._keep_form(prev)
             self.panel.set_request(self.doc.requests.get(vid))
-            self._shown_vid = vid
         eff = self.doc.effective_finding(vid)
         name = self.doc.vessels[vid].name
         if eff is None:
@@ -82,6 +84,23 @@ class Controller(QObject):
             c = self.report_comparisons()[0].get(vid)
             compared = None if c is None else c.text
         self.panel.show_result(name, eff, rejected=vid in self.doc.rejected, position_report=compared)
+
+    def _keep_form(self, vid: int | None) -> None:
+        """What the form says about the vessel shown until now stays with it (one undo step), so a limit or a
+        depth typed for it is there when it is selected again, and in the session."""
+        v = self.doc.vessels.get(vid) if vid is not None else None
+        if v is None or vid is None:
+            return
+        old = self.doc.requests.get(vid)
+        try:
+            new = self.panel.request(v.position, old)
+        except WakemeterError:  # a value the form cannot turn into a request: the stored one stays
+            return
+        from ..detect.request import AnalysisRequest
+
+        nothing_typed = old is None and new == AnalysisRequest(vessel_px=v.position).at_pixel(v.position)
+        if new != old and not nothing_typed:
+            self.doc.undo.push(SetRequest(self.doc, vid, new, f"details of {v.name}"))
 
     # ---- analysis ---------------------------------------------------------
     def analyse_selected(self) -> None:
@@ -227,7 +246,11 @@ class Controller(QObject):
         orphans = session_mod.orphaned_autosaves()
         for i, p in enumerate(orphans):
             when = _dt.datetime.fromtimestamp(p.stat().st_mtime).strftime("%Y-%m-%d %H:%M")
-            if ask(f"A wakemeter window did not close normally. Restore the work it saved automatically at {when}?"):
+            what = session_mod.describe_autosave(p)
+            if ask(
+                f"A wakemeter window did not close normally. Restore the work it saved automatically at {when} "
+                f"({what})?"
+            ):
                 adopted = session_mod.adopt_autosave(p)
                 if not self.open_session(str(adopted)):
                     return False
@@ -245,6 +268,16 @@ class Controller(QObject):
     def has_unsaved_work(self) -> bool:
         """Vessels or measurements changed since the session was last saved or opened, or restored work."""
         return bool(self.doc.vessels or self.doc.measurements) and (self.restored or not self.doc.undo.isClean())
+
+    def scene_replaced(self, *, kept_work: bool) -> None:
+        """Another scene was opened: the work of the one before stays in its autosave when ``kept_work`` (offered
+        at the next start) and is otherwise removed; the new scene gets its own autosave and no position
+        reports (those belonged to the scene before)."""
+        session_mod.release_autosave(self.autosave_file, remove=not kept_work)
+        self.autosave_file = session_mod.new_autosave_path()
+        self.restored = False
+        self.reports, self.report_time = [], None
+        self._shown_vid = None
 
     def closing(self, *, discard: bool = False) -> None:
         """The window closes: its own autosave is removed only when nothing would be lost (the work was

@@ -248,3 +248,26 @@ class SetRejected(QUndoCommand):
 
     def undo(self) -> None:
         self._set(not self.value)
+
+
+class SetRequest(QUndoCommand):
+    """What the analyst told the program about a vessel (depth, hull length, limit, current...): kept with the
+    vessel when another one is selected, undoable, and saved with the session."""
+
+    def __init__(self, doc: Document, vessel_id: int, new, text: str = "vessel details"):
+        super().__init__(text)
+        self.doc, self.vid, self.new = doc, vessel_id, new
+        self.old = doc.requests.get(vessel_id)
+
+    def _set(self, value) -> None:
+        if value is None:
+            self.doc.requests.pop(self.vid, None)
+        else:
+            self.doc.requests[self.vid] = value
+        self.doc.changed.emit()
+
+    def redo(self) -> None:
+        self._set(self.new)
+
+    def undo(self) -> None:
+        self._set(self.old)

@@ -64,7 +64,17 @@ class FileDialogs(WindowPart):
     def open_session_dialog(self) -> None:
         path = self._ask_open("session", "Open session", SESSION_FILTER)
         if path:
-            self.controller.open_session(path)
+            self.open_session_path(path)
+
+    def open_session_path(self, path: str) -> bool:
+        """Open a session in place of the scene and work shown (asking first about unsaved work)."""
+        leaving = self._may_leave_scene()
+        if leaving is None:
+            return False
+        if leaving != "nothing":
+            self.controller.scene_replaced(kept_work=leaving == "keep")
+        self.canvas.report_marks = []
+        return self.controller.open_session(path)
 
     def locate_scene(self, old: str | None, problem: str) -> str | None:
         if not self.confirm("Scene not found", f"{problem}:\n{old}\n\nLocate the scene?"):

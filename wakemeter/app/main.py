@@ -35,11 +35,11 @@ def run_program(argv: list[str]) -> int:
         w, h = (int(x) for x in args.size.lower().split("x"))
         win.resize(w, h)
     win.show()
-    if not args.screenshot and not args.scene:
-        win.controller.offer_restore()
     if args.scene:
         app.processEvents()
         win.open_path(args.scene)
+    if not args.screenshot:  # also with a scene given (as `tasks.py run` does): restoring replaces it
+        win.controller.offer_restore()
     if args.screenshot:
         app.processEvents()
         win.canvas.fit()

@@ -226,6 +226,9 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         reads system or private files (a crafted VRT) is opened only when the analyst confirms."""
         from ..scene.limits import ReferencedFilesError
 
+        leaving = self._may_leave_scene()
+        if leaving is None:
+            return False
         try:
             try:
                 self.doc.open(path)
@@ -242,9 +245,32 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         except WakemeterError as err:
             self.error(f"Could not open {Path(path).name}", str(err))
             return False
+        if leaving != "nothing":
+            self.controller.scene_replaced(kept_work=leaving == "keep")
+        self.controller.session_path = None  # a scene opened on its own belongs to no session file yet
+        self.canvas.report_marks = []
         self._remember(path)
         self.setWindowTitle(f"wakemeter — {Path(path).name}")
         return True
+
+    def _may_leave_scene(self) -> str | None:
+        """Before another scene replaces this one: None to stay; "nothing" when there is no scene; "keep" when
+        the unsaved work stays in its autosave (offered at the next start); "done" when it was saved or
+        discarded."""
+        if self.doc.scene is None:
+            return "nothing"
+        if not self.controller.has_unsaved_work():
+            return "done"
+        answer = self.ask_unsaved()
+        if answer == "cancel":
+            return None
+        if answer == "save":
+            self.save_dialog()
+            return None if self.controller.has_unsaved_work() else "done"
+        if answer == "keep":
+            self.controller.autosave_now()
+            return "keep"
+        return "done"
 
     def _on_scene(self) -> None:
         sc = self.doc.scene

@@ -305,6 +305,20 @@ def orphaned_autosaves() -> list[Path]:
     return sorted(out, key=lambda q: q.stat().st_mtime if q.exists() else 0.0, reverse=True)
 
 
+def describe_autosave(p: Path) -> str:
+    """What an automatic save holds, in a few words: its scene's file name and how much work."""
+    try:
+        if p.stat().st_size > MAX_SESSION_BYTES:
+            return "contents too large to read here"
+        data = json.loads(p.read_bytes().decode("utf-8"))
+        scene = Path(str((data.get("scene") or {}).get("absolute_path") or "an unknown scene")).name
+        vessels, measurements = len(data.get("vessels") or ()), len(data.get("measurements") or ())
+        analysed = len(data.get("findings") or {})
+    except (OSError, ValueError, AttributeError, TypeError):
+        return "contents unreadable"
+    return f"{scene}: {vessels} vessel(s) ({analysed} analysed), {measurements} hand measurement(s)"
+
+
 def adopt_autosave(orphan: Path) -> Path:
     """Make a dead window's autosave this window's own (one rename), so no other window offers it again."""
     new = new_autosave_path()

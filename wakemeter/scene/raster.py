@@ -99,6 +99,10 @@ class SceneInfo:
     files: tuple[str, ...] = ()  #: every file the scene reads (the scene's own first; a VRT lists its sources)
 
 
+#: how long closing a scene waits for reads in progress in other threads (s)
+CLOSE_WAIT_S = 30.0
+
+
 class Scene:
     """An opened scene: metadata plus thread-safe windowed reading.
 
@@ -111,6 +115,9 @@ class Scene:
         self._local = threading.local()
         self._handles: list = []
         self._lock = threading.Lock()
+        self._idle = threading.Condition(self._lock)  #: notified when the last read in progress ends
+        self._readers = 0
+        self._closed = False
         self._sha256: str | None = None
         self.pyramid: list[tuple[int, Path]] = []  #: (factor, path) of cached reduced levels, if built
         self.calibration: geodesy.LocalFrame | None = None  #: hand calibration of a plain image
@@ -123,7 +130,11 @@ class Scene:
         self.close()
 
     def close(self) -> None:
+        """Close the file; reads in progress in other threads (the window's tiles) finish first, later ones
+        are refused (GDAL crashes on a dataset closed under a read)."""
         with self._lock:
+            self._closed = True
+            self._idle.wait_for(lambda: self._readers == 0, timeout=CLOSE_WAIT_S)
             for h in self._handles:
                 try:
                     h.close()
@@ -131,6 +142,19 @@ class Scene:
                     pass
             self._handles.clear()
         self._local = threading.local()
+
+    @contextlib.contextmanager
+    def _reading(self) -> Iterator[None]:
+        with self._lock:
+            if self._closed:
+                raise SceneReadError(f"{self.info.path.name}: the scene was closed")
+            self._readers += 1
+        try:
+            yield
+        finally:
+            with self._lock:
+                self._readers -= 1
+                self._idle.notify_all()
 
     def _dataset(self, path: Path | None = None):
         path = path or self.info.path
@@ -256,15 +280,16 @@ class Scene:
                 break
         win = Window(c0 / scale, r0 / scale, w / scale, h / scale)
         try:
-            ds = self._dataset(path)
-            arr = ds.read(
-                list(bands),
-                window=win,
-                out_shape=(len(bands), oh, ow),
-                resampling=resampling,
-                masked=True,
-                boundless=False,
-            )
+            with self._reading():
+                ds = self._dataset(path)
+                arr = ds.read(
+                    list(bands),
+                    window=win,
+                    out_shape=(len(bands), oh, ow),
+                    resampling=resampling,
+                    masked=True,
+                    boundless=False,
+                )
         except GDAL_ERRORS as err:
             raise SceneReadError(
                 f"{self.info.path.name}: the pixels cannot be read - the file may be truncated or corrupt "
