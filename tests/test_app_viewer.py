@@ -306,3 +306,25 @@ def test_file_dialogs_start_at_the_scene_and_name_the_session_after_it(win, tmp_
     win.used_folder("reports", str(elsewhere / "ais.csv"))
     assert win.start_folder("reports") == str(elsewhere)
     assert win.start_folder("gis") == str(scene.parent)
+
+
+def test_the_redo_key_redoes(win, qtbot):
+    # Ctrl+Z then Ctrl+Shift+Z through the real key handling: the vessel comes back (it was bound twice and
+    # did nothing; program behaviour, no source)
+    from PySide6.QtCore import Qt as _Qt
+    from PySide6.QtWidgets import QApplication
+
+    from wakemeter.app.document import AddItem, Vessel
+
+    assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
+    win.doc.undo.push(AddItem(win.doc, Vessel(win.doc.new_id(), "Tern", (10.0, 10.0)), "mark vessel"))
+    win.activateWindow()
+    win.canvas.setFocus()
+    qtbot.keyClick(win.canvas, _Qt.Key.Key_Z, _Qt.KeyboardModifier.ControlModifier)
+    QApplication.processEvents()
+    assert not win.doc.vessels
+    qtbot.keyClick(
+        win.canvas, _Qt.Key.Key_Z, _Qt.KeyboardModifier.ControlModifier | _Qt.KeyboardModifier.ShiftModifier
+    )
+    QApplication.processEvents()
+    assert [v.name for v in win.doc.vessels.values()] == ["Tern"]

@@ -25,6 +25,8 @@ NOT_TUNING = {
     "request.py:MAX_SPEED_MPS": "input bound (absurd parameters refused)",
     "handmeasure.py:PLACEMENT_PX": "hand-placement uncertainty of a point, not a decision",
     "handmeasure.py:PLACEMENT_SCREEN_PX": "hand-placement uncertainty of a point, not a decision",
+    "handmeasure.py:MIN_CREST_PX": "sampling limit of the pixel grid (Shannon 1949) with a margin, not tuned",
+    "handmeasure.py:DOUBTFUL_CREST_PX": "where half a pixel of aliasing doubt is added to a hand spacing",
     "revise.py:HAND_ANGLE_STD_DEG": "hand-drawn arm uncertainty, not a decision",
     "revise.py:HAND_ANGLE_MAX_DEG": "input bound of a hand-drawn arm",
     "tuning.py:REACH_FRACTION": "geometry of the chip (largest radius inside it)",

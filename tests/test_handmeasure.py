@@ -69,3 +69,30 @@ def test_ruler_matches_geodesic():
             hm.ruler(sc, (10, 10), (10.5, 10))
         with pytest.raises(ParameterError, match="16 pixels"):
             hm.crest_ruler(sc, (10, 10), (20, 10))
+
+
+@pytest.mark.parametrize("period_px, outcome", [(2.4, "refused"), (4.0, "doubtful"), (10.0, "plain")])
+def test_crests_close_to_the_pixel_grid_are_refused_or_carry_the_doubt(tmp_path, period_px, outcome):
+    # a pattern repeating every 2.4 px is at the grid's own scale (2 px per wave is the sampling limit,
+    # Shannon 1949): refused; at 4 px the spacing is measured with half a pixel more uncertainty; at 10 px as
+    # before (8 m pixels)
+    import rasterio
+    from rasterio.transform import from_origin
+
+    cols = np.arange(200)
+    img = 100 + 40 * np.sin(2 * np.pi * cols / period_px)[None, :].repeat(200, axis=0)
+    path = tmp_path / f"grid_{period_px}.tif"
+    prof = dict(driver="GTiff", width=200, height=200, count=1, dtype="float32", crs="EPSG:32631")
+    with rasterio.open(path, "w", transform=from_origin(500_000, 5_800_000, 8.0, 8.0), **prof) as d:
+        d.write(img.astype(np.float32)[None])
+    with open_scene(path) as sc:
+        if outcome == "refused":
+            with pytest.raises(ParameterError, match="pixel grid"):
+                hm.crest_ruler(sc, (20.0, 100.0), (180.0, 100.0))
+            return
+        c = hm.crest_ruler(sc, (20.0, 100.0), (180.0, 100.0))
+    assert c.spacing_m == pytest.approx(period_px * 8.0, rel=0.02)
+    if outcome == "doubtful":
+        assert c.spacing_std_m >= 0.5 * 8.0 * 0.999
+    else:
+        assert c.spacing_std_m < 0.5 * 8.0

@@ -65,3 +65,23 @@ def test_revision_keeps_the_intervals_cover_of_shallower_water(demo):
     cover = a.interval_cover
     assert cover is not None  # the demo's deep-water fit leaves Fr_h 0.75 open (see its regime explanation)
     assert r.speed.ci95_low_mps <= cover.low_mps + 1e-9 and r.speed.ci95_high_mps >= cover.high_mps - 1e-9
+
+
+def test_two_arms_drawn_by_hand_are_combined_not_the_last_one_taken():
+    # two arm readings 20.9 +- 0.5 and 18.1 +- 0.5 deg: weighted mean 19.5 deg; the readings scatter 4 times
+    # more than their uncertainties say (chi2 = 15.68 with 1 degree of freedom), so the uncertainty 0.35 deg
+    # is widened by the Birge ratio 3.96 to 1.4 deg (Birge 1932, Phys. Rev. 40, 207; hand-worked here)
+    from wakemeter.physics.inversion import weighted_mean
+    from wakemeter.project import Measurement, Project, Vessel
+
+    mean, std = weighted_mean([20.9, 18.1], [0.5, 0.5])
+    assert mean == pytest.approx(19.5) and std == pytest.approx(1.4, rel=1e-6)
+    assert weighted_mean([19.0, 19.2], [0.5, 0.5])[1] == pytest.approx(0.5 / 2**0.5)  # agreeing: not widened
+    p = Project()
+    p.vessels[1] = Vessel(1, "Tern", (10.0, 10.0))
+    for mid, ang in ((2, 20.9), (3, 18.1)):
+        p.measurements[mid] = Measurement(
+            mid, "arm", ((10.0, 10.0), (50.0, 30.0)), 1, values={"half_angle_deg": ang, "half_angle_std_deg": 0.5}
+        )
+    arm = p.hand_corrections(1).half_angle
+    assert arm is not None and arm[0] == pytest.approx(19.5) and arm[1] == pytest.approx(1.4, rel=1e-6)

@@ -103,6 +103,15 @@ class CrestRuler:
     step_m: float  #: ground distance between profile samples
 
 
+#: crests closer than this many pixels cannot be told from the pixel grid: 2 px per wave is the sampling limit
+#: (Shannon 1949, Proc. IRE 37, 10-21); resampling and compression make 2-3 px moire of their own (common
+#: practice, no source)
+MIN_CREST_PX = 3.0
+#: below this many pixels per crest a spacing may be a neighbouring alias: half a pixel is added to its
+#: uncertainty (common practice, no source)
+DOUBTFUL_CREST_PX = 5.0
+
+
 def crest_ruler(
     scene: Scene,
     p0: Point,
@@ -135,7 +144,15 @@ def crest_ruler(
     lam, sd, snr = crest_spacing(prof, step_m, band_m=band_m)
     if not np.isfinite(lam):
         raise ParameterError("no regular crests along this line; draw it across several crests")
+    px_m = r.length_m / d_px  # ground size of one pixel along the line
+    if lam < MIN_CREST_PX * px_m:
+        raise ParameterError(
+            f"the pattern repeats every {lam / px_m:.1f} pixels ({lam:.1f} m): that close to the pixel grid it "
+            "cannot be told from aliasing or resampling moire; measure crests on finer imagery"
+        )
     # the Cramer-Rao bound ignores crest curvature and placement; floor of 0.6 % (as the analysis uses,
     # calibrated on synthetic scenes) plus the ruler's own length uncertainty
     sd = float(np.hypot(max(sd, 0.006 * lam), lam * r.length_std_m / r.length_m))
+    if lam < DOUBTFUL_CREST_PX * px_m:  # few pixels per crest: the grid may shift the peak by half a pixel
+        sd = float(np.hypot(sd, 0.5 * px_m))
     return CrestRuler(lam, sd, snr, r.bearing_deg, prof, step_m)

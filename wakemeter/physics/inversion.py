@@ -396,6 +396,21 @@ def speed_from_arm_angle_and_hull_length(
     )
 
 
+def weighted_mean(values: list[float], stds: list[float]) -> tuple[float, float]:
+    """Several readings of one quantity: their inverse-variance weighted mean and its standard uncertainty,
+    widened by the Birge ratio sqrt(chi2 / (n - 1)) when the readings scatter more than their uncertainties
+    say (Birge 1932, Phys. Rev. 40, 207; never narrowed)."""
+    x, s = np.asarray(values, float), np.asarray(stds, float)
+    if x.size == 0 or x.size != s.size or np.any(~np.isfinite(x)) or np.any(~(s > 0)):
+        raise ParameterError("weighted_mean needs readings with finite values and uncertainties > 0")
+    w = 1.0 / s**2
+    mean = float(np.sum(w * x) / np.sum(w))
+    std = float(np.sqrt(1.0 / np.sum(w)))
+    if x.size > 1:
+        std *= max(1.0, float(np.sqrt(np.sum(w * (x - mean) ** 2) / (x.size - 1))))
+    return mean, std
+
+
 def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) -> CombinedSpeed:
     """Combine independent speed estimates; test their consistency with chi-square.
 

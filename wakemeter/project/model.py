@@ -20,6 +20,7 @@ from ..errors import WakemeterError
 from ..names import clean_name
 from ..physics import inversion as inv
 from ..physics import units
+from ..physics.inversion import weighted_mean
 from ..scene.raster import Scene
 
 Point = tuple[float, float]
@@ -238,7 +239,8 @@ class Project:
 
     # ---- findings -------------------------------------------------------
     def hand_corrections(self, vessel_id: int) -> HandCorrections:
-        """The last crest ruler and the last arm of the vessel, as corrections (the rules live here only)."""
+        """The last crest ruler and every arm of the vessel (combined: their weighted mean, widened when they
+        disagree), as corrections (the rules live here only)."""
         crest = [
             m
             for m in self.measurements.values()
@@ -258,8 +260,10 @@ class Project:
                 min(v.get("angle_to_track_deg", 0.0), HAND_ANGLE_MAX_DEG),
             )
         if arm:
-            v = arm[-1].values
-            hand_arm = (v["half_angle_deg"], max(v["half_angle_std_deg"], HAND_ARM_STD_MIN_DEG))
+            hand_arm = weighted_mean(
+                [m.values["half_angle_deg"] for m in arm],
+                [max(m.values["half_angle_std_deg"], HAND_ARM_STD_MIN_DEG) for m in arm],
+            )
         return HandCorrections(hand_crest, hand_arm)
 
     def effective_finding(self, vessel_id: int) -> WakeAnalysis | None:
