@@ -390,6 +390,8 @@ def test_speed_limit_and_current_from_the_panel(win, qtbot):
     assert check["over_ground"]["median_knots"] == pytest.approx(check["through_water"]["median_knots"] - 1.0, abs=0.05)
     html = p.text.toHtml()
     assert "is below the 16.0 kn limit" in html and "Hallow Sound tide table" in html
+    plain = p.text.toPlainText()
+    assert plain.index("Speed limit") < plain.index("Heading (true bearing)")  # the verdict beside the headline
     p.set_request(win.doc.requests.get(vid) or win.doc.effective_finding(vid).request)
     assert p.form.use_current.isChecked() and p.form.limit.value() == pytest.approx(16.0)
 

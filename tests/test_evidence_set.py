@@ -264,3 +264,29 @@ def test_umask_is_read_once_and_not_by_setting_it():
     mask = os.umask(0o022)
     os.umask(mask)
     assert fileio.UMASK == mask and fileio.FILE_MODE == 0o666 & ~mask
+
+
+def test_the_report_puts_the_verdict_first_and_says_who_on_every_page(tmp_path, capsys):
+    # the limit's verdict sits beside the speed (before the heading) in the PDF and the CLI text; every page's
+    # foot names the analyst and "page N of M"; a report without an analyst says so on its first page; the
+    # picture's colours have a legend (program behaviour, no source)
+    scene = "sample_scenes/harbour_approach_optical.tif"
+    for analyst in ("R. Quill", None):
+        out = tmp_path / f"out_{analyst is None}"
+        out.mkdir()
+        argv = ["report", scene, "--vessel", "-35,36", "--speed-limit", "10", "--out", str(out)]
+        assert main(argv + (["--analyst", analyst] if analyst else [])) == 0
+        (pdf,) = out.glob("*/*.pdf")
+        pages = [" ".join(p.extract_text().split()) for p in PdfReader(str(pdf)).pages]
+        n = len(pages)
+        for i, text in enumerate(pages, 1):
+            assert f"page {i} of {n}" in text
+            assert (analyst or "no analyst named") in text
+        first = pages[0]
+        assert first.index("Speed limit") < first.index("Heading (true bearing)")
+        assert ("Unattributed" in first) == (analyst is None)
+        assert any("Colours:" in t and "wake arms found" in t for t in pages)
+    capsys.readouterr()
+    assert main(["analyze", scene, "--vessel", "-35,36", "--speed-limit", "10"]) == 0
+    text = capsys.readouterr().out
+    assert text.index("Speed limit") < text.index("Heading (true bearing)")

@@ -168,11 +168,25 @@ def test_plain_image_with_a_given_pixel_size(tmp_path, capsys):
     truth = json.loads(open("sample_scenes/harbour_approach_optical.truth.json").read())["vessels"][0]
     px = f"{truth['pixel_col']:.0f},{truth['pixel_row']:.0f}"
     assert main(["analyze", str(plain), "--vessel-px", px]) == 2
-    assert "no georeference" in capsys.readouterr().err
+    err = capsys.readouterr().err
+    assert "no georeference" in err and "--pixel-size" in err  # the option that helps is named
     assert main(["analyze", str(plain), "--vessel-px", px, "--pixel-size", "2.0", "--north-up", "0", "--json"]) == 0
     r = json.loads(capsys.readouterr().out)
     lo, hi = r["speed_ci95_mps"]
     assert lo <= truth["speed_mps"] <= hi
+    assert main(["analyze", str(plain), "--vessel-px", px, "--pixel-size", "2.0"]) == 0
+    text = capsys.readouterr().out
+    assert "no latitude" in text and "vessel's latitude" not in text  # a plain image has no latitude to name
     assert main(["analyze", src, "--vessel", "-35,36", "--pixel-size", "2"]) == 2
     assert "is georeferenced" in capsys.readouterr().err
     assert main(["report", str(plain), "--vessel-px", px, "--pixel-size", "2.0", "--out", str(tmp_path)]) == 0
+
+
+def test_assumptions_do_not_deny_a_current_that_was_given(capsys):
+    # with a current given, no assumption may say there is none; the georeferenced demo names its latitude
+    # (program behaviour, no source)
+    argv = ["analyze", "sample_scenes/harbour_approach_optical.tif", "--vessel", "-35,36"]
+    assert main([*argv, "--current", "1.0,240", "--current-source", "Hallow Sound tide table"]) == 0
+    text = capsys.readouterr().out
+    assert "no current" not in text
+    assert "vessel's latitude, 36.0" in text

@@ -20,3 +20,13 @@ COLOURS: dict[str, tuple[int, int, int]] = {
 }
 #: the analysis's own marks are drawn a little transparent on screen, above the analyst's (0-255)
 FINDING_ALPHA = {"track": 170, "arm": 170, "chip": 150, "crest": 150, "narrow_v": 190}
+
+#: what each colour of the evidence picture shows (its legend, in the report)
+LEGEND: dict[str, str] = {
+    "vessel": "vessel (circle); a radar hull away from its wake (square)",
+    "track": "track behind the vessel (heading)",
+    "arm": "wake arms found",
+    "narrow_v": "radar narrow-V arms",
+    "chip": "area analysed",
+    "crest": "crest lines fitted",
+}

@@ -129,13 +129,17 @@ def result_html(a: WakeAnalysis, rejected: bool = False, position_report: str | 
         speed = f"{main[0][0]}: {speed}"
     else:
         speed = "Wake seen as a line: no speed (see the cautions)"
-    extra = [("Position report", position_report)] if position_report else []
-    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in main[2:] + extra)
+    checks = summary.speed_check_rows(a)
+    verdicts = checks + ([("Position report", position_report)] if position_report else [])
+    rest = main[2 + len(checks) :]
+    said = "".join(f"<p style='margin:2px 0'><b>{esc(k)}:</b> {esc(v)}</p>" for k, v in verdicts)
+    rows = "".join(f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in rest)
     methods = "".join("<tr>" + "".join(f"<td>{esc(c)}</td>" for c in m) + "</tr>" for m in summary.method_rows(a))
     return (
         ("<p style='color:#c33'><b>Rejected:</b> kept on record, not used or exported.</p>" if rejected else "")
         + f"<h2 style='margin-bottom:2px'>{esc(speed)}</h2>"
         f"<p style='margin-top:0'>95 % interval <b>{esc(interval)}</b></p>"
+        f"{said}"
         f"<table cellspacing=4>{rows}</table>"
         "<h4>Methods</h4><table border=0 cellspacing=4><tr><th align=left>method</th><th>m/s</th>"
         f"<th>95 % (m/s)</th><th>kn</th></tr>{methods}</table>"

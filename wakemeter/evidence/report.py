@@ -21,7 +21,8 @@ from reportlab.platypus import Image, PageBreak, Paragraph, SimpleDocTemplate, S
 from ..caution import CAUTION
 from ..detect.result import WakeAnalysis
 from ..names import clean_name
-from .summary import assumption_texts, caution_texts, method_rows, overview_cells, summary_rows
+from ..palette import COLOURS, LEGEND
+from .summary import assumption_texts, caution_texts, method_rows, overview_cells, speed_check_rows, summary_rows
 
 #: hand measurements listed per vessel in the PDF (all of them are in the JSON record)
 MAX_HAND_ROWS = 200
@@ -89,6 +90,13 @@ def write_pdf(
         ["Vessels in this report", str(len(vessels))],
     ]
     story.append(_table(crows, [45 * mm, width - 45 * mm], small))
+    if not case["analyst"]:
+        story.append(
+            Paragraph(
+                "<b>Unattributed:</b> no analyst was named for this report; it cannot be attributed to a person.",
+                warn,
+            )
+        )
     if len(vessels) > 1:
         story += [Spacer(1, 3 * mm), Paragraph("Vessels", st["Heading2"])]
         orows = [["#", "Vessel", "Speed", "95 % interval", "Heading", "Depth regime"]]
@@ -120,21 +128,45 @@ def write_pdf(
     story.append(Spacer(1, 4 * mm))
     story.append(Paragraph(f"<b>Caution.</b> {_esc(CAUTION)}", warn))
     stamp = pdf_date(case["exported_at"])
+    ref = f"{clean_name(case['reference'], limit=40)} - " if case["reference"] else ""
+    who = clean_name(case["analyst"], limit=40) if case["analyst"] else "no analyst named"
+    line = (
+        f"wakemeter evidence report - {ref}{who} - {clean_name(prov['scene_file'], limit=50)} - "
+        f"sha256 {prov['scene_sha256'][:16]}..."
+    )
 
-    def footer(canvas, doc_) -> None:
+    def dates(canvas, _doc) -> None:
         canvas.setDateFormatter(lambda *_: stamp)  # creation and change dates: the export time
-        canvas.saveState()
-        canvas.setFont("Helvetica", 7)
-        ref = f"{case['reference'][:40]} - " if case["reference"] else ""
-        canvas.drawString(
-            16 * mm,
-            8 * mm,
-            f"wakemeter evidence report - {ref}{clean_name(prov['scene_file'], limit=60)} - "
-            f"sha256 {prov['scene_sha256'][:16]}... - page {doc_.page}",
-        )
-        canvas.restoreState()
 
-    doc.build(story, onFirstPage=footer, onLaterPages=footer)
+    doc.build(story, onFirstPage=dates, onLaterPages=dates, canvasmaker=_footed_canvas(line))
+
+
+def _footed_canvas(line: str):
+    """A canvas class that writes ``line`` and "page N of M" at the foot of every page (the count is known
+    only at the end: each page is kept until the document is saved)."""
+    from reportlab.pdfgen.canvas import Canvas
+
+    class Footed(Canvas):
+        def __init__(self, *args, **kwargs):
+            super().__init__(*args, **kwargs)
+            self._pages: list[dict] = []
+
+        def showPage(self) -> None:  # noqa: N802 - reportlab's name
+            self._pages.append(dict(self.__dict__))
+            self._startPage()
+
+        def save(self) -> None:
+            total = len(self._pages)
+            for state in self._pages:
+                self.__dict__.update(state)
+                self.saveState()
+                self.setFont("Helvetica", 7)
+                self.drawString(16 * mm, 8 * mm, f"{line} - page {self._pageNumber} of {total}")
+                self.restoreState()
+                super().showPage()
+            super().save()
+
+    return Footed
 
 
 def _unmatched_section(unmatched: list, width, st, small) -> list:
@@ -162,13 +194,17 @@ def _vessel_section(v: dict, r: WakeAnalysis, i: int, n: int, img: np.ndarray, v
     if title:
         out.append(Paragraph(_esc(f"Vessel {i} of {n}: {title}" if n > 1 else f"Vessel: {title}"), st["Heading2"]))
     rows = [list(row) for row in summary_rows(r)]
+    n_checks = len(speed_check_rows(r)) if r.wake_found else 0
     if v.get("position_report"):
-        rows.append(["Position report", v["position_report"]["text"]])
-    out.append(_table(rows, [55 * mm, width - 55 * mm], small))
+        rows.insert(2 + n_checks, ["Position report", v["position_report"]["text"]])
+        n_checks += 1
+    marked = range(2, 2 + n_checks) if r.wake_found else ()
+    out.append(_table(rows, [55 * mm, width - 55 * mm], small, marked=marked))
     out.append(Spacer(1, 3 * mm))
     h, w = img.shape[:2]
     img_w = min(width, 170 * mm * w / max(h, 1))
     out.append(Image(_png(img), width=img_w, height=img_w * h / w))
+    out.append(_legend(small))
     out.append(PageBreak())
     out.append(Paragraph("Methods" + (f" - {_esc(title)}" if n > 1 else ""), st["Heading2"]))
     mrows = [["Method", "Speed (m/s)", "95 % interval (m/s)", "Speed (kn)"]] + [list(m) for m in method_rows(r)]
@@ -203,6 +239,16 @@ def _vessel_section(v: dict, r: WakeAnalysis, i: int, n: int, img: np.ndarray, v
     return out
 
 
+def _legend(small) -> Paragraph:
+    """What the colours of the picture show, each behind a square of its colour."""
+    parts = [
+        f"<font color='#{r:02x}{g:02x}{b:02x}'>\u25a0</font> {_esc(text)}"
+        for key, text in LEGEND.items()
+        for (r, g, b) in [COLOURS[key]]
+    ]
+    return Paragraph("Colours: " + "; ".join(parts), small)
+
+
 def pdf_date(iso: str) -> str:
     """A PDF date string (ISO 32000-1, 7.9.4) from an ISO 8601 time; UTC when no zone is given."""
     t = _dt.datetime.fromisoformat(iso)
@@ -233,7 +279,13 @@ def describe_parameters(params: dict) -> str:
     return "; ".join(f"{k} {value(k, v)}" for k, v in params.items() if v is not None and k != "schema")
 
 
-def _table(rows, widths, small, header: bool = False):
+def _table(rows, widths, small, header: bool = False, marked: Sequence[int] = ()):
+    """A table of text cells; ``marked`` rows (the verdicts) are set off in bold on a tinted ground."""
+    bold = small.clone("small_bold", fontName="Helvetica-Bold")
+    rows = [
+        [Paragraph(_esc(c), bold) if isinstance(c, str) and i in marked else c for c in row]
+        for i, row in enumerate(rows)
+    ]
     t = Table(
         [[c if not isinstance(c, str) else Paragraph(_esc(c), small) for c in row] for row in rows], colWidths=widths
     )
@@ -244,6 +296,8 @@ def _table(rows, widths, small, header: bool = False):
     ]
     if header:
         style.append(("BACKGROUND", (0, 0), (-1, 0), colors.HexColor("#dde4ee")))
+    for i in marked:
+        style.append(("BACKGROUND", (0, i), (-1, i), colors.HexColor("#fff1c9")))
     t.setStyle(TableStyle(style))
     return t
 

@@ -64,6 +64,7 @@ def summary_rows(a: WakeAnalysis) -> list[tuple[str, str]]:
         rows = [
             (speed_label(a), speed),
             ("95 % interval", interval),
+            *speed_check_rows(a),  # the limit's verdict and the speed it is judged on, beside the headline
             ("Heading (true bearing)", _heading(a)),
             (
                 "Wake half-angle",
@@ -80,7 +81,6 @@ def summary_rows(a: WakeAnalysis) -> list[tuple[str, str]]:
             ("Depth", _depth(a)),
             ("Consistency of methods", (a.speed.verdict if a.speed else "") or "no speed: nothing to cross-check"),
         ]
-        rows += speed_check_rows(a)
         if a.revised:
             rows.append(("Hand measurements", "included: the result was revised with the analyst's hand measurements"))
     lonlat = a.vessel_lonlat
@@ -176,11 +176,11 @@ def method_assumptions(a: WakeAnalysis) -> list[str]:
 
 def assumption_texts(a: WakeAnalysis) -> list[str]:
     """The methods' assumptions, then the gravity and the pixel the analysis used."""
-    return [
-        *method_assumptions(a),
-        f"gravity {a.gravity_mps2:.4f} m/s² (WGS 84 normal gravity at the vessel's latitude when "
-        f"georeferenced); analysis pixel {a.pixel_m:.2f} m",
-    ]
+    if a.vessel_lonlat is not None:
+        where = f"WGS 84 normal gravity at the vessel's latitude, {a.vessel_lonlat[1]:.4f}°"
+    else:
+        where = "standard gravity: the image has no latitude, so its uncertainty spans every latitude"
+    return [*method_assumptions(a), f"gravity {a.gravity_mps2:.4f} m/s² ({where}); analysis pixel {a.pixel_m:.2f} m"]
 
 
 def caution_texts(a: WakeAnalysis) -> list[str]:

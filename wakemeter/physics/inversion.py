@@ -75,7 +75,10 @@ class Conditions:
         else:
             out.append(f"depth {self.depth_m.value:.2f} ± {self.depth_m.std:.2f} m")
         out.append(f"pixel size relative uncertainty {100 * self.pixel_scale_rel_std:.1f} %")
-        out.append("linear steady waves, vessel at constant speed and heading, no current")
+        out.append(
+            "linear steady waves, vessel at constant speed and heading through the water (a uniform current carries "
+            "the whole pattern and does not change it)"
+        )
         return tuple(out)
 
 
