@@ -75,3 +75,27 @@ def test_western_longitudes_and_a_current_as_the_readme_writes_them(capsys):
     assert "no such file" in capsys.readouterr().err
     assert main(["analyze", "no_such_scene.tif", "--vessel", "-70.5,41.2", "--current", "-1,90"]) == 2
     assert "current speed must be within 0-60 m/s" in capsys.readouterr().err
+
+
+def test_speed_uses_a_half_angle_given_with_a_transverse_wavelength(capsys):
+    # 64 m transverse waves and a 24 deg half-angle: not deep water, so speed and depth come from the pair; the
+    # pair's speed and depth satisfy the finite-depth dispersion relation U^2 = (g/k) tanh(k h) for transverse
+    # waves (Lamb 1932, Hydrodynamics, sec. 228); with a depth of 12 m as well, the speed there gives a
+    # half-angle of 27 deg (Havelock 1908), which contradicts the 24 +- 1 deg measured: said
+    import math
+    import re
+
+    from wakemeter.cli import main
+
+    assert main(["speed", "--transverse-wavelength", "64", "--half-angle", "24"]) == 0
+    out = capsys.readouterr().out
+    assert "deep water assumed" not in out
+    u = float(re.search(r"half-angle \(finite depth\): (\d+\.\d+) m/s", out).group(1))
+    h = float(re.search(r"depth from the pair: (\d+\.\d) m", out).group(1))
+    k = 2 * math.pi / 64
+    assert u**2 == pytest.approx(9.80665 / k * math.tanh(k * h), rel=0.02)
+    assert main(["speed", "--transverse-wavelength", "64", "--half-angle", "24", "--depth", "12"]) == 0
+    out = capsys.readouterr().out
+    assert "CONTRADICTION" in out and "27.1" in out
+    assert main(["speed", "--transverse-wavelength", "64", "--half-angle", "19.5", "--depth", "100"]) == 0
+    assert "CONTRADICTION" not in capsys.readouterr().out  # deep water and Kelvin's angle agree

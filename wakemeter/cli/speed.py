@@ -71,6 +71,7 @@ def _check(args: argparse.Namespace) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from ..physics import inversion as inv
+    from ..physics import kelvin
     from ..physics.gravity import normal_gravity
 
     _check(args)
@@ -81,11 +82,20 @@ def run(args: argparse.Namespace) -> int:
     depth = inv.Uncertain(args.depth, args.depth_std) if args.depth is not None else None
     cond = inv.Conditions(g_mps2=g, depth_m=depth, pixel_scale_rel_std=args.pixel_rel_std)
     estimates: list[inv.SpeedEstimate] = []
+    half = inv.Uncertain(args.half_angle, args.half_angle_std) if args.half_angle is not None else None
+    wider = half is not None and half.value > kelvin.KELVIN_HALF_ANGLE_DEG + 2 * max(half.std, 1e-9)
+    fitted_depth = None
     if args.transverse_wavelength is not None:
         s = args.wavelength_std if args.wavelength_std is not None else 0.03 * abs(args.transverse_wavelength)
-        estimates.append(
-            inv.speed_from_transverse_wavelength(inv.Uncertain(args.transverse_wavelength, s), cond, seed=args.seed)
-        )
+        lam = inv.Uncertain(args.transverse_wavelength, s)
+        if wider and depth is None and half is not None:
+            # the half-angle wider than Kelvin's says the water is not deep: speed and depth from the pair
+            est, fitted_depth = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
+                lam, half, cond, seed=args.seed
+            )
+            estimates.append(est)
+        else:
+            estimates.append(inv.speed_from_transverse_wavelength(lam, cond, seed=args.seed))
     if args.crest_wavelength is not None:
         s = args.wavelength_std if args.wavelength_std is not None else 0.03 * abs(args.crest_wavelength)
         estimates.append(
@@ -109,10 +119,16 @@ def run(args: argparse.Namespace) -> int:
             f"combined: {c.speed_mps:.2f} m/s, 95 % interval {c.ci95_low_mps:.2f}-{c.ci95_high_mps:.2f} m/s; "
             f"{c.verdict}"
         )
-    half = inv.Uncertain(args.half_angle, args.half_angle_std) if args.half_angle is not None else None
+    if fitted_depth is not None:
+        print(
+            f"depth from the pair: {fitted_depth.depth_m:.1f} m (95 % interval {fitted_depth.ci95_low_m:.1f}-"
+            f"{fitted_depth.ci95_high_m:.1f} m), Fr_h {fitted_depth.froude_depth:.2f}"
+        )
+    if half is not None and depth is not None:
+        _say_contradiction(estimates[0].speed_mps, depth.value, half, g.value)
     regime = inv.assess_depth_regime(
         speed=estimates[0],
-        depth_m=depth,
+        depth_m=depth,  # a depth from the pair is not a given one: the half-angle speaks for itself
         half_angle_deg=half,
         transverse_seen=args.transverse_wavelength is not None,
         g=g.value,
@@ -120,6 +136,24 @@ def run(args: argparse.Namespace) -> int:
     print(f"depth regime: {regime.regime} - {regime.explanation}")
     print(CAUTION_LINE)
     return 0
+
+
+def _say_contradiction(speed_mps: float, depth_m: float, half, g: float) -> None:
+    """Both a depth and a half-angle given: the half-angle the speed makes at that depth (Havelock 1908) beside
+    the one measured, and a stated contradiction when they differ by more than two standard uncertainties."""
+    from ..physics import havelock
+
+    fr = speed_mps / math.sqrt(g * depth_m)
+    expected = float(havelock.half_angle(fr))
+    print(
+        f"half-angle: measured {half.value:.1f} ± {half.std:.1f}°; at {depth_m:g} m the speed gives "
+        f"{expected:.1f}° (Fr_h {fr:.2f}, Havelock 1908)"
+    )
+    if abs(expected - half.value) > 2 * max(half.std, 1e-9):
+        print(
+            "CONTRADICTION: the measured half-angle and the given depth do not fit one speed; check the depth "
+            "(tide, chart datum) and the half-angle before using the speed"
+        )
 
 
 COMMAND = Command(
