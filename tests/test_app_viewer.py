@@ -323,8 +323,6 @@ def test_the_redo_key_redoes(win, qtbot):
     qtbot.keyClick(win.canvas, _Qt.Key.Key_Z, _Qt.KeyboardModifier.ControlModifier)
     QApplication.processEvents()
     assert not win.doc.vessels
-    qtbot.keyClick(
-        win.canvas, _Qt.Key.Key_Z, _Qt.KeyboardModifier.ControlModifier | _Qt.KeyboardModifier.ShiftModifier
-    )
+    qtbot.keyClick(win.canvas, _Qt.Key.Key_Z, _Qt.KeyboardModifier.ControlModifier | _Qt.KeyboardModifier.ShiftModifier)
     QApplication.processEvents()
     assert [v.name for v in win.doc.vessels.values()] == ["Tern"]

@@ -99,3 +99,27 @@ def test_speed_uses_a_half_angle_given_with_a_transverse_wavelength(capsys):
     assert "CONTRADICTION" in out and "27.1" in out
     assert main(["speed", "--transverse-wavelength", "64", "--half-angle", "19.5", "--depth", "100"]) == 0
     assert "CONTRADICTION" not in capsys.readouterr().out  # deep water and Kelvin's angle agree
+
+
+def test_report_refuses_an_existing_set_before_analysing_and_names_force(tmp_path, capsys):
+    # an existing set named with --name is refused at once (no analysis); the message names --force
+    # (program behaviour, no source)
+
+    from wakemeter.cli import main
+
+    argv = ["report", "sample_scenes/harbour_approach_optical.tif", "--vessel", "-35,36", "--out", str(tmp_path)]
+    assert main([*argv, "--name", "case_a"]) == 0
+    capsys.readouterr()
+    import wakemeter.detect.analysis as analysis_mod
+
+    called = []
+    real = analysis_mod.analyze
+    analysis_mod.analyze = lambda *a, **k: called.append(1) or real(*a, **k)
+    try:
+        assert main([*argv, "--name", "case_a"]) == 2
+    finally:
+        analysis_mod.analyze = real
+    err = capsys.readouterr().err
+    assert "--force" in err and called == []
+    assert main(argv) == 0 and main(argv) == 2  # the default name is known only after the analysis
+    assert "--force" in capsys.readouterr().err

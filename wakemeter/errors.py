@@ -33,6 +33,14 @@ class SceneWriteError(WakemeterError, OSError):
     """An output file cannot be written; nothing half-written is left behind."""
 
 
+class SetExistsError(SceneWriteError):
+    """An evidence set of that name is already there and replacing it was not asked for."""
+
+    def __init__(self, message: str, *, name: str = "", folder: str = ""):
+        super().__init__(message)
+        self.name, self.folder = name, folder
+
+
 class CancelledError(WakemeterError):
     """Long work was cancelled by the user."""
 

@@ -33,6 +33,19 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    from ..errors import SetExistsError
+
+    try:
+        return _run(args)
+    except SetExistsError as err:  # in the command's own words
+        raise SetExistsError(
+            f"{err.name} already exists in {err.folder}: give --force to replace it, or --name for another name",
+            name=err.name,
+            folder=err.folder,
+        ) from err
+
+
+def _run(args: argparse.Namespace) -> int:
     from ..detect.analysis import analyze
     from ..evidence.export import export_evidence
     from ..evidence.from_session import is_session, report_from_session
@@ -54,6 +67,7 @@ def run(args: argparse.Namespace) -> int:
         print(CAUTION_LINE)
         return 0
     request = checked_request(args)
+    _refuse_early(args)
     with open_scene(args.scene) as scene:
         apply_calibration(scene, args)
         a = analyze(scene, request)
@@ -98,6 +112,17 @@ def _say_written(files: EvidenceFiles) -> None:
     print(f"wrote {files.folder}{os.sep}")
     for f in files.all_files():
         print(f"  {f.name}")
+
+
+def _refuse_early(args: argparse.Namespace) -> None:
+    """A set named with --name that is already there is refused before any analysis (without --force)."""
+    from pathlib import Path
+
+    from ..errors import SetExistsError
+    from ..evidence.export import safe_stem
+
+    if args.name and not args.force and (Path(args.out) / safe_stem(args.name)).exists():
+        raise SetExistsError("already exists", name=safe_stem(args.name), folder=args.out)
 
 
 def _check_folder(folder: str) -> None:

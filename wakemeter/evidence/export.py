@@ -22,7 +22,7 @@ import numpy as np
 
 from .. import fileio
 from ..detect.result import WakeAnalysis
-from ..errors import ParameterError, SceneWriteError
+from ..errors import ParameterError, SceneWriteError, SetExistsError
 from ..names import clean_name
 from ..scene.raster import Scene
 from . import plots as plots_mod
@@ -170,8 +170,10 @@ def export_evidence_set(
     # run that then refuses to replace a set still tidies the folder
     cleaned_first = tuple(fileio.clean_stale(folder))
     if (target.exists() or target.is_symlink()) and not force:
-        raise SceneWriteError(
-            f"cannot export: {base} already exists in {folder} (choose another name or folder, or allow replacing)"
+        raise SetExistsError(
+            f"cannot export: {base} already exists in {folder} (choose another name or folder, or allow replacing)",
+            name=base,
+            folder=str(folder),
         )
     names = _image_names(base, vessels)
     images = [render_evidence(scene, v.analysis, scene_label=scene.info.path.name, vessel_name=v.name) for v in vessels]
@@ -215,7 +217,9 @@ def export_evidence_set(
         tmp = None
         fileio.step("published")
     except fileio.NameTaken as err:
-        raise SceneWriteError(f"cannot export: {err} (another export claimed it first)") from err
+        raise SetExistsError(
+            f"cannot export: {err} (another export claimed it first)", name=base, folder=str(folder)
+        ) from err
     except OSError as err:
         if err.errno == errno.ENOSPC:
             raise SceneWriteError(f"cannot export to {folder}: the disk is full") from err
