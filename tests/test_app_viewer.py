@@ -326,3 +326,21 @@ def test_the_redo_key_redoes(win, qtbot):
     qtbot.keyClick(win.canvas, _Qt.Key.Key_Z, _Qt.KeyboardModifier.ControlModifier | _Qt.KeyboardModifier.ShiftModifier)
     QApplication.processEvents()
     assert [v.name for v in win.doc.vessels.values()] == ["Tern"]
+
+
+def test_a_radar_scene_shows_its_speckle_in_grey_and_says_it_is_in_db(win):
+    # the demo radar scene at full resolution: speckle in mid-greys (a stretch from the averaged overview alone
+    # put most pixels at black or white), the hull brighter than the sea, and the dB item ticked since dB is
+    # shown (program behaviour, no source)
+    from wakemeter.app.tiles import read_tile
+
+    assert win.open_path(str(ROOT / "sample_scenes" / "outer_roads_radar.tif"))
+    c = win.canvas.loader.contrast
+    assert c.db and win.db_action.isChecked()
+    truth = _truth("outer_roads_radar")["vessels"][0]
+    col, row = truth.get("hull_pixel_col", truth["pixel_col"]), truth.get("hull_pixel_row", truth["pixel_row"])
+    tile = read_tile(win.doc.scene, 0, int(col // 256), int(row // 256), c)[..., 0]
+    clipped = float(np.mean((tile == 0) | (tile == 255)))
+    assert clipped < 0.05, clipped  # speckle is shown, not saturated
+    win.db_action.trigger()  # the first click turns dB off (it changed nothing before)
+    assert not win.canvas.loader.contrast.db

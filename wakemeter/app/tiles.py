@@ -66,6 +66,12 @@ def estimate_contrast(
         db = display.looks_like_radar(scene.info.dtype, scene.info.count, data[0][valid[0]][:100_000])
     if db:
         data = display.to_db(np.where(valid, data, 1.0))
+        # radar: speckle averages out in the small overview read; at full resolution it spreads several times
+        # wider, and a stretch from the overview alone turns it black and white. Stretch from full-resolution
+        # samples instead (the hull stays bright above the speckle).
+        sample = _full_resolution_sample(scene, bands)
+        if sample is not None:
+            data, valid = sample
     los, his = [], []
     joint = rgb and scene.info.dtype == "uint16"
     if joint:  # the same stretch for the three bands keeps the colours of the reflectances
@@ -77,6 +83,27 @@ def estimate_contrast(
         los.append(float(lo))
         his.append(float(hi if hi > lo else lo + 1))
     return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb, bands)
+
+
+def _full_resolution_sample(scene: Scene, bands: tuple[int, ...], n: int = 4, size: int = 128):
+    """dB values and validity of up to n x n windows of ``size`` pixels read at full resolution, spread evenly
+    over the scene (None when the scene is too small to need it)."""
+    if scene.width <= 512 and scene.height <= 512:
+        return None
+    parts, oks = [], []
+    for fy in np.linspace(0.1, 0.9, n):
+        for fx in np.linspace(0.1, 0.9, n):
+            c0 = int(min(max(fx * scene.width - size / 2, 0), max(scene.width - size, 0)))
+            r0 = int(min(max(fy * scene.height - size / 2, 0), max(scene.height - size, 0)))
+            try:
+                d, ok = scene.read(window=(c0, r0, min(size, scene.width), min(size, scene.height)), bands=bands)
+            except WakemeterError:
+                continue
+            parts.append(display.to_db(np.where(ok, d, 1.0)).reshape(len(bands), -1))
+            oks.append(ok.reshape(len(bands), -1))
+    if not parts:
+        return None
+    return np.concatenate(parts, axis=1), np.concatenate(oks, axis=1)
 
 
 def to_rgb8(data: np.ndarray, valid: np.ndarray, c: Contrast) -> np.ndarray:

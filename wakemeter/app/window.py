@@ -276,6 +276,8 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         sc = self.doc.scene
         if sc is None:
             return
+        c = self.canvas.loader.contrast
+        self.db_action.setChecked(bool(c is not None and c.db))  # the menu says what is shown
         note = "" if sc.info.georeferenced else " — no georeference: use Calibrate before measuring"
         self.say(
             f"{sc.info.path.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"
