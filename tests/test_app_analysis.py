@@ -569,3 +569,56 @@ def test_the_programs_own_launch_offers_recovery_with_a_scene_given(tmp_path, mo
     monkeypatch.setattr("PySide6.QtWidgets.QApplication.exec", lambda self: 0)
     assert app_main.run_program([str(SCENE)]) == 0
     assert offered == [True]
+
+
+def test_the_list_shows_each_vessels_speed_and_verdict_and_export_skips_a_rejected_finding(win, qtbot, monkeypatch):
+    # demo truth 14.0 kn (sample_scenes/harbour_approach_optical.truth.json) against a 10 kn limit: the list's
+    # vessel row says the speed and "over"; once rejected, the export form neither offers nor preselects it
+    # (program behaviour, no source)
+    from wakemeter.app import export_dialog
+
+    p = win.controller.panel
+    p.form.use_limit.setChecked(True)
+    p.form.limit.setValue(10.0)
+    _analyse(win, qtbot)
+    rows = [win.items.item(i).text() for i in range(win.items.count())]
+    vessel_row = next(r for r in rows if r.startswith("Vessel: Saltmarsh Wren"))
+    assert re.search(r"1[34]\.\d kn \(", vessel_row) and "over the 10 kn limit" in vessel_row
+    vid = next(iter(win.doc.vessels))
+    p.reject.setChecked(True)
+    assert vid in win.doc.rejected
+    assert "finding rejected" in win.items.item(0).text()
+    seen = {}
+
+    class Spy(export_dialog.ExportForm):
+        def exec(self):
+            seen["one_enabled"], seen["one_checked"] = self.one.isEnabled(), self.one.isChecked()
+            return self.DialogCode.Rejected
+
+    monkeypatch.setattr(export_dialog, "ExportForm", Spy)
+    win.export_dialog()
+    assert seen == {} or (not seen["one_enabled"] and not seen["one_checked"])
+    assert seen == {} and "nothing to export" in win.message.text()  # the only finding is rejected
+
+
+def test_export_form_does_not_preselect_a_rejected_finding_when_others_remain(win, qtbot, monkeypatch):
+    from wakemeter.app import export_dialog
+
+    _analyse(win, qtbot)
+    first = next(iter(win.doc.vessels))
+    second = win.doc.new_id()
+    win.doc.undo.push(AddItem(win.doc, Vessel(second, "Hollin Mere", (TRUTH["pixel_col"], TRUTH["pixel_row"])), "mark"))
+    win.doc.select(second)
+    _analyse(win, qtbot)
+    win.doc.select(first)
+    win.controller.panel.reject.setChecked(True)
+    seen = {}
+
+    class Spy(export_dialog.ExportForm):
+        def exec(self):
+            seen.update(one=(self.one.isEnabled(), self.one.isChecked()), every=self.every.isChecked())
+            return self.DialogCode.Rejected
+
+    monkeypatch.setattr(export_dialog, "ExportForm", Spy)
+    win.export_dialog()
+    assert seen == {"one": (False, False), "every": True}

@@ -32,7 +32,15 @@ class ExportChoice:
 class ExportForm(QDialog):
     """Asks what the evidence needs; the analyst's name and the last folder are remembered."""
 
-    def __init__(self, parent: QWidget | None, *, n_vessels: int, selected_name: str, settings: QSettings):
+    def __init__(
+        self,
+        parent: QWidget | None,
+        *,
+        n_vessels: int,
+        selected_name: str,
+        settings: QSettings,
+        selected_rejected: bool = False,
+    ):
         super().__init__(parent)
         self.setWindowTitle("Export evidence")
         self.settings = settings
@@ -48,10 +56,15 @@ class ExportForm(QDialog):
         row.addWidget(browse)
         self.name = QLineEdit()
         self.name.setPlaceholderText("default: scene and vessel position")
-        self.one = QRadioButton(f"the selected vessel ({selected_name or 'unnamed'})")
+        self.one = QRadioButton(
+            f"the selected vessel ({selected_name or 'unnamed'})"
+            + (": its finding is rejected" if selected_rejected else "")
+        )
         self.every = QRadioButton(f"every vessel not rejected ({n_vessels})")
-        self.one.setChecked(True)
-        self.every.setEnabled(n_vessels > 1)
+        # a rejected finding is kept on record but never exported: it is not offered, let alone preselected
+        self.one.setEnabled(not selected_rejected)
+        (self.every if selected_rejected else self.one).setChecked(True)
+        self.every.setEnabled(n_vessels > 1 or selected_rejected)
         group = QButtonGroup(self)
         group.addButton(self.one)
         group.addButton(self.every)

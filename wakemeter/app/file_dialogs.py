@@ -137,8 +137,17 @@ class FileDialogs(WindowPart):
             return
         from .export_dialog import ExportForm
 
-        every = [v for v in self.doc.vessels if v not in self.doc.rejected]
-        form = ExportForm(self, n_vessels=len(every), selected_name=self.doc.vessels[vid].name, settings=self.settings)
+        every = [v for v in self.doc.vessels if v not in self.doc.rejected and v in self.doc.findings]
+        if not every:
+            self.say("every finding is rejected: nothing to export (untick Reject to export one)")
+            return
+        form = ExportForm(
+            self,
+            n_vessels=len(every),
+            selected_name=self.doc.vessels[vid].name,
+            settings=self.settings,
+            selected_rejected=vid in self.doc.rejected,
+        )
         if form.exec() != ExportForm.DialogCode.Accepted:
             return
         c = form.choice()

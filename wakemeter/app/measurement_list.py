@@ -7,6 +7,7 @@ import numpy as np
 from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QListWidget, QListWidgetItem
 
+from ..evidence.summary import list_line
 from .document import Document, Measurement, Vessel
 
 #: measurement kinds as the list names them
@@ -30,7 +31,9 @@ class MeasurementList(QListWidget):
         self.blockSignals(True)
         self.clear()
         for v in self.doc.vessels.values():
-            it = QListWidgetItem(f"Vessel: {v.name}")
+            finding = self.doc.effective_finding(v.id)
+            said = list_line(finding, rejected=v.id in self.doc.rejected)
+            it = QListWidgetItem(f"Vessel: {v.name} — {said}")
             it.setData(Qt.ItemDataRole.UserRole, v.id)
             self.addItem(it)
             for m in self.doc.measurements.values():

@@ -4,9 +4,13 @@ from __future__ import annotations
 
 import argparse
 import math
+from typing import TYPE_CHECKING
 
 from ..errors import ParameterError
 from .base import CAUTION_LINE, Command
+
+if TYPE_CHECKING:
+    from ..physics.inversion import Uncertain
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
@@ -138,7 +142,7 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
-def _say_contradiction(speed_mps: float, depth_m: float, half, g: float) -> None:
+def _say_contradiction(speed_mps: float, depth_m: float, half: Uncertain, g: float) -> None:
     """Both a depth and a half-angle given: the half-angle the speed makes at that depth (Havelock 1908) beside
     the one measured, and a stated contradiction when they differ by more than two standard uncertainties."""
     from ..physics import havelock

@@ -185,3 +185,24 @@ def assumption_texts(a: WakeAnalysis) -> list[str]:
 
 def caution_texts(a: WakeAnalysis) -> list[str]:
     return [c.text for c in a.cautions]
+
+
+def list_line(a: WakeAnalysis | None, *, rejected: bool = False) -> str:
+    """One short line for a vessel in a list: its speed and interval, and the limit's verdict when asked."""
+    if a is None:
+        return "not analysed"
+    if rejected:
+        return "finding rejected"
+    if not a.wake_found:
+        return "no wake found"
+    if a.speed is None:
+        return f"wake seen as a line, heading {_heading(a)}, no speed"
+    sp = a.speed
+    text = f"{sp.speed_mps / KNOT_MPS:.1f} kn ({_kn(sp.ci95_low_mps, sp.ci95_high_mps)})"
+    text += " over ground" if a.speed_over_ground else ""
+    check = a.speed_check() if a.check_asked else None
+    if check is not None and check.limit is not None and check.judged is not None:
+        p = check.judged.probability_over
+        verdict = "over" if p >= 0.5 else "under"
+        text += f"; {verdict} the {check.limit.limit_mps / KNOT_MPS:.0f} kn limit (p {p:.2f})"
+    return text
