@@ -271,7 +271,7 @@ def test_measurement_list_lists_vessels_and_selects_them(win):
     b = Vessel(win.doc.new_id(), "Tern", (300.0, 300.0))
     win.doc.undo.push(AddItem(win.doc, b, "mark"))
     rows = [win.items.item(i).text() for i in range(win.items.count())]
-    assert rows == ["Vessel: Saltmarsh Wren", "Vessel: Tern"]
+    assert rows == ["Vessel: Saltmarsh Wren — not analysed", "Vessel: Tern — not analysed"]
     win.items.setCurrentRow(0)
     assert win.doc.selected == a.id
 
@@ -344,3 +344,38 @@ def test_a_radar_scene_shows_its_speckle_in_grey_and_says_it_is_in_db(win):
     assert clipped < 0.05, clipped  # speckle is shown, not saturated
     win.db_action.trigger()  # the first click turns dB off (it changed nothing before)
     assert not win.canvas.loader.contrast.db
+
+
+def test_the_analysed_area_is_not_drawn_beyond_the_scene(win):
+    # an analysed square around a vessel near the corner reaches past the image: its outline is cut to the scene
+    # (program behaviour, no source)
+    assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
+    c = win.canvas
+    square = [(-200.0, -200.0), (300.0, -200.0), (300.0, 300.0), (-200.0, 300.0)]
+    box = c.area_on_screen(square).boundingRect()
+    origin = c.to_screen((0.0, 0.0))
+    assert box.left() >= origin.x() - 1e-6 and box.top() >= origin.y() - 1e-6
+    assert box.right() == pytest.approx(c.to_screen((300.0, 0.0)).x())
+
+
+def test_labels_never_cover_each_other_and_crowds_of_vessels_become_dots(win):
+    # two measurements drawn on the same spot show one label, not two on top of each other; 2 300 marked
+    # vessels at the overview zoom are drawn as dots without names (program behaviour, no source)
+    from wakemeter.app.document import AddItems, Measurement, Vessel
+
+    assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
+    for _ in range(2):
+        win.canvas.finish_line("ruler", (100.0, 100.0), (300.0, 100.0))
+    win.canvas.grab()
+    boxes = win.canvas.labels_drawn
+    assert all(not a.intersects(b) for i, a in enumerate(boxes) for b in boxes[i + 1 :])
+    rng = np.random.default_rng(0)
+    many = [Vessel(win.doc.new_id(), f"found {i}", tuple(rng.uniform(0, 1000, 2))) for i in range(2300)]
+    win.doc.undo.push(AddItems(win.doc, many, "find"))
+    win.canvas.fit()
+    win.canvas.grab()
+    assert win.canvas.vessels_drawn_as_dots and len(win.canvas.labels_drawn) < 50
+    win.canvas.set_zoom(8.0, QPointF(100, 100))
+    win.canvas.grab()
+    assert not win.canvas.vessels_drawn_as_dots
+    del Measurement

@@ -48,6 +48,10 @@ SEGMENT_STYLES = {
 }
 
 
+#: more vessels than this in view are drawn as dots without names (a scene-wide search marks thousands)
+MAX_MARKED_VESSELS = 300
+
+
 class Canvas(QWidget):
     cursor_moved = Signal(float, float)  # scene col, row
     zoom_changed = Signal(float)
@@ -58,6 +62,8 @@ class Canvas(QWidget):
     def __init__(self, doc: Document, parent=None):
         super().__init__(parent)
         self.doc = doc
+        self.labels_drawn: list[QRectF] = []  #: label boxes of the last paint (a label never covers another)
+        self.vessels_drawn_as_dots = False  #: the last paint had too many vessels in view for names
         self.loader = TileLoader()
         self.loader.tile_ready.connect(self.update)
         self.loader.read_failed.connect(lambda m: self.message.emit(f"could not read part of the scene: {m}"))
@@ -160,6 +166,8 @@ class Canvas(QWidget):
                 continue
             self._draw_tile(qp, img, key)
         qp.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        self.labels_drawn = []
+        self._draw_selected_label(qp)
         self._draw_findings(qp)
         self._draw_reports(qp)
         self._draw_items(qp)
@@ -189,16 +197,22 @@ class Canvas(QWidget):
             pen.setStyle(Qt.PenStyle.DashLine)
         return pen
 
-    def _label(self, qp: QPainter, at: QPointF, text: str, colour: QColor) -> None:
+    def _label(self, qp: QPainter, at: QPointF, text: str, colour: QColor, *, first: bool = False) -> bool:
+        """Draw a label unless it would cover one already drawn in this paint (``first``: the selected item's,
+        always drawn); says whether it was drawn."""
         if not text:
-            return
+            return False
         qp.setFont(QFont("Sans", 9))
         fm = qp.fontMetrics()
         r = fm.boundingRect(text)
         box = QRectF(at.x() + 8, at.y() - r.height() - 6, r.width() + 10, r.height() + 6)
+        if not first and any(box.intersects(t) for t in self.labels_drawn):
+            return False
+        self.labels_drawn.append(box)
         qp.fillRect(box, QColor(15, 18, 24, 200))
         qp.setPen(colour)
         qp.drawText(box, Qt.AlignmentFlag.AlignCenter, text)
+        return True
 
     def _draw_items(self, qp: QPainter) -> None:
         for m in self.doc.measurements.values():
@@ -219,15 +233,30 @@ class Canvas(QWidget):
                 m.error or m.text,
                 QColor(255, 120, 120) if m.error else col,
             )
-        for v in self.doc.vessels.values():
-            p = self.to_screen(v.position)
+        view = self.rect().adjusted(-20, -20, 20, 20)
+        shown = [(v, self.to_screen(v.position)) for v in self.doc.vessels.values()]
+        shown = [(v, p) for v, p in shown if view.contains(p.toPoint())]
+        crowded = len(shown) > MAX_MARKED_VESSELS  # zoomed out over many: dots, no names (zoom in for them)
+        for v, p in shown:
             sel = v.id == self.doc.selected
             qp.setPen(self._pen(ITEM_COLOURS["vessel"], 3 if sel else 2))
             qp.setBrush(Qt.BrushStyle.NoBrush)
+            if crowded and not sel:
+                qp.drawEllipse(p, 2, 2)
+                continue
             qp.drawEllipse(p, 9, 9)
             qp.drawLine(QPointF(p.x() - 14, p.y()), QPointF(p.x() - 5, p.y()))
             qp.drawLine(QPointF(p.x() + 5, p.y()), QPointF(p.x() + 14, p.y()))
-            self._label(qp, QPointF(p.x() + 6, p.y() - 8), v.name, ITEM_COLOURS["vessel"])
+            if not sel:  # the selected one's name was drawn first
+                self._label(qp, QPointF(p.x() + 6, p.y() - 8), v.name, ITEM_COLOURS["vessel"])
+        self.vessels_drawn_as_dots = crowded
+
+    def _draw_selected_label(self, qp: QPainter) -> None:
+        """The selected vessel's name first: no other label covers it."""
+        v = self.doc.vessels.get(self.doc.selected)
+        if v is not None:
+            p = self.to_screen(v.position)
+            self._label(qp, QPointF(p.x() + 6, p.y() - 8), v.name, ITEM_COLOURS["vessel"], first=True)
 
     def _draw_reports(self, qp: QPainter) -> None:
         """Position reports at the scene time: a diamond, a tick along the reported course, id and speed."""
@@ -287,12 +316,21 @@ class Canvas(QWidget):
                 qp.setBrush(Qt.BrushStyle.NoBrush)
                 pts = [self.to_screen(p) for p in seg.points]
                 if seg.kind == SegmentKind.AREA:
-                    qp.drawPolygon(QPolygonF(pts))
+                    qp.drawPolygon(self.area_on_screen(seg.points))
                     continue
                 path = QPainterPath(pts[0])
                 for p in pts[1:]:
                     path.lineTo(p)
                 qp.drawPath(path)
+
+    def area_on_screen(self, points) -> QPolygonF:
+        """An analysed area's outline on screen, cut to the scene (the analysis reads no pixel beyond it)."""
+        sc = self.doc.scene
+        poly = QPolygonF([self.to_screen(p) for p in points])
+        if sc is None:
+            return poly
+        edge = QRectF(self.to_screen((0.0, 0.0)), self.to_screen((float(sc.width), float(sc.height))))
+        return poly.intersected(QPolygonF(edge))
 
     def pick_area(self) -> None:
         """Let the next left drag draw a rectangle, given by :attr:`area_drawn` (Esc gives it up)."""

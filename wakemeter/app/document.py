@@ -118,13 +118,15 @@ class Document(QObject):
         self.changed.emit()
 
     # ---- used by commands only ------------------------------------------
-    def _put(self, item) -> None:
+    def _put(self, item, *, tell: bool = True) -> None:
         self.project.put(item)
-        self.changed.emit()
+        if tell:
+            self.changed.emit()
 
-    def _remove(self, item_id: int) -> None:
+    def _remove(self, item_id: int, *, tell: bool = True) -> None:
         self.project.remove(item_id)
-        self.changed.emit()
+        if tell:
+            self.changed.emit()
 
 
 class AddItem(QUndoCommand):
@@ -148,12 +150,14 @@ class AddItems(QUndoCommand):
         self.doc, self.items_ = doc, list(items)
 
     def redo(self) -> None:
-        for it in self.items_:
-            self.doc._put(it)
+        for it in self.items_:  # one "changed" for all: the views redraw once, not once per item
+            self.doc._put(it, tell=False)
+        self.doc.changed.emit()
 
     def undo(self) -> None:
         for it in reversed(self.items_):
-            self.doc._remove(it.id)
+            self.doc._remove(it.id, tell=False)
+        self.doc.changed.emit()
 
 
 class RemoveItem(QUndoCommand):
