@@ -123,3 +123,25 @@ def test_report_refuses_an_existing_set_before_analysing_and_names_force(tmp_pat
     assert "--force" in err and called == []
     assert main(argv) == 0 and main(argv) == 2  # the default name is known only after the analysis
     assert "--force" in capsys.readouterr().err
+
+
+def test_synth_says_where_the_vessel_and_its_radar_hull_are(tmp_path, capsys):
+    # the README's own example: 15 kn over 12 m of water, radar; the output names the hull's imaged pixel, and
+    # the analysis from there finds the 15 kn truth within its interval (synthetic truth; Fr_h = 7.72 /
+    # sqrt(9.80 x 12) = 0.71)
+    import re
+
+    from wakemeter.cli import main
+
+    out = tmp_path / "my_scene.tif"
+    argv = ["synth", "--out", str(out), "--speed-knots", "15", "--heading", "120", "--kind", "radar", "--depth", "12"]
+    assert main(argv) == 0
+    said = capsys.readouterr().out
+    assert "depth Froude number 0.71" in said
+    col, row = re.search(r"hull is imaged \d+ m away, at pixel (\d+),(\d+)", said).groups()
+    assert main(["analyze", str(out), "--vessel-px", f"{col},{row}", "--json"]) == 0
+    import json
+
+    r = json.loads(capsys.readouterr().out)
+    lo, hi = r["speed_ci95_knots"]
+    assert lo <= 15.0 <= hi

@@ -112,9 +112,29 @@ def run(args: argparse.Namespace) -> int:
     out = Path(args.out)
     if out.suffix.lower() not in (".tif", ".tiff"):
         out = out.with_suffix(".tif")
-    tif, sidecar = write(render(spec), out)
+    rendered = render(spec)
+    tif, sidecar = write(rendered, out)
     print(f"wrote {tif} and {sidecar}")
+    _say_where(rendered.truth)
     return 0
+
+
+def _say_where(truth: dict) -> None:
+    """Where to click: each vessel's position, and where a radar image shows its hull when that moved."""
+    for v in truth.get("vessels", ()):
+        line = (
+            f"{v['name']}: {v['speed_knots']:.1f} kn, heading {v['heading_deg']:.0f}°, at lon {v['lon']:.6f} "
+            f"lat {v['lat']:.6f} (pixel {v['pixel_col']:.0f},{v['pixel_row']:.0f}); depth Froude number "
+            f"{v['depth_froude']:.2f}"
+        )
+        if abs(v.get("radar_azimuth_offset_m", 0.0)) > 0:
+            line += (
+                f"; its hull is imaged {abs(v['radar_azimuth_offset_m']):.0f} m away, at pixel "
+                f"{v['hull_pixel_col']:.0f},{v['hull_pixel_row']:.0f} (radar azimuth shift)"
+            )
+        if 0.9 <= v["depth_froude"] <= 1.1:
+            line += "; near the critical speed the wake has no Kelvin pattern to measure"
+        print(line)
 
 
 def _multispectral(args: argparse.Namespace, vessel: VesselSpec) -> int:
@@ -148,8 +168,10 @@ def _multispectral(args: argparse.Namespace, vessel: VesselSpec) -> int:
         out = out.with_suffix(".tif")
     # the platform tag says whose band timing the hull's motion follows (the analysis reads it)
     tags = {"PLATFORM": "Sentinel-2-like (synthetic)"}
-    tif, sidecar = write(render_multispectral(spec, look).rendered, out, band_names=BANDS, tags=tags)
+    rendered = render_multispectral(spec, look).rendered
+    tif, sidecar = write(rendered, out, band_names=BANDS, tags=tags)
     print(f"wrote {tif} and {sidecar}")
+    _say_where(rendered.truth)
     return 0
 
 
