@@ -122,17 +122,18 @@ def run(args: argparse.Namespace) -> int:
 def _say_where(truth: dict) -> None:
     """Where to click: each vessel's position, and where a radar image shows its hull when that moved."""
     for v in truth.get("vessels", ()):
+        fr = v.get("depth_froude")
         line = (
             f"{v['name']}: {v['speed_knots']:.1f} kn, heading {v['heading_deg']:.0f}°, at lon {v['lon']:.6f} "
-            f"lat {v['lat']:.6f} (pixel {v['pixel_col']:.0f},{v['pixel_row']:.0f}); depth Froude number "
-            f"{v['depth_froude']:.2f}"
+            f"lat {v['lat']:.6f} (pixel {v['pixel_col']:.0f},{v['pixel_row']:.0f})"
+            + ("" if fr is None else f"; depth Froude number {fr:.2f}")
         )
         if abs(v.get("radar_azimuth_offset_m", 0.0)) > 0:
             line += (
                 f"; its hull is imaged {abs(v['radar_azimuth_offset_m']):.0f} m away, at pixel "
                 f"{v['hull_pixel_col']:.0f},{v['hull_pixel_row']:.0f} (radar azimuth shift)"
             )
-        if 0.9 <= v["depth_froude"] <= 1.1:
+        if fr is not None and 0.9 <= fr <= 1.1:
             line += "; near the critical speed the wake has no Kelvin pattern to measure"
         print(line)
 

@@ -68,6 +68,16 @@ def hull_pressure(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float],
     return RHO_SEAWATER * g * hull.draught_m * shape
 
 
+def _back_times_ky(eta_hat: np.ndarray, ky: np.ndarray, ny: int, nx: int, px: int, block: int) -> np.ndarray:
+    """The top-left ny x nx corner of the inverse transform of i ky eta_hat (ky varies along the rows)."""
+    nkx = eta_hat.shape[1]
+    half = np.empty((ny, nkx), np.complex64)
+    for c0 in range(0, nkx, block):
+        part = eta_hat[:, c0 : c0 + block] * (np.complex64(1j) * ky[:, None])
+        half[:, c0 : c0 + block] = sfft.ifft(part, axis=0, workers=-1)[:ny]
+    return sfft.irfft(half, n=px, axis=1)[:, :nx].astype(np.float64)
+
+
 def kelvin_elevation(
     shape: tuple[int, int],
     *,
@@ -129,26 +139,52 @@ def kelvin_elevation(
     ys = np.arange(py) - vessel_xy_m[1] / dy_m
     xs = (xs + px / 2) % px - px / 2
     ys = (ys + py / 2) % py - py / 2
-    X = xs[None, :] * dx_m
-    Y = -ys[:, None] * dy_m  # y up
-    p = hull_pressure(X, Y, (ux, uy), hull, g=g)
-    p_hat = sfft.rfft2(p, workers=-1)
-    kx = 2 * np.pi * sfft.rfftfreq(px, dx_m)[None, :]
-    ky_rows = 2 * np.pi * sfft.fftfreq(py, dy_m)[:, None]
-    ky = -ky_rows  # rows grow downward, y grows upward
-    kmag = np.hypot(kx, ky)
-    kh = kmag * depth_m if np.isfinite(depth_m) else None
-    K = kmag * (np.tanh(kh) if kh is not None else 1.0)
-    omega = speed_mps * (kx * ux + ky * uy)
+    X = xs * dx_m
+    Y = -ys * dy_m  # y up
+    # the patch is evaluated only where it is not zero to within 1e-17 of its peak (tanh edge: 20 edge widths
+    # beyond the box), and every transform runs by blocks of rows or columns in single precision: the padded grid
+    # of a 1024^2 scene is 4096^2, and only its spectrum (67 MB) is ever held whole
+    reach = 0.5 * max(hull.length_m, hull.beam_m) * (1.0 + 20.0 * hull.edge) + 2 * max(dx_m, dy_m)
+    cols, rows = np.nonzero(np.abs(X) <= reach)[0], np.nonzero(np.abs(Y) <= reach)[0]
+    patch = np.zeros((rows.size, px), np.float32)
+    patch[:, cols] = hull_pressure(X[None, cols], Y[rows, None], (ux, uy), hull, g=g)
+    nkx = px // 2 + 1
+    spec = np.zeros((py, nkx), np.complex64)
+    spec[rows] = sfft.rfft(patch, axis=1)  # rows without pressure transform to zero
+    del patch
+    block = 256
+    for c0 in range(0, nkx, block):  # then along the columns: the 2-D transform of the pressure
+        spec[:, c0 : c0 + block] = sfft.fft(spec[:, c0 : c0 + block], axis=0, workers=-1)
+    p00 = complex(spec[0, 0])
+    kx = (2 * np.pi * sfft.rfftfreq(px, dx_m)).astype(np.float32)
+    ky = (-2 * np.pi * sfft.fftfreq(py, dy_m)).astype(np.float32)  # rows grow downward, y grows upward
     eps = damping * speed_mps * 2 * np.pi / (max(px * dx_m, py * dy_m))
-    denom = g * K - (omega + 1j * eps) ** 2
-    eta_hat = -(p_hat / RHO_SEAWATER) * K / denom
-    eta_hat[0, 0] = -p_hat[0, 0] / (RHO_SEAWATER * g)
-    # anti-alias: taper the top octave of wavenumbers
-    kmax = np.pi / max(dx_m, dy_m)
-    eta_hat *= np.clip((kmax - kmag) / (0.3 * kmax), 0.0, 1.0)
-    out = [sfft.irfft2(eta_hat, s=(py, px), workers=-1)[:ny, :nx]]
-    if with_slopes:
-        out.append(sfft.irfft2(1j * kx * eta_hat, s=(py, px), workers=-1)[:ny, :nx])
-        out.append(sfft.irfft2(1j * ky * eta_hat, s=(py, px), workers=-1)[:ny, :nx])
-    return out[0] if not with_slopes else (out[0], out[1], out[2])
+    kmax = np.float32(np.pi / max(dx_m, dy_m))
+    for r0 in range(0, py, block):  # eta = -(p / rho) K / (g K - (omega + i eps)^2), tapered near Nyquist
+        kyb = ky[r0 : r0 + block, None]
+        kmag = np.hypot(kx[None, :], kyb)
+        K = kmag * np.tanh(kmag * np.float32(depth_m)) if np.isfinite(depth_m) else kmag
+        omega = ((speed_mps * ux) * kx[None, :] + (speed_mps * uy) * kyb).astype(np.complex64)
+        denom = g * K - (omega + np.complex64(1j * eps)) ** 2
+        taper = np.clip((kmax - kmag) / (np.float32(0.3) * kmax), 0.0, 1.0)
+        spec[r0 : r0 + block] *= (np.float32(-1.0 / RHO_SEAWATER) * K * taper) / denom
+    spec[0, 0] = -p00 / (RHO_SEAWATER * g)  # the mean level (K = 0 there)
+    eta_hat = spec
+
+    def back(factor: np.ndarray | None) -> np.ndarray:
+        """The grid's top-left ny x nx corner of the inverse transform of ``eta_hat`` times ``factor`` (a row of
+        wavenumbers, or None): along the columns by blocks keeping only the first ny rows, then along the rows."""
+        half = np.empty((ny, nkx), np.complex64)
+        for c0 in range(0, nkx, block):
+            part = eta_hat[:, c0 : c0 + block]
+            if factor is not None:
+                part = part * (np.complex64(1j) * factor[None, c0 : c0 + block])
+            half[:, c0 : c0 + block] = sfft.ifft(part, axis=0, workers=-1)[:ny]
+        return sfft.irfft(half, n=px, axis=1)[:, :nx].astype(np.float64)
+
+    if not with_slopes:
+        return back(None)
+    # slopes: d/dx and d/dy (y up) of eta are i kx eta and i ky eta in the spectrum
+    gx = back(kx)
+    gy = _back_times_ky(eta_hat, ky, ny, nx, px, block)
+    return back(None), gx, gy
