@@ -5,6 +5,7 @@ import json
 import re
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 pytest.importorskip("PySide6")
@@ -369,6 +370,14 @@ def test_real_sentinel2_crop_in_the_program(qtbot, tmp_path, monkeypatch):
     html = w.controller.panel.text.toHtml()
     assert "Speed over ground" in html and "Heading" in html and "no Kelvin crests are seen here" in html
     assert "over ground" in w.message.text() or "m/s" in w.message.text()
+    # the Plots tab shows what the line finding rests on: the wake's direction standing out of all directions
+    # from the vessel, above the significance it needs, and the brightness along the line (it was empty)
+    view = w.controller.panel.view
+    angles, sig = view.spec_line.getData()
+    assert angles is not None and sig.max() >= 9.0 and abs(angles[int(np.argmax(sig))]) <= 2.0
+    assert view.prof_line.getData()[0] is not None and "Brightness along the wake line" in str(
+        view.prof_plot.getPlotItem().titleLabel.text
+    )
     w.grab().save(str(tmp_path / "real_crop.png"))
     w.close()
 

@@ -7,10 +7,21 @@ import html
 
 import numpy as np
 import pyqtgraph as pg
+from PySide6.QtCore import Qt
 from PySide6.QtWidgets import QTabWidget, QTextBrowser, QVBoxLayout, QWidget
 
 from ..detect.result import WakeAnalysis
 from ..evidence import summary
+
+#: (title, bottom axis, left axis, bottom units) of the two upper plots, for a wave finding and a line finding
+WAVE_TITLES = (
+    ("Wave spectrum behind the vessel, fitted curve", "wavenumber along the track", "across (rad/m)", "rad/m"),
+    ("Intensity along the track, crest spacing", "distance behind the vessel", "intensity", "m"),
+)
+LINE_TITLES = (
+    ("Significance by direction (dashed: needed)", "angle from the wake line (°)", "significance", None),
+    ("Brightness along the wake line", "distance from the vessel", "brightness", "m"),
+)
 
 
 class ResultView(QTabWidget):
@@ -28,6 +39,8 @@ class ResultView(QTabWidget):
         self.spec_img = pg.ImageItem()
         self.spec_plot.addItem(self.spec_img)
         self.spec_curve = [self.spec_plot.plot(pen=pg.mkPen((255, 80, 80), width=2)) for _ in range(2)]
+        self.spec_line = self.spec_plot.plot(pen=pg.mkPen((120, 200, 255), width=2))  #: a line finding's fan
+        self.spec_threshold = self.spec_plot.plot(pen=pg.mkPen((255, 200, 0), width=1, style=Qt.PenStyle.DashLine))
         self.prof_plot = pg.PlotWidget(title="Intensity along the track, crest spacing")
         self.prof_plot.setLabel("bottom", "distance behind the vessel", units="m")
         self.prof_line = self.prof_plot.plot(pen=pg.mkPen((220, 220, 220)))
@@ -45,6 +58,8 @@ class ResultView(QTabWidget):
         pl.setContentsMargins(0, 0, 0, 0)
         for w in (self.spec_plot, self.prof_plot, self.radon_plot):
             w.setMinimumHeight(60)
+            for side in ("bottom", "left"):  # plain units: no "mrad/m" or milli-degree ticks
+                w.getAxis(side).enableAutoSIPrefix(False)
         pl.addWidget(self.spec_plot, 3)
         pl.addWidget(self.prof_plot, 2)
         pl.addWidget(self.radon_plot, 2)
@@ -65,6 +80,22 @@ class ResultView(QTabWidget):
         self.text.setHtml(result_html(analysis, rejected, position_report))
         self._plots(analysis)
 
+    def _titles(self, titles: tuple[tuple[str, str, str, str | None], ...]) -> None:
+        for w, (title, bottom, left, units) in zip((self.spec_plot, self.prof_plot), titles, strict=True):
+            w.setTitle(title)
+            w.setLabel("bottom", bottom, units=units)
+            w.setLabel("left", left)
+        self.radon_plot.setVisible(titles is WAVE_TITLES)
+
+    def _line_plots(self, p) -> None:
+        """A wake found as a line: how each direction from the vessel stands against the scene's other lines
+        (the wake's own above the threshold), and the brightness along the wake line."""
+        self._titles(LINE_TITLES)
+        self.spec_line.setData(p.angles_deg, p.significance)
+        self.spec_threshold.setData([p.angles_deg[0], p.angles_deg[-1]], [p.threshold, p.threshold])
+        x = np.arange(p.profile.size) * p.profile_m_per_px
+        self.prof_line.setData(x, np.nan_to_num(p.profile))
+
     def _clear_plots(self) -> None:
         self.spec_img.clear()
         for c in self.spec_curve:
@@ -73,11 +104,16 @@ class ResultView(QTabWidget):
         self.prof_marks.setData([], [])
         self.radon_img.clear()
         self.radon_pick.setData([], [])
+        self.spec_line.setData([], [])
+        self.spec_threshold.setData([], [])
 
     def _plots(self, a: WakeAnalysis) -> None:
+        self._clear_plots()
         if a.plots is None:
-            self._clear_plots()
+            if a.line_plots is not None:
+                self._line_plots(a.line_plots)
             return
+        self._titles(WAVE_TITLES)
         p = a.plots
         white = p.whitened_spectrum
         dk_u, dk_v = p.spectrum_dk

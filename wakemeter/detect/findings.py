@@ -219,6 +219,18 @@ class Diagnostics:
         )
 
 
+@dataclass(frozen=True)
+class LinePlotData:
+    """What a wake found as a line rests on (arrays for plots; not stored, recomputed on demand)."""
+
+    angles_deg: np.ndarray  #: directions from the vessel, degrees clockwise from the wake line
+    significance: np.ndarray  #: each direction's significance against the scene's other lines
+    threshold: float  #: the significance a line needs
+    profile: np.ndarray  #: mean brightness along the wake line (standardised), from the vessel outwards
+    profile_m_per_px: float
+    dark: bool  #: a dark line (its profile lies below the background)
+
+
 @dataclass(frozen=True, eq=False)
 class PlotData:
     """Arrays for the plots of a finding (not stored in sessions or records; recomputed on demand)."""

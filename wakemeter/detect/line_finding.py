@@ -24,7 +24,7 @@ from ..physics.units import KNOT_MPS
 from ..scene import geodesy
 from ..scene.raster import Scene
 from .explain import opening_cautions
-from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, Segment, SegmentKind
+from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, LinePlotData, Segment, SegmentKind
 from .hull_outline import line_is_the_hull
 from .line_chip import LineChip, prepare_line_chip
 from .methods import SPEED_METHODS, LineStages, MethodContext, SpeedMethod, combine, run_methods
@@ -238,6 +238,26 @@ def line_finding(
         diagnostics=Diagnostics(vessel_evidence=evidence),
         lines=wake.lines,
         request=request,
+        line_plots=_line_plots(wake, chip, tuning),
+    )
+
+
+def _line_plots(wake: LineWake, chip: LineChip, tuning: Tuning) -> LinePlotData | None:
+    """The significance of every direction from the vessel (the wake's own standing out) and the brightness
+    along the wake line."""
+    fan = wake.fan_significance
+    if fan.size == 0:
+        return None
+    angles = np.arange(fan.size) * (360.0 / fan.size)
+    rel = (wake.back_deg - angles + 180.0) % 360.0 - 180.0  # image angles turn counter-clockwise: clockwise from it
+    order = np.argsort(rel)
+    return LinePlotData(
+        rel[order],
+        np.nan_to_num(fan[order], nan=0.0, neginf=0.0),
+        tuning.line_significance_min,
+        wake.along,
+        chip.m_per_px,
+        wake.dark,
     )
 
 

@@ -18,7 +18,7 @@ from .. import __version__
 from ..errors import ParameterError
 from ..physics import inversion as inv
 from ..physics.units import KNOT_MPS
-from .findings import Caution, CautionCode, Diagnostics, Drawing, IntervalCover, LineKind, PlotData
+from .findings import Caution, CautionCode, Diagnostics, Drawing, IntervalCover, LineKind, LinePlotData, PlotData
 from .lines import WakeLine
 from .request import AnalysisRequest, RadarGeometry
 from .speed_check import SpeedCheck, check_speed
@@ -62,6 +62,7 @@ class WakeAnalysis:
     revised: bool = False  #: hand measurements were combined in (see detect.revise)
     software: str = SOFTWARE
     plots: PlotData | None = field(default=None, compare=False, repr=False)  #: arrays for plots (not stored)
+    line_plots: LinePlotData | None = field(default=None, compare=False, repr=False)  #: a line finding's arrays
 
     @classmethod
     def without_wake(

@@ -27,7 +27,7 @@ References
 from __future__ import annotations
 
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from scipy import ndimage
@@ -58,6 +58,8 @@ class LineWake:
     lines: tuple[WakeLine, ...]  #: the main line and any arms (angles from the main line)
     vessel_rc: tuple[float, float]  #: where the line starts (chip row, col): the bow end of the hull's blob
     half_angle: tuple[float, float] | None = None  #: (half-angle, its std) when two arms of a V were seen
+    fan_significance: np.ndarray = field(default_factory=lambda: np.zeros(0), compare=False, repr=False)
+    along: np.ndarray = field(default_factory=lambda: np.zeros(0), compare=False, repr=False)  #: along the line
 
 
 def _rays(img: np.ndarray, valid: np.ndarray, origin_rc, angles_deg: np.ndarray, r: np.ndarray, start=None):
@@ -227,6 +229,9 @@ def find_wake_line(
                 arm_kind, float((partner - back + 180.0) % 360.0 - 180.0), float(sig_fan[int(partner)]), float(n_r)
             ),
         ]
+    r_line = np.arange(r_a, min(r_a + 2 * n_r, r_max + behind), 1.0)
+    vals, ok = _rays(img, valid, origin, np.array([back]), r_line)
+    along = np.where(ok[0], vals[0], np.nan)
     return LineWake(
         float(back),
         float(back_std),
@@ -240,6 +245,8 @@ def find_wake_line(
         tuple(lines),
         vessel,
         half_angle,
+        np.asarray(sig_fan, float),
+        along,
     )
 
 
