@@ -379,3 +379,27 @@ def test_labels_never_cover_each_other_and_crowds_of_vessels_become_dots(win):
     win.canvas.grab()
     assert not win.canvas.vessels_drawn_as_dots
     del Measurement
+
+
+def test_wheel_zoom_keeps_the_point_under_the_cursor(win):
+    # a wheel step in and out: the scene point under the cursor stays there (program behaviour, no source)
+    from PySide6.QtCore import QPoint
+    from PySide6.QtGui import QWheelEvent
+
+    assert win.open_path(str(ROOT / "sample_scenes" / "outer_roads_radar.tif"))
+    c = win.canvas
+    for pos, delta in ((QPointF(300, 200), 120), (QPointF(640, 90), -240), (QPointF(55, 700), 360)):
+        before = c.to_scene(pos)
+        ev = QWheelEvent(
+            pos,
+            c.mapToGlobal(pos),
+            QPoint(0, 0),
+            QPoint(0, delta),
+            Qt.MouseButton.NoButton,
+            Qt.KeyboardModifier.NoModifier,
+            Qt.ScrollPhase.NoScrollPhase,
+            False,
+        )
+        c.wheelEvent(ev)
+        after = c.to_scene(pos)
+        assert (after.x(), after.y()) == pytest.approx((before.x(), before.y()), abs=1e-6)

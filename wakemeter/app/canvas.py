@@ -187,6 +187,11 @@ class Canvas(QWidget):
             w = min(w, img.width() * f_src - src.x() * f_src)
             h = min(h, img.height() * f_src - src.y() * f_src)
             src = QRectF(src.x(), src.y(), w / f_src, h / f_src)
+        sc = self.doc.scene
+        if sc is not None:  # an edge tile covers only the scene's rest, though its last pixel is whole
+            fx, fy = min(w, sc.width - c0) / w if w > 0 else 1.0, min(h, sc.height - r0) / h if h > 0 else 1.0
+            src = QRectF(src.x(), src.y(), src.width() * fx, src.height() * fy)
+            w, h = w * fx, h * fy
         tl = self.to_screen((c0, r0))
         qp.drawImage(QRectF(tl.x(), tl.y(), w * self.zoom, h * self.zoom), img, src)
 
