@@ -68,13 +68,43 @@ def hull_pressure(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float],
     return RHO_SEAWATER * g * hull.draught_m * shape
 
 
-def _back_times_ky(eta_hat: np.ndarray, ky: np.ndarray, ny: int, nx: int, px: int, block: int) -> np.ndarray:
-    """The top-left ny x nx corner of the inverse transform of i ky eta_hat (ky varies along the rows)."""
+#: rows or columns transformed at a time (the padded grid is held whole only as its spectrum)
+_BLOCK = 256
+
+
+def _pressure_spectrum(X: np.ndarray, Y: np.ndarray, heading_xy, hull: Hull, g: float) -> np.ndarray:
+    """The 2-D real-input transform (rows: all ky; columns: kx >= 0) of the hull's pressure on the padded grid
+    whose wrapped metric coordinates are ``X`` (columns) and ``Y`` (rows, up).  The patch is evaluated only
+    where it is not zero to within 1e-17 of its peak (tanh edge: 20 edge widths beyond the box)."""
+    py, px = Y.size, X.size
+    reach = 0.5 * max(hull.length_m, hull.beam_m) * (1.0 + 20.0 * hull.edge) + 2 * max(
+        abs(X[1] - X[0]), abs(Y[1] - Y[0])
+    )
+    cols, rows = np.nonzero(np.abs(X) <= reach)[0], np.nonzero(np.abs(Y) <= reach)[0]
+    patch = np.zeros((rows.size, px), np.float32)
+    patch[:, cols] = hull_pressure(X[None, cols], Y[rows, None], heading_xy, hull, g=g)
+    nkx = px // 2 + 1
+    spec = np.zeros((py, nkx), np.complex64)
+    spec[rows] = sfft.rfft(patch, axis=1)  # rows without pressure transform to zero
+    for c0 in range(0, nkx, _BLOCK):  # then along the columns
+        spec[:, c0 : c0 + _BLOCK] = sfft.fft(spec[:, c0 : c0 + _BLOCK], axis=0, workers=-1)
+    return spec
+
+
+def _corner(
+    eta_hat: np.ndarray, ny: int, nx: int, px: int, *, kx: np.ndarray | None = None, ky: np.ndarray | None = None
+) -> np.ndarray:
+    """The top-left ny x nx corner of the inverse transform of ``eta_hat`` (times i kx or i ky for a slope):
+    along the columns by blocks keeping only the first ny rows, then along the rows."""
     nkx = eta_hat.shape[1]
     half = np.empty((ny, nkx), np.complex64)
-    for c0 in range(0, nkx, block):
-        part = eta_hat[:, c0 : c0 + block] * (np.complex64(1j) * ky[:, None])
-        half[:, c0 : c0 + block] = sfft.ifft(part, axis=0, workers=-1)[:ny]
+    for c0 in range(0, nkx, _BLOCK):
+        part = eta_hat[:, c0 : c0 + _BLOCK]
+        if kx is not None:
+            part = part * (np.complex64(1j) * kx[None, c0 : c0 + _BLOCK])
+        elif ky is not None:
+            part = part * (np.complex64(1j) * ky[:, None])
+        half[:, c0 : c0 + _BLOCK] = sfft.ifft(part, axis=0, workers=-1)[:ny]
     return sfft.irfft(half, n=px, axis=1)[:, :nx].astype(np.float64)
 
 
@@ -141,50 +171,26 @@ def kelvin_elevation(
     ys = (ys + py / 2) % py - py / 2
     X = xs * dx_m
     Y = -ys * dy_m  # y up
-    # the patch is evaluated only where it is not zero to within 1e-17 of its peak (tanh edge: 20 edge widths
-    # beyond the box), and every transform runs by blocks of rows or columns in single precision: the padded grid
-    # of a 1024^2 scene is 4096^2, and only its spectrum (67 MB) is ever held whole
-    reach = 0.5 * max(hull.length_m, hull.beam_m) * (1.0 + 20.0 * hull.edge) + 2 * max(dx_m, dy_m)
-    cols, rows = np.nonzero(np.abs(X) <= reach)[0], np.nonzero(np.abs(Y) <= reach)[0]
-    patch = np.zeros((rows.size, px), np.float32)
-    patch[:, cols] = hull_pressure(X[None, cols], Y[rows, None], (ux, uy), hull, g=g)
-    nkx = px // 2 + 1
-    spec = np.zeros((py, nkx), np.complex64)
-    spec[rows] = sfft.rfft(patch, axis=1)  # rows without pressure transform to zero
-    del patch
-    block = 256
-    for c0 in range(0, nkx, block):  # then along the columns: the 2-D transform of the pressure
-        spec[:, c0 : c0 + block] = sfft.fft(spec[:, c0 : c0 + block], axis=0, workers=-1)
+    # single precision, by blocks: the padded grid of a 1024^2 scene is 4096^2, and only its spectrum (67 MB)
+    # is ever held whole
+    spec = _pressure_spectrum(X, Y, (ux, uy), hull, g)
     p00 = complex(spec[0, 0])
     kx = (2 * np.pi * sfft.rfftfreq(px, dx_m)).astype(np.float32)
     ky = (-2 * np.pi * sfft.fftfreq(py, dy_m)).astype(np.float32)  # rows grow downward, y grows upward
     eps = damping * speed_mps * 2 * np.pi / (max(px * dx_m, py * dy_m))
     kmax = np.float32(np.pi / max(dx_m, dy_m))
-    for r0 in range(0, py, block):  # eta = -(p / rho) K / (g K - (omega + i eps)^2), tapered near Nyquist
-        kyb = ky[r0 : r0 + block, None]
+    for r0 in range(0, py, _BLOCK):  # eta = -(p / rho) K / (g K - (omega + i eps)^2), tapered near Nyquist
+        kyb = ky[r0 : r0 + _BLOCK, None]
         kmag = np.hypot(kx[None, :], kyb)
         K = kmag * np.tanh(kmag * np.float32(depth_m)) if np.isfinite(depth_m) else kmag
         omega = ((speed_mps * ux) * kx[None, :] + (speed_mps * uy) * kyb).astype(np.complex64)
         denom = g * K - (omega + np.complex64(1j * eps)) ** 2
         taper = np.clip((kmax - kmag) / (np.float32(0.3) * kmax), 0.0, 1.0)
-        spec[r0 : r0 + block] *= (np.float32(-1.0 / RHO_SEAWATER) * K * taper) / denom
+        spec[r0 : r0 + _BLOCK] *= (np.float32(-1.0 / RHO_SEAWATER) * K * taper) / denom
     spec[0, 0] = -p00 / (RHO_SEAWATER * g)  # the mean level (K = 0 there)
-    eta_hat = spec
-
-    def back(factor: np.ndarray | None) -> np.ndarray:
-        """The grid's top-left ny x nx corner of the inverse transform of ``eta_hat`` times ``factor`` (a row of
-        wavenumbers, or None): along the columns by blocks keeping only the first ny rows, then along the rows."""
-        half = np.empty((ny, nkx), np.complex64)
-        for c0 in range(0, nkx, block):
-            part = eta_hat[:, c0 : c0 + block]
-            if factor is not None:
-                part = part * (np.complex64(1j) * factor[None, c0 : c0 + block])
-            half[:, c0 : c0 + block] = sfft.ifft(part, axis=0, workers=-1)[:ny]
-        return sfft.irfft(half, n=px, axis=1)[:, :nx].astype(np.float64)
-
     if not with_slopes:
-        return back(None)
+        return _corner(spec, ny, nx, px)
     # slopes: d/dx and d/dy (y up) of eta are i kx eta and i ky eta in the spectrum
-    gx = back(kx)
-    gy = _back_times_ky(eta_hat, ky, ny, nx, px, block)
-    return back(None), gx, gy
+    gx = _corner(spec, ny, nx, px, kx=kx)
+    gy = _corner(spec, ny, nx, px, ky=ky)
+    return _corner(spec, ny, nx, px), gx, gy
