@@ -32,6 +32,7 @@ References
 
 from __future__ import annotations
 
+from collections.abc import Iterator
 from dataclasses import asdict, dataclass, field
 
 import numpy as np
@@ -99,7 +100,7 @@ def jonswap_slopes(
     times_s: tuple[float, ...],
     g: float,
     rng: np.random.Generator,
-) -> list[tuple[np.ndarray, np.ndarray]]:
+) -> Iterator[tuple[np.ndarray, np.ndarray]]:
     """Surface slopes (d/dx, d/dy up) of one JONSWAP wind sea at each time (deep water, linear)."""
     ny, nx = shape
     kx = 2 * np.pi * sfft.fftfreq(nx, dx_m)[None, :]
@@ -126,18 +127,20 @@ def jonswap_slopes(
     dtheta = np.diff(np.linspace(-np.pi, np.pi, 721))[0]
     norm = np.sum(np.clip(np.cos(np.linspace(-np.pi, np.pi, 720)), 0, None) ** (2 * spreading_s)) * dtheta
     s2 = np.nan_to_num(s_k * spread / norm)
+    del s_w, s_k, spread, ang, sig, k  # the spectrum's pieces (memory: a 1024^2 scene holds 8-16 MB each)
     dk = (2 * np.pi / (nx * dx_m)) * (2 * np.pi / (ny * dy_m))
     # one-sided random modes (the spreading keeps only directions downwind): the real part of the inverse FFT
     # holds cos waves of amplitude |z| / (nx ny), whose variance a^2 / 2 is S dk
     amp = np.sqrt(2 * s2 * dk) * (nx * ny)
+    del s2
     phase = 2 * np.pi * rng.random((ny, nx))
-    out = []
-    for t in times_s:
-        z = amp * np.exp(1j * (phase - np.where(np.isfinite(omega), omega, 0.0) * t))
+    omega = np.where(np.isfinite(omega), omega, 0.0)
+    for t in times_s:  # one time at a time: the caller adds each to its band and lets it go
+        z = amp * np.exp(1j * (phase - omega * t))
         sx = np.real(sfft.ifft2(1j * kx * z, workers=-1))
         sy = np.real(sfft.ifft2(1j * ky * z, workers=-1))
-        out.append((sx, sy))
-    return out
+        del z
+        yield sx, sy
 
 
 def foam_band(x: np.ndarray, y: np.ndarray, heading_xy: tuple[float, float], *, hull, decay_m: float) -> np.ndarray:
@@ -242,9 +245,9 @@ def render_multispectral(spec: SceneSpec, look: MultispectralLook) -> Multispect
             g=g,
             rng=rng,
         )
-        for b in range(nb):
-            slopes_x[b] += sea[b][0]
-            slopes_y[b] += sea[b][1]
+        for b, (sx, sy) in enumerate(sea):
+            slopes_x[b] += sx
+            slopes_y[b] += sy
     land = np.zeros(shape, bool)
     if look.coast_distance_m is not None and spec.vessels:
         c0, r0 = (float(a) for a in geodesy.lonlat_to_pixel(georef, spec.vessels[0].lon, spec.vessels[0].lat))
