@@ -403,3 +403,23 @@ def test_wheel_zoom_keeps_the_point_under_the_cursor(win):
         c.wheelEvent(ev)
         after = c.to_scene(pos)
         assert (after.x(), after.y()) == pytest.approx((before.x(), before.y()), abs=1e-6)
+
+
+def test_a_folder_of_band_files_opens_in_the_program(win, tmp_path, monkeypatch):
+    # File > Open a folder of band files (or a folder dropped on the window): the bands become one scene shown
+    # in true colour (the shared port scenes come this way; program behaviour, no source)
+    import rasterio
+
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    crop = ROOT / "tests" / "data" / "sentinel2" / "marseille_00_S2L2A_2023-08-22_wake.tif"
+    folder = tmp_path / "marseille"
+    folder.mkdir()
+    with rasterio.open(crop) as src:
+        prof = src.profile
+        prof.update(count=1)
+        for b, name in enumerate(("B02", "B03", "B04", "B08"), 1):
+            with rasterio.open(folder / f"2023-08-22_S2L2A_{name}.tif", "w", **prof) as dst:
+                dst.write(src.read(b), 1)
+    assert win.open_path(str(folder))
+    assert win.doc.scene.info.count == 4 and win.canvas.loader.contrast.rgb
+    assert "marseille" in win.windowTitle()

@@ -55,6 +55,13 @@ class FileDialogs(WindowPart):
         if path:
             self.open_path(path)
 
+    def open_folder_dialog(self) -> None:
+        """A folder of one file per band (…_B02.tif, …_B03.tif…) opened as one scene."""
+        path = QFileDialog.getExistingDirectory(self, "Open a folder of band files", self.start_folder("scene"))
+        if path:
+            self.settings.setValue("folders/scene", str(Path(path).parent))
+            self.open_path(path)
+
     def save_dialog(self) -> None:
         path, _ = QFileDialog.getSaveFileName(self, "Save session", self.suggested_session_path(), SESSION_FILTER)
         if path:

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import datetime as _dt
 import math
+import re
 from collections import defaultdict
 from collections.abc import Sequence
 from dataclasses import dataclass
@@ -286,5 +287,10 @@ def scene_time(acquisition_time: str | None, given: str | None) -> _dt.datetime:
         raise ParameterError(
             "the scene's acquisition time is not in its metadata: give it (ISO 8601 UTC, e.g. --scene-time "
             "2026-06-14T10:32:05Z) to compare with position reports"
+        )
+    if re.fullmatch(r"\s*\d{4}[-:]\d\d[-:]\d\d\s*", acquisition_time):  # a date only (from a file name, say)
+        raise ParameterError(
+            f"the scene gives only its date ({acquisition_time.strip()}), not the time of day: give the time "
+            "(ISO 8601 UTC, e.g. --scene-time 2026-06-14T10:32:05Z) to compare with position reports"
         )
     return parse_time(acquisition_time)

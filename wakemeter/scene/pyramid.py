@@ -19,16 +19,12 @@ from rasterio.windows import Window
 
 from .. import fileio
 from ..errors import CancelledError, SceneReadError, SceneWriteError
+from .cachedir import cache_dir
 from .raster import GDAL_ERRORS, Scene, gdal_reason
 
 #: Scenes at most this many pixels on a side need no pyramid.
 PYRAMID_MIN_SIDE = 4096
 LEVEL_STEP = 4
-
-
-def cache_dir() -> Path:
-    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
-    return Path(base) / "wakemeter"
 
 
 def _key(scene: Scene) -> str:

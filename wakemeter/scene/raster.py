@@ -335,7 +335,8 @@ def _describe_crs(crs) -> str | None:
 
 
 def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> Scene:
-    """Open a raster file as a :class:`Scene` (GeoTIFF, COG, PNG, JPEG, anything GDAL reads).
+    """Open a raster file as a :class:`Scene` (GeoTIFF, COG, PNG, JPEG, anything GDAL reads), or a folder of
+    one file per band (:mod:`.band_set`).
 
     Raises
     ------
@@ -348,8 +349,10 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
     p = Path(path).expanduser()
     if not p.exists():
         raise SceneReadError(f"{p}: no such file")
-    if p.is_dir():
-        raise SceneReadError(f"{p}: is a folder, not an image file")
+    if p.is_dir():  # one file per band: the folder's bands as one virtual raster (no pixel copied)
+        from .band_set import band_set_vrt
+
+        p = band_set_vrt(p)
     if not os.access(p, os.R_OK):
         raise SceneReadError(f"{p}: permission denied (the file cannot be read by this user)")
     size = p.stat().st_size
@@ -416,6 +419,12 @@ def _read_info(p: Path, ds, size: int, files: tuple[str, ...] = ()) -> SceneInfo
         except GDAL_ERRORS:
             pass
     acq = next((tags[k] for k in _TIME_TAGS if k in tags and tags[k].strip()), None)
+    if acq is None:  # archives name files after the date: a date only, and marked as read from the name
+        from .band_set import FROM_NAMES, acquisition_date
+
+        acq = acquisition_date(p.stem)
+        if acq is not None:
+            tags["ACQUISITION_TIME_SOURCE"] = FROM_NAMES
     try:
         ovr = tuple(ds.overviews(1))
     except GDAL_ERRORS:

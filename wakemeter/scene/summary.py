@@ -40,6 +40,9 @@ def summarise(scene: Scene) -> dict:
         "crs": i.crs,
         "overviews": list(i.overview_factors),
         "acquisition_time": i.acquisition_time,
+        "acquisition_time_source": i.tags.get("ACQUISITION_TIME_SOURCE") if i.acquisition_time else None,
+        "band_names": _band_list(scene),
+        "band_timing": _timing(scene),
         "pixel_size_m": None,
         "image_up_true_bearing_deg": None,
         "bounds_wgs84": None,
@@ -51,6 +54,27 @@ def summarise(scene: Scene) -> dict:
         west, south, east, north = lonlat_bounds(scene)
         out["bounds_wgs84"] = {"west": west, "south": south, "east": east, "north": north}
     return out
+
+
+def _band_list(scene: Scene) -> list[dict]:
+    """Each band's number, name (as the file gives it) and role where the sensor table knows it."""
+    from .sensor import band_roles
+
+    roles = {b: str(r.value if hasattr(r, "value") else r) for r, b in band_roles(scene.info.band_descriptions).items()}
+    return [{"band": k, "name": d, "role": roles.get(k)} for k, d in enumerate(scene.info.band_descriptions, 1)]
+
+
+def _timing(scene: Scene) -> str | None:
+    """The sensor whose band timing applies and what told us (None when no sensor with published timing)."""
+    from .sensor import band_timing
+
+    t = band_timing(scene.info.band_descriptions, scene.info.path.name, scene.info.tags)
+    if t is None:
+        return None
+    return (
+        f"{t.sensor}: band {t.last_band} {t.delay_s:.3f} s after band {t.first_band} "
+        f"(recognised from {t.recognised_from})"
+    )
 
 
 def format_summary(s: dict) -> str:
@@ -73,7 +97,18 @@ def format_summary(s: dict) -> str:
             f"bounds (WGS 84): lon {b['west']:.6f} .. {b['east']:.6f}, lat {b['south']:.6f} .. {b['north']:.6f}",
         ]
     lines.append(f"overviews:      {', '.join(map(str, s['overviews'])) if s['overviews'] else 'none'}")
-    lines.append(f"acquired:       {s['acquisition_time'] or 'unknown (not in the metadata)'}")
+    acquired = s["acquisition_time"] or "unknown (not in the metadata)"
+    if s.get("acquisition_time_source"):
+        acquired += f" (from {s['acquisition_time_source']})"
+    lines.append(f"acquired:       {acquired}")
+    named = [b for b in s.get("band_names", []) if b["name"] or b["role"]]
+    if named:
+        lines.append(
+            "bands:          "
+            + ", ".join(f"{b['band']} {b['name'] or '?'}" + (f" ({b['role']})" if b["role"] else "") for b in named)
+        )
+    if s.get("band_timing"):
+        lines.append(f"band timing:    {s['band_timing']}")
     return "\n".join(lines)
 
 

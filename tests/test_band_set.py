@@ -1,0 +1,80 @@
+"""A folder of one file per band opened as one scene (scene.band_set), as archives deliver Sentinel-2 bands.
+
+Check values: the real crop tests/data/sentinel2/marseille_00 (Sentinel-2 L2A, MIT licence, see its README)
+split into one file per band, named as the shared port scenes are; the folder must give the crop's own pixels,
+band names and roles (B02 blue, B03 green, B04 red, B08 near infrared: ESA Sentinel-2 User Handbook, 2015,
+Table 1; from memory) and the same analysis result as the stacked crop (self-consistency).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+import rasterio
+
+from wakemeter.cli import main
+from wakemeter.detect.analysis import analyze
+from wakemeter.detect.request import AnalysisRequest
+from wakemeter.errors import SceneReadError
+from wakemeter.scene.raster import open_scene
+
+CROP = Path(__file__).parent / "data" / "sentinel2" / "marseille_00_S2L2A_2023-08-22_wake.tif"
+NAMES = ("B02", "B03", "B04", "B08")
+
+
+@pytest.fixture
+def folder(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    out = tmp_path / "marseille"
+    out.mkdir()
+    with rasterio.open(CROP) as src:
+        prof = src.profile
+        prof.update(count=1)
+        for b, name in enumerate(NAMES, 1):
+            with rasterio.open(out / f"2023-08-22_S2L2A_{name}.tif", "w", **prof) as dst:
+                dst.write(src.read(b), 1)
+    (out / "marseille_coco.json").write_text("{}")  # other files in the folder are left alone
+    return out
+
+
+def test_the_folder_is_the_crop_band_for_band(folder):
+    with open_scene(folder) as sc, rasterio.open(CROP) as ref:
+        assert sc.info.count == 4 and sc.info.band_descriptions == NAMES
+        data, ok = sc.read()
+        assert np.array_equal(data, ref.read().astype(np.float32)) and ok.all()
+        assert sc.info.acquisition_time == "2023-08-22"
+        assert sc.info.georeferenced and sc.info.crs == "EPSG:3857"
+
+
+def test_info_names_bands_roles_date_and_timing(folder, capsys):
+    assert main(["info", str(folder)]) == 0
+    out = capsys.readouterr().out
+    assert "1 B02 (blue), 2 B03 (green), 3 B04 (red), 4 B08 (near infrared)" in out
+    assert "2023-08-22 (from the file names; a date only)" in out
+    assert "Sentinel-2" in out and "1.005 s" in out
+
+
+def test_the_folder_gives_the_crops_result(folder):
+    req = AnalysisRequest(vessel_px=(120.0, 120.0))
+    with open_scene(folder) as sc:
+        a = analyze(sc, req)
+    with open_scene(CROP) as sc:
+        b = analyze(sc, req)
+    assert a.speed is not None and a.speed_over_ground
+    assert a.speed.speed_mps == pytest.approx(b.speed.speed_mps, rel=1e-9)
+    assert a.heading_deg == pytest.approx(b.heading_deg, abs=1e-9)
+
+
+def test_a_date_only_is_not_a_time_to_match_position_reports(folder, tmp_path, capsys):
+    reports = tmp_path / "ais.csv"
+    reports.write_text("MMSI,BaseDateTime,LAT,LON,SOG,COG\n1,2023-08-22T10:00:00,43.3,5.3,10,90\n")
+    assert main(["analyze", str(folder), "--vessel-px", "120,120", "--reports", str(reports)]) == 2
+    assert "only its date" in capsys.readouterr().err
+
+
+def test_a_folder_without_band_files_is_refused_in_words(tmp_path):
+    (tmp_path / "notes.txt").write_text("x")
+    with pytest.raises(SceneReadError, match="named like a band"):
+        open_scene(tmp_path)

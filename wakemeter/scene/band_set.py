@@ -1,0 +1,139 @@
+"""A folder of single-band files of one acquisition, read as one multi-band scene (no pixel copied).
+
+Archives often deliver one file per band (``2023-08-22_S2L2A_B02.tif``, ``..._B03.tif``...).  The band files
+of a folder that share a name stem and one pixel grid become the bands of a GDAL virtual raster (VRT, an
+XML file that only points at them: https://gdal.org/drivers/raster/vrt.html), written once in the user's
+cache folder and named after the stem, so the sensor table recognises the sensor from the band names and the
+file name as it does for a stacked file.  The acquisition date is taken from the stem when it holds one
+(``YYYY-MM-DD`` or ``YYYYMMDD``) and marked as read from the file names.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import re
+from dataclasses import dataclass
+from pathlib import Path
+from xml.sax.saxutils import escape
+
+import rasterio
+
+from ..errors import SceneReadError
+from ..fileio import atomic_write_bytes
+from .cachedir import cache_dir
+
+#: a band file: the stem, then the band as its archive names it (B02, B8A, B11...), then a raster extension
+_BAND_FILE = re.compile(r"^(?P<stem>.*?)[_\-. ]?(?P<band>B\d{1,2}A?)\.(?:tif|tiff|jp2)$", re.IGNORECASE)
+_DATE = re.compile(r"(?<!\d)(?P<y>(?:19|20)\d\d)-?(?P<m>[01]\d)-?(?P<d>[0-3]\d)(?!\d)")
+#: where a date read from file names comes from (the scene's metadata names it)
+FROM_NAMES = "the file names; a date only"
+#: GDAL's names of the sample types a VRT band can have
+_VRT_TYPES = {
+    "uint8": "Byte",
+    "uint16": "UInt16",
+    "int16": "Int16",
+    "uint32": "UInt32",
+    "int32": "Int32",
+    "float32": "Float32",
+    "float64": "Float64",
+}
+
+
+@dataclass(frozen=True)
+class BandFile:
+    band: str  #: as the archive names it, upper case (B02)
+    path: Path
+
+
+def band_files(folder: Path) -> tuple[str, list[BandFile]]:
+    """The stem and the band files of the folder's largest group of one stem and one pixel grid, sorted by band
+    number; SceneReadError when the folder holds no such files."""
+    groups: dict[str, list[BandFile]] = {}
+    for p in sorted(folder.iterdir()):
+        m = _BAND_FILE.match(p.name)
+        if m and p.is_file():
+            groups.setdefault(m["stem"], []).append(BandFile(m["band"].upper(), p))
+    if not groups:
+        raise SceneReadError(
+            f"{folder}: a folder, and none of its files is named like a band (…_B02.tif, …_B8A.jp2); open an image "
+            "file, or a folder of one file per band"
+        )
+    stem, files = max(groups.items(), key=lambda kv: (len(kv[1]), kv[0]))
+    grid = None
+    same: list[BandFile] = []
+    for f in sorted(files, key=lambda f: _band_number(f.band)):
+        try:
+            with rasterio.open(f.path) as ds:
+                this = (ds.width, ds.height, ds.crs, tuple(ds.transform)[:6], ds.count, ds.dtypes[0])
+        except rasterio.errors.RasterioIOError as err:
+            raise SceneReadError(f"{f.path.name}: a band file that cannot be read ({err})") from err
+        grid = grid or this
+        if this[:5] == grid[:5] and this[4] == 1:
+            same.append(f)
+    if not same:
+        raise SceneReadError(f"{folder}: no single-band file among the band files")
+    return stem, same
+
+
+def _band_number(band: str) -> tuple[int, str]:
+    return int(re.sub(r"\D", "", band)), band
+
+
+def acquisition_date(stem: str) -> str | None:
+    """The date a stem names (ISO 8601, a date only), or None."""
+    m = _DATE.search(stem)
+    return f"{m['y']}-{m['m']}-{m['d']}" if m else None
+
+
+def band_set_vrt(folder: Path) -> Path:
+    """The virtual raster of the folder's band files (written once to the cache; the same files give the same
+    VRT, a changed file a new one)."""
+    folder = folder.resolve()
+    stem, files = band_files(folder)
+    with rasterio.open(files[0].path) as ds:
+        width, height, crs, transform, dtype, nodata = (
+            ds.width,
+            ds.height,
+            ds.crs,
+            ds.transform,
+            ds.dtypes[0],
+            ds.nodata,
+        )
+    if dtype not in _VRT_TYPES:
+        raise SceneReadError(f"{files[0].path.name}: band files of type {dtype} cannot be put together here")
+    key = hashlib.sha1(
+        "|".join(f"{f.path}:{f.path.stat().st_size}:{f.path.stat().st_mtime_ns}" for f in files).encode()
+    ).hexdigest()[:16]
+    name = re.sub(r"[^A-Za-z0-9_.\-]+", "_", stem).strip("_") or "bands"
+    target = cache_dir() / "band_sets" / key / f"{name}_bands.vrt"
+    if target.exists():
+        return target
+    date = acquisition_date(stem)
+    gt = ", ".join(
+        repr(float(v)) for v in (transform.c, transform.a, transform.b, transform.f, transform.d, transform.e)
+    )
+    meta = ""
+    if date:
+        meta = (
+            f'  <Metadata>\n    <MDI key="ACQUISITION_TIME">{date}</MDI>\n'
+            f'    <MDI key="ACQUISITION_TIME_SOURCE">{FROM_NAMES}</MDI>\n  </Metadata>\n'
+        )
+    bands = "".join(
+        f'  <VRTRasterBand dataType="{_VRT_TYPES[dtype]}" band="{i}">\n'
+        f"    <Description>{escape(f.band)}</Description>\n"
+        + (f"    <NoDataValue>{nodata!r}</NoDataValue>\n" if nodata is not None else "")
+        + "    <SimpleSource>\n"
+        f'      <SourceFilename relativeToVRT="0">{escape(str(f.path))}</SourceFilename>\n'
+        "      <SourceBand>1</SourceBand>\n"
+        "    </SimpleSource>\n"
+        "  </VRTRasterBand>\n"
+        for i, f in enumerate(files, 1)
+    )
+    srs = f"  <SRS>{escape(crs.to_wkt())}</SRS>\n" if crs is not None else ""
+    xml = (
+        f'<VRTDataset rasterXSize="{width}" rasterYSize="{height}">\n{srs}'
+        f"  <GeoTransform>{gt}</GeoTransform>\n{meta}{bands}</VRTDataset>\n"
+    )
+    target.parent.mkdir(parents=True, exist_ok=True)
+    atomic_write_bytes(target, xml.encode())
+    return target
