@@ -118,10 +118,14 @@ def _refuse_early(args: argparse.Namespace) -> None:
     """A set named with --name that is already there is refused before any analysis (without --force)."""
     from pathlib import Path
 
+    from .. import fileio
     from ..errors import SetExistsError
     from ..evidence.export import safe_stem
 
-    if args.name and not args.force and (Path(args.out) / safe_stem(args.name)).exists():
+    if not args.name or args.force:
+        return
+    fileio.clean_stale(args.out)  # a killed writer's leftovers go first, even from a run that is refused
+    if (Path(args.out) / safe_stem(args.name)).exists():
         raise SetExistsError("already exists", name=safe_stem(args.name), folder=args.out)
 
 
