@@ -78,3 +78,17 @@ def test_a_folder_without_band_files_is_refused_in_words(tmp_path):
     (tmp_path / "notes.txt").write_text("x")
     with pytest.raises(SceneReadError, match="named like a band"):
         open_scene(tmp_path)
+
+
+def test_the_scene_hash_of_a_band_folder_stands_for_its_pixels(folder):
+    # the evidence's SHA-256 of a band-folder scene covers the band files, not only the virtual raster's text:
+    # changing one band file changes it (program requirement, no source)
+    with open_scene(folder) as sc:
+        before = sc.sha256()
+    band = folder / "2023-08-22_S2L2A_B08.tif"
+    with rasterio.open(band, "r+") as ds:
+        data = ds.read(1)
+        data[0, 0] = data[0, 0] + 1
+        ds.write(data, 1)
+    with open_scene(folder) as sc:
+        assert sc.sha256() != before

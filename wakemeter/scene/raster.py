@@ -216,15 +216,20 @@ class Scene:
         return geodesy.local_frame(self.georef, col, row)
 
     def sha256(self, chunk: int = 4 * 1024 * 1024) -> str:
-        """SHA-256 of the file's bytes (computed once, on demand)."""
+        """SHA-256 of the file's bytes (computed once, on demand); for a virtual raster (a folder of band files),
+        of its text followed by the bytes of every file it reads, in order, so the hash stands for the pixels."""
         if self._sha256 is None:
             h = hashlib.sha256()
-            try:
-                with open(self.info.path, "rb") as fh:
-                    for block in iter(lambda: fh.read(chunk), b""):
-                        h.update(block)
-            except OSError as err:
-                raise SceneReadError(f"{self.info.path}: cannot read the file to hash it ({err.strerror})") from err
+            paths = [self.info.path]
+            if self.info.driver == "VRT":
+                paths += sorted(Path(f) for f in self.info.files if Path(f).resolve() != self.info.path)
+            for path in paths:
+                try:
+                    with open(path, "rb") as fh:
+                        for block in iter(lambda fh=fh: fh.read(chunk), b""):
+                            h.update(block)
+                except OSError as err:
+                    raise SceneReadError(f"{path}: cannot read the file to hash it ({err.strerror})") from err
             self._sha256 = h.hexdigest()
         return self._sha256
 
