@@ -8,6 +8,7 @@ Table 1; from memory) and the same analysis result as the stacked crop (self-con
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 import numpy as np
@@ -92,3 +93,73 @@ def test_the_scene_hash_of_a_band_folder_stands_for_its_pixels(folder):
         ds.write(data, 1)
     with open_scene(folder) as sc:
         assert sc.sha256() != before
+
+
+def _item(folder: Path, hrefs: dict[str, str], *, datetime: str = "2023-08-22T10:30:21Z") -> Path:
+    """A STAC item as catalogues write them (STAC 1.0: Feature, properties.datetime and platform, assets with
+    one eo:bands entry each; asset keys by colour as some catalogues name them)."""
+    keys = {"B02": "blue", "B03": "green", "B04": "red", "B08": "nir"}
+    item = {
+        "type": "Feature",
+        "stac_version": "1.0.0",
+        "stac_extensions": ["https://stac-extensions.github.io/eo/v1.1.0/schema.json"],
+        "id": "S2A_31TFJ_20230822_0_L2A",
+        "geometry": None,
+        "properties": {"datetime": datetime, "platform": "sentinel-2a", "constellation": "sentinel-2"},
+        "assets": {
+            keys[b]: {"href": h, "type": "image/tiff; application=geotiff", "eo:bands": [{"name": b}]}
+            for b, h in hrefs.items()
+        }
+        | {"thumbnail": {"href": "thumb.png", "type": "image/png"}},
+        "links": [],
+    }
+    p = folder / "item.json"
+    p.write_text(json.dumps(item))
+    return p
+
+
+def test_a_stac_item_with_local_band_assets_is_one_scene_with_its_time_and_platform(folder, capsys):
+    item = _item(folder, {b: f"2023-08-22_S2L2A_{b}.tif" for b in NAMES})
+    with open_scene(item) as sc, rasterio.open(CROP) as ref:
+        assert sc.info.band_descriptions == NAMES
+        assert np.array_equal(sc.read()[0], ref.read().astype(np.float32))
+        assert sc.info.acquisition_time == "2023-08-22T10:30:21Z"
+    assert main(["info", str(item)]) == 0
+    out = capsys.readouterr().out
+    assert "2023-08-22T10:30:21Z (from the STAC item)" in out
+    assert "recognised from band names and the platform in the metadata" in out
+    req = AnalysisRequest(vessel_px=(120.0, 120.0))
+    with open_scene(item) as sc:
+        a = analyze(sc, req)
+    with open_scene(CROP) as sc:
+        b = analyze(sc, req)
+    assert a.speed.speed_mps == pytest.approx(b.speed.speed_mps, rel=1e-9)
+
+
+def test_a_stac_item_with_assets_on_the_network_says_to_download_them(folder):
+    item = _item(folder, {b: f"https://example.invalid/{b}.tif" for b in NAMES})
+    with pytest.raises(SceneReadError, match="on the network"):
+        open_scene(item)
+
+
+def test_a_session_on_a_band_folder_names_the_folder_and_reports(folder, tmp_path, capsys):
+    # the session records what the analyst opened (the folder), not the virtual raster in the cache; the
+    # report from it checks the scene's hash (over the band files) and writes the set (program behaviour)
+    from wakemeter.project import Project, Vessel
+    from wakemeter.project import session as session_mod
+
+    with open_scene(folder) as sc:
+        p = Project()
+        p.scene = sc
+        p.put(Vessel(1, "Crop ship", (120.0, 120.0)))
+        p.requests[1] = AnalysisRequest(vessel_px=(120.0, 120.0))
+        p.findings[1] = analyze(sc, p.requests[1])
+        saved = session_mod.save(tmp_path / "s.json", session_mod.to_session(p))
+    data = json.loads(saved.read_text())
+    assert data["scene"]["absolute_path"] == str(folder.resolve())
+    out = tmp_path / "out"
+    out.mkdir()
+    assert main(["report", str(saved), "--out", str(out)]) == 0
+    (set_dir,) = out.iterdir()
+    record = json.loads(next(p for p in set_dir.iterdir() if p.suffix == ".json").read_text())
+    assert record["provenance"]["scene_file"] == "marseille"

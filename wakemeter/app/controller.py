@@ -4,7 +4,6 @@ background jobs and the document.  Numbers come from the core; this file only mo
 from __future__ import annotations
 
 import datetime as _dt
-import hashlib
 from collections.abc import Callable
 from dataclasses import asdict
 from pathlib import Path
@@ -30,7 +29,7 @@ class Host(Protocol):
 
     def run_job(self, job: Job, on_done: Callable, on_fail: Callable | None = None) -> None: ...
 
-    def open_path(self, path: str) -> bool: ...
+    def open_path(self, path: str, *, ask_first: bool = True) -> bool: ...
 
     def confirm(self, title: str, text: str) -> bool: ...
 
@@ -195,7 +194,7 @@ class Controller(QObject):
         problem = ""
         if not scene_path or not Path(scene_path).exists():
             problem = "the scene file is not where the session says"
-        elif sc_info.get("sha256") and _sha256(scene_path) != sc_info["sha256"]:
+        elif sc_info.get("sha256") and _scene_sha256(scene_path) != sc_info["sha256"]:
             problem = "the scene file has changed since the session was saved"
         if problem:
             locate = locate or self.host.locate_scene
@@ -204,7 +203,7 @@ class Controller(QObject):
                 self.host.error("Session not opened", problem)
                 return False
             scene_path = new
-        if not self.host.open_path(scene_path):
+        if not self.host.open_path(scene_path, ask_first=False):
             return False
         doc = self.doc
         try:
@@ -474,9 +473,12 @@ class Controller(QObject):
         return files
 
 
-def _sha256(path: str) -> str:
-    h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        for block in iter(lambda: fh.read(4 << 20), b""):
-            h.update(block)
-    return h.hexdigest()
+def _scene_sha256(path: str) -> str | None:
+    """The scene's SHA-256 as a session records it (a band folder's covers its files); None when unreadable."""
+    from ..scene.raster import open_scene
+
+    try:
+        with open_scene(path) as sc:
+            return sc.sha256()
+    except WakemeterError:
+        return None

@@ -221,12 +221,12 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         sb.addPermanentWidget(box)
 
     # ---- scene ------------------------------------------------------------
-    def open_path(self, path: str) -> bool:
+    def open_path(self, path: str, *, ask_first: bool = True) -> bool:
         """Open a scene; a bad file gives a clear message and the program keeps what it had.  A file that
         reads system or private files (a crafted VRT) is opened only when the analyst confirms."""
         from ..scene.limits import ReferencedFilesError
 
-        leaving = self._may_leave_scene()
+        leaving = self._may_leave_scene() if ask_first else "nothing"  # a session's opening asked already
         if leaving is None:
             return False
         try:

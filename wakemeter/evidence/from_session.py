@@ -60,7 +60,7 @@ def open_session_vessels(
     """The session's scene (opened, checked against its SHA-256, calibrated as saved) and its vessels."""
     data = session_mod.load(path)
     scene_path = data["scene"].get("resolved_path")
-    if not scene_path or not Path(scene_path).is_file():
+    if not scene_path or not Path(scene_path).exists():
         raise ParameterError(
             f"the session's scene was not found ({data['scene'].get('absolute_path')}); "
             "open the session in the program to locate it"

@@ -29,8 +29,8 @@ def schema() -> dict:
 def provenance(scene: Scene, *, parameters: dict) -> dict:
     i = scene.info
     return {
-        "scene_file": i.path.name,
-        "scene_path": str(i.path),
+        "scene_file": i.origin.name,
+        "scene_path": str(i.origin),
         "scene_size_bytes": i.file_size,
         "scene_sha256": scene.sha256(),
         "scene_driver": i.driver,

@@ -151,7 +151,7 @@ def load(path: str | os.PathLike) -> dict:
     if scene.get("path"):
         rel = Path(scene["path"])
         candidate = (p.parent / rel) if not rel.is_absolute() else rel
-        if candidate.is_file():
+        if candidate.exists():  # a file, or a folder of band files
             resolved = str(candidate.resolve())
     scene["resolved_path"] = resolved
     return data
@@ -351,7 +351,7 @@ def to_session(project: Project) -> dict:
         if eff is not None:
             findings[str(vid)] = {"result": eff.to_json(), "rejected": vid in project.rejected}
     return {
-        "scene": {"absolute_path": str(sc.info.path), "sha256": sc.sha256(), "size_bytes": sc.info.file_size},
+        "scene": {"absolute_path": str(sc.info.origin), "sha256": sc.sha256(), "size_bytes": sc.info.file_size},
         "calibration": None
         if cal is None
         else {"pixel_size_m": cal.m_per_col, "north_up_deg": cal.bearing_up_deg if cal.north_known else None},

@@ -88,8 +88,15 @@ def acquisition_date(stem: str) -> str | None:
 def band_set_vrt(folder: Path) -> Path:
     """The virtual raster of the folder's band files (written once to the cache; the same files give the same
     VRT, a changed file a new one)."""
-    folder = folder.resolve()
-    stem, files = band_files(folder)
+    stem, files = band_files(folder.resolve())
+    date = acquisition_date(stem)
+    meta = {"ACQUISITION_TIME": date, "ACQUISITION_TIME_SOURCE": FROM_NAMES} if date else {}
+    return write_vrt(stem, files, meta)
+
+
+def write_vrt(stem: str, files: list[BandFile], metadata: dict[str, str]) -> Path:
+    """A VRT in the cache whose bands are ``files`` (one band each, one pixel grid), named after ``stem`` (the
+    sensor table reads the platform from the name), with ``metadata`` as its own items."""
     with rasterio.open(files[0].path) as ds:
         width, height, crs, transform, dtype, nodata = (
             ds.width,
@@ -102,22 +109,20 @@ def band_set_vrt(folder: Path) -> Path:
     if dtype not in _VRT_TYPES:
         raise SceneReadError(f"{files[0].path.name}: band files of type {dtype} cannot be put together here")
     key = hashlib.sha1(
-        "|".join(f"{f.path}:{f.path.stat().st_size}:{f.path.stat().st_mtime_ns}" for f in files).encode()
+        (
+            "|".join(f"{f.band}={f.path}:{f.path.stat().st_size}:{f.path.stat().st_mtime_ns}" for f in files)
+            + repr(sorted(metadata.items()))
+        ).encode()
     ).hexdigest()[:16]
     name = re.sub(r"[^A-Za-z0-9_.\-]+", "_", stem).strip("_") or "bands"
     target = cache_dir() / "band_sets" / key / f"{name}_bands.vrt"
     if target.exists():
         return target
-    date = acquisition_date(stem)
     gt = ", ".join(
         repr(float(v)) for v in (transform.c, transform.a, transform.b, transform.f, transform.d, transform.e)
     )
-    meta = ""
-    if date:
-        meta = (
-            f'  <Metadata>\n    <MDI key="ACQUISITION_TIME">{date}</MDI>\n'
-            f'    <MDI key="ACQUISITION_TIME_SOURCE">{FROM_NAMES}</MDI>\n  </Metadata>\n'
-        )
+    items = "".join(f'    <MDI key="{escape(k)}">{escape(v)}</MDI>\n' for k, v in metadata.items())
+    meta = f"  <Metadata>\n{items}  </Metadata>\n" if items else ""
     bands = "".join(
         f'  <VRTRasterBand dataType="{_VRT_TYPES[dtype]}" band="{i}">\n'
         f"    <Description>{escape(f.band)}</Description>\n"

@@ -19,7 +19,7 @@ import os
 import threading
 import warnings
 from collections.abc import Iterator
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -97,6 +97,12 @@ class SceneInfo:
     file_size: int
     tags: dict = field(default_factory=dict, compare=False, repr=False)
     files: tuple[str, ...] = ()  #: every file the scene reads (the scene's own first; a VRT lists its sources)
+    opened_as: Path | None = None  #: what was opened when it is not ``path`` itself (a band folder, a STAC item)
+
+    @property
+    def origin(self) -> Path:
+        """What the analyst opened: the file, or the folder or item read through ``path`` (a virtual raster)."""
+        return self.opened_as or self.path
 
 
 #: how long closing a scene waits for reads in progress in other threads (s)
@@ -226,7 +232,7 @@ class Scene:
             for path in paths:
                 try:
                     with open(path, "rb") as fh:
-                        for block in iter(lambda fh=fh: fh.read(chunk), b""):
+                        while block := fh.read(chunk):
                             h.update(block)
                 except OSError as err:
                     raise SceneReadError(f"{path}: cannot read the file to hash it ({err.strerror})") from err
@@ -340,8 +346,8 @@ def _describe_crs(crs) -> str | None:
 
 
 def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> Scene:
-    """Open a raster file as a :class:`Scene` (GeoTIFF, COG, PNG, JPEG, anything GDAL reads), or a folder of
-    one file per band (:mod:`.band_set`).
+    """Open a raster file as a :class:`Scene` (GeoTIFF, COG, PNG, JPEG, anything GDAL reads), a folder of
+    one file per band (:mod:`.band_set`) or a STAC item whose band assets are local files (:mod:`.stac_item`).
 
     Raises
     ------
@@ -352,12 +358,19 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
         The file refers to system or private files (a VRT, say) and ``allow_system_files`` was not given.
     """
     p = Path(path).expanduser()
+    given = p
     if not p.exists():
         raise SceneReadError(f"{p}: no such file")
     if p.is_dir():  # one file per band: the folder's bands as one virtual raster (no pixel copied)
         from .band_set import band_set_vrt
 
         p = band_set_vrt(p)
+    elif p.suffix.lower() == ".json":  # a STAC item: its local band assets as one virtual raster
+        from .stac_item import read_item, stac_vrt
+
+        item = read_item(p)
+        if item is not None:
+            p = stac_vrt(p, item)
     if not os.access(p, os.R_OK):
         raise SceneReadError(f"{p}: permission denied (the file cannot be read by this user)")
     size = p.stat().st_size
@@ -379,6 +392,8 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
         ) from err
     except (MemoryError, OverflowError, ValueError, TypeError) as err:
         raise SceneReadError(f"{p}: the file's header is not valid ({err})") from err
+    if p != given:
+        info = replace(info, opened_as=given.resolve())
     return Scene(info)
 
 
