@@ -28,8 +28,8 @@ class FileDialogs(WindowPart):
         if isinstance(last, str) and last and Path(last).is_dir():
             return last
         sc = self.doc.scene
-        if sc is not None and sc.info.path.parent.is_dir():
-            return str(sc.info.path.parent)
+        if sc is not None and sc.info.origin.parent.is_dir():
+            return str(sc.info.origin.parent)
         return str(Path.home())
 
     def used_folder(self, kind: str, path: str) -> None:
@@ -40,7 +40,7 @@ class FileDialogs(WindowPart):
         if self.controller.session_path:
             return self.controller.session_path
         sc = self.doc.scene
-        stem = sc.info.path.stem if sc is not None else "analysis"
+        stem = sc.info.origin.stem if sc is not None else "analysis"
         return str(Path(self.start_folder("session")) / f"{stem}{SESSION_SUFFIX}")
 
     def _ask_open(self, kind: str, title: str, filters: str) -> str | None:
@@ -126,7 +126,7 @@ class FileDialogs(WindowPart):
 
     def export_gis_dialog(self) -> None:
         sc = self.doc.scene
-        name = f"{sc.info.path.stem}_vessels.gpkg" if sc is not None else "vessels.gpkg"
+        name = f"{sc.info.origin.stem}_vessels.gpkg" if sc is not None else "vessels.gpkg"
         path, _ = QFileDialog.getSaveFileName(
             self,
             "Export map layers",

@@ -280,7 +280,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         self.db_action.setChecked(bool(c is not None and c.db))  # the menu says what is shown
         note = "" if sc.info.georeferenced else " — no georeference: use Calibrate before measuring"
         self.say(
-            f"{sc.info.path.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"
+            f"{sc.info.origin.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"
             + (f", {sc.info.crs}" if sc.info.crs and sc.info.crs.startswith("EPSG") else "")
             + note
         )

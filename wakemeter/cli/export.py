@@ -62,11 +62,11 @@ def run(args: argparse.Namespace) -> int:
         else:
             if not scene.info.georeferenced:
                 raise ParameterError(
-                    f"{scene.info.path.name} has no georeference: positions in longitude and latitude need one"
+                    f"{scene.info.origin.name} has no georeference: positions in longitude and latitude need one"
                 )
             inside = [p for p in positions if scene.holds_lonlat(p.lon, p.lat)]
             if not inside:
-                raise ParameterError(f"none of the {len(positions)} listed vessel(s) lies in {scene.info.path.name}")
+                raise ParameterError(f"none of the {len(positions)} listed vessel(s) lies in {scene.info.origin.name}")
             for p in positions:
                 if p not in inside:  # recorded and passed over, as the batch does
                     print(

@@ -183,13 +183,13 @@ def apply_calibration(scene: Scene, args: argparse.Namespace) -> None:
             raise ParameterError("--north-up needs --pixel-size")
         if not scene.info.georeferenced:
             raise ParameterError(
-                f"{scene.info.path.name} has no georeference: give its pixel's ground size with --pixel-size M "
+                f"{scene.info.origin.name} has no georeference: give its pixel's ground size with --pixel-size M "
                 "(and --north-up DEG when image up is not north), or calibrate it in the program"
             )
         return
     if scene.info.georeferenced:
         raise ParameterError(
-            f"{scene.info.path.name} is georeferenced: its own pixel size is used (leave out --pixel-size)"
+            f"{scene.info.origin.name} is georeferenced: its own pixel size is used (leave out --pixel-size)"
         )
     lo, hi = geodesy.CALIBRATED_PIXEL_RANGE_M
     if not (lo <= size <= hi):

@@ -97,7 +97,7 @@ def safe_stem(text: str) -> str:
 
 def default_basename(scene: Scene, analysis: WakeAnalysis) -> str:
     c, r = analysis.vessel_px
-    return safe_stem(f"{scene.info.path.stem}_wake_{int(round(c))}_{int(round(r))}")
+    return safe_stem(f"{scene.info.origin.stem}_wake_{int(round(c))}_{int(round(r))}")
 
 
 def set_folder(out_dir: str | os.PathLike, basename: str) -> Path:
@@ -176,7 +176,9 @@ def export_evidence_set(
             folder=str(folder),
         )
     names = _image_names(base, vessels)
-    images = [render_evidence(scene, v.analysis, scene_label=scene.info.path.name, vessel_name=v.name) for v in vessels]
+    images = [
+        render_evidence(scene, v.analysis, scene_label=scene.info.origin.name, vessel_name=v.name) for v in vessels
+    ]
     plots = [
         [p for p in (plots_mod.spectrum_plot(v.analysis), plots_mod.profile_plot(v.analysis)) if p is not None]
         for v in vessels
@@ -248,7 +250,7 @@ def set_basename(scene: Scene, vessels: Sequence[VesselEvidence]) -> str:
     """The default name of a set: scene and vessel position for one vessel, scene and count for several."""
     if len(vessels) == 1:
         return default_basename(scene, vessels[0].analysis)
-    return f"{scene.info.path.stem}_{len(vessels)}_vessels"
+    return f"{scene.info.origin.stem}_{len(vessels)}_vessels"
 
 
 def _image_names(base: str, vessels: Sequence[VesselEvidence]) -> list[str]:

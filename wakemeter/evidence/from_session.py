@@ -74,7 +74,7 @@ def open_session_vessels(
             )
         if saved != scene.sha256():
             raise ParameterError(
-                f"the scene {scene.info.path.name} has changed since the session was saved (SHA-256 was "
+                f"the scene {scene.info.origin.name} has changed since the session was saved (SHA-256 was "
                 f"{saved[:12]}..., is now {scene.sha256()[:12]}...): the marked positions and findings may not "
                 "belong to it. Open the session in the program to check the scene, or restore the original file"
             )
@@ -110,7 +110,7 @@ def report_from_session(
             if compared is not None:
                 vessels = [replace(v, position_report=c) for v, c in zip(vessels, compared[0], strict=True)]
                 unmatched = compared[1]
-        stem = scene.info.path.stem
+        stem = scene.info.origin.stem
         base = f"{stem}_{vessels[0].name or 'vessel'}" if len(vessels) == 1 else f"{Path(path).stem}_report"
         return export_evidence_set(
             scene,
