@@ -163,3 +163,54 @@ def test_a_session_on_a_band_folder_names_the_folder_and_reports(folder, tmp_pat
     (set_dir,) = out.iterdir()
     record = json.loads(next(p for p in set_dir.iterdir() if p.suffix == ".json").read_text())
     assert record["provenance"]["scene_file"] == "marseille"
+
+
+def _safe(tmp_path: Path) -> Path:
+    """A Sentinel-2 Level-2A product folder with the SAFE layout (ESA Products Specification Document: the
+    metadata file at the top, the 10 m bands of a tile in GRANULE/<tile>/IMG_DATA/R10m/ as lossless JPEG 2000)
+    holding the repo's crop; metadata elements as a product writes them (namespaced root; from memory)."""
+    safe = tmp_path / "S2A_MSIL2A_20230822T103031_N0509_R108_T31TFH_20230822T163344.SAFE"
+    r10 = safe / "GRANULE" / "L2A_T31TFH_A042512_20230822T103658" / "IMG_DATA" / "R10m"
+    r10.mkdir(parents=True)
+    (safe / "MTD_MSIL2A.xml").write_text(
+        '<?xml version="1.0" encoding="UTF-8"?>\n'
+        '<n1:Level-2A_User_Product xmlns:n1="https://psd-14.sentinel2.eo.esa.int/PSD/User_Product_Level-2A.xsd">'
+        "<n1:General_Info><Product_Info><PRODUCT_START_TIME>2023-08-22T10:30:31.024Z</PRODUCT_START_TIME>"
+        "<PRODUCT_TYPE>S2MSI2A</PRODUCT_TYPE><Datatake><SPACECRAFT_NAME>Sentinel-2A</SPACECRAFT_NAME></Datatake>"
+        "</Product_Info></n1:General_Info></n1:Level-2A_User_Product>\n"
+    )
+    with rasterio.open(CROP) as src:
+        prof = dict(driver="JP2OpenJPEG", width=src.width, height=src.height, count=1, dtype="uint16")
+        prof.update(crs=src.crs, transform=src.transform, QUALITY="100", REVERSIBLE="YES")
+        for b, name in enumerate(NAMES, 1):
+            with rasterio.open(r10 / f"T31TFH_20230822T103031_{name}_10m.jp2", "w", **prof) as dst:
+                dst.write(src.read(b), 1)
+    return safe
+
+
+def test_a_sentinel2_safe_folder_opens_with_its_time_and_spacecraft(tmp_path, monkeypatch, capsys):
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    safe = _safe(tmp_path)
+    with open_scene(safe) as sc, rasterio.open(CROP) as ref:
+        assert sc.info.band_descriptions == NAMES
+        assert np.array_equal(sc.read()[0], ref.read().astype(np.float32))  # lossless: the crop's own values
+        assert sc.info.acquisition_time == "2023-08-22T10:30:31.024Z"
+        assert sc.info.origin == safe.resolve()
+    assert main(["info", str(safe)]) == 0
+    out = capsys.readouterr().out
+    assert "(from the product's metadata (MTD_MSIL2A.xml))" in out
+    assert "recognised from band names and the platform in the metadata" in out
+    req = AnalysisRequest(vessel_px=(120.0, 120.0))
+    with open_scene(safe) as sc:
+        a = analyze(sc, req)
+    with open_scene(CROP) as sc:
+        b = analyze(sc, req)
+    assert a.speed.speed_mps == pytest.approx(b.speed.speed_mps, rel=1e-9)
+
+
+def test_an_incomplete_safe_folder_says_what_is_missing(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    safe = _safe(tmp_path)
+    next((safe / "GRANULE").rglob("*_B08_10m.jp2")).unlink()
+    with pytest.raises(SceneReadError, match="B08"):
+        open_scene(safe)

@@ -361,10 +361,12 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
     given = p
     if not p.exists():
         raise SceneReadError(f"{p}: no such file")
-    if p.is_dir():  # one file per band: the folder's bands as one virtual raster (no pixel copied)
+    if p.is_dir():  # a Sentinel-2 product, or one file per band: one virtual raster (no pixel copied)
         from .band_set import band_set_vrt
+        from .safe_product import metadata_file, safe_vrt
 
-        p = band_set_vrt(p)
+        mtd = metadata_file(p)
+        p = safe_vrt(p, mtd) if mtd is not None else band_set_vrt(p)
     elif p.suffix.lower() == ".json":  # a STAC item: its local band assets as one virtual raster
         from .stac_item import read_item, stac_vrt
 

@@ -1,0 +1,73 @@
+"""A Sentinel-2 Level-1C or Level-2A product in its SAFE folder, read as one scene of its 10 m bands.
+
+The SAFE layout (ESA, Sentinel-2 Products Specification Document): the product's metadata file
+``MTD_MSIL1C.xml`` or ``MTD_MSIL2A.xml`` at the top, the bands of each tile under
+``GRANULE/<tile>/IMG_DATA/`` (Level-2A: in ``R10m/`` as ``..._B02_10m.jp2``; Level-1C: ``..._B02.jp2``).
+The 10 m bands B02, B03, B04 and B08 of the first tile become a virtual raster (:func:`.band_set.write_vrt`);
+the product's start time and spacecraft come from its metadata and are marked as read from it.
+"""
+
+from __future__ import annotations
+
+import re
+import xml.etree.ElementTree as ET
+from pathlib import Path
+
+from ..errors import SceneReadError
+from .band_set import BandFile, write_vrt
+
+METADATA_FILES = ("MTD_MSIL2A.xml", "MTD_MSIL1C.xml")
+#: the largest metadata file read (a product's is a few hundred kB)
+MAX_METADATA_BYTES = 8 * 1024**2
+TEN_METRE_BANDS = ("B02", "B03", "B04", "B08")
+_BAND_IN_NAME = re.compile(r"_(B\d{2}|B8A)(?:_10m)?\.jp2$", re.IGNORECASE)
+
+
+def metadata_file(folder: Path) -> Path | None:
+    """The product metadata file when ``folder`` is a Sentinel-2 SAFE product, else None."""
+    for name in METADATA_FILES:
+        if (folder / name).is_file():
+            return folder / name
+    return None
+
+
+def _text(root: ET.Element, tag: str) -> str | None:
+    """The first element named ``tag`` anywhere in the document (namespaces ignored)."""
+    for el in root.iter():
+        if el.tag.rsplit("}", 1)[-1] == tag and el.text and el.text.strip():
+            return el.text.strip()
+    return None
+
+
+def safe_vrt(folder: Path, mtd: Path) -> Path:
+    """The virtual raster of the product's 10 m bands (first tile), with its time and spacecraft."""
+    if mtd.stat().st_size > MAX_METADATA_BYTES:
+        raise SceneReadError(f"{mtd.name}: larger than a product's metadata can be")
+    try:
+        root = ET.parse(mtd).getroot()
+    except ET.ParseError as err:
+        raise SceneReadError(f"{mtd.name}: the product's metadata is not readable XML ({err})") from err
+    granules = sorted(p for p in (folder / "GRANULE").glob("*") if p.is_dir())
+    if not granules:
+        raise SceneReadError(f"{folder.name}: a Sentinel-2 product without a GRANULE folder (incomplete download?)")
+    img = granules[0] / "IMG_DATA"
+    place = img / "R10m" if (img / "R10m").is_dir() else img
+    found: dict[str, Path] = {}
+    for p in sorted(place.glob("*.jp2")):
+        m = _BAND_IN_NAME.search(p.name)
+        if m and m[1].upper() in TEN_METRE_BANDS:
+            found.setdefault(m[1].upper(), p)
+    missing = [b for b in TEN_METRE_BANDS if b not in found]
+    if missing:
+        raise SceneReadError(f"{folder.name}: the 10 m band(s) {', '.join(missing)} are not in {place}")
+    meta: dict[str, str] = {}
+    start = _text(root, "PRODUCT_START_TIME") or _text(root, "DATATAKE_SENSING_START")
+    if start:
+        meta.update(ACQUISITION_TIME=start, ACQUISITION_TIME_SOURCE=f"the product's metadata ({mtd.name})")
+    craft = _text(root, "SPACECRAFT_NAME")
+    if craft:
+        meta["SPACECRAFT_NAME"] = craft
+    if len(granules) > 1:
+        meta["TILES_NOTE"] = f"the first of {len(granules)} tiles ({granules[0].name})"
+    stem = folder.name.removesuffix(".SAFE")
+    return write_vrt(stem, [BandFile(b, found[b]) for b in TEN_METRE_BANDS], meta)
