@@ -207,13 +207,7 @@ class Controller(QObject):
             return False
         doc = self.doc
         try:
-            if data.get("calibration") and not doc.scene.info.georeferenced:
-                from ..scene import geodesy
-
-                c = data["calibration"]
-                doc.scene.calibrate(
-                    geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"], north_up_deg=c["north_up_deg"])
-                )
+            session_mod.restore_calibration(doc.scene, data)
             session_mod.fill_project(doc.project, data)
         except (WakemeterError, KeyError, TypeError) as err:
             doc.project.clear()

@@ -181,10 +181,11 @@ def apply_calibration(scene: Scene, args: argparse.Namespace) -> None:
     if size is None:
         if up is not None:
             raise ParameterError("--north-up needs --pixel-size")
-        if not scene.info.georeferenced:
+        if not scene.info.georeferenced and scene.calibration is None:
             raise ParameterError(
                 f"{scene.info.origin.name} has no georeference: give its pixel's ground size with --pixel-size M "
                 "(and --north-up DEG when image up is not north), or calibrate it in the program"
+                + (f" ({scene.photo_note})" if scene.photo_note else "")
             )
         return
     if scene.info.georeferenced:

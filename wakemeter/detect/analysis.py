@@ -32,7 +32,7 @@ from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segm
 from .line_finding import LineLook, line_finding, look_for_lines
 from .look import Look, choose_look
 from .methods import SPEED_METHODS, MethodContext, MethodOutput, SpeedMethod, WaveStages, combine, run_methods
-from .request import AnalysisRequest, RadarGeometry
+from .request import AnalysisRequest, RadarGeometry, pixel_rel_std
 from .result import WakeAnalysis
 from .spectral import curve_points
 from .spread import Spread, estimate_spread
@@ -276,7 +276,8 @@ def _no_wake_lines(
         lonlat = (float(lon), float(lat))
     m_px = lines.chip.m_per_px if lines.chip is not None else float(np.sqrt(frame.m_per_col * frame.m_per_row_up))
     cautions = opening_cautions(
-        hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
+        hull_shift_m=None,
+        frame=frame,
     )
     return WakeAnalysis.without_wake(
         f"no wake found: {spectral_note}; {lines.why_not}",
@@ -310,7 +311,8 @@ def _no_wake(
             "belong to a wake whose vessel is elsewhere; mark that vessel instead, or ask again assuming a vessel here"
         )
     cautions = opening_cautions(
-        hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
+        hull_shift_m=None,
+        frame=frame,
     )
     return WakeAnalysis.without_wake(
         decision,
@@ -354,7 +356,7 @@ def _measure(
     back = np.radians(measures.back_deg + 180)
     heading = float(frame.bearing_of(np.cos(back), -np.sin(back)))
     depth = _depth(request, model, spread)
-    cond = inv.Conditions(g_mps2=a.g_u, depth_m=depth, pixel_scale_rel_std=request.pixel_rel_std)
+    cond = inv.Conditions(g_mps2=a.g_u, depth_m=depth, pixel_scale_rel_std=pixel_rel_std(request, frame))
     ctx = MethodContext(
         scene=scene,
         request=request,
@@ -453,7 +455,10 @@ def _cautions(
         else float(frame.length_of(a.hull_px[0] - a.vessel_px[0], a.hull_px[1] - a.vessel_px[1]))
     )
     cautions = (
-        opening_cautions(hull_shift_m=shift_m, frame_georeferenced=frame.georeferenced, north_known=frame.north_known)
+        opening_cautions(
+            hull_shift_m=shift_m,
+            frame=frame,
+        )
         + [c for o in outputs for c in o.cautions]
         + closing_cautions(
             model,

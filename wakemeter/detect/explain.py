@@ -11,6 +11,7 @@ from ..caution import CAUTION
 from ..physics import havelock, kelvin
 from ..physics import inversion as inv
 from ..physics.hull import apparent_arm_angle, hull_froude
+from ..scene.geodesy import LocalFrame
 from .depth_model import DepthModel
 from .findings import Caution, CautionCode, IntervalCover
 from .tuning import Tuning
@@ -105,7 +106,9 @@ def widen(combined: inv.CombinedSpeed, cover: IntervalCover | None) -> inv.Combi
     )
 
 
-def opening_cautions(*, hull_shift_m: float | None, frame_georeferenced: bool, north_known: bool) -> list[Caution]:
+def opening_cautions(*, hull_shift_m: float | None, frame: LocalFrame) -> list[Caution]:
+    """The cautions every result opens with: it is an estimate; a radar hull away from its wake; distances from
+    a calibration (by hand, or from a photo's own metadata) rather than a georeference."""
     out = [Caution(CautionCode.ESTIMATE, CAUTION)]
     if hull_shift_m is not None:
         out.append(
@@ -116,12 +119,13 @@ def opening_cautions(*, hull_shift_m: float | None, frame_georeferenced: bool, n
                 "vessel's true position at the time of imaging; check that this wake belongs to this hull",
             )
         )
-    if not frame_georeferenced:
+    if not frame.georeferenced:
         out.append(
             Caution(
                 CautionCode.NO_GEOREFERENCE,
-                "the image has no georeference: distances use the hand calibration"
-                + ("" if north_known else "; headings are relative to image up, not true bearings"),
+                "the image has no georeference: distances use "
+                + (frame.source or "the hand calibration")
+                + ("" if frame.north_known else "; headings are relative to image up, not true bearings"),
             )
         )
     return out

@@ -28,7 +28,7 @@ from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, Line
 from .hull_outline import line_is_the_hull
 from .line_chip import LineChip, prepare_line_chip
 from .methods import SPEED_METHODS, LineStages, MethodContext, SpeedMethod, combine, run_methods
-from .request import AnalysisRequest
+from .request import AnalysisRequest, pixel_rel_std
 from .result import WakeAnalysis
 from .tuning import Tuning
 from .wakeline import LineWake, find_wake_line
@@ -181,7 +181,7 @@ def line_finding(
         request=request,
         heading_deg=heading,
         frame=frame,
-        conditions=inv.Conditions(g_mps2=gravity, pixel_scale_rel_std=request.pixel_rel_std),
+        conditions=inv.Conditions(g_mps2=gravity, pixel_scale_rel_std=pixel_rel_std(request, frame)),
         gravity=gravity,
         rng=np.random.default_rng(request.seed),
         hull_px=hull_px,
@@ -190,7 +190,8 @@ def line_finding(
     )
     outputs, estimates, _depth_source = run_methods(ctx, methods)
     cautions = opening_cautions(
-        hull_shift_m=None, frame_georeferenced=frame.georeferenced, north_known=frame.north_known
+        hull_shift_m=None,
+        frame=frame,
     ) + [c for o in outputs for c in o.cautions]
     segments = _line_segments(chip, wake) + [s for o in outputs for s in o.segments]
     reason = "; ".join([_no_speed_reason(chip, g, spectral_note), *(o.why_not for o in outputs if o.why_not)])

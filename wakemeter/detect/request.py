@@ -13,6 +13,8 @@ import math
 from dataclasses import dataclass, replace
 from typing import Any
 
+import numpy as np
+
 from ..errors import ParameterError
 from ..physics.inversion import Uncertain
 
@@ -329,3 +331,9 @@ class AnalysisRequest:
                 None if not inputs.get("radar_geometry") else RadarGeometry.from_json(inputs["radar_geometry"])
             ),
         )
+
+
+def pixel_rel_std(request: AnalysisRequest, frame: Any) -> float:
+    """The pixel size's relative standard uncertainty an analysis uses: the request's, and a calibration's
+    (a photo's own metadata) added in quadrature."""
+    return float(np.hypot(request.pixel_rel_std, getattr(frame, "scale_rel_std", 0.0)))

@@ -14,7 +14,6 @@ from ..detect.result import WakeAnalysis
 from ..errors import ParameterError
 from ..project import Project
 from ..project import session as session_mod
-from ..scene import geodesy
 from ..scene.raster import Scene, open_scene
 from .export import CaseDetails, EvidenceFiles, VesselEvidence, export_evidence_set, hand_measurement_rows
 
@@ -78,9 +77,7 @@ def open_session_vessels(
                 f"{saved[:12]}..., is now {scene.sha256()[:12]}...): the marked positions and findings may not "
                 "belong to it. Open the session in the program to check the scene, or restore the original file"
             )
-        if data.get("calibration") and not scene.info.georeferenced:
-            c = data["calibration"]
-            scene.calibrate(geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"], north_up_deg=c["north_up_deg"]))
+        session_mod.restore_calibration(scene, data)
         project = Project()
         project.scene = scene
         session_mod.fill_project(project, data)

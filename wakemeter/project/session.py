@@ -21,11 +21,14 @@ import os
 import re
 import secrets
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from ..errors import WakemeterError
 from ..fileio import atomic_write_bytes, clean_stale
 from .model import Measurement, Project, Vessel
+
+if TYPE_CHECKING:
+    from ..scene.raster import Scene
 
 SCHEMA = "wakemeter.session/2"
 READABLE = ("wakemeter.session/1", SCHEMA)
@@ -421,3 +424,20 @@ def _point(p: Any) -> tuple[float, float]:
     if not (math.isfinite(x) and math.isfinite(y)) or len(p) != 2:
         raise ValueError(f"a position must be two finite numbers, got {p!r}")
     return x, y
+
+
+def restore_calibration(scene: Scene, data: dict) -> None:
+    """Give a scene without georeference the calibration its session saved; a photo already calibrated from
+    its own metadata to the same pixel size and north keeps that calibration (and its stated uncertainty)."""
+    c = data.get("calibration")
+    if not c or scene.info.georeferenced:
+        return
+    from ..scene import geodesy
+
+    now, north = scene.calibration, c["north_up_deg"]
+    if now is not None and abs(now.m_per_col - c["pixel_size_m"]) <= 1e-12 * c["pixel_size_m"]:
+        if (north is None and not now.north_known) or (
+            north is not None and now.north_known and abs(now.bearing_up_deg - north % 360.0) < 1e-9
+        ):
+            return
+    scene.calibrate(geodesy.calibrated_frame(pixel_size_m=c["pixel_size_m"], north_up_deg=north))

@@ -156,6 +156,8 @@ class LocalFrame:
     bearing_up_deg: float
     georeferenced: bool = True
     north_known: bool = True
+    scale_rel_std: float = 0.0  #: relative standard uncertainty of the pixel size (a calibration's; 0: none)
+    source: str = ""  #: where a calibration comes from, for the result's cautions ("" : a hand calibration)
 
     def __post_init__(self) -> None:
         for name in ("m_per_col", "m_per_row_up"):
@@ -228,7 +230,9 @@ def local_frame(georef: GeoRef, col: float, row: float) -> LocalFrame:
 CALIBRATED_PIXEL_RANGE_M = (1e-3, 1e4)
 
 
-def calibrated_frame(*, pixel_size_m: float, north_up_deg: float | None = None) -> LocalFrame:
+def calibrated_frame(
+    *, pixel_size_m: float, north_up_deg: float | None = None, scale_rel_std: float = 0.0, source: str = ""
+) -> LocalFrame:
     """Frame for an image without georeference, from a pixel size and optionally a north direction.
 
     ``north_up_deg`` is the true bearing of image up (0 when the image is north-up).  When
@@ -240,8 +244,17 @@ def calibrated_frame(*, pixel_size_m: float, north_up_deg: float | None = None) 
             f"a pixel's ground size must lie between {lo * 1000:g} mm and {hi / 1000:g} km, got {pixel_size_m!r} m"
         )
     up = 0.0 if north_up_deg is None else float(north_up_deg) % 360.0
+    if not (np.isfinite(scale_rel_std) and 0.0 <= scale_rel_std < 0.5):
+        raise ParameterError(f"a calibration's relative uncertainty must lie in [0, 0.5), got {scale_rel_std!r}")
     return LocalFrame(
-        pixel_size_m, pixel_size_m, (up + 90.0) % 360.0, up, georeferenced=False, north_known=north_up_deg is not None
+        pixel_size_m,
+        pixel_size_m,
+        (up + 90.0) % 360.0,
+        up,
+        georeferenced=False,
+        north_known=north_up_deg is not None,
+        scale_rel_std=float(scale_rel_std),
+        source=source,
     )
 
 

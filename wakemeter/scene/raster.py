@@ -127,6 +127,7 @@ class Scene:
         self._sha256: str | None = None
         self.pyramid: list[tuple[int, Path]] = []  #: (factor, path) of cached reduced levels, if built
         self.calibration: geodesy.LocalFrame | None = None  #: hand calibration of a plain image
+        self.photo_note = ""  #: why a photograph's own metadata gave no scale (empty: none tried, or it did)
 
     # ---- life cycle -------------------------------------------------------
     def __enter__(self) -> Scene:
@@ -396,7 +397,34 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
         raise SceneReadError(f"{p}: the file's header is not valid ({err})") from err
     if p != given:
         info = replace(info, opened_as=given.resolve())
-    return Scene(info)
+    return _with_photo_scale(info)
+
+
+def _with_photo_scale(info: SceneInfo) -> Scene:
+    """A photograph without georeference that says its own scale (EXIF and XMP) comes calibrated, its note
+    saying from what; one that cannot be (a tilted camera, no height) says why."""
+    scene = Scene(info)
+    if info.georeferenced or info.driver not in ("JPEG", "GTiff", "PNG"):
+        return scene
+    from .photo_scale import read_photo_scale
+
+    ps = read_photo_scale(info.path)
+    if ps is None:
+        return scene
+    if ps.pixel_size_m is None:
+        scene.photo_note = f"not calibrated from the photo's metadata: {ps.reason}"
+        scene.info = replace(info, georeference_note=f"no georeference; {scene.photo_note}")
+        return scene
+    try:
+        frame = geodesy.calibrated_frame(
+            pixel_size_m=ps.pixel_size_m, north_up_deg=ps.north_up_deg, scale_rel_std=ps.rel_std, source=ps.source
+        )
+    except ParameterError as err:
+        scene.info = replace(info, georeference_note=f"no georeference; the photo's own scale is not usable ({err})")
+        return scene
+    scene.calibrate(frame)
+    scene.info = replace(info, georeference_note=f"no georeference; calibrated from {ps.source}")
+    return scene
 
 
 def _read_info(p: Path, ds, size: int, files: tuple[str, ...] = ()) -> SceneInfo:

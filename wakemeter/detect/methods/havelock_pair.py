@@ -23,7 +23,7 @@ class HavelockPair:
             return NOTHING
         if not (half > kelvin.KELVIN_HALF_ANGLE_DEG + 2 * half_sd and half_sd < ctx.tuning.havelock_pair_max_std_deg):
             return NOTHING
-        cond = inv.Conditions(g_mps2=ctx.gravity, pixel_scale_rel_std=ctx.request.pixel_rel_std)
+        cond = inv.Conditions(g_mps2=ctx.gravity, pixel_scale_rel_std=ctx.conditions.pixel_scale_rel_std)
         est, _depth = inv.speed_and_depth_from_transverse_wavelength_and_half_angle(
             lam, inv.Uncertain(half, half_sd), cond, seed=ctx.rng
         )

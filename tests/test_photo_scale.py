@@ -1,0 +1,101 @@
+"""Photographs that say their own scale: pixel size from EXIF and drone XMP (scene.photo_scale).
+
+Check values: the pinhole camera, one pixel covering H x pitch / f on a plane at distance H straight ahead
+(Hartley & Zisserman 2003, Multiple View Geometry, sec. 6.1; from memory); the 35 mm equivalent focal length
+defined over the 43.27 mm diagonal of the 36 x 24 mm frame (CIPA DC-008 / Exif 2.32, FocalLengthIn35mmFilm;
+from memory).  The wake scene is the demo's (sample_scenes/harbour_approach_optical.truth.json: 14.0 kn at
+2.00 m pixels).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+import pytest
+import rasterio
+from PIL import Image
+
+from wakemeter.cli import main
+from wakemeter.scene.raster import open_scene
+
+ROOT = Path(__file__).resolve().parents[1]
+SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
+TRUTH = json.loads((ROOT / "sample_scenes" / "harbour_approach_optical.truth.json").read_text())["vessels"][0]
+
+
+def _xmp(height: float, pitch: float, yaw: float | None) -> bytes:
+    yaw_attr = "" if yaw is None else f' drone-dji:GimbalYawDegree="{yaw:+.1f}"'
+    return (
+        '<x:xmpmeta xmlns:x="adobe:ns:meta/"><rdf:RDF xmlns:rdf="http://www.w3.org/1999/02/22-rdf-syntax-ns#">'
+        '<rdf:Description rdf:about="" xmlns:drone-dji="http://www.dji.com/drone-dji/1.0/"'
+        f' drone-dji:RelativeAltitude="{height:+.2f}" drone-dji:GimbalPitchDegree="{pitch:+.1f}"{yaw_attr}/>'
+        "</rdf:RDF></x:xmpmeta>"
+    ).encode()
+
+
+def _photo(
+    path: Path,
+    img: Image.Image,
+    *,
+    height: float,
+    pitch: float = -90.0,
+    yaw: float | None = 120.0,
+    focal: float | None = 8.8,
+    pitch_mm: float | None = 0.00241,
+    f35: float | None = None,
+) -> Path:
+    exif = Image.Exif()
+    sub = {}
+    if focal is not None:
+        sub[0x920A] = focal
+    if pitch_mm is not None:
+        sub[0xA20E] = 1.0 / pitch_mm  # FocalPlaneXResolution, pixels per unit
+        sub[0xA210] = 4  # unit: mm
+    if f35 is not None:
+        sub[0xA405] = int(f35)
+    exif_ifd = exif.get_ifd(0x8769)
+    exif_ifd.update(sub)
+    img.save(path, quality=100, exif=exif, xmp=_xmp(height, pitch, yaw))
+    return path
+
+
+def test_a_nadir_drone_photo_is_calibrated_from_its_lens_and_height(tmp_path):
+    p = _photo(tmp_path / "dji.jpg", Image.new("L", (400, 300), 90), height=50.0)
+    with open_scene(p) as sc:
+        f = sc.local_frame()
+    assert f.m_per_col == pytest.approx(50.0 * 0.00241 / 8.8, rel=1e-6)  # pinhole: H pitch / f
+    assert f.bearing_up_deg == pytest.approx(120.0) and f.north_known
+    assert f.scale_rel_std == pytest.approx(math.hypot(math.hypot(0.5, 1.0) / 50.0, 0.02, 0.01))
+    assert "RelativeAltitude" in f.source and "straight down" in f.source
+
+
+def test_the_35mm_equivalent_gives_the_scale_over_the_diagonal(tmp_path):
+    p = _photo(tmp_path / "f35.jpg", Image.new("L", (4000, 3000), 90), height=50.0, focal=4.5, pitch_mm=None, f35=24)
+    with open_scene(p) as sc:
+        assert sc.local_frame().m_per_col == pytest.approx(50.0 * math.hypot(36, 24) / (24 * 5000.0), rel=1e-6)
+
+
+def test_a_tilted_camera_is_not_calibrated_and_says_why(tmp_path, capsys):
+    p = _photo(tmp_path / "oblique.jpg", Image.new("L", (400, 300), 90), height=50.0, pitch=-60.0)
+    with open_scene(p) as sc:
+        assert sc.calibration is None and "tilted 30.0°" in sc.photo_note
+    assert main(["analyze", str(p), "--vessel-px", "200,150"]) == 2
+    err = capsys.readouterr().err
+    assert "--pixel-size" in err and "tilted 30.0°" in err
+
+
+def test_a_photo_of_a_wake_gives_the_speed_and_says_where_its_scale_comes_from(tmp_path, capsys):
+    # the demo scene as a photo whose metadata says 2.00 m per pixel (H = 2.00 x 8.8 / 0.00241 m: an aircraft)
+    with rasterio.open(SCENE) as ds:
+        img = Image.fromarray(ds.read(1))
+    p = _photo(tmp_path / "survey.jpg", img, height=2.0 * 8.8 / 0.00241, yaw=0.0)
+    px = f"{TRUTH['pixel_col']:.0f},{TRUTH['pixel_row']:.0f}"
+    assert main(["analyze", str(p), "--vessel-px", px, "--json"]) == 0
+    r = json.loads(capsys.readouterr().out)
+    lo, hi = r["speed_ci95_knots"]
+    assert lo <= 14.0 <= hi
+    assert any("the photo's own metadata" in c["text"] for c in r["cautions"])
+    assert main(["analyze", str(p), "--vessel-px", px, "--pixel-size", "2.0", "--json"]) == 0  # an override
+    assert not any("photo's own" in c["text"] for c in json.loads(capsys.readouterr().out)["cautions"])
