@@ -633,20 +633,15 @@ def test_export_form_does_not_preselect_a_rejected_finding_when_others_remain(wi
     assert seen == {"one": (False, False), "every": True}
 
 
-def test_the_window_and_the_command_agree_on_a_plain_image_with_the_same_click(qtbot, tmp_path, monkeypatch, capsys):
+def test_the_window_and_the_command_agree_on_a_plain_image_with_the_same_click(
+    qtbot, tmp_path, monkeypatch, capsys, plain_demo_scene
+):
     # the demo scene without its georeference, 2 m pixels: the window (Calibrate with two points 200 m apart)
     # and `analyze --pixel-size 2` give the same speed and interval for the same click; what differs between
     # clicks (whether the transverse crests are seen) each result says (program behaviour, no source)
-    import rasterio
-
     from wakemeter.cli import main
 
-    plain = tmp_path / "plain.tif"
-    with rasterio.open(SCENE) as ds:
-        data = ds.read()
-        prof = {"driver": "GTiff", "width": ds.width, "height": ds.height, "count": ds.count, "dtype": ds.dtypes[0]}
-    with rasterio.open(plain, "w", **prof) as out:
-        out.write(data)
+    plain = plain_demo_scene
     px = (788.0, 371.0)
     assert (
         main(["analyze", str(plain), "--vessel-px", "788,371", "--pixel-size", "2", "--north-up", "0", "--json"]) == 0

@@ -152,19 +152,12 @@ def test_analyze_and_report_carry_the_check(tmp_path, capsys):
     assert "--limit-through-water needs --speed-limit" in capsys.readouterr().err
 
 
-def test_plain_image_with_a_given_pixel_size(tmp_path, capsys):
+def test_plain_image_with_a_given_pixel_size(tmp_path, capsys, plain_demo_scene):
     # the demo scene without its georeference (2.00 m pixels, north up; truth 7.20 m/s,
     # sample_scenes/harbour_approach_optical.truth.json) analysed headless with --pixel-size, as the program's
     # Calibrate tool allows
-    import rasterio
-
     src = "sample_scenes/harbour_approach_optical.tif"
-    plain = tmp_path / "plain.tif"
-    with rasterio.open(src) as ds:
-        data = ds.read()
-        profile = {"driver": "GTiff", "width": ds.width, "height": ds.height, "count": ds.count, "dtype": ds.dtypes[0]}
-    with rasterio.open(plain, "w", **profile) as out:
-        out.write(data)
+    plain = plain_demo_scene
     truth = json.loads(open("sample_scenes/harbour_approach_optical.truth.json").read())["vessels"][0]
     px = f"{truth['pixel_col']:.0f},{truth['pixel_row']:.0f}"
     assert main(["analyze", str(plain), "--vessel-px", px]) == 2
