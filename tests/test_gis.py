@@ -152,3 +152,21 @@ def test_batch_table_and_gis_layer_share_one_vessel_row():
     row = result_row(WakeAnalysis.from_json(stored))
     assert row["speed_kn"] == pytest.approx(10.0, rel=1e-5)  # 1 kn = 1852/3600 m/s (BIPM SI Brochure, Table 8)
     assert row["method"] == "spectral fit" and row["speed_basis"] == "through the water"
+
+
+def test_the_vessel_row_carries_the_limit_its_probability_and_the_lower_bound():
+    # with a 10 kn limit the row holds the limit, the probability of exceeding it and the one-sided 95 % lower
+    # bound on the limit's basis (the 5th percentile of the speed draws: JCGM 101:2008, sec. 7.7; from memory);
+    # the demo launch's truth is 14.0 kn (sample_scenes/harbour_approach_optical.truth.json)
+    from wakemeter.detect.analysis import analyze
+    from wakemeter.detect.request import AnalysisRequest, SpeedLimit
+    from wakemeter.detect.result import result_row
+    from wakemeter.physics.units import KNOT_MPS
+    from wakemeter.scene.raster import open_scene
+
+    with open_scene("sample_scenes/harbour_approach_optical.tif") as sc:
+        a = analyze(sc, AnalysisRequest(vessel_lonlat=(-35.0, 36.0), speed_limit=SpeedLimit(10 * KNOT_MPS)))
+    row = result_row(a)
+    assert row["limit_kn"] == pytest.approx(10.0)
+    assert row["p_over_limit"] > 0.99
+    assert 10.0 < row["lower95_kn"] < row["speed_kn"] <= row["speed_ci95_high_kn"]

@@ -388,6 +388,7 @@ RESULT_ROW_FIELDS = (
     "method",
     "limit_kn",
     "p_over_limit",
+    "lower95_kn",
 )
 
 
@@ -411,4 +412,6 @@ def result_row(a: WakeAnalysis | None) -> dict:
         "method": " + ".join(m.method for m in a.methods) or None,
         "limit_kn": None if check is None or check.limit is None else check.limit.limit_mps / KNOT_MPS,
         "p_over_limit": None if judged is None else judged.probability_over,
+        # one-sided 95 % lower bound of the speed on the limit's basis (over ground or through the water)
+        "lower95_kn": None if judged is None else judged.lower95_mps / KNOT_MPS,
     }
