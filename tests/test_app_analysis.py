@@ -655,3 +655,27 @@ def test_the_window_and_the_command_agree_on_a_plain_image_with_the_same_click(
     got = (a.speed.speed_mps, a.speed.ci95_low_mps, a.speed.ci95_high_mps)
     assert got == pytest.approx((cli["speed_mps"], *cli["speed_ci95_mps"]), rel=1e-4)
     w.close()
+
+
+def test_the_vessel_table_lists_every_vessel_sorts_and_selects(win, qtbot):
+    # after Analyse all, one row per vessel with the batch table's columns (the demo launch: 14.0 kn, truth in
+    # sample_scenes/harbour_approach_optical.truth.json); sorting by speed puts the analysed one first; a
+    # click on a row selects that vessel (program behaviour, no source)
+    from PySide6.QtCore import Qt as _Qt
+
+    p = win.controller.panel
+    p.form.use_limit.setChecked(True)
+    p.form.limit.setValue(10.0)
+    second = win.doc.new_id()
+    win.doc.undo.push(AddItem(win.doc, Vessel(second, "Hollin Mere", (100.0, 900.0)), "mark vessel"))
+    win.analyse_all()
+    qtbot.waitUntil(lambda: win.job is None and not win.controller.queue, timeout=120_000)
+    qtbot.wait(50)
+    t = win.vessel_table
+    assert win.table_dock.isVisible() and t.rowCount() == 2
+    t.sortItems(1, _Qt.SortOrder.DescendingOrder)
+    top = {t.horizontalHeaderItem(j).text(): t.item(0, j).text() for j in range(t.columnCount())}
+    assert top["Vessel"] == "Saltmarsh Wren" and 13.0 < float(top["Speed (kn)"]) < 15.0
+    assert top["Limit (kn)"] == "10.0" and float(top["P(over limit)"]) > 0.99
+    t.selectRow(1)
+    assert win.doc.selected == second

@@ -14,6 +14,9 @@ WINDOW = (
     f"QToolButton:checked {{ background: {SELECTED}; border-radius: 4px; }} "
     f"QListWidget {{ background: {PANEL}; color: {TEXT}; border: none; }} "
     f"QListWidget::item:selected {{ background: {SELECTED}; }} "
+    f"QTableWidget {{ background: {PANEL}; color: {TEXT}; gridline-color: {SELECTED}; border: none; }} "
+    f"QTableWidget::item:selected {{ background: {SELECTED}; }} "
+    f"QHeaderView::section {{ background: {BACKGROUND}; color: {TEXT}; border: none; padding: 3px; }} "
     f"QStatusBar {{ background: {PANEL}; color: {TEXT}; }} QStatusBar QLabel {{ color: {TEXT}; }}"
 )
 RESULTS_SCROLL = (

@@ -31,6 +31,7 @@ from .file_dialogs import FileDialogs
 from .measurement_list import MeasurementList
 from .results import ResultsPanel
 from .vessel_search import VesselSearch
+from .vessel_table import VesselTable
 from .workers import Job, Relay
 
 ICONS = Path(__file__).resolve().parents[2] / "icons"
@@ -66,6 +67,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
 
         self.controller = Controller(self.doc, self.panel, self, parent=self)
         self.panel.export_requested.connect(self.export_dialog)
+        self.panel.analyse_all.connect(self.table_dock.show)
         self.setAcceptDrops(True)
         self.canvas.cursor_moved.connect(self._readout)
         self.canvas.message.connect(self.say)
@@ -162,6 +164,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         self._contrast(0.8)
 
     def analyse_all(self) -> None:
+        self.table_dock.show()  # scene-wide work ends in the table of every vessel
         self.controller.analyse_all()
 
     def help_keys(self) -> None:
@@ -195,8 +198,16 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         self.resizeDocks([dock, results], [400, 400], Qt.Orientation.Horizontal)
         self.resizeDocks([dock, results], [160, 600], Qt.Orientation.Vertical)
         self.results_dock = results
+        self.vessel_table = VesselTable(self.doc)
+        table = QDockWidget("Vessel table", self)
+        table.setObjectName("vessel_table")
+        table.setWidget(self.vessel_table)
+        self.addDockWidget(Qt.DockWidgetArea.BottomDockWidgetArea, table)
+        table.hide()  # shown from View > Panels, and after Analyse all
+        self.table_dock = table
         self.panels_menu.addAction(dock.toggleViewAction())
         self.panels_menu.addAction(results.toggleViewAction())
+        self.panels_menu.addAction(table.toggleViewAction())
 
     def _build_status(self) -> None:
         sb = self.statusBar()
