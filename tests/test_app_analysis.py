@@ -679,3 +679,40 @@ def test_the_vessel_table_lists_every_vessel_sorts_and_selects(win, qtbot):
     assert top["Limit (kn)"] == "10.0" and float(top["P(over limit)"]) > 0.99
     t.selectRow(1)
     assert win.doc.selected == second
+
+
+def test_a_limit_set_once_applies_to_every_vessel_without_its_own(win, qtbot, tmp_path):
+    # Vessels > Limit and current of this vessel for every vessel: Analyse all judges both vessels against the
+    # 10 kn limit; a vessel with its own limit keeps it; the session keeps the scene's limit (program behaviour)
+    from wakemeter.project import session as session_mod
+
+    p = win.controller.panel
+    first = next(iter(win.doc.vessels))
+    win.doc.select(first)
+    p.form.use_limit.setChecked(True)
+    p.form.limit.setValue(10.0)
+    win.limit_for_every_vessel()
+    p.form.use_limit.setChecked(False)  # the first vessel's own form: no limit of its own
+    second = win.doc.new_id()
+    win.doc.undo.push(AddItem(win.doc, Vessel(second, "Hollin Mere", (100.0, 900.0)), "mark vessel"))
+    third = win.doc.new_id()
+    win.doc.undo.push(AddItem(win.doc, Vessel(third, "Tern", (200.0, 900.0)), "mark vessel"))
+    win.doc.select(third)
+    p.form.use_limit.setChecked(True)
+    p.form.limit.setValue(6.0)
+    win.doc.select(second)
+    for vid, kn in ((first, 10.0), (second, 10.0), (third, 6.0)):
+        assert win.doc.project.request_for(vid).speed_limit.limit_mps == pytest.approx(kn * 0.514444, rel=1e-5)
+    win.analyse_all()
+    qtbot.waitUntil(lambda: win.job is None and not win.controller.queue, timeout=120_000)
+    a = win.doc.effective_finding(first)
+    assert a.speed_check() is not None and a.speed_check().judged.probability_over > 0.99  # 14 kn against 10
+    assert win.controller.save_session(str(tmp_path / "s.json"))
+    data = json.loads((tmp_path / "s.json").read_text())
+    assert data["scene_check"]["speed_limit"]["limit_mps"] == pytest.approx(10 * 0.514444, rel=1e-5)
+    loaded = session_mod.load(tmp_path / "s.json")
+    assert loaded["scene_check"] == data["scene_check"]
+    assert win.controller.open_session(str(tmp_path / "s.json"))
+    assert win.doc.project.scene_limit is not None and win.doc.project.scene_limit.limit_mps == pytest.approx(
+        10 * 0.514444, rel=1e-5
+    )

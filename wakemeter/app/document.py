@@ -275,3 +275,22 @@ class SetRequest(QUndoCommand):
 
     def undo(self) -> None:
         self._set(self.old)
+
+
+class SetSceneCheck(QUndoCommand):
+    """The speed limit and water current for every vessel of the scene without its own."""
+
+    def __init__(self, doc: Document, limit, current):
+        super().__init__("limit and current for every vessel")
+        self.doc, self.new = doc, (limit, current)
+        self.old = (doc.project.scene_limit, doc.project.scene_current)
+
+    def _set(self, value) -> None:
+        self.doc.project.scene_limit, self.doc.project.scene_current = value
+        self.doc.changed.emit()
+
+    def redo(self) -> None:
+        self._set(self.new)
+
+    def undo(self) -> None:
+        self._set(self.old)

@@ -22,6 +22,7 @@ from PySide6.QtWidgets import (
 )
 
 from ..errors import WakemeterError
+from ..physics.units import KNOT_MPS
 from ..scene import geodesy
 from . import actions, help_texts, style
 from .calibration import Calibration
@@ -162,6 +163,20 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
 
     def darker(self) -> None:
         self._contrast(0.8)
+
+    def limit_for_every_vessel(self) -> None:
+        """The limit and current the form shows become the scene's, for every vessel without its own (undoable);
+        an empty form clears them."""
+        from .document import SetSceneCheck
+
+        limit, current = self.panel.limit_and_current()
+        self.doc.undo.push(SetSceneCheck(self.doc, limit, current))
+        if limit is None and current is None:
+            self.say("no limit or current for the scene: each vessel keeps its own")
+            return
+        said = [] if limit is None else [f"a {limit.limit_mps / KNOT_MPS:.1f} kn limit"]
+        said += [] if current is None else ["the current"]
+        self.say(f"{' and '.join(said)} for every vessel without its own; Vessels → Analyse all applies it")
 
     def analyse_all(self) -> None:
         self.table_dock.show()  # scene-wide work ends in the table of every vessel

@@ -13,7 +13,7 @@ from enum import StrEnum
 
 from ..detect import handmeasure as hm
 from ..detect.findings import SegmentKind
-from ..detect.request import AnalysisRequest
+from ..detect.request import AnalysisRequest, SpeedLimit, WaterCurrent
 from ..detect.result import WakeAnalysis
 from ..detect.revise import HAND_ANGLE_MAX_DEG, HAND_ANGLE_STD_DEG, revise, with_crest_lines
 from ..errors import WakemeterError
@@ -81,6 +81,9 @@ class Project:
         self.findings: dict[int, WakeAnalysis] = {}  #: vessel id -> the analysis as it came out
         self.requests: dict[int, AnalysisRequest] = {}  #: vessel id -> what the analyst asked
         self.rejected: set[int] = set()  #: vessels whose finding the analyst rejected
+        #: a speed limit and a water current for every vessel of the scene that has none of its own
+        self.scene_limit: SpeedLimit | None = None
+        self.scene_current: WaterCurrent | None = None
         self.selected = 0
         self._ids = itertools.count(1)
         self._effective: dict[int, tuple] = {}
@@ -101,6 +104,7 @@ class Project:
         self.findings.clear()
         self.requests.clear()
         self.rejected.clear()
+        self.scene_limit = self.scene_current = None
         self._effective.clear()
         self.selected = 0
 
@@ -146,10 +150,16 @@ class Project:
         return next(iter(self.vessels), None) if len(self.vessels) == 1 else None
 
     def request_for(self, vessel_id: int) -> AnalysisRequest:
-        """The vessel's request at its current position (a default one when nothing was given)."""
+        """The vessel's request at its current position (a default one when nothing was given), with the scene's
+        limit and current where the vessel has none of its own."""
         pos = self.vessels[vessel_id].position
         req = self.requests.get(vessel_id)
-        return AnalysisRequest(vessel_px=pos) if req is None else req.at_pixel(pos)
+        req = AnalysisRequest(vessel_px=pos) if req is None else req.at_pixel(pos)
+        if req.speed_limit is None and self.scene_limit is not None:
+            req = replace(req, speed_limit=self.scene_limit)
+        if req.current is None and self.scene_current is not None:
+            req = replace(req, current=self.scene_current)
+        return req
 
     # ---- values from the core -------------------------------------------
     def north_known(self) -> bool:

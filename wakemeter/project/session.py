@@ -370,7 +370,17 @@ def to_session(project: Project) -> dict:
             }
             for m in project.measurements.values()
         ],
-        "requests": {str(vid): project.request_for(vid).to_json() for vid in project.requests},
+        "requests": {
+            str(vid): project.requests[vid].at_pixel(project.vessels[vid].position).to_json()
+            for vid in project.requests
+            if vid in project.vessels
+        },
+        "scene_check": None
+        if project.scene_limit is None and project.scene_current is None
+        else {
+            "speed_limit": None if project.scene_limit is None else project.scene_limit.to_json(),
+            "current": None if project.scene_current is None else project.scene_current.to_json(),
+        },
         "findings": findings,
     }
 
@@ -378,7 +388,7 @@ def to_session(project: Project) -> dict:
 def fill_project(project: Project, data: dict) -> None:
     """Put a loaded session's vessels, measurements, requests and findings into ``project`` (whose scene
     is open and calibrated already).  Raises :class:`SessionError` naming what is wrong."""
-    from ..detect.request import AnalysisRequest
+    from ..detect.request import AnalysisRequest, SpeedLimit, WaterCurrent
     from ..detect.result import WakeAnalysis
     from ..errors import ParameterError
 
@@ -407,6 +417,11 @@ def fill_project(project: Project, data: dict) -> None:
             }
         for k, r in requests.items():
             project.requests[int(k)] = AnalysisRequest.from_json(r)
+        check = data.get("scene_check") or {}
+        if check.get("speed_limit"):
+            project.scene_limit = SpeedLimit.from_json(check["speed_limit"])
+        if check.get("current"):
+            project.scene_current = WaterCurrent.from_json(check["current"])
         for k, f in (data.get("findings") or {}).items():
             project.findings[int(k)] = WakeAnalysis.from_json(f["result"], drawing=f.get("geometry"))
             if f.get("rejected"):
