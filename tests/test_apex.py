@@ -3,9 +3,9 @@ clicked hull) and output (Apex).
 
 Check values: a moving target in a SAR image is displaced along the azimuth from its wake by -(R/V) v_r
 (Raney 1971, IEEE Trans. Aerosp. Electron. Syst. 7(3), 499-505), so the wake starts away from the hull; the
-wake's calm turbulent water is a dark line in the speckle (Alpers 1985, in Nature 316, 'Theory of radar
-imaging of internal waves'; from memory).  Speckle of an L-look intensity image is gamma distributed with
-mean 1 and variance 1 / L (Oliver & Quegan 1998, Understanding Synthetic Aperture Radar Images, ch. 4).
+wake's calm turbulent water is a dark line in the speckle (common practice, no source).  Speckle of an L-look
+intensity image is gamma distributed with mean 1 and variance 1 / L (Oliver & Quegan 1998, Understanding
+Synthetic Aperture Radar Images; from memory).  The scenes are synthetic, drawn in this file.
 """
 
 from __future__ import annotations

@@ -1,9 +1,11 @@
 """The hull's shift between two bands recorded a known time apart (detect.band_shift), on its typed input
 (a two-band scene, the bands' timing) and output (BandShift, a SpeedEstimate over ground).
 
-Check values: velocity is displacement over time (v = d / t); the hull's position is its leading edge, which
-its static foam does not move (Heiselberg 2019, Sensors 19(13) 2873, sec. 3); UTM grid distances are ground
-distances times the scale factor 0.9996 on the central meridian (Snyder 1987, USGS Prof. Paper 1395, p. 57).
+Check values (synthetic two-band scenes of known truth, drawn in this file): velocity is displacement over time
+(v = d / t, the definition); the hull's position is its leading edge, which its static foam does not move
+(Heiselberg 2019, "Aircraft and ship velocity determination in Sentinel-2 multispectral images", Sensors 19(13)
+2873; from memory); UTM grid distances are ground distances times the scale factor 0.9996 on the central
+meridian (Snyder 1987, Map Projections - A Working Manual, USGS Professional Paper 1395; from memory).
 """
 
 from __future__ import annotations
@@ -59,6 +61,7 @@ def _measure(path, heading_back_deg: float = 180.0):
 
 
 def test_a_hull_that_moves_gives_its_shift_over_the_delay(tmp_path):
+    # synthetic truth: a 1.5 px shift in 1.0 s at 10 m grid pixels; v = d / t over the UTM scale factor (Snyder 1987)
     s = _measure(_scene(tmp_path, 1.5))
     assert s is not None
     assert s.along_px == pytest.approx(1.5, abs=0.15)
@@ -84,6 +87,7 @@ def test_static_foam_behind_the_hull_does_not_pull_the_edge(tmp_path):
 
 
 def test_a_hull_that_stands_still_gives_no_speed_to_speak_of(tmp_path):
+    # synthetic truth: no shift between the bands; the interval must reach down to a standing hull
     s = _measure(_scene(tmp_path, 0.0))
     assert s is not None
     assert abs(s.along_px) < 0.15
@@ -91,10 +95,12 @@ def test_a_hull_that_stands_still_gives_no_speed_to_speak_of(tmp_path):
 
 
 def test_flat_water_has_no_edge_to_measure(tmp_path):
+    # synthetic: noise only, no hull (program behaviour: no edge, no figure)
     assert _measure(_scene(tmp_path, 1.5, flat=True)) is None
 
 
 def test_the_shift_says_when_a_heading_points_the_wrong_way(tmp_path):
+    # synthetic truth: the hull moves east (090°); a heading of 270° is against the shift (program behaviour)
     path = _scene(tmp_path, 1.5)
     with open_scene(path) as sc:
         assert moves_against(sc, (60.0, 60.5), 90.0, TIMING) is None  # east: agrees
