@@ -223,6 +223,25 @@ class Tuning:
     #: guard and background windows in metres (the guard holds the longest hull; the ring beyond it is sea)
     finder_guard_m: float = 400.0
     finder_background_m: float = 900.0
+    #: pixels finer than this are searched on a grid of block means about this size (a hull is then a compact
+    #: blob: its deck's structure and its wake's crests average out)
+    finder_pixel_m: float = 2.0
+    #: ... at most this many pixels wide (fine pixels; the background keeps its proportion to the guard)
+    finder_guard_max_px: int = 160
+    #: optical hulls are sought in what is at least this wide (a grey opening; narrower bright lines are wave
+    #: crests); it acts where it spans two pixels or more (pixels of 2.3 m and finer).  Most powered craft
+    #: worth a wake are at least this wide in beam (common practice, no source)
+    finder_solid_m: float = 3.5
+    #: detections closer than this (and the crests of one wake) are one object
+    finder_merge_m: float = 20.0
+    #: a candidate below finder_own_share of a stronger one within this distance is a faint part of that
+    #: vessel (the end of its wake, its plume, the true position behind a radar hull seen displaced: the demo
+    #: ferry's 144 m; a radar with R/V = 113 s, as Sentinel-1, displaces a hull 113 m per m/s of radial speed,
+    #: so a faster one is listed twice here and merged when the analyses of both find the same wake).  A small
+    #: boat this close to a far brighter one is folded into it (its count of merged says so)
+    finder_suppress_m: float = 200.0
+    #: two candidates closer than a hull length are two vessels only if both are at least this many pixels long
+    finder_resolved_px: float = 4.0
     #: a candidate needs this many pixels above the threshold (a lone bright pixel is noise or a buoy)
     finder_min_pixels: int = 2
     #: longer or larger blobs are harbour walls, quays or land (the largest ships are about 400 m x 60 m)
@@ -232,6 +251,9 @@ class Tuning:
     finder_tail_share: float = 0.01
     #: pixels above this multiple of the normal threshold (hulls, fresh foam) are left out of the sea's tail
     finder_censor_factor: float = 1.0
+    #: ... with the whole object around them, grown down to this share of the normal threshold (a vessel's wake:
+    #: its faint outer crests would otherwise make the sea's tail heavy; benchmarks/vessel_finder_sweep.py)
+    finder_censor_grow: float = 0.5
     #: a detection more than this share of which lies next to dry land (NDWI <= 0) is a quay edge, not a hull;
     #: a moored hull touches its quay along one side only
     finder_dry_share_max: float = 0.5
@@ -253,6 +275,15 @@ class Tuning:
     finder_trail_min_px: float = 6.0
     finder_trail_fade: float = 1.5
     finder_trail_head_px: float = 3.0
+    #: an object of several detections along a line (a wake's arm, a foam trail) whose end thirds differ in mean
+    #: score by this factor has its vessel at the brighter end: the pattern fades aft (common practice, no
+    #: source; benchmarks/vessel_finder_sweep.py)
+    finder_object_fade: float = 1.2
+    #: the detections of an object within this angle of a vessel's wake direction are its wake: a Kelvin wake's
+    #: arms lie at 19.47 degrees in deep water (Kelvin 1887) and widen toward 90 degrees as the depth Froude
+    #: number nears 1 (Havelock 1908); 60 degrees holds the wide wake of the demo's shoal (Fr_h = 0.91) and a
+    #: turning track (benchmarks/vessel_finder_sweep.py; common practice, no source)
+    finder_wedge_deg: float = 60.0
     #: its centre is the weighted centre of the pixels next to the peak, weighted by their excess over this share
     #: of the peak
     finder_centre_share: float = 0.5

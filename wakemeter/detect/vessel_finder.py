@@ -24,6 +24,7 @@ probability per pixel at that score.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Callable
 from concurrent.futures import ThreadPoolExecutor
@@ -59,6 +60,7 @@ class VesselCandidate:
     score: float  #: peak excess in clutter standard units (optical) or CFAR ratio in its own units (radar)
     pfa: float  #: false-alarm probability per pixel at that score
     pixels: int  #: pixels of the hull (the brightest part of the detection)
+    merged: int = 0  #: other detections folded into this vessel (its wake, foam or plume, or a second look)
 
     def to_json(self) -> dict:
         return {
@@ -70,6 +72,7 @@ class VesselCandidate:
             "score": self.score,
             "pfa": self.pfa,
             "pixels": self.pixels,
+            "merged": self.merged,
         }
 
 
@@ -149,11 +152,16 @@ def find_vessels(
         raise ParameterError("the area to search is smaller than 16 x 16 pixels")
     frame = scene.local_frame((c0 + c1) / 2, (r0 + r1) / 2)
     m_px = float(math.sqrt(frame.length_of(1, 0) * frame.length_of(0, 1)))
-    guard = max(3, int(round(t.finder_guard_m / m_px)) | 1)
-    back = max(guard + 4, int(round(t.finder_background_m / m_px)) | 1)
-    margin = back // 2 + 1
+    # fine pixels are searched on a coarser grid (block means of step x step pixels): a hull there is a compact
+    # bright blob, the structure of its deck and the crests of its wake averaged out
+    step = max(1, int(t.finder_pixel_m / m_px))
+    m_px *= step
+    tile *= step
+    guard, back = _window_px(m_px, t)
+    margin = (back // 2 + 1) * step
     pfa_px = min(pfa_per_km2 * (m_px * m_px) / 1e6, 0.01)
     gn = green_nir_bands(scene.info.band_descriptions)
+    solid = max(1, int(round(t.finder_solid_m / m_px)))
     bands = _detection_bands(scene)
     if radar is None:
         sample, ok = scene.read(window=(c0, r0, min(c1 - c0, 512), min(r1 - r0, 512)), bands=(1,))
@@ -166,13 +174,16 @@ def find_vessels(
         core = (tc, tr, min(tile, c1 - tc), min(tile, r1 - tr))
         w0, h0 = max(tc - margin, 0), max(tr - margin, 0)
         w1, h1 = min(core[0] + core[2] + margin, scene.width), min(core[1] + core[3] + margin, scene.height)
-        return core, (w0, h0, w1 - w0, h1 - h0)
+        return core, (w0, h0, (w1 - w0) // step * step, (h1 - h0) // step * step)
+
+    def read(full: tuple[int, int, int, int]) -> tuple[np.ndarray, np.ndarray]:
+        return scene.read(window=full, out_shape=(full[3] // step, full[2] // step), bands=read_bands)
 
     found: list[VesselCandidate] = []
     # the next window is read in a second thread while this one is searched (GDAL reads outside the GIL; each
     # thread has its own handle on the file)
     with one_pass_cache(), ThreadPoolExecutor(max_workers=1, thread_name_prefix="finder-read") as reader:
-        pending = reader.submit(scene.read, window=window(*tiles[0])[1], bands=read_bands)
+        pending = reader.submit(read, window(*tiles[0])[1])
         for k, (tc, tr) in enumerate(tiles):
             if cancelled is not None and cancelled():
                 raise CancelledError("finding vessels was cancelled")
@@ -180,7 +191,7 @@ def find_vessels(
             win = full[:2]
             data, valid = pending.result()
             if k + 1 < len(tiles):
-                pending = reader.submit(scene.read, window=window(*tiles[k + 1])[1], bands=read_bands)
+                pending = reader.submit(read, window(*tiles[k + 1])[1])
             idx = {b: i for i, b in enumerate(read_bands)}
             ok = np.all(valid, axis=0)
             nir = _nir_band(scene)
@@ -195,15 +206,76 @@ def find_vessels(
                     g, n = data[idx[gn[0]]], data[idx[gn[1]]]
                     ndwi = (g - n) / np.maximum(g + n, 1e-6)
                     water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px, t)
-                zs = _anomaly_optical([data[idx[b]] for b in bands], water, guard, back)
-                det, score, pfa_at, thr = _threshold(zs, water, pfa_px, t)
+                zs = _anomaly_optical([_solid_part(data[idx[b]], solid) for b in bands], water, guard, back)
+                det, score, pfa_at, thr = _threshold(zs, water, pfa_px, m_px, t)
                 link = water & (score > t.finder_link_share * thr)
                 # the hull is told from its foam in the near infrared, where foam is far darker than a hull
                 locate = zs[bands.index(nir)] if nir in bands else score
-            found += _blobs(scene, det, score, locate, pfa_at, water, ok, win, core, m_px, frame, link, radar, t)
+            link = _bridged(link | det, m_px, t)
+            found += _blobs(
+                scene, det, score, locate, pfa_at, water, ok, (win, step), core, m_px, frame, link, radar, t
+            )
             if progress is not None:
                 progress((k + 1) / len(tiles))
-    return sorted(found, key=lambda c: -c.score)
+    return one_per_vessel(found, m_px / step, t)
+
+
+def _window_px(m_px: float, t: Tuning) -> tuple[int, int]:
+    """The guard and background windows in pixels (odd): their sizes in metres, but at fine pixels no larger
+    than finder_guard_max_px (the ring keeps its proportion), or the ring would reach beyond a small scene."""
+    guard_m = min(t.finder_guard_m, t.finder_guard_max_px * m_px)
+    back_m = guard_m * t.finder_background_m / t.finder_guard_m
+    guard = max(3, int(round(guard_m / m_px)) | 1)
+    return guard, max(guard + 4, int(round(back_m / m_px)) | 1)
+
+
+def _solid_part(band: np.ndarray, k: int) -> np.ndarray:
+    """The band's solid bright parts: a grey-level opening by a k x k square keeps what is at least k pixels
+    wide (a hull) and removes thinner bright lines (wave crests, the stripes of a wake; Serra 1982, Image
+    Analysis and Mathematical Morphology, the opening as a size filter).  k = 1 leaves the band as it is."""
+    if k < 2:
+        return band
+    # the dilation's anchor mirrors the erosion's: with an even k, OpenCV's opening (one anchor for both) would
+    # shift everything by a pixel
+    box = np.ones((k, k), np.uint8)
+    eroded = cv2.erode(band.astype(np.float32, copy=False), box, anchor=(k // 2, k // 2))
+    return cv2.dilate(eroded, box, anchor=(k - 1 - k // 2, k - 1 - k // 2))
+
+
+def _bridged(link: np.ndarray, m_px: float, t: Tuning) -> np.ndarray:
+    """The object mask with gaps narrower than finder_merge_m closed: the separate crests of one wake, or
+    the parts of one hull, are one object."""
+    r = int(t.finder_merge_m / (2 * m_px))
+    if r < 1:
+        return link
+    disc = cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (2 * r + 1, 2 * r + 1))
+    return cv2.dilate(link.astype(np.uint8), disc).astype(bool)
+
+
+def one_per_vessel(found: list[VesselCandidate], m_px: float, t: Tuning = DEFAULT_TUNING) -> list[VesselCandidate]:
+    """One candidate per vessel, strongest first: a candidate is folded into a stronger one (its count of
+    ``merged`` goes up) when it lies within that one's hull length plus finder_merge_m (two hulls that close are
+    one vessel unless both are resolved, finder_resolved_px long each), or within finder_suppress_m of it and
+    below finder_own_share of its score (a faint part of the same vessel: the end of its wake, its true
+    position behind a hull a radar shows displaced, its plume)."""
+    kept: list[VesselCandidate] = []
+    merged: list[int] = []
+    for c in sorted(found, key=lambda c: -c.score):
+        home = None
+        for i, k in enumerate(kept):
+            d = math.hypot(c.px[0] - k.px[0], c.px[1] - k.px[1]) * m_px
+            resolved = min(c.length_m, k.length_m) >= t.finder_resolved_px * m_px
+            if (d <= k.length_m + t.finder_merge_m and not resolved) or (
+                d <= t.finder_suppress_m and c.score < t.finder_own_share * k.score
+            ):
+                home = i
+                break
+        if home is None:
+            kept.append(c)
+            merged.append(c.merged)
+        else:
+            merged[home] += 1 + c.merged
+    return [dataclasses.replace(k, merged=n) for k, n in zip(kept, merged)]
 
 
 def _detection_bands(scene: Scene) -> tuple[int, ...]:
@@ -262,7 +334,7 @@ def _anomaly_optical(bands, water, guard, back) -> list[np.ndarray]:
     return out
 
 
-def _threshold(zs, water, pfa_px, t: Tuning):
+def _threshold(zs, water, pfa_px, m_px: float, t: Tuning):
     """The per-pixel rate at the normal tail, or at the water's own tail when it is heavier (sediment,
     glint and specks make real sea heavier tailed than a normal): an exponential fitted to the excesses
     over the 99th percentile of the window's water (peaks over threshold; Coles 2001, An Introduction to
@@ -272,8 +344,9 @@ def _threshold(zs, water, pfa_px, t: Tuning):
     tail: tuple[float, float] | None = None
     # censored: what stands out at the normal threshold (hulls, their foam) and its surroundings are left out
     # of the sea's own tail, or a scene holding a large wake would hide its own vessel
-    strong = cv2.dilate((z_max > t.finder_censor_factor * thr).astype(np.uint8), np.ones((7, 7), np.uint8))
-    sea = z_max[water & (strong == 0)]
+    strong = cv2.dilate((z_max > t.finder_censor_factor * thr).astype(np.uint8), np.ones((7, 7), np.uint8)) > 0
+    strong |= _wake_objects(z_max, water, thr, m_px, t)
+    sea = z_max[water & ~strong]
     if sea.size > 200_000:  # the tail from a regular sample of the sea (its order does not matter)
         sea = sea[:: sea.size // 200_000]
     if sea.size > 2000:
@@ -295,6 +368,22 @@ def _threshold(zs, water, pfa_px, t: Tuning):
         return t.finder_tail_share * math.exp(-min((z - tail[0]) / tail[1], 700.0)) if z > tail[0] else 1.0
 
     return det, z_max, pfa_at, thr
+
+
+def _wake_objects(z: np.ndarray, water: np.ndarray, thr: float, m_px: float, t: Tuning) -> np.ndarray:
+    """Whole objects around what stands out at the normal threshold: a vessel with its wake, whose crests
+    (resolved at fine pixels, as bright as a hull and as many as thousands of pixels) would otherwise be taken
+    for the sea's own tail and raise the threshold above the hull (at 0.5 m pixels the wakes of three boats can
+    cover a third of the scene).  On the real sea tiles (benchmarks/vessel_finder_sweep.py) this changed no
+    candidate: sediment and glint there do not reach the normal threshold in connected patches."""
+    objects = _bridged(water & (z > t.finder_censor_grow * thr), m_px, t)
+    lab, n = _label(objects)
+    if n == 0:
+        return np.zeros_like(water)
+    holds = np.zeros(n + 1, bool)
+    holds[np.unique(lab[z > thr])] = True
+    holds[0] = False
+    return holds[lab]
 
 
 def _trail_head(m: np.ndarray, loc: np.ndarray, t: Tuning) -> np.ndarray:
@@ -325,13 +414,16 @@ def _blobs(
     lab, n = _label(det)
     if n == 0:
         return []
+    # a detection's weight in its object: the peak of its score averaged over 3 x 3 pixels (a hull is bright
+    # and solid; a crest's fragment as bright but small, a wake's wide patch large but faint)
+    boxed = cv2.blur(score.astype(np.float32, copy=False), (3, 3))
     # each detection's object (detections joined above finder_link_share of the threshold) and the object's peak
     groups, n_groups = _label(link | det)
     group_peak = np.full(n_groups + 1, -np.inf)
     np.maximum.at(group_peak, groups[det], score[det])
     # land next to a blob: the blob is a quay edge or a moored hull against it (dry pixels within 2 px)
     land = ok & ~water
-    out = []
+    out: list[tuple[int, float, VesselCandidate]] = []  # (object, summed score of the detection, candidate)
     objects = ndimage.find_objects(lab)
     for i, sl in enumerate(objects, start=1):
         if sl is None:
@@ -373,7 +465,7 @@ def _blobs(
         wts = np.clip(nb - t.finder_centre_share * nb.max(), 0.0, None)
         gr, gc = np.mgrid[r_lo : r_lo + nb.shape[0], c_lo : c_lo + nb.shape[1]]
         cy, cx = float(np.average(gr, weights=wts + 1e-12)), float(np.average(gc, weights=wts + 1e-12))
-        col, row = index_to_scene(win, 1, cy, cx)
+        col, row = index_to_scene(win[0], win[1], cy, cx)
         if not (core[0] <= col < core[0] + core[2] and core[1] <= row < core[1] + core[3]):
             continue  # found again by the tile whose core holds it
         length_m, width_m, axis = blob_shape(rr, cc, m_px)
@@ -389,7 +481,9 @@ def _blobs(
             lon, lat = geodesy.pixel_to_lonlat(scene.georef, col, row)
             lonlat = (float(lon), float(lat))
         k = int(np.argmax(score[rr, cc]))
-        out.append(
+        item = (
+            int(groups[sl][pr0, pc0]),
+            float(np.max(boxed[sl][m])),
             VesselCandidate(
                 (col, row),
                 lonlat,
@@ -399,6 +493,85 @@ def _blobs(
                 float(score[rr[k], cc[k]]),
                 pfa_at(int(rr[k]), int(cc[k])),
                 npx_core,
-            )
+            ),
         )
+        out.append(item)
+    return _one_per_object(out, m_px / win[1], t)
+
+
+def _one_per_object(
+    items: list[tuple[int, float, VesselCandidate]], m_scene: float, t: Tuning
+) -> list[VesselCandidate]:
+    """The vessels among the detections of each object (detections joined by weaker pixels), ``m_scene`` metres
+    per scene pixel.
+
+    A wake is resolved into crests (and a foam trail) whose parts can be as bright as a hull: an object is one
+    vessel, and another only outside every kept vessel's hull and wake (:func:`_part_of`) and, when below
+    finder_own_share of the first's score, beyond finder_suppress_m of every kept vessel.  The
+    vessel is at the leading end of an elongated object whose detections fade from one end to the other (a
+    wake's arm or trail fades aft; :func:`_leading_end`), else at its detection of the largest summed score (a
+    hull is bright and solid; a crest's fragment as bright but small, a foam trail as large but fainter)."""
+    out: list[VesselCandidate] = []
+    by_object: dict[int, list[tuple[float, VesselCandidate]]] = {}
+    for g, mass, c in items:
+        by_object.setdefault(g, []).append((mass, c))
+    for members in by_object.values():
+        members.sort(key=lambda m: (-m[0], -m[1].score))
+        cands = [c for _, c in members]
+        lead = _leading_end(cands, [m for m, _ in members], t)
+        top = cands[0] if lead is None else lead
+        kept, folded = [top], 0
+        for c in sorted(cands, key=lambda c: -c.score):
+            if c is top:
+                continue
+            near = min(math.hypot(c.px[0] - k.px[0], c.px[1] - k.px[1]) for k in kept) * m_scene
+            weak = c.score < t.finder_own_share * top.score
+            if (weak and near <= t.finder_suppress_m) or any(_part_of(c, k, cands, m_scene, t) for k in kept):
+                folded += 1
+            else:
+                kept.append(c)
+        out += [dataclasses.replace(kept[0], merged=folded)] + kept[1:]
     return out
+
+
+def _part_of(c: VesselCandidate, k: VesselCandidate, members: list[VesselCandidate], m_scene: float, t: Tuning) -> bool:
+    """Whether detection ``c`` of an object is part of vessel ``k``'s: within its hull length and
+    finder_merge_m of it, or inside the wedge of finder_wedge_deg about its wake's direction (the mean
+    direction from ``k`` to the object's other detections within finder_suppress_m of it, weighted by score)."""
+    dx, dy = c.px[0] - k.px[0], c.px[1] - k.px[1]
+    d = math.hypot(dx, dy)
+    if d * m_scene <= k.length_m + t.finder_merge_m:
+        return True
+    ax = ay = 0.0
+    for o in members:
+        ox, oy = o.px[0] - k.px[0], o.px[1] - k.px[1]
+        r = math.hypot(ox, oy)
+        if o is not k and o is not c and 0 < r * m_scene <= t.finder_suppress_m:
+            ax, ay = ax + max(o.score, 0.0) * ox / r, ay + max(o.score, 0.0) * oy / r
+    if math.hypot(ax, ay) == 0:
+        return False
+    cos = (dx * ax + dy * ay) / (d * math.hypot(ax, ay))
+    return cos >= math.cos(math.radians(t.finder_wedge_deg))
+
+
+def _leading_end(cands: list[VesselCandidate], mass: list[float], t: Tuning) -> VesselCandidate | None:
+    """The detection at the brighter end of an object of at least three detections laid out along a line (at
+    least finder_trail_min_elongation times longer than wide) whose end thirds differ in mean score by
+    finder_object_fade; None otherwise.  A wake's arm and its foam fade aft: the hull leads."""
+    if len(cands) < 3:
+        return None
+    xy = np.array([c.px for c in cands], float)
+    w = np.maximum(np.asarray(mass, float), 1e-6)
+    centre = np.average(xy, axis=0, weights=w)
+    cov = np.cov((xy - centre).T, aweights=w)
+    evals, evecs = np.linalg.eigh(cov)
+    if evals[-1] < t.finder_trail_min_elongation**2 * max(evals[0], 0.25):
+        return None
+    u = (xy - centre) @ evecs[:, -1]
+    score = np.array([c.score for c in cands])
+    lo, hi = float(u.min()), float(u.max())
+    third = (hi - lo) / 3.0
+    end_lo, end_hi = float(np.mean(score[u <= lo + third])), float(np.mean(score[u >= hi - third]))
+    if max(end_lo, end_hi) < t.finder_object_fade * min(end_lo, end_hi):
+        return None
+    return cands[int(np.argmax(u) if end_hi > end_lo else np.argmin(u))]

@@ -1,7 +1,7 @@
 """Scenes with several vessels of known truth (for the vessel finder's tests and sweeps, and `synth --fleet`).
 
 Vessels are placed at random (seeded) inside the scene, at least ``spacing_m`` apart and away from the edge,
-with random headings, speeds of 4-16 kn and hulls of 15-80 m.  Invented names."""
+with random headings, speeds of 4-16 kn and hulls of 15-80 m (or as asked).  Invented names."""
 
 from __future__ import annotations
 
@@ -9,6 +9,7 @@ import numpy as np
 
 from ..physics.units import KNOT_MPS
 from ..scene import geodesy
+from .imaging import OpticalModel, RadarModel
 from .scene_maker import SceneSpec, VesselSpec
 from .wavefield import Hull
 
@@ -24,7 +25,11 @@ def fleet_spec(
     lon: float = -35.0,
     lat: float = 36.0,
     spacing_m: float = 1200.0,
+    length_m: tuple[float, float] = (15.0, 80.0),
+    imaging: OpticalModel | RadarModel | None = None,
 ) -> SceneSpec:
+    """``n`` vessels with hulls ``length_m`` (shortest, longest) long, optical by default, or as ``imaging``
+    says."""
     rng = np.random.default_rng([seed, 4242])
     half = size * pixel_m / 2
     edge = min(0.15 * size * pixel_m, 2000.0)
@@ -41,7 +46,7 @@ def fleet_spec(
         placed.append((e, nth))
         dist, bearing = float(np.hypot(e, nth)), float(np.degrees(np.arctan2(e, nth)))
         vlon, vlat, _ = geodesy.WGS84_GEOD.fwd(lon, lat, bearing, dist)
-        length = float(rng.uniform(15.0, 80.0))
+        length = float(rng.uniform(*length_m))
         vessels.append(
             VesselSpec(
                 f"{NAMES[len(vessels) % len(NAMES)]} {len(vessels) + 1}",
@@ -52,4 +57,14 @@ def fleet_spec(
                 Hull(length_m=length, beam_m=max(length / 6.0, 4.0)),
             )
         )
-    return SceneSpec(size, size, pixel_m, lon, lat, tuple(vessels), seed=seed, description=f"{n} vessels")
+    return SceneSpec(
+        size,
+        size,
+        pixel_m,
+        lon,
+        lat,
+        tuple(vessels),
+        imaging=OpticalModel() if imaging is None else imaging,
+        seed=seed,
+        description=f"{n} vessels",
+    )
