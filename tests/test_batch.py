@@ -194,3 +194,18 @@ def test_a_killed_worker_has_its_task_redone(setup, tmp_path):
         cluster.close()
     assert marker.exists()  # a worker did die
     assert (s.done, s.failed) == (2, 0)
+
+
+def test_a_listed_vessel_the_finder_also_finds_is_one_row(setup, capsys):
+    # Synthetic truth (the channel demo): both vessels listed by name and found by the finder.  The finder's
+    # rows are the same vessels (same place after the analysis snaps to the hull): one row each, the listed
+    # name kept, the found row named in same_vessel_rows, its result still in results/.
+    d, _client = setup
+    out = d / "listed_and_found"
+    argv = ["batch", str(d / "channel_two_vessels.tif"), "--vessels", str(d / "vessels.csv"), "--find"]
+    assert main([*argv, "--out", str(out), "--workers", "1"]) == 0
+    capsys.readouterr()
+    rows = list(csv.DictReader(open(out / "results.csv")))
+    assert sorted(r["vessel"] for r in rows) == ["Brackenfield", "Merrow Pilot 2"]
+    assert all(r["same_vessel_rows"].startswith("found ") for r in rows), rows
+    assert len(list((out / "results").glob("*.json"))) == 4

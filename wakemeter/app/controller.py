@@ -44,6 +44,7 @@ class Controller(QObject):
         super().__init__(parent)
         self.doc, self.panel, self.host = doc, panel, host
         self.queue: list[int] = []
+        self.fold_when_done = False  #: Analyse all folds rows of one vessel when its queue is done
         self.panel.analyse_one.connect(self.analyse_selected)
         self.panel.analyse_all.connect(self.analyse_all)
         self.panel.reject_toggled.connect(self._reject)
@@ -112,11 +113,35 @@ class Controller(QObject):
 
     def analyse_all(self) -> None:
         self.queue = list(self.doc.vessels)
+        self.fold_when_done = bool(self.queue)
         if not self.queue:
             self.host.say("mark vessels first (Vessel tool)")
         self._next()
 
+    def fold_repeats(self) -> int:
+        """Rows of the finder that are the same vessel as another after analysis (``detect.same_vessel``)
+        folded into it, in one undo step; returns how many."""
+        from ..detect.same_vessel import same_as
+        from .document import FoldRepeats
+
+        ids = list(self.doc.vessels)
+        rows = [
+            (self.doc.vessels[v].name, self.doc.effective_finding(v), self.doc.vessels[v].found_score is not None)
+            for v in ids
+        ]
+        repeats = {ids[j]: ids[k] for j, k in same_as(rows).items()}
+        if repeats:
+            names = ", ".join(f"{self.doc.vessels[r].name} into {self.doc.vessels[k].name}" for r, k in repeats.items())
+            self.doc.undo.push(FoldRepeats(self.doc, repeats))
+            self.host.say(
+                f"{len(repeats)} row(s) were the same vessel as another and were merged: {names} (Undo keeps both)"
+            )
+        return len(repeats)
+
     def _next(self) -> None:
+        if not self.queue and self.fold_when_done and self.host.job is None:
+            self.fold_when_done = False
+            self.fold_repeats()
         if not self.queue or self.host.job is not None:
             return
         vid = self.queue.pop(0)
@@ -130,6 +155,7 @@ class Controller(QObject):
             except WakemeterError as err:
                 self.host.error("Cannot analyse", str(err))
                 self.queue.clear()
+                self.fold_when_done = False
                 return
         request = self.doc.project.request_for(vid)  # a frozen copy, taken on the GUI thread
         self.doc.requests[vid] = request
@@ -158,6 +184,7 @@ class Controller(QObject):
 
         def failed(_msg):
             self.queue.clear()
+            self.fold_when_done = False
 
         self.host.run_job(Job(work, f"analysing {v.name}"), done, failed)
 

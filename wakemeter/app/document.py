@@ -8,6 +8,8 @@ the document emits ``changed`` (and finer signals) and views redraw.  State and 
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from PySide6.QtCore import QObject, Signal
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
@@ -21,6 +23,7 @@ __all__ = [
     "Vessel",
     "AddItem",
     "RemoveItem",
+    "FoldRepeats",
     "ChangeItem",
     "SetCalibration",
     "SetFinding",
@@ -160,24 +163,82 @@ class AddItems(QUndoCommand):
         self.doc.changed.emit()
 
 
-class RemoveItem(QUndoCommand):
+class _VesselState:
+    """A vessel's item with everything kept beside it (its measurements, request, finding and rejection), to be
+    put back as it was when its removal is undone."""
+
     def __init__(self, doc: Document, item_id: int):
-        super().__init__("delete")
-        self.doc = doc
         self.item_ = doc.item(item_id)
         self.dependants = (
             [m for m in doc.measurements.values() if m.vessel_id == item_id] if isinstance(self.item_, Vessel) else []
         )
+        self.finding = doc.findings.get(item_id)
+        self.request = doc.requests.get(item_id)
+        self.rejected = item_id in doc.rejected
+
+    def remove(self, doc: Document) -> None:
+        for m in self.dependants:
+            doc._remove(m.id, tell=False)
+        doc._remove(self.item_.id, tell=False)
+        doc.requests.pop(self.item_.id, None)
+        doc.rejected.discard(self.item_.id)
+
+    def restore(self, doc: Document) -> None:
+        vid = self.item_.id
+        doc._put(self.item_, tell=False)
+        for m in self.dependants:
+            doc._put(m, tell=False)
+        if self.finding is not None:
+            doc.findings[vid] = self.finding
+        if self.request is not None:
+            doc.requests[vid] = self.request
+        if self.rejected:
+            doc.rejected.add(vid)
+
+
+class RemoveItem(QUndoCommand):
+    def __init__(self, doc: Document, item_id: int):
+        super().__init__("delete")
+        self.doc = doc
+        self.state = _VesselState(doc, item_id)
 
     def redo(self) -> None:
-        for m in self.dependants:
-            self.doc._remove(m.id)
-        self.doc._remove(self.item_.id)
+        self.state.remove(self.doc)
+        self.doc.changed.emit()
 
     def undo(self) -> None:
-        self.doc._put(self.item_)
-        for m in self.dependants:
-            self.doc._put(m)
+        self.state.restore(self.doc)
+        self.doc.changed.emit()
+        self.doc.findings_changed.emit(self.state.item_.id)
+
+
+class FoldRepeats(QUndoCommand):
+    """Rows that repeat a vessel after scene-wide work (``detect.same_vessel``: {repeat id: kept id}) removed,
+    each kept vessel's count of ``merged`` raised; undone, all of it comes back as it was."""
+
+    def __init__(self, doc: Document, repeats: dict[int, int]):
+        super().__init__(f"merge {len(repeats)} row(s) that repeat a vessel")
+        self.doc = doc
+        self.states = [_VesselState(doc, r) for r in repeats]
+        counts: dict[int, int] = {}
+        for r, k in repeats.items():
+            counts[k] = counts.get(k, 0) + 1 + doc.vessels[r].merged
+        self.before = [doc.vessels[k] for k in counts]
+        self.after = [replace(v, merged=v.merged + counts[v.id]) for v in self.before]
+
+    def redo(self) -> None:
+        for st in self.states:
+            st.remove(self.doc)
+        for v in self.after:
+            self.doc._put(v, tell=False)
+        self.doc.changed.emit()
+
+    def undo(self) -> None:
+        for v in self.before:
+            self.doc._put(v, tell=False)
+        for st in reversed(self.states):
+            st.restore(self.doc)
+        self.doc.changed.emit()
 
 
 class ChangeItem(QUndoCommand):

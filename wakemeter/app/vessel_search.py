@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import math
+
+from ..detect.tuning import DEFAULT_TUNING
 from .window_part import WindowPart
 from .workers import Job
 
@@ -53,9 +56,27 @@ class VesselSearch(WindowPart):
         if not cands:
             self.say("no vessel-like target found here")
             return
-        found = [Vessel(self.doc.new_id(), f"found {i} ({c.length_m:.0f} m)", c.px) for i, c in enumerate(cands, 1)]
-        self.doc.undo.push(AddItems(self.doc, found, f"find {len(cands)} vessels"))
+        # a target on a vessel already marked (by hand, or by an earlier search) is that vessel
+        sc = self.doc.scene
+        m_px = 1.0 if sc is None else sc.local_frame(sc.width / 2, sc.height / 2).length_of(1, 0)
+        marked = [v.position for v in self.doc.vessels.values()]
+        new = [
+            c
+            for c in cands
+            if all(
+                math.hypot(c.px[0] - p[0], c.px[1] - p[1]) * m_px > max(c.length_m, DEFAULT_TUNING.same_place_m)
+                for p in marked
+            )
+        ]
+        first = 1 + sum(v.name.startswith("found ") for v in self.doc.vessels.values())
+        found = [
+            Vessel(self.doc.new_id(), f"found {i} ({c.length_m:.0f} m)", c.px, c.score, c.merged)
+            for i, c in enumerate(new, first)
+        ]
+        again = f"; {len(cands) - len(new)} already marked" if len(new) < len(cands) else ""
+        if found:
+            self.doc.undo.push(AddItems(self.doc, found, f"find {len(found)} vessels"))
         self.say(
-            f"{len(cands)} vessel-like target(s) marked 'found N': delete those that are not vessels (Delete), "
-            "then Vessels → Analyse all"
+            f"{len(found)} vessel-like target(s) marked 'found N'{again}: delete those that are not vessels "
+            "(Delete), then Vessels → Analyse all"
         )

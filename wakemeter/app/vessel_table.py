@@ -1,7 +1,11 @@
 """The vessel table (a dock of the window): every marked vessel in one sortable row after scene-wide work, with
-the same columns as the batch table (``detect.result.result_row``); selecting a row selects the vessel."""
+the same columns as the batch table (``detect.result.result_row``), its verdict against the position reports,
+the finder's score and how many detections or rows of the same vessel were merged into it; selecting a row
+selects the vessel."""
 
 from __future__ import annotations
+
+from collections.abc import Callable
 
 from PySide6.QtCore import Qt, QTimer
 from PySide6.QtWidgets import QAbstractItemView, QTableWidget, QTableWidgetItem
@@ -21,6 +25,9 @@ COLUMNS = (
     ("P(over limit)", "p_over_limit", "{:.3f}"),
     ("Lower bound (kn)", "lower95_kn", "{:.1f}"),
     ("Finding", "finding", None),
+    ("Position report", "report_verdict", None),
+    ("Finder score", "found_score", "{:.1f}"),
+    ("Merged", "merged", "{:.0f}"),
 )
 
 
@@ -42,9 +49,11 @@ class _Cell(QTableWidgetItem):
 class VesselTable(QTableWidget):
     """Reads the document (refreshed once per burst of changes); writes only the selection through it."""
 
-    def __init__(self, doc: Document, parent=None):
+    def __init__(self, doc: Document, parent=None, *, reports: Callable[[], dict] | None = None):
+        """``reports()`` gives {vessel id: comparison with the position reports} (None: no report column)."""
         super().__init__(0, len(COLUMNS), parent)
         self.doc = doc
+        self.reports = reports
         self.setHorizontalHeaderLabels([c[0] for c in COLUMNS])
         self.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
         self.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
@@ -63,10 +72,18 @@ class VesselTable(QTableWidget):
     def rows(self) -> list[dict]:
         """One row per vessel: its name, the shared result columns and what the finding is."""
         out = []
+        compared = self.reports() if self.reports is not None else {}
         for vid, v in self.doc.vessels.items():
             a = self.doc.effective_finding(vid)
             row = result_row(a)
-            row.update(vid=vid, name=v.name)
+            c = compared.get(vid)
+            row.update(
+                vid=vid,
+                name=v.name,
+                report_verdict=None if c is None else c.verdict,
+                found_score=v.found_score,
+                merged=v.merged or None,
+            )
             row["finding"] = (
                 "not analysed"
                 if a is None

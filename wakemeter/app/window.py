@@ -213,7 +213,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         self.resizeDocks([dock, results], [400, 400], Qt.Orientation.Horizontal)
         self.resizeDocks([dock, results], [160, 600], Qt.Orientation.Vertical)
         self.results_dock = results
-        self.vessel_table = VesselTable(self.doc)
+        self.vessel_table = VesselTable(self.doc, reports=lambda: self.controller.report_comparisons()[0])
         table = QDockWidget("Vessel table", self)
         table.setObjectName("vessel_table")
         table.setWidget(self.vessel_table)

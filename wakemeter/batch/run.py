@@ -191,6 +191,8 @@ COLUMNS = (
     "found_width_m",
     "found_score",
     "found_false_alarm_per_pixel",
+    "found_merged",
+    "same_vessel_rows",
     "key",
 )
 
@@ -207,13 +209,22 @@ def stored_result(rec: dict) -> tuple[WakeAnalysis | None, str | None]:
 
 
 def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
+    """One row per vessel: a row of the finder whose result is the same vessel as another's
+    (``detect.same_vessel``) is folded into that row, whose ``same_vessel_rows`` names it."""
+    return _fold_repeats(tasks, *_task_rows(tasks, out))
+
+
+def _task_rows(tasks: Sequence[BatchTask], out: Path) -> tuple[list[dict], list[WakeAnalysis | None]]:
+    """One row per task, and its result."""
     out_rows = []
+    analysed: list[WakeAnalysis | None] = []
     for t in tasks:
         try:
             rec = json.loads(result_path(out, t).read_text())
         except (OSError, ValueError):
             rec = {"status": "not run"}
         a, problem = stored_result(rec)
+        analysed.append(a)
         ll = (a and a.vessel_lonlat) or (None, None)
         px = (None, None) if a is None else a.vessel_px
         out_rows.append(
@@ -234,10 +245,28 @@ def rows(tasks: Sequence[BatchTask], out: Path) -> list[dict]:
                 "found_width_m": None if t.found is None else t.found.get("width_m"),
                 "found_score": None if t.found is None else t.found.get("score"),
                 "found_false_alarm_per_pixel": None if t.found is None else t.found.get("pfa"),
+                "found_merged": None if t.found is None else t.found.get("merged"),
+                "same_vessel_rows": None,
                 "key": t.key,
             }
         )
-    return out_rows
+    return out_rows, analysed
+
+
+def _fold_repeats(tasks: Sequence[BatchTask], rs: list[dict], analysed: list[WakeAnalysis | None]) -> list[dict]:
+    from ..detect.same_vessel import same_as
+
+    by_scene: dict[str, list[int]] = {}
+    for i, t in enumerate(tasks):
+        by_scene.setdefault(t.scene_path, []).append(i)
+    folded: set[int] = set()
+    for idx in by_scene.values():
+        repeats = same_as([(tasks[i].vessel_name, analysed[i], tasks[i].found is not None) for i in idx])
+        for j, k in repeats.items():
+            keep, drop = rs[idx[k]], idx[j]
+            keep["same_vessel_rows"] = "; ".join(filter(None, (keep["same_vessel_rows"], rs[drop]["vessel"])))
+            folded.add(drop)
+    return [r for i, r in enumerate(rs) if i not in folded]
 
 
 def compare_reports(
@@ -297,8 +326,9 @@ def table(tasks: Sequence[BatchTask], out: str | Path, *, reports: Sequence = ()
     from ..evidence.gis import Feature, write_features
 
     out = Path(out)
-    rs = rows(tasks, out)
+    rs, analysed = _task_rows(tasks, out)
     comparisons = compare_reports(tasks, out, reports, rs, gate_m=gate_m) if reports else {}
+    rs = _fold_repeats(tasks, rs, analysed)
     buf = io.StringIO()
     w = csv.DictWriter(buf, fieldnames=COLUMNS)
     w.writeheader()

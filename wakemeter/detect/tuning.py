@@ -287,6 +287,14 @@ class Tuning:
     #: its centre is the weighted centre of the pixels next to the peak, weighted by their excess over this share
     #: of the peak
     finder_centre_share: float = 0.5
+    # ---- two analysed rows that are one vessel (same_vessel.py) ----
+    #: vessels this close after analysis are one (a hull's length at the sizes the finder keeps; common
+    #: practice, no source)
+    same_place_m: float = 30.0
+    #: ... and vessels within this distance whose wakes agree (heading and speed) are one
+    same_wake_m: float = 300.0
+    #: slack on the heading agreement beyond three combined standard deviations (common practice, no source)
+    same_heading_slack_deg: float = 5.0
     # ---- radar azimuth offset (Raney 1971) ----
     radar_max_radial_mps: float = 20.0  #: largest radial speed searched for the wake line
     radar_wake_line_min: float = 5.0  #: significance of the wake line used for the offset

@@ -44,6 +44,8 @@ class Vessel:
     id: int
     name: str  #: shown as one printable line of bounded length (names.clean_name)
     position: Point
+    found_score: float | None = None  #: the vessel finder's score when the finder marked it; None: marked by hand
+    merged: int = 0  #: detections or rows of the same vessel folded into this one (finder and Analyse all)
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "name", clean_name(self.name))

@@ -2,7 +2,8 @@
 
 Fields: ``schema``; ``scene`` {``path`` (relative to the session file when possible),
 ``absolute_path``, ``sha256``, ``size_bytes``}; ``calibration`` (null or {``pixel_size_m``,
-``north_up_deg``}); ``vessels`` [{``id``, ``name``, ``position_px``}]; ``measurements``
+``north_up_deg``}); ``vessels`` [{``id``, ``name``, ``position_px``, optional ``found_score`` (the vessel
+finder's) and ``merged`` (detections or rows of the same vessel folded into it)}]; ``measurements``
 [{``id``, ``kind``, ``points_px``, ``vessel_id``, ``values``}]; ``requests`` {vessel id: the analysis
 request JSON (``wakemeter.request/1``: depth with its uncertainty, hull length, radar geometry, seed)};
 ``findings`` {vessel id: {``result`` (the analysis JSON, with its drawing and request), ``rejected``}};
@@ -358,7 +359,7 @@ def to_session(project: Project) -> dict:
         "calibration": None
         if cal is None
         else {"pixel_size_m": cal.m_per_col, "north_up_deg": cal.bearing_up_deg if cal.north_known else None},
-        "vessels": [{"id": v.id, "name": v.name, "position_px": list(v.position)} for v in project.vessels.values()],
+        "vessels": [_vessel_json(v) for v in project.vessels.values()],
         "measurements": [
             {
                 "id": m.id,
@@ -396,7 +397,14 @@ def fill_project(project: Project, data: dict) -> None:
     try:
         for v in data["vessels"]:
             vid = int(v["id"])
-            project.vessels[vid] = Vessel(vid, str(v["name"]), _point(v["position_px"]))
+            score = v.get("found_score")
+            project.vessels[vid] = Vessel(
+                vid,
+                str(v["name"]),
+                _point(v["position_px"]),
+                None if score is None else float(score),
+                int(v.get("merged") or 0),
+            )
         for m in data["measurements"]:
             pts = m["points_px"]
             item = Measurement(
@@ -432,6 +440,15 @@ def fill_project(project: Project, data: dict) -> None:
         raise SessionError(f"the session is damaged ({type(err).__name__}: {err})") from err
     project.reevaluate_all()
     project.continue_ids()
+
+
+def _vessel_json(v: Vessel) -> dict:
+    out: dict = {"id": v.id, "name": v.name, "position_px": list(v.position)}
+    if v.found_score is not None:
+        out["found_score"] = v.found_score
+    if v.merged:
+        out["merged"] = v.merged
+    return out
 
 
 def _point(p: Any) -> tuple[float, float]:
