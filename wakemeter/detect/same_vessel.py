@@ -1,13 +1,14 @@
 """Two analysed rows that are one vessel: the check the batch table and the window's vessel table make on the
 results of scene-wide work, after the finder's own (``vessel_finder.one_per_vessel``).
 
-Two results are one vessel when their vessels lie within ``same_place_m`` of each other (the analysis snaps a point to
-the hull or the wake's apex it finds, so two points on one vessel end at one place), or when both measured a
-wake and the two wakes agree: headings within three combined standard deviations plus ``same_heading_slack_deg``,
-speed intervals that overlap, and vessels within ``same_wake_m`` (one wake analysed from two points of it, or a radar
-hull and the true position behind it; Raney 1971 gives the displacement, 113 m per m/s of radial speed at
-R/V = 113 s).  The three are fields of :class:`~wakemeter.detect.tuning.Tuning`.  Rows the user named (listed or placed by hand) are never folded: only rows of the finder, into
-a named row or a stronger row of the finder."""
+Two results are one vessel when their vessels lie within ``same_place_m`` of each other (the analysis snaps a
+point to the hull or the wake's apex it finds, so two points on one vessel end at one place), or when both
+measured a wake and the two wakes agree: headings within three combined standard deviations plus
+``same_heading_slack_deg``, speed intervals that overlap, and vessels within ``same_wake_m`` (one wake analysed
+from two points of it, or a radar hull and the true position behind it; Raney 1971 gives the displacement, 113 m
+per m/s of radial speed at R/V = 113 s).  The three are fields of :class:`~wakemeter.detect.tuning.Tuning`.
+Rows the user named (listed or placed by hand) are never folded: only rows of the finder, into a named row or a
+stronger row of the finder."""
 
 from __future__ import annotations
 
