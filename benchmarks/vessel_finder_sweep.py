@@ -90,7 +90,53 @@ def clean_tiles() -> dict[str, list[tuple[int, int, int]]]:
     return out
 
 
-def real_ports(pfa: float) -> dict:
+#: the single band kept for the single-band runs (the stack holds B02, B03, B04, B08: band 3 is red)
+SINGLE_BAND = 3
+#: dry areas (NDWI <= 0) at least this large stand for the land layer an analyst would give (the largest
+#: ships are about 0.024 km²: no hull is taken for land)
+LAND_MIN_KM2 = 0.1
+
+
+def _single_band(stack: Path, out: Path) -> Path:
+    """The stack's red band alone, without band names: a scene with no water index."""
+    import rasterio
+
+    with rasterio.open(stack) as src:
+        prof = src.profile | {"count": 1}
+        band = src.read(SINGLE_BAND)
+    with rasterio.open(out, "w", **prof) as dst:
+        dst.write(band, 1)
+    return out
+
+
+def _land_layer(stack: Path, out: Path) -> Path:
+    """A land layer (GeoJSON in WGS 84, as analysts have them) from the stack's large dry areas by NDWI."""
+    import rasterio
+    import shapely
+    from pyproj import Transformer
+    from rasterio.features import shapes
+
+    from wakemeter.evidence.gis import Feature, write_features
+
+    with rasterio.open(stack) as src:
+        g, n = src.read(2).astype(float), src.read(4).astype(float)
+        transform, crs = src.transform, src.crs
+    dry = ((g - n) / np.maximum(g + n, 1e-6) <= 0).astype(np.uint8)
+    lab, _k = ndimage.label(dry)
+    px_km2 = abs(transform.a * transform.e) / 1e6
+    big = np.isin(lab, [i for i, c in enumerate(np.bincount(lab.ravel())) if i and c * px_km2 >= LAND_MIN_KM2])
+    to_wgs = Transformer.from_crs(crs, "EPSG:4326", always_xy=True)
+    feats = []
+    for geom, _val in shapes(big.astype(np.uint8), mask=big, transform=transform):
+        poly = shapely.geometry.shape(geom)
+        poly = shapely.transform(poly, lambda xy: np.column_stack(to_wgs.transform(xy[:, 0], xy[:, 1])))
+        feats.append(Feature("land", poly, {"kind": "land"}))
+    return write_features(out, feats, force=True)
+
+
+def real_ports(pfa: float, single: str | None = None) -> dict:
+    """The real ports as they are (four bands, NDWI), or ``single``: their red band alone ("alone") or with a
+    land layer made from their large dry areas ("with land")."""
     per_class = {f"{lo}-{hi}": [0, 0] for lo, hi in SIZE_CLASSES}
     where = {"open water": [0, 0], "alongside or in a basin": [0, 0]}
     false, area_km2, rows = 0, 0.0, []
@@ -100,12 +146,19 @@ def real_ports(pfa: float) -> dict:
     clean_seen: dict[str, int] = {}
     with tempfile.TemporaryDirectory() as tmp:
         for port_dir, path, j in port_scenes(REAL, Path(tmp)):
-            with open_scene(path) as sc:
+            scene_path, land = path, None
+            if single is not None:
+                scene_path = _single_band(path, Path(tmp) / f"{port_dir.name}_red.tif")
+            with open_scene(scene_path) as sc:
                 anns = [a for a in j["annotations"] if tuple(a["segmentation"]["size"]) == (sc.height, sc.width)]
                 if not anns:
                     continue
+                if single == "with land":
+                    from wakemeter.scene.land_layer import LandLayer
+
+                    land = LandLayer.read(_land_layer(path, Path(tmp) / f"{port_dir.name}_land.geojson"), sc.georef)
                 t0 = time.perf_counter()
-                cands = find_vessels(sc, pfa_per_km2=pfa)
+                cands = find_vessels(sc, pfa_per_km2=pfa, land=land)
                 dt = time.perf_counter() - t0
                 fr = sc.local_frame(sc.width / 2, sc.height / 2)
                 km2 = sc.width * sc.height * fr.length_of(1, 0) * fr.length_of(0, 1) / 1e6
@@ -346,7 +399,9 @@ def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--record", action="store_true")
     ap.add_argument("--pfa", type=float, default=PFA_PER_KM2)
-    ap.add_argument("--only", choices=("real", "multispectral", "single-band", "demo"), default=None)
+    ap.add_argument(
+        "--only", choices=("real", "real-single-band", "multispectral", "single-band", "demo"), default=None
+    )
     args = ap.parse_args()
     out: dict = {"pfa_per_km2": args.pfa}
     want = lambda part: args.only in (None, part)  # noqa: E731
@@ -354,6 +409,9 @@ def main() -> None:
         out["demo"] = demo_scenes()
     if REAL.is_dir() and want("real"):
         out["real"] = real_ports(args.pfa)
+    if REAL.is_dir() and want("real-single-band"):
+        out["real_red_band_alone"] = real_ports(args.pfa, "alone")
+        out["real_red_band_with_land_layer"] = real_ports(args.pfa, "with land")
     if want("multispectral"):
         out["synthetic"] = synthetic_fleets(4, 6)
     if want("single-band"):

@@ -82,3 +82,35 @@ def test_deleting_an_analysed_vessel_is_undone_with_its_analysis(win, qtbot):
     assert vid not in win.doc.vessels and vid not in win.doc.findings
     win.doc.undo.undo()
     assert win.doc.findings.get(vid) is before  # the analysis came back with the vessel
+
+
+def test_a_land_layer_keeps_find_vessels_off_the_shore(qtbot, tmp_path, monkeypatch):
+    # the harbour demo with a shore of white roofs added (tests/test_land_layer.py): with the layer chosen in
+    # Vessels, only the launch is marked; a line layer is refused with the reason and changes nothing
+    import shapely
+
+    from tests.test_land_layer import SHORE_COL, _land_geojson, _shore_scene
+    from wakemeter.evidence.gis import Feature, write_features
+
+    tif = _shore_scene(tmp_path)
+    land = _land_geojson(tif, tmp_path / "land.gpkg")
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    w = MainWindow()
+    qtbot.addWidget(w)
+    assert w.open_path(str(tif))
+    errors = []
+    monkeypatch.setattr(w, "error", lambda title, text: errors.append(text))
+    line = write_features(
+        tmp_path / "coast.geojson", [Feature("coast", shapely.LineString([(-35.1, 35.9), (-35.0, 36.1)]), {})]
+    )
+    assert not w.set_land_layer(str(line)) and "which side is land" in errors[-1] and w.land_layer is None
+    monkeypatch.setattr(w, "_ask_open", lambda *a: str(land))
+    w.choose_land_layer()
+    assert w.land_layer is not None
+    w.find_vessels(whole=True)
+    qtbot.waitUntil(lambda: w.job is None, timeout=60_000)
+    assert len(w.doc.vessels) == 1 and all(v.position[0] > SHORE_COL + 30 for v in w.doc.vessels.values())
+    assert w.open_path(str(ROOT / "sample_scenes" / "calm_no_wake.tif"), ask_first=False)
+    assert w.land_layer is None  # read for the scene it was chosen on
+    w.close()

@@ -82,6 +82,8 @@ MENUS: tuple[tuple[str, str, tuple[Entry, ...]], ...] = (
             Entry("Find vessels in &view", "find_in_view"),
             Entry("Find vessels in the whole &scene", "find_in_scene"),
             Entry("Find vessels in a &rectangle you drag…", "pick_find_area"),
+            Entry("Land la&yer for the search…", "choose_land_layer"),
+            Entry("&No land layer", "clear_land_layer"),
             Entry("&Limit and current of this vessel for every vessel", "limit_for_every_vessel"),
             Entry("&Analyse all vessels", "analyse_all"),
         ),

@@ -3,14 +3,50 @@
 from __future__ import annotations
 
 import math
+from pathlib import Path
 
 from ..detect.tuning import DEFAULT_TUNING
+from ..errors import WakemeterError
+from ..scene.land_layer import LandLayer
 from .window_part import WindowPart
 from .workers import Job
 
 
 class VesselSearch(WindowPart):
     """Mixed into the main window: the Vessels menu's finding commands, run off the GUI thread."""
+
+    #: land polygons the search leaves out (read for the open scene; dropped when another scene opens)
+    land_layer: LandLayer | None = None
+
+    def choose_land_layer(self) -> None:
+        if self.doc.scene is None:
+            self.say("open a scene first")
+            return
+        path = self._ask_open(
+            "land", "Land layer for the vessel search", "Land polygons (*.gpkg *.geojson *.json *.shp);;All files (*)"
+        )
+        if path:
+            self.set_land_layer(path)
+
+    def set_land_layer(self, path: str) -> bool:
+        """Read land polygons for the open scene; Find vessels then leaves them out (and out of the sea's
+        statistics).  A bad file is said and nothing changes."""
+        sc = self.doc.scene
+        if sc is None:
+            self.say("open a scene first")
+            return False
+        try:
+            layer = LandLayer.read(path, sc.georef if sc.info.georeferenced else None)
+        except WakemeterError as err:
+            self.error("Cannot use the land layer", str(err))
+            return False
+        self.land_layer = layer
+        self.say(f"land layer: {layer.polygons} polygon(s) from {Path(path).name}; Find vessels leaves them out")
+        return True
+
+    def clear_land_layer(self) -> None:
+        self.land_layer = None
+        self.say("no land layer: Find vessels judges land from the scene's pixels")
 
     def find_in_view(self) -> None:
         self.find_vessels(whole=False)
@@ -42,10 +78,12 @@ class VesselSearch(WindowPart):
             c0, r0 = max(int(o.x()), 0), max(int(o.y()), 0)
             area = (c0, r0, int(min(o.x() + w, sc.width)) - c0, int(min(o.y() + h, sc.height)) - r0)
 
+        land = self.land_layer
+
         def work(progress, cancelled):
             from ..detect.vessel_finder import find_vessels
 
-            return find_vessels(sc, area=area, progress=lambda f: progress(f, ""), cancelled=cancelled)
+            return find_vessels(sc, area=area, progress=lambda f: progress(f, ""), cancelled=cancelled, land=land)
 
         self.run_job(Job(work, "finding vessels"), self._mark_found)
 

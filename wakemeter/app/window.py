@@ -69,6 +69,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         self.controller = Controller(self.doc, self.panel, self, parent=self)
         self.panel.export_requested.connect(self.export_dialog)
         self.panel.analyse_all.connect(self.table_dock.show)
+        self.doc.scene_changed.connect(lambda: setattr(self, "land_layer", None))  # read for the scene it was
         self.setAcceptDrops(True)
         self.canvas.cursor_moved.connect(self._readout)
         self.canvas.message.connect(self.say)

@@ -83,6 +83,7 @@ def plan(
     vessels_file: str | None = None,
     find: bool = False,
     pfa_per_km2: float = 1e-3,
+    land: str | None = None,
     client=None,
 ) -> tuple[list[BatchTask], list[tuple[str, str]], list[tuple[str, str]]]:
     """The tasks (one per vessel per scene), the scenes that could not be used with the reason, and the listed
@@ -105,11 +106,14 @@ def plan(
             unreadable.append((Path(s).name, str(err)))
     found: dict[str, list[dict]] = {}
     if find:
-        if client is None:
-            found = {s: find_task(s, pfa_per_km2) for s in usable}
-        else:
-            futures = {s: client.submit(find_task, s, pfa_per_km2, pure=False) for s in usable}
-            found = {s: f.result() for s, f in futures.items()}
+        futures = (
+            {} if client is None else {s: client.submit(find_task, s, pfa_per_km2, land, pure=False) for s in usable}
+        )
+        for s in list(usable):
+            try:
+                found[s] = find_task(s, pfa_per_km2, land) if client is None else futures[s].result()
+            except WakemeterError as err:  # this scene cannot be searched (say, a land layer without georeference)
+                unreadable.append((Path(s).name, f"vessels not sought: {err}"))
     for s in usable:
         with open_scene(s) as sc:
             digest = sc.sha256()

@@ -166,10 +166,14 @@ def _fault_injection() -> None:
         os._exit(3)
 
 
-def find_task(scene_path: str, pfa_per_km2: float) -> list[dict]:
-    """Find the vessels of one scene (on a worker): their candidates as JSON."""
+def find_task(scene_path: str, pfa_per_km2: float, land_path: str | None = None) -> list[dict]:
+    """Find the vessels of one scene (on a worker): their candidates as JSON; ``land_path``, a land layer."""
     from ..detect.vessel_finder import find_vessels
+    from ..scene.land_layer import LandLayer
     from ..scene.raster import open_scene
 
     with open_scene(scene_path) as scene:
-        return [c.to_json() for c in find_vessels(scene, pfa_per_km2=pfa_per_km2)]
+        land = None
+        if land_path:
+            land = LandLayer.read(land_path, scene.georef if scene.info.georeferenced else None)
+        return [c.to_json() for c in find_vessels(scene, pfa_per_km2=pfa_per_km2, land=land)]

@@ -19,6 +19,11 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--vessels", metavar="FILE", help="vessel positions: CSV (lon, lat, name), GeoJSON or GeoPackage")
     p.add_argument("--find", action="store_true", help="find the vessels of each scene with the vessel finder")
     p.add_argument("--pfa", type=float, default=1e-3, metavar="PER_KM2", help="finder's false-alarm rate per km²")
+    p.add_argument(
+        "--land",
+        metavar="FILE",
+        help="with --find: land polygons (GeoPackage, GeoJSON or shapefile) where no vessel is sought",
+    )
     p.add_argument("--scheduler", metavar="ADDRESS", help="an existing dask scheduler (default: a local cluster)")
     p.add_argument("--workers", type=int, default=2, metavar="N", help="local worker processes (default 2)")
     p.add_argument("--reports", metavar="FILE", help="vessel position reports (CSV or NMEA) to compare with")
@@ -57,13 +62,23 @@ def run(args: argparse.Namespace) -> int:
         reports = read_reports(args.reports, parse_columns(args.report_columns))
     if not 1 <= args.workers <= MAX_WORKERS:
         raise ParameterError(f"--workers must be a number of processes from 1 to {MAX_WORKERS}, got {args.workers}")
+    if args.land and not args.find:
+        raise ParameterError("--land is for the vessel finder: give --find too")
+    if args.land and not Path(args.land).exists():
+        raise ParameterError(f"--land: {args.land}: no such file")
     if not (0.0 < args.pfa <= 10.0):  # also NaN
         raise ParameterError(f"--pfa must be a false-alarm rate per km² above 0 and at most 10, got {args.pfa}")
     client, cluster = _client(args.scheduler, args.workers)
     out.mkdir(parents=True, exist_ok=True)
     try:
         tasks, unreadable, outside = plan(
-            args.scenes, base, vessels_file=args.vessels, find=args.find, pfa_per_km2=args.pfa, client=client
+            args.scenes,
+            base,
+            vessels_file=args.vessels,
+            find=args.find,
+            pfa_per_km2=args.pfa,
+            land=args.land,
+            client=client,
         )
         for name, why in unreadable + outside:  # only a scene not read makes the run incomplete (exit 1)
             print(f"not used: {name}: {why}", file=sys.stderr)

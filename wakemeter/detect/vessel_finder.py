@@ -36,6 +36,7 @@ from scipy import ndimage, stats
 
 from ..errors import CancelledError, ParameterError
 from ..scene import display, geodesy
+from ..scene.land_layer import LandLayer
 from ..scene.raster import Scene, one_pass_cache
 from ..scene.sensor import BandRole, band_roles
 from .blob_shape import blob_shape
@@ -139,9 +140,11 @@ def find_vessels(
     cancelled: Callable[[], bool] | None = None,
     tile: int = TILE,
     tuning: Tuning = DEFAULT_TUNING,
+    land: LandLayer | None = None,
 ) -> list[VesselCandidate]:
     """Every vessel-like target in ``area`` (col, row, width, height; default the whole scene); the finder's
-    thresholds are the ``finder_*`` fields of ``tuning``."""
+    thresholds are the ``finder_*`` fields of ``tuning``.  ``land``: polygons where no vessel is sought (and
+    whose pixels are no sea for the statistics), for scenes whose pixels cannot tell land from water."""
     t = tuning
     if not 0 < pfa_per_km2 < 1e3:
         raise ParameterError(f"the false-alarm rate must be > 0 and below 1000 per km², got {pfa_per_km2}")
@@ -194,14 +197,15 @@ def find_vessels(
                 pending = reader.submit(read, window(*tiles[k + 1])[1])
             idx = {b: i for i, b in enumerate(read_bands)}
             ok = np.all(valid, axis=0)
+            sea = ok if land is None else ok & ~land.mask(scene.georef, full, ok.shape)
             nir = _nir_band(scene)
             if radar:
-                det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], ok, guard, back, pfa_px)
-                water = ok
+                det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], sea, guard, back, pfa_px)
+                water = sea
                 locate = score
-                link = ok & (score > t.finder_link_share)  # score: intensity over its threshold
+                link = sea & (score > t.finder_link_share)  # score: intensity over its threshold
             else:
-                water = ok.copy()
+                water = sea.copy()
                 if gn is not None:
                     g, n = data[idx[gn[0]]], data[idx[gn[1]]]
                     ndwi = (g - n) / np.maximum(g + n, 1e-6)
