@@ -100,3 +100,22 @@ def test_the_solid_part_keeps_a_hull_where_it_is_and_drops_thin_crests():
         out = _solid_part(img, k)
         assert np.array_equal(out[10:14, 5:15], img[10:14, 5:15]), k
         assert out[25].max() == 0.0 and out.sum() == img[10:14, 5:15].sum(), k
+
+
+@pytest.mark.parametrize("kind", ["intensity", "amplitude", "dB"])
+def test_the_radar_demo_as_intensity_amplitude_or_db_gives_its_ferry_once(kind, tmp_path):
+    # Synthetic truth (outer_roads_radar.truth.json): the same scene written as radar products deliver it
+    import rasterio
+
+    src = DEMO / "outer_roads_radar.tif"
+    truth = json.loads(src.with_suffix(".truth.json").read_text())["vessels"][0]
+    with rasterio.open(src) as s:
+        prof, a = s.profile, s.read(1).astype(np.float64)
+    as_kind = {"intensity": a, "amplitude": np.sqrt(a), "dB": 10 * np.log10(np.maximum(a, 1e-6))}[kind]
+    with rasterio.open(tmp_path / "r.tif", "w", **prof) as o:
+        o.write(as_kind.astype(np.float32), 1)
+    with open_scene(tmp_path / "r.tif") as sc:
+        cands = find_vessels(sc)
+    assert len(cands) == 1
+    reach = 0.5 * truth["hull_length_m"] / 5.0  # 5 m pixels
+    assert np.hypot(cands[0].px[0] - truth["hull_pixel_col"], cands[0].px[1] - truth["hull_pixel_row"]) <= reach
