@@ -36,6 +36,7 @@ def test_each_vessel_is_found_once_and_a_repeat_is_merged_after_analysis(win, qt
     qtbot.waitUntil(lambda: win.job is None, timeout=60_000)
     found = list(win.doc.vessels.values())
     assert len(found) == 2 and all(v.found_score is not None and v.found_score > 0 for v in found)
+    assert sorted(v.name for v in found) == ["found 1", "found 2"]  # no length that could pass for the hull's
     for t in TRUTH:  # each within half its hull's length (2 m pixels)
         assert min(_near(v, t) for v in found) <= 0.25 * t["hull_length_m"], t["name"]
     win.find_vessels(whole=True)  # a second search marks nothing twice
@@ -43,7 +44,7 @@ def test_each_vessel_is_found_once_and_a_repeat_is_merged_after_analysis(win, qt
     assert len(win.doc.vessels) == 2
     # a row that repeats the coaster (as a second search of an overlapping area could have given before)
     coaster = next(t for t in TRUTH if t["name"] == "Brackenfield")
-    repeat = Vessel(win.doc.new_id(), "found 9 (40 m)", (coaster["pixel_col"] + 4, coaster["pixel_row"]), 9.0)
+    repeat = Vessel(win.doc.new_id(), "found 9", (coaster["pixel_col"] + 4, coaster["pixel_row"]), 9.0)
     win.doc.undo.push(AddItem(win.doc, repeat, "mark vessel"))
     win.analyse_all()
     qtbot.waitUntil(lambda: win.job is None and not win.controller.queue and len(win.doc.vessels) == 2, timeout=120_000)

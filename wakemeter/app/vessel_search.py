@@ -108,7 +108,9 @@ class VesselSearch(WindowPart):
         ]
         first = 1 + sum(v.name.startswith("found ") for v in self.doc.vessels.values())
         found = [
-            Vessel(self.doc.new_id(), f"found {i} ({c.length_m:.0f} m)", c.px, c.score, c.merged)
+            # no length in the name: the finder measures the bright part it found, which is not the hull's length
+            # (a solid deck part at fine pixels, a hull with its foam at coarse ones) and must not be read as one
+            Vessel(self.doc.new_id(), f"found {i}", c.px, c.score, c.merged)
             for i, c in enumerate(new, first)
         ]
         again = f"; {len(cands) - len(new)} already marked" if len(new) < len(cands) else ""
