@@ -423,3 +423,49 @@ def test_a_folder_of_band_files_opens_in_the_program(win, tmp_path, monkeypatch)
     assert win.open_path(str(folder))
     assert win.doc.scene.info.count == 4 and win.canvas.loader.contrast.rgb
     assert "marseille" in win.windowTitle()
+
+
+def _land_and_sea(path: Path) -> Path:
+    """A 4-band reflectance scene (uint16, B02 B03 B04 B08) whose left half is land (bright, NDWI < 0) and right
+    half sea (dark, NDWI > 0), with a brighter streak on the sea: made for this test."""
+    import rasterio
+    from affine import Affine
+
+    rng = np.random.default_rng(3)
+    h, w = 400, 400
+    data = np.empty((4, h, w), np.float64)
+    land = [2500.0, 3000.0, 3500.0, 4500.0]  # blue, green, red, near infrared
+    sea = [900.0, 800.0, 500.0, 300.0]
+    for b in range(4):
+        data[b, :, : w // 2] = land[b] + rng.normal(0, 600, (h, w // 2))
+        data[b, :, w // 2 :] = sea[b] + rng.normal(0, 25, (h, w - w // 2))
+    data[:3, 200:203, 250:350] += 150.0  # a faint wake on the sea
+    prof = dict(driver="GTiff", width=w, height=h, count=4, dtype="uint16", crs="EPSG:32633")
+    with rasterio.open(path, "w", transform=Affine(10, 0, 500000, 0, -10, 4800000), **prof) as dst:
+        dst.write(np.clip(data, 0, 65535).astype(np.uint16))
+        for i, name in enumerate(("B02", "B03", "B04", "B08"), 1):
+            dst.set_band_description(i, name)
+    return path
+
+
+def test_a_port_scene_is_stretched_on_its_sea_and_the_menu_says_so(win, tmp_path):
+    # land and sea half and half (synthetic): the stretch is set on the water by the water index (McFeeters
+    # 1996), so the sea spans the grey levels and a faint wake shows; land saturates.  The View item is ticked;
+    # unticked, the whole scene sets the stretch (program behaviour, no source)
+    from wakemeter.app.tiles import read_tile
+
+    assert win.open_path(str(_land_and_sea(tmp_path / "port.tif")))
+    c = win.canvas.loader.contrast
+    assert c.on_water and win.water_action.isChecked()
+    tile = read_tile(win.doc.scene, 0, 1, 0, c)[..., 0].astype(float)  # the sea's first tile (columns 256-400)
+    wake, sea = tile[200:203, 0:94].mean(), tile[100:180, 0:140].mean()
+    assert wake - sea > 20  # the wake is 150 over a sea of noise 25: it stands out on the sea's stretch
+    win.water_action.trigger()
+    c2 = win.canvas.loader.contrast
+    assert not c2.on_water and not win.water_action.isChecked() and max(c2.hi) > 2 * max(c.hi)
+    tile2 = read_tile(win.doc.scene, 0, 1, 0, c2)[..., 0].astype(float)
+    assert tile2[200:203, 0:94].mean() - tile2[100:180, 0:140].mean() < wake - sea
+    assert win.open_path(str(ROOT / "sample_scenes" / "harbour_approach_optical.tif"))
+    assert not win.water_action.isChecked()  # one band: no water index
+    win.water_action.trigger()
+    assert not win.canvas.loader.contrast.on_water and not win.water_action.isChecked()

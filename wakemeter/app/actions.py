@@ -73,6 +73,7 @@ MENUS: tuple[tuple[str, str, tuple[Entry, ...]], ...] = (
             Entry("Darker (gamma down)", "darker"),
             Entry("Choose &bands…", "choose_bands"),
             Entry("Radar intensity in dB", "_toggle_db", checkable=True, attribute="db_action"),
+            Entry("Contrast set on the &water", "_toggle_water_stretch", checkable=True, attribute="water_action"),
         ),
     ),
     (

@@ -20,6 +20,7 @@ from rasterio.enums import Resampling
 
 from ..errors import ParameterError, WakemeterError
 from ..scene import display
+from ..scene.sensor import BandRole, band_roles
 from ..scene.raster import Scene
 
 TILE = 256
@@ -35,6 +36,7 @@ class Contrast:
     db: bool = False
     rgb: bool = False
     bands: tuple[int, ...] = (1,)  #: 1-based bands shown: one (grey) or three (red, green, blue)
+    on_water: bool = False  #: the stretch was set on the water (by the water index) rather than the whole scene
 
 
 def estimate_contrast(
@@ -45,8 +47,12 @@ def estimate_contrast(
     low: float = 1.0,
     high: float = 99.5,
     bands: tuple[int, ...] | None = None,
+    on_water: bool | None = None,
 ) -> Contrast:
-    """Percentile stretch from a small whole-scene read (uses overviews when present)."""
+    """Percentile stretch from a small whole-scene read (uses overviews when present).  ``on_water``: set the
+    stretch on the water (by the water index), on the whole scene (False), or on the water where the scene
+    names a green and a near-infrared band and at least WATER_SHARE_FOR_STRETCH of it is water (None)."""
+    reflectance_default = False
     s = min(1.0, 512 / max(scene.width, scene.height))
     oh, ow = max(1, int(scene.height * s)), max(1, int(scene.width * s))
     if bands is None:
@@ -55,6 +61,7 @@ def estimate_contrast(
             # reflectance products: one wide stretch with a gamma (per-band 1-99.5 % stretches of mostly dark
             # water turn its noise into colour)
             low, high, gamma = 0.5, 99.9, 2.0
+            reflectance_default = True
     bands = tuple(int(b) for b in bands)
     if len(bands) not in (1, 3) or any(b < 1 or b > scene.info.count for b in bands):
         raise ParameterError(
@@ -72,6 +79,12 @@ def estimate_contrast(
         sample = _full_resolution_sample(scene, bands)
         if sample is not None:
             data, valid = sample
+    sea = None if db or on_water is False else _water(scene, (oh, ow), valid)
+    if sea is not None:  # the stretch is set on the water (land saturates): the sea and its wakes are what is read
+        valid = valid & sea[None]
+        high = min(high, WATER_HIGH_PERCENTILE)  # hulls, foam and mixed shore pixels are the water's bright tail
+        if reflectance_default:
+            gamma = 1.0  # the sea alone spans the levels: no lift of the dark end
     los, his = [], []
     joint = rgb and scene.info.dtype == "uint16"
     if joint:  # the same stretch for the three bands keeps the colours of the reflectances
@@ -82,7 +95,27 @@ def estimate_contrast(
         lo, hi = (lo_j, hi_j) if joint else (np.percentile(v, [low, high]) if v.size else (0.0, 1.0))
         los.append(float(lo))
         his.append(float(hi if hi > lo else lo + 1))
-    return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb, bands)
+    return Contrast(tuple(los), tuple(his), gamma, bool(db), rgb, bands, sea is not None)
+
+
+#: the stretch is set on the water when at least this share of the scene's valid pixels is water
+WATER_SHARE_FOR_STRETCH = 0.05
+#: ... up to this percentile of the water (above it: hulls, foam, mixed shore pixels, shown white)
+WATER_HIGH_PERCENTILE = 99.0
+
+
+def _water(scene: Scene, shape: tuple[int, int], valid: np.ndarray) -> np.ndarray | None:
+    """Water by the water index (McFeeters 1996, NDWI > 0) on the overview grid when the scene names a green and
+    a near-infrared band and enough of it is water; else None."""
+    roles = band_roles(scene.info.band_descriptions)
+    g, n = roles.get(BandRole.GREEN), roles.get(BandRole.NIR)
+    if g is None or n is None:
+        return None
+    d, ok = scene.read(out_shape=shape, bands=(g, n))
+    wet = ok.all(axis=0) & ((d[0] - d[1]) > 0.0) & valid.all(axis=0)
+    # eroded by a pixel: lone wet pixels on land and the mixed pixels of the shore are not the sea's levels
+    wet = cv2.erode(wet.astype(np.uint8), np.ones((3, 3), np.uint8)).astype(bool)
+    return wet if wet.sum() >= max(WATER_SHARE_FOR_STRETCH * valid.all(axis=0).sum(), 100) else None
 
 
 def _full_resolution_sample(scene: Scene, bands: tuple[int, ...], n: int = 4, size: int = 128):

@@ -61,6 +61,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         self.last_error = ""
         self.job: Job | None = None
         self.db_action: QAction  # set from the actions table (its entry names it)
+        self.water_action: QAction  # likewise
         self._build_actions()
         self._build_panels()
         self._build_status()
@@ -303,8 +304,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         sc = self.doc.scene
         if sc is None:
             return
-        c = self.canvas.loader.contrast
-        self.db_action.setChecked(bool(c is not None and c.db))  # the menu says what is shown
+        self._show_contrast_state()  # the menu says what is shown
         note = "" if sc.info.georeferenced else " — no georeference: use Calibrate before measuring"
         self.say(
             f"{sc.info.origin.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"
@@ -460,7 +460,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
     def _contrast(self, factor: float) -> None:
         c = self.canvas.loader.contrast
         if c is not None:
-            self.canvas.set_contrast(gamma=c.gamma * factor, db=c.db, bands=c.bands)
+            self.canvas.set_contrast(gamma=c.gamma * factor, db=c.db, bands=c.bands, on_water=c.on_water)
 
     def choose_bands(self, text: str | None = None) -> bool:
         """Show one band as grey or three as red, green, blue (1-based numbers)."""
@@ -480,7 +480,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         try:
             bands = tuple(int(x) for x in text.replace(" ", "").split(",") if x)
             c = self.canvas.loader.contrast
-            self.canvas.set_contrast(bands=bands, gamma=c.gamma if c else 1.0)
+            self.canvas.set_contrast(bands=bands, gamma=c.gamma if c else 1.0, on_water=c.on_water if c else None)
         except (ValueError, WakemeterError) as err:
             self.error("Bands not changed", str(err))
             return False
@@ -495,6 +495,22 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
     def _toggle_db(self) -> None:
         c = self.canvas.loader.contrast
         self.canvas.set_contrast(db=self.db_action.isChecked(), bands=c.bands if c else None)
+        self._show_contrast_state()
+
+    def _toggle_water_stretch(self) -> None:
+        c = self.canvas.loader.contrast
+        want = self.water_action.isChecked()
+        self.canvas.set_contrast(bands=c.bands if c else None, db=c.db if c else None, on_water=want)
+        got = self.canvas.loader.contrast
+        if want and got is not None and not got.on_water:
+            self.say("no water index here (a green and a near-infrared band), or too little water: whole scene")
+        self._show_contrast_state()
+
+    def _show_contrast_state(self) -> None:
+        """The View menu's ticks say what is shown."""
+        c = self.canvas.loader.contrast
+        self.db_action.setChecked(bool(c is not None and c.db))
+        self.water_action.setChecked(bool(c is not None and c.on_water))
 
     def ask_unsaved(self) -> str:
         """'save', 'discard', 'cancel', or 'keep' (close and keep the autosave: nobody to ask offscreen)."""
