@@ -20,8 +20,8 @@ from rasterio.enums import Resampling
 
 from ..errors import ParameterError, WakemeterError
 from ..scene import display
-from ..scene.sensor import BandRole, band_roles
 from ..scene.raster import Scene
+from ..scene.sensor import BandRole, band_roles
 
 TILE = 256
 
