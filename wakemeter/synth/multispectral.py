@@ -189,6 +189,23 @@ def _mtf_sigma_px(mtf_nyquist: float) -> float:
     return float(np.sqrt(-np.log(mtf_nyquist) / (2 * np.pi**2 * 0.25)))
 
 
+def _bands(look, shape, slopes_x, slopes_y, foam, hulls, land, sun, sigma, rng) -> np.ndarray:
+    """The four bands' pixels (reflectance x 10 000, uint16) from the slopes, foam, hulls and land."""
+    data = np.zeros((len(BANDS), *shape), np.uint16)
+    for b in range(len(BANDS)):
+        tilt = slopes_x[b] * sun[0] + slopes_y[b] * sun[1]
+        refl = look.water[b] + look.glint_gain * tilt
+        refl = refl + (look.foam[b] - look.water[b]) * foam
+        refl = refl + (look.hull[b] - refl) * hulls[b]
+        if land.any():
+            texture = look.land[b] * (1 + 0.15 * ndimage.gaussian_filter(rng.normal(0, 1, shape), 2.0))
+            refl = np.where(land, texture, refl)
+        refl = sensor_blur(refl, sigma)
+        refl = refl + rng.normal(0.0, look.noise, shape)
+        data[b] = np.clip(np.round(refl * 10_000), 0, 4095 * 4).astype(np.uint16)
+    return data
+
+
 def render_multispectral(spec: SceneSpec, look: MultispectralLook) -> MultispectralScene:
     """Render ``spec`` (its vessels, depth and position; its ``imaging`` is replaced by ``look``)."""
     rng, georef, shape, centre, dx, dy, g, xm, ym_up = render_grid(spec)
@@ -271,20 +288,9 @@ def render_multispectral(spec: SceneSpec, look: MultispectralLook) -> Multispect
         cx, cy = _grid_direction(centre, look.coast_bearing_deg)
         along = (xm - c0 * dx) * cx + (ym_up + r0 * dy) * cy
         land = along >= look.coast_distance_m
-    sun_x, sun_y = _grid_direction(centre, look.sun_azimuth_deg)
     sigma = _mtf_sigma_px(look.mtf_nyquist)
-    data = np.zeros((nb, *shape), np.uint16)
-    for b in range(nb):
-        tilt = slopes_x[b] * sun_x + slopes_y[b] * sun_y
-        refl = look.water[b] + look.glint_gain * tilt
-        refl = refl + (look.foam[b] - look.water[b]) * foam
-        refl = refl + (look.hull[b] - refl) * hulls[b]
-        if land.any():
-            texture = look.land[b] * (1 + 0.15 * ndimage.gaussian_filter(rng.normal(0, 1, shape), 2.0))
-            refl = np.where(land, texture, refl)
-        refl = sensor_blur(refl, sigma)
-        refl = refl + rng.normal(0.0, look.noise, shape)
-        data[b] = np.clip(np.round(refl * 10_000), 0, 4095 * 4).astype(np.uint16)
+    sun = _grid_direction(centre, look.sun_azimuth_deg)
+    data = _bands(look, shape, slopes_x, slopes_y, foam, hulls, land, sun, sigma, rng)
     truth = {
         **truth_header(spec, georef, g),
         "imaging": {"kind": "multispectral", "bands": list(BANDS), **asdict(look), "mtf_sigma_px": sigma},
