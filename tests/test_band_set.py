@@ -209,3 +209,56 @@ def test_an_incomplete_safe_folder_says_what_is_missing(tmp_path, monkeypatch):
     next((safe / "GRANULE").rglob("*_B08_10m.jp2")).unlink()
     with pytest.raises(SceneReadError, match="B08"):
         open_scene(safe)
+
+
+def _zipped(safe: Path, out: Path) -> Path:
+    """The product zipped as the Copernicus hub delivers it: <name>.SAFE/ at the top of the archive."""
+    import zipfile
+
+    with zipfile.ZipFile(out, "w", zipfile.ZIP_STORED) as zf:
+        for f in sorted(safe.rglob("*")):
+            if f.is_file():
+                zf.write(f, f.relative_to(safe.parent).as_posix())
+    return out
+
+
+def test_a_zipped_safe_product_opens_without_unpacking(tmp_path, monkeypatch, capsys):
+    # the same fixture zipped: the bands are read inside the archive (GDAL /vsizip/), the crop's own values,
+    # with the product's time; the scene's hash is the archive's; nothing is unpacked next to it
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    safe = _safe(tmp_path / "unpacked")
+    archive = _zipped(safe, tmp_path / f"{safe.name.removesuffix('.SAFE')}.zip")
+    with open_scene(archive) as sc, rasterio.open(CROP) as ref:
+        assert sc.info.band_descriptions == NAMES
+        assert np.array_equal(sc.read()[0], ref.read().astype(np.float32))
+        assert sc.info.acquisition_time == "2023-08-22T10:30:31.024Z"
+        assert sc.info.origin == archive.resolve()
+        digest = sc.sha256()
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted(["unpacked", "cache", archive.name])
+    archive.write_bytes(archive.read_bytes() + b"\0")  # another archive: another hash
+    with open_scene(archive) as sc:
+        assert sc.sha256() != digest
+    assert main(["info", str(archive)]) == 0
+    assert "(from the product's metadata (MTD_MSIL2A.xml))" in capsys.readouterr().out
+    _same_result_as_the_crop(archive)
+
+
+def test_a_zip_without_a_product_or_not_a_zip_is_refused_in_words(tmp_path, monkeypatch):
+    import zipfile
+
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    with zipfile.ZipFile(tmp_path / "photos.zip", "w") as zf:
+        zf.writestr("holiday/readme.txt", "no product here")
+    with pytest.raises(SceneReadError, match="no Sentinel-2 product in this zip"):
+        open_scene(tmp_path / "photos.zip")
+    (tmp_path / "broken.zip").write_bytes(b"PK\3\4 truncated")
+    with pytest.raises(SceneReadError, match="not a zip archive that can be read"):
+        open_scene(tmp_path / "broken.zip")
+    safe = _safe(tmp_path / "unpacked")
+    archive = _zipped(safe, tmp_path / "p.zip")
+    with zipfile.ZipFile(archive) as zf, zipfile.ZipFile(tmp_path / "partial.zip", "w") as out:
+        for n in zf.namelist():
+            if "_B08_" not in n:
+                out.writestr(n, zf.read(n))
+    with pytest.raises(SceneReadError, match="B08"):
+        open_scene(tmp_path / "partial.zip")

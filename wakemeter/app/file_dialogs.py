@@ -12,7 +12,10 @@ from PySide6.QtWidgets import QFileDialog, QInputDialog
 
 from .window_part import WindowPart
 
-SCENE_FILTER = "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;All files (*)"
+SCENE_FILTER = (
+    "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;Sentinel-2 products (*.zip);;"
+    "STAC items (*.json);;All files (*)"
+)
 SESSION_FILTER = "wakemeter sessions (*.json)"
 SESSION_SUFFIX = ".wakemeter.json"
 

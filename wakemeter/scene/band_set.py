@@ -42,7 +42,12 @@ _VRT_TYPES = {
 @dataclass(frozen=True)
 class BandFile:
     band: str  #: as the archive names it, upper case (B02)
-    path: Path
+    path: Path  #: the file, or the archive that holds it (its size and time key the cache)
+    source: str | None = None  #: GDAL's path when the band is read from inside ``path`` (/vsizip/...)
+
+    @property
+    def gdal_path(self) -> str:
+        return self.source if self.source is not None else str(self.path)
 
 
 def band_files(folder: Path) -> tuple[str, list[BandFile]]:
@@ -97,7 +102,7 @@ def band_set_vrt(folder: Path) -> Path:
 def write_vrt(stem: str, files: list[BandFile], metadata: dict[str, str]) -> Path:
     """A VRT in the cache whose bands are ``files`` (one band each, one pixel grid), named after ``stem`` (the
     sensor table reads the platform from the name), with ``metadata`` as its own items."""
-    with rasterio.open(files[0].path) as ds:
+    with rasterio.open(files[0].gdal_path) as ds:
         width, height, crs, transform, dtype, nodata = (
             ds.width,
             ds.height,
@@ -107,10 +112,10 @@ def write_vrt(stem: str, files: list[BandFile], metadata: dict[str, str]) -> Pat
             ds.nodata,
         )
     if dtype not in _VRT_TYPES:
-        raise SceneReadError(f"{files[0].path.name}: band files of type {dtype} cannot be put together here")
+        raise SceneReadError(f"{files[0].gdal_path}: band files of type {dtype} cannot be put together here")
     key = hashlib.sha1(
         (
-            "|".join(f"{f.band}={f.path}:{f.path.stat().st_size}:{f.path.stat().st_mtime_ns}" for f in files)
+            "|".join(f"{f.band}={f.gdal_path}:{f.path.stat().st_size}:{f.path.stat().st_mtime_ns}" for f in files)
             + repr(sorted(metadata.items()))
         ).encode()
     ).hexdigest()[:16]
@@ -128,7 +133,7 @@ def write_vrt(stem: str, files: list[BandFile], metadata: dict[str, str]) -> Pat
         f"    <Description>{escape(f.band)}</Description>\n"
         + (f"    <NoDataValue>{nodata!r}</NoDataValue>\n" if nodata is not None else "")
         + "    <SimpleSource>\n"
-        f'      <SourceFilename relativeToVRT="0">{escape(str(f.path))}</SourceFilename>\n'
+        f'      <SourceFilename relativeToVRT="0">{escape(f.gdal_path)}</SourceFilename>\n'
         "      <SourceBand>1</SourceBand>\n"
         "    </SimpleSource>\n"
         "  </VRTRasterBand>\n"

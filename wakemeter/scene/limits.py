@@ -103,9 +103,13 @@ def system_file(path: str) -> bool:
     return any(real == f or f in real.parents for f in folders)
 
 
-def check_referenced_files(p: Path, files: tuple[str, ...], *, allow_system_files: bool) -> None:
-    """Refuse a scene that reads system or private files (a crafted VRT can show any file as an image)."""
-    others = tuple(f for f in files if Path(f).resolve() != p.resolve())
+def check_referenced_files(
+    p: Path, files: tuple[str, ...], *, allow_system_files: bool, archive: Path | None = None
+) -> None:
+    """Refuse a scene that reads system or private files (a crafted VRT can show any file as an image).  Files
+    read inside ``archive`` (the zip the user opened, through /vsizip/) are that file's own."""
+    own = f"/vsizip/{archive}/" if archive is not None else None
+    others = tuple(f for f in files if Path(f).resolve() != p.resolve() and not (own and f.startswith(own)))
     bad = tuple(f for f in others if system_file(f))
     if bad and not allow_system_files:
         raise ReferencedFilesError(

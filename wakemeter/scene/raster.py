@@ -229,7 +229,12 @@ class Scene:
             h = hashlib.sha256()
             paths = [self.info.path]
             if self.info.driver == "VRT":
-                paths += sorted(Path(f) for f in self.info.files if Path(f).resolve() != self.info.path)
+                inside = [f for f in self.info.files if f.startswith("/vsizip/")]
+                if inside:  # bands read inside an archive: the archive's bytes stand for them
+                    paths.append(self.info.opened_as or Path(inside[0]))
+                paths += sorted(
+                    Path(f) for f in self.info.files if f not in inside and Path(f).resolve() != self.info.path
+                )
             for path in paths:
                 try:
                     with open(path, "rb") as fh:
@@ -368,6 +373,10 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
 
         mtd = metadata_file(p)
         p = safe_vrt(p, mtd) if mtd is not None else band_set_vrt(p)
+    elif p.suffix.lower() == ".zip":  # a Sentinel-2 product as downloaded: its bands read inside the zip
+        from .safe_product import safe_zip_vrt
+
+        p = safe_zip_vrt(p)
     elif p.suffix.lower() == ".json":  # a STAC item: its local band assets as one virtual raster
         from .stac_item import read_item, stac_vrt
 
@@ -384,7 +393,8 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
             warnings.simplefilter("ignore", NotGeoreferencedWarning)
             with rasterio.open(p) as ds:
                 files = tuple(str(f) for f in (ds.files or [str(p)]))
-                limits.check_referenced_files(p, files, allow_system_files=allow_system_files)
+                archive = given.resolve() if given.suffix.lower() == ".zip" else None
+                limits.check_referenced_files(p, files, allow_system_files=allow_system_files, archive=archive)
                 info = _read_info(p, ds, size, files)
     except GDAL_ERRORS as err:
         msg = gdal_reason(err)

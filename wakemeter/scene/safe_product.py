@@ -39,35 +39,94 @@ def _text(root: ET.Element, tag: str) -> str | None:
     return None
 
 
-def safe_vrt(folder: Path, mtd: Path) -> Path:
-    """The virtual raster of the product's 10 m bands (first tile), with its time and spacecraft."""
-    if mtd.stat().st_size > MAX_METADATA_BYTES:
-        raise SceneReadError(f"{mtd.name}: larger than a product's metadata can be")
+def _root(data: bytes, name: str) -> ET.Element:
+    if len(data) > MAX_METADATA_BYTES:
+        raise SceneReadError(f"{name}: larger than a product's metadata can be")
     try:
-        root = ET.parse(mtd).getroot()
+        return ET.fromstring(data)
     except ET.ParseError as err:
-        raise SceneReadError(f"{mtd.name}: the product's metadata is not readable XML ({err})") from err
-    granules = sorted(p for p in (folder / "GRANULE").glob("*") if p.is_dir())
-    if not granules:
-        raise SceneReadError(f"{folder.name}: a Sentinel-2 product without a GRANULE folder (incomplete download?)")
-    img = granules[0] / "IMG_DATA"
-    place = img / "R10m" if (img / "R10m").is_dir() else img
-    found: dict[str, Path] = {}
-    for p in sorted(place.glob("*.jp2")):
-        m = _BAND_IN_NAME.search(p.name)
+        raise SceneReadError(f"{name}: the product's metadata is not readable XML ({err})") from err
+
+
+def _ten_metre(jp2s: list[str]) -> dict[str, str]:
+    """Band name -> path among one granule's JPEG 2000 files (the R10m folder's when there is one)."""
+    r10 = [j for j in jp2s if "/R10m/" in j.replace("\\", "/")]
+    found: dict[str, str] = {}
+    for j in sorted(r10 or jp2s):
+        m = _BAND_IN_NAME.search(j)
         if m and m[1].upper() in TEN_METRE_BANDS:
-            found.setdefault(m[1].upper(), p)
-    missing = [b for b in TEN_METRE_BANDS if b not in found]
-    if missing:
-        raise SceneReadError(f"{folder.name}: the 10 m band(s) {', '.join(missing)} are not in {place}")
+            found.setdefault(m[1].upper(), j)
+    return found
+
+
+def _metadata(root: ET.Element, mtd_name: str, granules: list[str]) -> dict[str, str]:
     meta: dict[str, str] = {}
     start = _text(root, "PRODUCT_START_TIME") or _text(root, "DATATAKE_SENSING_START")
     if start:
-        meta.update(ACQUISITION_TIME=start, ACQUISITION_TIME_SOURCE=f"the product's metadata ({mtd.name})")
+        meta.update(ACQUISITION_TIME=start, ACQUISITION_TIME_SOURCE=f"the product's metadata ({mtd_name})")
     craft = _text(root, "SPACECRAFT_NAME")
     if craft:
         meta["SPACECRAFT_NAME"] = craft
     if len(granules) > 1:
-        meta["TILES_NOTE"] = f"the first of {len(granules)} tiles ({granules[0].name})"
+        meta["TILES_NOTE"] = f"the first of {len(granules)} tiles ({granules[0]})"
+    return meta
+
+
+def safe_vrt(folder: Path, mtd: Path) -> Path:
+    """The virtual raster of the product's 10 m bands (first tile), with its time and spacecraft."""
+    if mtd.stat().st_size > MAX_METADATA_BYTES:
+        raise SceneReadError(f"{mtd.name}: larger than a product's metadata can be")
+    root = _root(mtd.read_bytes(), mtd.name)
+    granules = sorted(p for p in (folder / "GRANULE").glob("*") if p.is_dir())
+    if not granules:
+        raise SceneReadError(f"{folder.name}: a Sentinel-2 product without a GRANULE folder (incomplete download?)")
+    img = granules[0] / "IMG_DATA"
+    found = _ten_metre([p.as_posix() for p in img.rglob("*.jp2")])
+    missing = [b for b in TEN_METRE_BANDS if b not in found]
+    if missing:
+        place = img / "R10m" if (img / "R10m").is_dir() else img
+        raise SceneReadError(f"{folder.name}: the 10 m band(s) {', '.join(missing)} are not in {place}")
+    meta = _metadata(root, mtd.name, [g.name for g in granules])
     stem = folder.name.removesuffix(".SAFE")
-    return write_vrt(stem, [BandFile(b, found[b]) for b in TEN_METRE_BANDS], meta)
+    return write_vrt(stem, [BandFile(b, Path(found[b])) for b in TEN_METRE_BANDS], meta)
+
+
+def safe_zip_vrt(archive: Path) -> Path:
+    """A Sentinel-2 product as the zip it is downloaded in (``<name>.SAFE/`` inside): the same 10 m bands and
+    metadata, the bands read inside the archive through GDAL's /vsizip/ (nothing is unpacked)."""
+    import zipfile
+
+    try:
+        zf = zipfile.ZipFile(archive)
+    except (zipfile.BadZipFile, OSError) as err:
+        raise SceneReadError(f"{archive.name}: not a zip archive that can be read ({err})") from err
+    with zf:
+        names = zf.namelist()
+        mtd = next(
+            (
+                n
+                for n in names
+                if n.count("/") == 1 and n.split("/")[0].endswith(".SAFE") and n.split("/")[1] in METADATA_FILES
+            ),
+            None,
+        )
+        if mtd is None:
+            raise SceneReadError(
+                f"{archive.name}: no Sentinel-2 product in this zip (no <name>.SAFE/MTD_MSIL2A.xml or MTD_MSIL1C.xml)"
+            )
+        if zf.getinfo(mtd).file_size > MAX_METADATA_BYTES:
+            raise SceneReadError(f"{mtd}: larger than a product's metadata can be")
+        root = _root(zf.read(mtd), mtd.split("/")[1])
+    top = mtd.split("/")[0]
+    prefix = f"{top}/GRANULE/"
+    granules = sorted({n[len(prefix) :].split("/")[0] for n in names if n.startswith(prefix) and n.count("/") > 2})
+    if not granules:
+        raise SceneReadError(f"{archive.name}: a Sentinel-2 product without a GRANULE folder (incomplete download?)")
+    first = f"{prefix}{granules[0]}/IMG_DATA/"
+    found = _ten_metre([n for n in names if n.startswith(first) and n.lower().endswith(".jp2")])
+    missing = [b for b in TEN_METRE_BANDS if b not in found]
+    if missing:
+        raise SceneReadError(f"{archive.name}: the 10 m band(s) {', '.join(missing)} are not in {first}")
+    where = archive.resolve()
+    bands = [BandFile(b, where, f"/vsizip/{where}/{found[b]}") for b in TEN_METRE_BANDS]
+    return write_vrt(top.removesuffix(".SAFE"), bands, _metadata(root, mtd.split("/")[1], granules))
