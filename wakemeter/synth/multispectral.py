@@ -42,6 +42,8 @@ from scipy import ndimage
 from ..errors import ParameterError
 from ..physics.units import KNOT_MPS
 from ..scene import geodesy
+from .imaging import mtf_sigma_px as _mtf_sigma_px
+from .imaging import sensor_blur
 from .scene_maker import RenderedScene, SceneSpec, _grid_direction, render_grid, truth_header, vessel_wave_slopes
 from .wavefield import hull_pressure
 
@@ -176,17 +178,6 @@ def _hull_cover(shape, dx: float, dy: float, col: float, row: float, heading_xy,
     p = p / p.max() if p.max() > 0 else p
     out[r0:r1, c0:c1] = p.reshape(r1 - r0, 5, c1 - c0, 5).mean(axis=(1, 3))
     return out
-
-
-def sensor_blur(img: np.ndarray, sigma_px: float) -> np.ndarray:
-    """The Gaussian MTF applied exactly in the Fourier domain (a sampled kernel this narrow would not have the
-    stated transfer)."""
-    return np.real(sfft.ifft2(ndimage.fourier_gaussian(sfft.fft2(img.astype(np.float32)), sigma_px)))
-
-
-def _mtf_sigma_px(mtf_nyquist: float) -> float:
-    """Gaussian blur whose transfer at 0.5 cycles per pixel is ``mtf_nyquist``: exp(-2 pi^2 s^2 f^2)."""
-    return float(np.sqrt(-np.log(mtf_nyquist) / (2 * np.pi**2 * 0.25)))
 
 
 def _bands(look, shape, slopes_x, slopes_y, foam, hulls, land, sun, sigma, rng) -> np.ndarray:
