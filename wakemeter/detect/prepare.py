@@ -50,7 +50,11 @@ def _mad_sigma(a: np.ndarray) -> float:
     return median_spread(a, floor=0.0)[1] or float(np.std(a)) or 1.0
 
 
-def _check_coverage(valid: np.ndarray) -> None:
+def _check_coverage(valid: np.ndarray, centre_rc: tuple[float, float] | None = None, radius: float = 0.0) -> None:
+    """At least 30 % of the chip (or of the disc of ``radius`` chip pixels around ``centre_rc``) is valid."""
+    if centre_rc is not None and radius > 0:
+        rr, cc = np.ogrid[: valid.shape[0], : valid.shape[1]]
+        valid = valid[(rr - centre_rc[0]) ** 2 + (cc - centre_rc[1]) ** 2 <= radius**2]
     if valid.sum() < 0.3 * valid.size:
         raise TooLittleWaterError(
             "less than 30 % of the area around the vessel has valid pixels: it is too close "
@@ -67,8 +71,15 @@ def prepare_chip(
     radar: bool | None = None,
     snap_radius_m: float = 40.0,
     hull_mask_m: float = 30.0,
+    reach_px: int = 0,
+    snap_max_px: float = np.inf,
 ) -> Chip:
-    """Read and prepare a ``size_px`` chip around ``vessel_px`` (scene col, row), decimated by ``step``."""
+    """Read and prepare a ``size_px`` chip around ``vessel_px`` (scene col, row), decimated by ``step``.
+
+    ``reach_px``: the analysis uses only this far from the vessel (chip pixels); the chip must be 30 % valid
+    within it (0: the whole chip), so a photo's vessel near the frame's edge is analysed on the side it has.
+    ``snap_max_px``: the hull is looked for at most this many chip pixels from the click (a photo's 40 m can be
+    its whole frame)."""
     if size_px < 64 or step < 1:
         raise ParameterError(f"size_px must be >= 64 and step >= 1, got {size_px!r}, {step!r}")
     col, row = vessel_px
@@ -113,7 +124,8 @@ def prepare_chip(
     fvalid = np.zeros((size_px, size_px), bool)
     full[orow : orow + oh, oc : oc + ow] = img
     fvalid[orow : orow + oh, oc : oc + ow] = ok
-    _check_coverage(fvalid)
+    near = scene_to_index((c0, r0), step, col, row)
+    _check_coverage(fvalid, near, reach_px)
     # saturation (land, cloud): very bright connected areas
     vals = full[fvalid]
     med, sig = float(np.median(vals)), _mad_sigma(vals)
@@ -132,11 +144,12 @@ def prepare_chip(
             gnv.all(axis=0), (gnd[0] - gnd[1]) / np.maximum(gnd[0] + gnd[1], 1e-6), 0.0
         )
         fvalid &= ~land_mask(np.where(fvalid, (full - med) / sig, 0.0), fvalid, m_px=m_px, ndwi=ndwi, bright=False)
-        _check_coverage(fvalid)
+        _check_coverage(fvalid, near, reach_px)
         vals = full[fvalid]
         med, sig = float(np.median(vals)), _mad_sigma(vals)
     centre = scene_to_index((c0, r0), step, col, row)
-    hull_rc, fvalid = _snap_hull(full, fvalid, med, sig, centre, m_px, snap_radius_m, hull_mask_m)
+    snap_m = min(snap_radius_m, snap_max_px * m_px)
+    hull_rc, fvalid = _snap_hull(full, fvalid, med, sig, centre, m_px, snap_m, hull_mask_m, 2 * snap_max_px)
     # background removal and normalisation
     filled = np.where(fvalid, full, med)
     bg = wide_gaussian(filled, max(size_px / 24, 4.0))
@@ -155,6 +168,7 @@ def _snap_hull(
     m_px: float,
     snap_radius_m: float,
     hull_mask_m: float,
+    mask_max_px: float = np.inf,
 ) -> tuple[tuple[float, float] | None, np.ndarray]:
     """The hull: the brightest smoothed blob within the snap radius (chip row, col, or None), and the valid
     mask with the hull taken out (a hull, not a whole bright region)."""
@@ -176,6 +190,8 @@ def _snap_hull(
         lab, _ = ndimage.label(blob)
         if lab[pr[k], pc[k]] > 0:
             hull = lab == lab[pr[k], pc[k]]
+            if np.isfinite(mask_max_px):  # at centimetre pixels the foam behind is part of the blob: not the wake
+                hull &= (rr - hull_rc[0]) ** 2 + (cc - hull_rc[1]) ** 2 <= mask_max_px**2
             if hull.sum() * m_px**2 < (4 * hull_mask_m) ** 2:  # a hull, not a whole bright region
                 fvalid &= ~ndimage.binary_dilation(hull, iterations=2)
     return hull_rc, fvalid

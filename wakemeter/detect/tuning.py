@@ -34,10 +34,22 @@ class Tuning:
     box_px: int = 256  #: side of the spectral box behind (and ahead of) the vessel
     gap_px: int = 12  #: gap between the vessel and the boxes (hull and bow foam)
     snap_radius_m: float = 40.0  #: a bright hull this close to the click is taken as the vessel
+    snap_radius_px_max: float = 24.0  #: ... and at most this many look pixels away (centimetre photos)
     # ---- scale choice ----
     coarse_scene_factor: float = 1.6  #: a half-resolution look needs a scene side >= this x chip_px x step
     coarse_wave_box_fraction: float = 0.2  #: look coarser when the transverse wave exceeds this x box_px
     coarse_looks_max: int = 3  #: at most this many halvings
+    #: the first look's scale: the coarsest power-of-two step at which the slowest vessel's transverse wave
+    #: (3 kn: 1.5 m) still spans this many pixels (1 for pixels of 0.09 m and more; centimetre photos start
+    #: coarser, wave_scale_sweep.py and photo_sweep.py)
+    slowest_vessel_kn: float = 3.0
+    #: a steady pattern imaged through any non-linearity (foam, glint, the sensor's curve) has harmonics at 2k and
+    #: 3k, which lie on the curve of a vessel sqrt(2) and sqrt(3) slower; the fit moves to the fundamental when
+    #: that scores at least this fraction of the best and this much on its own (noise reaches 2-4: null_sweep.py)
+    #: (photo_sweep.py)
+    harmonic_keep_fraction: float = 0.6
+    harmonic_score_min: float = 4.5
+    first_look_px_per_wave: float = 8.0
     # ---- the whitened spectrum (spectral.py; accuracy_sweep.py and null_sweep.py) ----
     #: the reference (ahead) spectrum is an upper envelope (3x3 maximum, then smoothing by this many bins), so a
     #: sharp swell peak present on both sides cancels instead of leaving an excess where plain smoothing would
