@@ -26,7 +26,7 @@ from wakemeter.detect.analysis import AnalysisRequest, analyze  # noqa: E402
 from wakemeter.physics.units import KNOT_MPS
 from wakemeter.scene.raster import open_scene  # noqa: E402
 from wakemeter.synth import Hull, VesselSpec
-from wakemeter.synth.photo import PhotoSpec, render_photo, write_photo
+from wakemeter.synth.photo import PhotoSpec, frame_position, render_photo, write_photo
 
 from sweep_record import parse, record  # noqa: E402
 from timing import speed_check  # noqa: E402
@@ -39,12 +39,11 @@ PX_PER_WAVE = 8.0
 
 
 def _place(heading_img_deg: float) -> tuple[float, float, float]:
-    """The vessel's pixel on the frame (70 % of the way from the centre to the edge ahead, as an operator frames
-    a boat and its wake) and the frame length behind it along the track, pixels."""
+    """The vessel's pixel on the frame (as ``wakemeter synth --photo`` frames it) and the frame's length behind
+    it along the track, pixels."""
+    col, row = frame_position(WIDTH, HEIGHT, heading_img_deg)
     a = math.radians(heading_img_deg)
-    dc, dr = math.sin(a), -math.cos(a)
-    reach = min(WIDTH / 2 / max(abs(dc), 1e-9), HEIGHT / 2 / max(abs(dr), 1e-9))
-    col, row = WIDTH / 2 + 0.7 * reach * dc, HEIGHT / 2 + 0.7 * reach * dr
+    reach = min(WIDTH / 2 / max(abs(math.sin(a)), 1e-9), HEIGHT / 2 / max(abs(math.cos(a)), 1e-9))
     return col, row, 1.7 * reach
 
 

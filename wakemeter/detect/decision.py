@@ -13,6 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..physics import kelvin
 from .findings import LineKind
 from .look import Look
 from .spectral import DepthFit, SpectrumPair, fit_speed_depth, fit_supercritical
@@ -29,6 +30,7 @@ class Decision:
     joint: DepthFit  #: subcritical finite-depth fit (NaN when not tried)
     sup: DepthFit  #: supercritical fit (NaN when not tried)
     spectrum: SpectrumPair
+    waves_in_box: float = np.inf  #: fitted transverse waves the spectral box holds along the track
 
 
 def decide(look: Look, *, g: float, depth_given: bool, tuning: Tuning) -> Decision:
@@ -43,14 +45,18 @@ def decide(look: Look, *, g: float, depth_given: bool, tuning: Tuning) -> Decisi
     best_sub = np.nanmax([fit.score, joint.score, -np.inf])
     supercritical = bool(np.isfinite(sup.score) and sup.score >= best_sub + t.super_gain_min)
     significance = float(sup.score if supercritical else fit.significance)
+    u = sup.speed_mps if supercritical else fit.speed_mps
+    waves = np.inf
+    if np.isfinite(u) and not supercritical:  # a wave fit on one or two waves in the box is outside its domain
+        waves = t.box_px * look.chip.m_per_px / float(kelvin.transverse_wavelength(u, g=g))
     found = bool(
         look.side_contrast >= t.side_contrast_min
         and (
-            (np.isfinite(fit.speed_mps) and fit.significance >= t.significance_min)
+            (np.isfinite(fit.speed_mps) and fit.significance >= t.significance_min and waves >= t.box_waves_min)
             or (supercritical and sup.score >= t.super_significance_min)
         )
     )
-    return Decision(found, significance, supercritical, joint, sup, sp)
+    return Decision(found, significance, supercritical, joint, sup, sp, waves)
 
 
 def decision_text(decision: Decision, look: Look, tuning: Tuning) -> str:
@@ -59,6 +65,15 @@ def decision_text(decision: Decision, look: Look, tuning: Tuning) -> str:
         return (
             f"wake found: spectral significance {decision.significance:.1f}, wake-side contrast "
             f"{look.side_contrast:.1f} ({t.false_alarm_note})"
+        )
+    passed = decision.significance >= t.significance_min and look.side_contrast >= t.side_contrast_min
+    if passed and decision.waves_in_box < t.box_waves_min:
+        lam = t.box_px * look.chip.m_per_px / decision.waves_in_box
+        return (
+            f"no speed from waves: the waves that fit best are {lam:.0f} m long, and the area analysed holds only "
+            f"{decision.waves_in_box:.1f} of them (needs {t.box_waves_min:g}): the image does not hold enough "
+            "of this wake to measure its waves (significance "
+            f"{decision.significance:.1f}, wake-side contrast {look.side_contrast:.1f})"
         )
     return (
         f"no wake found: spectral significance {decision.significance:.1f} (needs {t.significance_min}) and "

@@ -145,12 +145,17 @@ def _no_speed_reason(chip: LineChip, g: float, spectral_note: str) -> str:
     lam_px = [float(kelvin.transverse_wavelength(k * KNOT_MPS, g=g)) / chip.m_per_px for k in NOTE_SPEEDS_KN]
     resolvable = RESOLVABLE_WAVE_PX * chip.m_per_px
     u_min = float(np.sqrt(g * resolvable / (2 * np.pi))) / KNOT_MPS
-    return (
-        f"no speed from waves: no Kelvin crests are seen here ({spectral_note}); at {chip.m_per_px:.1f} m per "
+    said = (
+        f"no speed from waves: no Kelvin crests are seen here ({spectral_note}); at {chip.m_per_px:.3g} m per "
         f"pixel the transverse wavelength for {NOTE_SPEEDS_KN[0]:g}-{NOTE_SPEEDS_KN[1]:g} kn is "
-        f"{lam_px[0]:.1f}-{lam_px[1]:.1f} pixels, and crests need about {RESOLVABLE_WAVE_PX:g} pixels, so the "
-        f"waves of a vessel slower than about {u_min:.0f} kn cannot show at this pixel size"
+        f"{lam_px[0]:.1f}-{lam_px[1]:.1f} pixels, and crests need about {RESOLVABLE_WAVE_PX:g} pixels"
     )
+    if u_min <= NOTE_SPEEDS_KN[0]:  # every speed's waves are resolved: faint, or too long for the area seen
+        return said + (
+            ": waves of every such speed are resolved, so here they are too faint, or longer than the area "
+            "analysed holds several of (a small photo frame holds few of a fast vessel's waves)"
+        )
+    return said + f", so the waves of a vessel slower than about {u_min:.0f} kn cannot show at this pixel size"
 
 
 def line_finding(

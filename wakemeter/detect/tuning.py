@@ -28,6 +28,9 @@ class Tuning:
     #: (without one and without a hull the waves belong to a wake whose apex is elsewhere: phantom_sweep.py)
     significance_min: float = 7.0  #: spectral significance needed to call a wake
     side_contrast_min: float = 8.0  #: wake-side contrast needed to call a wake
+    #: ... and the spectral box must hold this many of the fitted transverse waves: a fit on one or two is
+    #: outside the method's domain (a photo's frame too small for a fast vessel's wake: photo_sweep.py)
+    box_waves_min: float = 2.5
     wake_free_trials: int = 588  #: wake-free trials behind the two thresholds (null sweeps, 640 and 1024 px)
     # ---- sizes (pixels of the analysis look) ----
     chip_px: int = 640  #: side of the square chip read around the vessel

@@ -71,6 +71,15 @@ class PhotoSpec:
         return self.pixel_m * FOCAL_MM / PITCH_MM
 
 
+def frame_position(width: int, height: int, heading_on_photo_deg: float) -> tuple[float, float]:
+    """Where an operator frames a vessel: 70 % of the way from the centre to the edge ahead of it, so its wake
+    runs across the frame (``heading_on_photo_deg``: clockwise from image up)."""
+    a = math.radians(heading_on_photo_deg)
+    dc, dr = math.sin(a), -math.cos(a)
+    reach = min(width / 2 / max(abs(dc), 1e-9), height / 2 / max(abs(dr), 1e-9))
+    return width / 2 + 0.7 * reach * dc, height / 2 + 0.7 * reach * dr
+
+
 def render_factor(spec: PhotoSpec, g: float = 9.81) -> int:
     """Photo pixels per rendering pixel of the wave field (see the module text)."""
     u = spec.vessel.speed_mps
@@ -97,9 +106,12 @@ def _coarse_spec(spec: PhotoSpec, f: int) -> tuple[SceneSpec, float, float]:
     return SceneSpec(wc, hc, pc, lon, lat, (drawn,), imaging=imaging, crs="EPSG:4326", seed=spec.seed), wc, hc
 
 
-def render_photo(spec: PhotoSpec) -> tuple[np.ndarray, dict]:
-    """The photo (rows, cols, 3) uint8 and its truth record."""
-    f = render_factor(spec)
+def render_photo(spec: PhotoSpec, *, factor: int | None = None) -> tuple[np.ndarray, dict]:
+    """The photo (rows, cols, 3) uint8 and its truth record (``factor``: photo pixels per rendering pixel, by
+    default :func:`render_factor`)."""
+    f = render_factor(spec) if factor is None else int(factor)
+    if f < 1:
+        raise ParameterError(f"the rendering factor must be a whole number >= 1, got {factor!r}")
     coarse_spec, _, _ = _coarse_spec(spec, f)
     rendered = render(coarse_spec)
     coarse = rendered.data[0].astype(np.float32) / np.float32(4095.0)
