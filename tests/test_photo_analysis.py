@@ -1,4 +1,4 @@
-"""Drone photographs at centimetre pixels: the scale of the analysis, the wake's axis, harmonics, and a synthetic
+"""Drone photographs at centimetre pixels: the scale of the analysis, harmonics, and a synthetic
 drone JPEG analysed in ``analyze``, ``report`` and the program with its scale read from its own metadata.
 
 Check values: the deep-water transverse wavelength lambda = 2 pi U^2 / g (Lamb 1932, Hydrodynamics, art. 229;
@@ -13,7 +13,6 @@ import pytest
 
 from wakemeter.cli import main
 from wakemeter.detect.look import first_step, take_look
-from wakemeter.detect.trackframe import _mirror_axis
 from wakemeter.detect.tuning import DEFAULT_TUNING, Tuning
 from wakemeter.physics.units import KNOT_MPS
 from wakemeter.scene.raster import open_scene
@@ -34,23 +33,6 @@ def test_the_first_look_resolves_the_slowest_vessels_waves_and_no_finer(pixel_m)
         assert s == 1
     else:
         assert 8 <= lam / (pixel_m * s) < 16
-
-
-def _arm(ang, centre, width, height):
-    d = (ang - centre + 180) % 360 - 180
-    return height * np.exp(-0.5 * (d / width) ** 2)
-
-
-def test_the_wake_axis_is_the_mirror_axis_of_unequal_arms():
-    # arms at 160 and 200 deg, one five times the other (the sun favours one): the axis is 180, where the energy's
-    # centroid would lean toward the bright arm; a single line stays where it is
-    ang = np.arange(360.0)
-    p = 1.0 + _arm(ang, 160, 2, 10) + _arm(ang, 200, 2, 50)
-    centroid = float(np.degrees(np.angle(np.sum((p - 1) * np.exp(1j * np.radians(ang))))) % 360)
-    assert centroid > 190
-    assert _mirror_axis(p, centroid, 40) == pytest.approx(180, abs=1)
-    one = 1.0 + _arm(ang, 75, 3, 20)
-    assert _mirror_axis(one, 75.0, 40) == pytest.approx(75, abs=1)
 
 
 def _photo(tmp_path: Path, *, pixel_m, knots, length, heading, yaw, size=(4000, 3000), seed=0, sun=135.0):

@@ -62,29 +62,8 @@ def polar_energy(chip: Chip, *, smooth_px: float = 3.0, n_angles: int = 360) -> 
     return ang, prof
 
 
-def _mirror_axis(p: np.ndarray, centre_deg: float, wedge: int) -> float:
-    """The direction about which the energy near ``centre_deg`` is most nearly mirror-symmetric (1° rays).
-
-    The Kelvin pattern is symmetric about the track, but its two arms are seldom equally bright (the sun's or
-    the radar's direction favours one): the energy's centroid leans toward the brighter arm, by up to the
-    half-angle.  Pairs of rays at equal angles either side (from 3° out to the wedge's width) are multiplied and
-    summed; one arm alone, or one line wider than the pairs' gap, is symmetric about itself and stays."""
-    n = p.size
-    ex = np.clip(p - np.median(p), 0, None)
-    if not ex.any():
-        return centre_deg
-    offsets = np.arange(3, wedge + 1)
-    best, best_s = centre_deg, -1.0
-    for d in range(-3 * wedge // 4, 3 * wedge // 4 + 1):
-        th = int(round(centre_deg)) + d
-        s = float(np.sum(ex[(th + offsets) % n] * ex[(th - offsets) % n]))
-        if s > best_s:
-            best, best_s = float(th % n), s
-    return best if best_s > 0 else centre_deg
-
-
 def wake_side(chip: Chip, *, wedge_deg: float = 40.0) -> WakeSide:
-    """Image direction of the wake: the axis of the most energetic wedge of rays (its mirror axis)."""
+    """Image direction of the wake: the centre of the most energetic wedge of rays."""
     ang, prof = polar_energy(chip)
     p = np.where(np.isfinite(prof), prof, np.nanmedian(prof))
     w = int(round(wedge_deg))
@@ -97,7 +76,7 @@ def wake_side(chip: Chip, *, wedge_deg: float = 40.0) -> WakeSide:
     ex = np.clip(p[idx] - np.median(p), 0, None)
     if ex.sum() > 0:
         z = np.sum(ex * np.exp(1j * np.radians(ang[idx])))
-        centre = _mirror_axis(p, float(np.degrees(np.angle(z)) % 360), w)
+        centre = float(np.degrees(np.angle(z)) % 360)
     else:
         centre = float(ang[i])
     med, mad = median_spread(sm)
