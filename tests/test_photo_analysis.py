@@ -99,6 +99,7 @@ def test_a_drone_jpeg_is_analysed_and_reported_with_the_scale_from_its_metadata(
     lo, hi = r["speed_ci95_knots"]
     assert lo <= t["speed_knots"] <= hi and abs(r["speed_knots"] / t["speed_knots"] - 1) < 0.03
     assert abs((r["heading_deg"] - 200.0 + 180) % 360 - 180) <= max(1.96 * r["heading_std_deg"], 0.5)
+    assert r["heading_std_deg"] >= 3.0  # the camera's yaw: the drone's compass, ±3° (common practice, no source)
     scale = [c["text"] for c in r["cautions"] if "the photo's own metadata" in c["text"]]
     assert scale and "XMP RelativeAltitude" in scale[0] and "0.0200 m per pixel" in scale[0]
     out = tmp_path / "evidence"

@@ -19,20 +19,11 @@ from PIL import Image
 
 from wakemeter.cli import main
 from wakemeter.scene.raster import open_scene
+from wakemeter.synth.photo import drone_exif, drone_xmp
 
 ROOT = Path(__file__).resolve().parents[1]
 SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
 TRUTH = json.loads((ROOT / "sample_scenes" / "harbour_approach_optical.truth.json").read_text())["vessels"][0]
-
-
-def _xmp(height: float, pitch: float, yaw: float | None) -> bytes:
-    yaw_attr = "" if yaw is None else f' drone-dji:GimbalYawDegree="{yaw:+.1f}"'
-    return (
-        '<x:xmpmeta xmlns:x="adobe:ns:meta/"><rdf:RDF xmlns:rdf="http://www.w3.org/1999/02/22-rdf-syntax-ns#">'
-        '<rdf:Description rdf:about="" xmlns:drone-dji="http://www.dji.com/drone-dji/1.0/"'
-        f' drone-dji:RelativeAltitude="{height:+.2f}" drone-dji:GimbalPitchDegree="{pitch:+.1f}"{yaw_attr}/>'
-        "</rdf:RDF></x:xmpmeta>"
-    ).encode()
 
 
 def _photo(
@@ -46,18 +37,7 @@ def _photo(
     pitch_mm: float | None = 0.00241,
     f35: float | None = None,
 ) -> Path:
-    exif = Image.Exif()
-    sub = {}
-    if focal is not None:
-        sub[0x920A] = focal
-    if pitch_mm is not None:
-        sub[0xA20E] = 1.0 / pitch_mm  # FocalPlaneXResolution, pixels per unit
-        sub[0xA210] = 4  # unit: mm
-    if f35 is not None:
-        sub[0xA405] = int(f35)
-    exif_ifd = exif.get_ifd(0x8769)
-    exif_ifd.update(sub)
-    img.save(path, quality=100, exif=exif, xmp=_xmp(height, pitch, yaw))
+    img.save(path, quality=100, exif=drone_exif(focal, pitch_mm, f35), xmp=drone_xmp(height, pitch, yaw))
     return path
 
 

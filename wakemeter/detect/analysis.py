@@ -401,7 +401,7 @@ def _measure(
         vessel_px=a.vessel_px,
         vessel_lonlat=a.vessel_lonlat,
         heading_deg=heading,
-        heading_std_deg=spread.heading_std_deg,
+        heading_std_deg=float(np.hypot(spread.heading_std_deg, frame.bearing_std_deg)),
         speed=widened,
         methods=methods,
         half_angle_deg=measures.half_angle_deg,

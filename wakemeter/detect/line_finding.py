@@ -227,7 +227,9 @@ def line_finding(
         vessel_px=vessel_px,
         vessel_lonlat=lonlat,
         heading_deg=heading,
-        heading_std_deg=float(np.hypot(wake.back_std_deg, tuning.line_heading_model_std_deg)),
+        heading_std_deg=float(
+            np.hypot(np.hypot(wake.back_std_deg, tuning.line_heading_model_std_deg), chip.frame.bearing_std_deg)
+        ),
         speed=combined,
         methods=estimates,
         half_angle_deg=None if wake.half_angle is None else wake.half_angle[0],

@@ -157,6 +157,7 @@ class LocalFrame:
     georeferenced: bool = True
     north_known: bool = True
     scale_rel_std: float = 0.0  #: relative standard uncertainty of the pixel size (a calibration's; 0: none)
+    bearing_std_deg: float = 0.0  #: standard uncertainty of the image's orientation (a camera's yaw; 0: none)
     source: str = ""  #: where a calibration comes from, for the result's cautions ("" : a hand calibration)
 
     def __post_init__(self) -> None:
@@ -231,7 +232,12 @@ CALIBRATED_PIXEL_RANGE_M = (1e-3, 1e4)
 
 
 def calibrated_frame(
-    *, pixel_size_m: float, north_up_deg: float | None = None, scale_rel_std: float = 0.0, source: str = ""
+    *,
+    pixel_size_m: float,
+    north_up_deg: float | None = None,
+    scale_rel_std: float = 0.0,
+    bearing_std_deg: float = 0.0,
+    source: str = "",
 ) -> LocalFrame:
     """Frame for an image without georeference, from a pixel size and optionally a north direction.
 
@@ -246,6 +252,8 @@ def calibrated_frame(
     up = 0.0 if north_up_deg is None else float(north_up_deg) % 360.0
     if not (np.isfinite(scale_rel_std) and 0.0 <= scale_rel_std < 0.5):
         raise ParameterError(f"a calibration's relative uncertainty must lie in [0, 0.5), got {scale_rel_std!r}")
+    if not (np.isfinite(bearing_std_deg) and 0.0 <= bearing_std_deg <= 90.0):
+        raise ParameterError(f"an orientation's uncertainty must lie in [0, 90] degrees, got {bearing_std_deg!r}")
     return LocalFrame(
         pixel_size_m,
         pixel_size_m,
@@ -254,6 +262,7 @@ def calibrated_frame(
         georeferenced=False,
         north_known=north_up_deg is not None,
         scale_rel_std=float(scale_rel_std),
+        bearing_std_deg=float(bearing_std_deg),
         source=source,
     )
 

@@ -13,7 +13,8 @@ A photo whose camera is tilted more than a few degrees from straight down has a 
 the frame: it is not calibrated (the reason is kept) rather than given one wrong scale.
 
 Uncertainties (common practice, no source): the height above the take-off point is barometric, ±0.5 m plus
-2 %, and the water need not lie at the take-off point's level: ±1 m more; the focal length ±1 %.
+2 %, and the water need not lie at the take-off point's level: ±1 m more; the focal length ±1 %; the gimbal's
+yaw, from the drone's compass, ±3° (it enters every heading read on the photo).
 """
 
 from __future__ import annotations
@@ -30,6 +31,7 @@ MAX_TILT_DEG = 5.0
 _HEIGHT_STD_M = math.hypot(0.5, 1.0)
 _HEIGHT_REL_STD = 0.02
 _FOCAL_REL_STD = 0.01
+_YAW_STD_DEG = 3.0
 #: EXIF tags (CIPA DC-008, Exif 2.32)
 _FOCAL_LENGTH, _FOCAL_35, _FP_XRES, _FP_UNIT = 0x920A, 0xA405, 0xA20E, 0xA210
 _EXIF_IFD = 0x8769
@@ -43,6 +45,7 @@ class PhotoScale:
     north_up_deg: float | None
     source: str  #: what was read, and from where
     reason: str = ""  #: why no pixel size, when there is none
+    yaw_std_deg: float = 0.0  #: standard uncertainty of image up's bearing (0 when north is unknown)
 
 
 def _xmp_number(xmp: str, name: str) -> float | None:
@@ -98,10 +101,16 @@ def read_photo_scale(path: Path) -> PhotoScale | None:
     source = (
         f"the photo's own metadata: {h:g} m above the take-off point (XMP RelativeAltitude; the water taken at "
         f"that level), {lens}, camera {tilt:.1f}° from straight down"
-        + (f", image up toward {yaw % 360:.1f}° (XMP GimbalYawDegree)" if yaw is not None else ", north unknown")
+        + (
+            f", image up toward {yaw % 360:.1f}° ± {_YAW_STD_DEG:g}° (XMP GimbalYawDegree, the drone's compass)"
+            if yaw is not None
+            else ", north unknown"
+        )
         + f": {size:.4f} m per pixel ± {100 * rel:.1f} %"
     )
-    return PhotoScale(size, rel, None if yaw is None else yaw % 360.0, source)
+    return PhotoScale(
+        size, rel, None if yaw is None else yaw % 360.0, source, yaw_std_deg=0.0 if yaw is None else _YAW_STD_DEG
+    )
 
 
 def _num(v: object) -> float | None:

@@ -427,7 +427,11 @@ def _with_photo_scale(info: SceneInfo) -> Scene:
         return scene
     try:
         frame = geodesy.calibrated_frame(
-            pixel_size_m=ps.pixel_size_m, north_up_deg=ps.north_up_deg, scale_rel_std=ps.rel_std, source=ps.source
+            pixel_size_m=ps.pixel_size_m,
+            north_up_deg=ps.north_up_deg,
+            scale_rel_std=ps.rel_std,
+            bearing_std_deg=ps.yaw_std_deg,
+            source=ps.source,
         )
     except ParameterError as err:
         scene.info = replace(info, georeference_note=f"no georeference; the photo's own scale is not usable ({err})")
