@@ -388,7 +388,13 @@ def test_wheel_zoom_keeps_the_point_under_the_cursor(win):
 
     assert win.open_path(str(ROOT / "sample_scenes" / "outer_roads_radar.tif"))
     c = win.canvas
-    for pos, delta in ((QPointF(300, 200), 120), (QPointF(640, 90), -240), (QPointF(55, 700), 360)):
+    # (0, 0), the top-left corner, is a QPointF that tests false: it must not fall back to the centre
+    for pos, delta in (
+        (QPointF(300, 200), 120),
+        (QPointF(640, 90), -240),
+        (QPointF(55, 700), 360),
+        (QPointF(0, 0), 120),
+    ):
         before = c.to_scene(pos)
         ev = QWheelEvent(
             pos,

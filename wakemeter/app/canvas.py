@@ -107,7 +107,7 @@ class Canvas(QWidget):
 
     def set_zoom(self, zoom: float, anchor: QPointF | None = None) -> None:
         zoom = float(np.clip(zoom, 1 / 512, 32.0))
-        anchor = anchor or QPointF(self.width() / 2, self.height() / 2)
+        anchor = anchor if anchor is not None else QPointF(self.width() / 2, self.height() / 2)  # (0, 0) is falsy
         p = self.to_scene(anchor)
         self.zoom = zoom
         self.origin = QPointF(p.x() - anchor.x() / zoom, p.y() - anchor.y() / zoom)
