@@ -88,6 +88,9 @@ class Tuning:
     super_significance_min: float = 9.0  #: a wake seen only through the supercritical curve needs this
     # ---- crests and arms ----
     transverse_snr_min: float = 12.0  #: transverse crest spacing reported above this profile SNR
+    #: ... and when the profile holds at least this many crests (the analysis looks coarser until the box holds
+    #: 5; a photo too small for that gave 35.6 m for 27.9 m at a stated ±1 %: photo_sweep.py)
+    transverse_crests_min: float = 5.0
     transverse_band_deep: tuple[float, float] = (0.8, 1.25)  #: crest search band around the predicted lambda_t
     transverse_band_finite: tuple[float, float] = (0.85, 1.18)  #: ... with the depth known or fitted
     transverse_std_inflation: float = 1.25  #: stated crest-spacing uncertainty x this (common practice, no source)

@@ -47,7 +47,8 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
         lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(lo * lam_pred, hi * lam_pred))
     else:
         lam_t, lam_t_sd, snr = np.nan, np.nan, 0.0
-    seen = bool(np.isfinite(lam_t) and snr >= t.transverse_snr_min)
+    # a spacing read off a few crests has a spread the sinusoid's bound does not know: too few, not seen
+    seen = bool(np.isfinite(lam_t) and snr >= t.transverse_snr_min and prof.size * m / lam_t >= t.transverse_crests_min)
     arms, energy, evalid, reach = wedge_arms(
         chip,
         back,
