@@ -47,8 +47,25 @@ def test_a_nadir_drone_photo_is_calibrated_from_its_lens_and_height(tmp_path):
         f = sc.local_frame()
     assert f.m_per_col == pytest.approx(50.0 * 0.00241 / 8.8, rel=1e-6)  # pinhole: H pitch / f
     assert f.bearing_up_deg == pytest.approx(120.0) and f.north_known
-    assert f.scale_rel_std == pytest.approx(math.hypot(math.hypot(0.5, 1.0) / 50.0, 0.02, 0.01))
+    # the height, focal length and the scale's change across the frame for the gimbal's 0.5° (2 tan t tan a)
+    across = 2 * math.tan(math.radians(0.5)) * 0.5 * 500 * 0.00241 / 8.8
+    assert f.scale_rel_std == pytest.approx(math.hypot(math.hypot(0.5, 1.0) / 50.0, 0.02, 0.01, across))
     assert "RelativeAltitude" in f.source and "straight down" in f.source
+    assert f.bearing_std_deg == 3.0  # the drone's compass (common practice, no source)
+
+
+def test_a_slightly_tilted_camera_carries_the_scale_change_across_its_frame(tmp_path):
+    # a pinhole camera tilted by t sees the water at field angle a with a ground pixel H p cos^2 a / (f cos^2(a+t))
+    # long (plane geometry of a central projection; Hartley & Zisserman 2004, Multiple View Geometry, 8.1, from
+    # memory): at the corner of a 4000 x 3000 frame behind an 8.8 mm lens with 2.41 um pixels and a 4° tilt the
+    # pixel is 10 % longer than at the centre; the stated uncertainty covers that
+    p = _photo(tmp_path / "tilt.jpg", Image.new("L", (4000, 3000), 90), height=60.0, pitch=-86.0)
+    with open_scene(p) as sc:
+        f = sc.local_frame()
+    a, t = math.atan(0.5 * 5000 * 0.00241 / 8.8), math.radians(4.0)
+    corner = (math.cos(a) ** 2 / math.cos(a + t) ** 2) * math.cos(t) ** 2 - 1
+    assert 0.09 < corner < 0.11
+    assert corner <= f.scale_rel_std < 1.6 * corner
 
 
 def test_the_35mm_equivalent_gives_the_scale_over_the_diagonal(tmp_path):
