@@ -73,6 +73,7 @@ class LineChip:
     bands: tuple[int, ...]
     land_fraction: float  #: share of the in-scene pixels masked as land, cloud or quay
     hull_at_land: bool = False  #: the hull touches land or a quay (moored: lines along the quay are not wakes)
+    step: int = 1  #: scene pixels per chip pixel (block means; 1 but for centimetre photos)
 
     @property
     def vessel_rc(self) -> tuple[float, float]:
@@ -80,7 +81,7 @@ class LineChip:
 
     def to_scene(self, row: float, col: float) -> tuple[float, float]:
         """Scene (col, row) of a chip (row, col) (see :mod:`.pixels`)."""
-        return index_to_scene(self.origin_px, 1, row, col)
+        return index_to_scene(self.origin_px, self.step, row, col)
 
 
 def _green_nir(descriptions: tuple[str | None, ...], bands: tuple[int, ...]) -> tuple[int, int] | None:
@@ -101,21 +102,28 @@ def prepare_line_chip(
     snap_radius_m: float = 60.0,
     tuning: Tuning = DEFAULT_TUNING,
 ) -> LineChip:
-    """Read and prepare a ``size_px`` square around ``vessel_px`` (scene col, row) at full resolution."""
+    """Read and prepare a ``size_px`` square around ``vessel_px`` (scene col, row) at full resolution, or for
+    pixels finer than ``tuning.line_pixel_min_m`` as block means of that size."""
     col, row = vessel_px
     if not (0 <= col < scene.width and 0 <= row < scene.height):
         raise ParameterError(
             f"the vessel position ({col:.1f}, {row:.1f}) lies outside the scene ({scene.width} x {scene.height} pixels)"
         )
     frame = scene.local_frame(col, row)
-    c0, r0 = int(np.floor(col)) - size_px // 2, int(np.floor(row)) - size_px // 2
-    wc0, wr0 = max(c0, 0), max(r0, 0)
-    wc1, wr1 = min(c0 + size_px, scene.width), min(r0 + size_px, scene.height)
-    if wc1 - wc0 < 16 or wr1 - wr0 < 16:
+    step = max(1, int(tuning.line_pixel_min_m // float(np.sqrt(frame.m_per_col * frame.m_per_row_up))))
+    c0, r0 = int(np.floor(col)) - size_px * step // 2, int(np.floor(row)) - size_px * step // 2
+    # whole chip pixels inside the scene: each axis starts on a chip pixel and ends on a whole block
+    wc0, wr0 = c0 + -(-max(0, -c0) // step) * step, r0 + -(-max(0, -r0) // step) * step
+    wc1 = wc0 + (min(c0 + size_px * step, scene.width) - wc0) // step * step
+    wr1 = wr0 + (min(r0 + size_px * step, scene.height) - wr0) // step * step
+    if (wc1 - wc0) // step < 16 or (wr1 - wr0) // step < 16:
         raise ParameterError("the scene is too small around the vessel to look for a wake (less than 16 pixels)")
     count = scene.info.count
     bands = tuple(range(1, min(count, 4) + 1))
-    data, ok = scene.read(window=(wc0, wr0, wc1 - wc0, wr1 - wr0), bands=bands)
+    out_shape = ((wr1 - wr0) // step, (wc1 - wc0) // step)
+    data, ok = scene.read(
+        window=(wc0, wr0, wc1 - wc0, wr1 - wr0), bands=bands, out_shape=out_shape if step > 1 else None
+    )
     first = data[0][ok[0]][:100_000]
     in_db = display.looks_like_radar_db(scene.info.dtype, count, first)
     if radar is None:
@@ -128,7 +136,7 @@ def prepare_line_chip(
     n = size_px
     full = np.zeros((len(bands), n, n), np.float32)
     inside = np.zeros((n, n), bool)
-    sl = (slice(wr0 - r0, wr1 - r0), slice(wc0 - c0, wc1 - c0))
+    sl = (slice((wr0 - r0) // step, (wr1 - r0) // step), slice((wc0 - c0) // step, (wc1 - c0) // step))
     full[(slice(None), *sl)] = data
     valid = np.zeros((n, n), bool)
     valid[sl] = ok.all(axis=0)
@@ -145,13 +153,13 @@ def prepare_line_chip(
     # restandardise the average on its own water
     med, spread = median_spread(img[valid])
     img = np.where(valid, (img - med) / spread, 0.0)
-    m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up))
+    m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up)) * step
     land = _land_mask(
         img, valid, full, scene.info.band_descriptions, bands, radar=bool(radar), m_px=m_px, tuning=tuning
     )
     in_scene = max(int(valid.sum()), 1)
     water = valid & ~land
-    click = scene_to_index((c0, r0), 1, col, row)
+    click = scene_to_index((c0, r0), step, col, row)
     hull = _find_hull(img, water, click, max(snap_radius_m / m_px, 3.0), m_px, radar=bool(radar), tuning=tuning)
     if water.sum() < 64:
         raise ParameterError(
@@ -173,6 +181,7 @@ def prepare_line_chip(
         bool(
             hull is not None and (ndimage.binary_dilation(hull.mask, iterations=int(tuning.moored_gap_px)) & land).any()
         ),
+        step,
     )
 
 

@@ -123,6 +123,9 @@ class Tuning:
     #: 9.1-16.7.  The margin on the small boats' side is thin: see README, real scenes
     line_significance_min: float = 9.0
     line_chip_px: int = 320  #: side of the square read around the vessel for the line search
+    #: ... read at pixels of at least this size (block means): a centimetre photo's 320 pixels would hold the
+    #: hull alone (photo_sweep.py); 1 (full resolution) for every scene of 0.25 m pixels and coarser
+    line_pixel_min_m: float = 0.25
     line_reach_m: float = 1200.0  #: longest wake line scored, ground metres
     line_snap_radius_m: float = 60.0  #: a hull this close to the click is taken as the vessel
     band_shift_course_max_deg: float = 30.0  #: the hull's shift between bands must follow the wake this closely
