@@ -201,19 +201,15 @@ def _attempt(
     tuning: Tuning,
 ) -> _Attempt:
     g, g_u = _gravity(scene, px)
-    depth = np.inf if request.depth is None else request.depth.value
-    look = choose_look(scene, px, g=g, depth_m=depth, radar=radar, snap=hull_px is None, tuning=tuning)
-    if hull_px is None and look.chip.hull_rc is not None:
-        # the look again from the hull it snapped to, so that clicks a few pixels apart on one hull give one
-        # analysis (the boxes and quarter boxes are placed from the look's centre)
-        at = look.chip.to_scene(*look.chip.hull_rc)
-        if np.hypot(at[0] - px[0], at[1] - px[1]) > 0.5 * look.chip.step:
-            try:
-                again = choose_look(scene, at, g=g, depth_m=depth, radar=radar, snap=True, tuning=tuning)
-            except ParameterError:
-                again = None
-            if again is not None and again.chip.hull_rc is not None:
-                look = again
+    look = choose_look(
+        scene,
+        px,
+        g=g,
+        depth_m=np.inf if request.depth is None else request.depth.value,
+        radar=radar,
+        snap=hull_px is None,
+        tuning=tuning,
+    )
     decision = decide(look, g=g, depth_given=request.depth is not None, tuning=tuning)
     chip = look.chip
     snapped = chip.to_scene(*chip.hull_rc) if chip.hull_rc is not None else px
