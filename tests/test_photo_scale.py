@@ -96,3 +96,30 @@ def test_a_photo_of_a_wake_gives_the_speed_and_says_where_its_scale_comes_from(t
     assert any("the photo's own metadata" in c["text"] for c in r["cautions"])
     assert main(["analyze", str(p), "--vessel-px", px, "--pixel-size", "2.0", "--json"]) == 0  # an override
     assert not any("photo's own" in c["text"] for c in json.loads(capsys.readouterr().out)["cautions"])
+
+
+@pytest.mark.parametrize("offset", ["+02:00", None])
+def test_a_photo_says_when_it_was_taken_with_its_zone_or_only_its_date(tmp_path, offset):
+    # EXIF DateTimeOriginal is the camera's local clock; OffsetTimeOriginal (Exif 2.31, CIPA DC-008) its offset
+    # from UTC: with it the position reports are compared at 10:32:05 UTC, without it only the date is known
+    import datetime as dt
+
+    from wakemeter.errors import ParameterError
+    from wakemeter.positions.match import scene_time
+
+    exif = drone_exif(8.8, 0.00241)
+    sub = exif.get_ifd(0x8769)
+    sub[0x9003] = "2026:06:14 12:32:05"
+    if offset:
+        sub[0x9011] = offset
+    p = tmp_path / "taken.jpg"
+    Image.new("L", (300, 200), 90).save(p, exif=exif, xmp=drone_xmp(50.0, -90.0, 10.0))
+    with open_scene(p) as sc:
+        when, source = sc.info.acquisition_time, sc.info.tags["ACQUISITION_TIME_SOURCE"]
+    if offset:
+        assert scene_time(when, None) == dt.datetime(2026, 6, 14, 10, 32, 5, tzinfo=dt.UTC)
+        assert "OffsetTimeOriginal" in source
+    else:
+        assert when == "2026-06-14" and "a date only" in source
+        with pytest.raises(ParameterError, match="only its date"):
+            scene_time(when, None)

@@ -128,3 +128,33 @@ def _num(v: object) -> float | None:
     except (TypeError, ValueError, ZeroDivisionError):
         return None
     return x if math.isfinite(x) and x > 0 else None
+
+
+#: EXIF DateTimeOriginal and OffsetTimeOriginal (CIPA DC-008, Exif 2.32: the camera's clock, and its offset from
+#: UTC, which Exif 2.31 added)
+_TIME_ORIGINAL, _OFFSET_ORIGINAL = 0x9003, 0x9011
+
+
+def camera_time(path: Path) -> tuple[str, str] | None:
+    """When the photo was taken, from its EXIF, and what that rests on: with the clock's offset from UTC a full
+    time (ISO 8601 with the offset); without it a date only (the camera's local clock, of a zone the photo does
+    not say, cannot be compared with position reports in UTC). None when the photo carries no time."""
+    try:
+        from PIL import Image
+
+        with Image.open(path) as im:
+            sub = im.getexif().get_ifd(_EXIF_IFD)
+    except Exception:  # noqa: BLE001 - not a photo Pillow reads: nothing to say
+        return None
+    when = str(sub.get(_TIME_ORIGINAL) or "").strip().strip("\x00")
+    m = re.fullmatch(r"(\d{4}):(\d\d):(\d\d)[ T](\d\d):(\d\d):(\d\d)", when)
+    if not m:
+        return None
+    date = f"{m[1]}-{m[2]}-{m[3]}"
+    offset = str(sub.get(_OFFSET_ORIGINAL) or "").strip().strip("\x00")
+    if re.fullmatch(r"[+-]\d\d:\d\d", offset):
+        return (
+            f"{date}T{m[4]}:{m[5]}:{m[6]}{offset}",
+            "the camera's clock (EXIF DateTimeOriginal with its OffsetTimeOriginal from UTC)",
+        )
+    return date, "the camera's clock (EXIF DateTimeOriginal) without its offset from UTC; a date only"

@@ -483,6 +483,12 @@ def _read_info(p: Path, ds, size: int, files: tuple[str, ...] = ()) -> SceneInfo
         except GDAL_ERRORS:
             pass
     acq = next((tags[k] for k in _TIME_TAGS if k in tags and tags[k].strip()), None)
+    if acq is None and "EXIF_DateTimeOriginal" in tags:  # a photo: its camera's clock, with its zone if it says
+        from .photo_scale import camera_time
+
+        taken = camera_time(p)
+        if taken is not None:
+            acq, tags["ACQUISITION_TIME_SOURCE"] = taken
     if acq is None:  # archives name files after the date: a date only, and marked as read from the name
         from .band_set import FROM_NAMES, acquisition_date
 
