@@ -109,7 +109,7 @@ def main(n: int, tuning) -> list[dict]:
                 "methods": list(a.speed.methods) if a.wake_found and a.speed is not None else [],
                 **speed_check(a, truth["speed_mps"]),
                 **_heading_check(a, truth["heading_deg"]),
-                "seconds": round(time.perf_counter() - t0, 1),
+                "time_s": round(time.perf_counter() - t0, 1),
             }
             rows.append(row)
             print(row, flush=True)
@@ -117,22 +117,23 @@ def main(n: int, tuning) -> list[dict]:
 
 
 def summary(rows: list[dict]) -> dict:
+    """Flat figures per pixel size (so the record prints side by side with the last one), then the rest."""
     out: dict = {}
     for p in PIXELS_M:
         m = [r for r in rows if r["pixel_m"] == p and r["measurable"]]
         sp = [r for r in m if "rel_err" in r]
-        out[f"{p:g} m"] = {
-            "measurable": len(m),
-            "found_with_speed": len(sp),
-            "within_3pct": sum(abs(r["rel_err"]) <= 0.03 for r in sp),
-            "intervals_holding": sum(r["covered"] for r in sp),
-            "headings_holding": sum(bool(r.get("heading_held")) for r in m if "heading_err_deg" in r),
-            "headings_given": sum("heading_err_deg" in r for r in m),
-        }
-    out["not measurable"] = {
-        "cases": sum(not r["measurable"] for r in rows),
-        "speed_given": sum("rel_err" in r for r in rows if not r["measurable"]),
-    }
+        given = [r for r in m if "heading_err_deg" in r]
+        out.update(
+            {
+                f"{p:g}m_measurable": len(m),
+                f"{p:g}m_found_with_speed": len(sp),
+                f"{p:g}m_within_3pct": sum(abs(r["rel_err"]) <= 0.03 for r in sp),
+                f"{p:g}m_intervals_holding": sum(r["covered"] for r in sp),
+                f"{p:g}m_headings_holding_of_given": f"{sum(bool(r['heading_held']) for r in given)}/{len(given)}",
+            }
+        )
+    out["not_measurable_cases"] = sum(not r["measurable"] for r in rows)
+    out["not_measurable_speeds_given"] = sum("rel_err" in r for r in rows if not r["measurable"])
     out["intervals_missing_truth_all_cases"] = sum("rel_err" in r and not r["covered"] for r in rows)
     return out
 
