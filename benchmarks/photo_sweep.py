@@ -26,7 +26,7 @@ from wakemeter.detect.analysis import AnalysisRequest, analyze  # noqa: E402
 from wakemeter.physics.units import KNOT_MPS
 from wakemeter.scene.raster import open_scene  # noqa: E402
 from wakemeter.synth import Hull, VesselSpec
-from wakemeter.synth.photo import PhotoSpec, frame_position, render_photo, write_photo
+from wakemeter.synth.photo import PhotoSpec, frame_position, frame_reach, render_photo, write_photo
 
 from sweep_record import parse, record  # noqa: E402
 from timing import speed_check  # noqa: E402
@@ -42,9 +42,7 @@ def _place(heading_img_deg: float) -> tuple[float, float, float]:
     """The vessel's pixel on the frame (as ``wakemeter synth --photo`` frames it) and the frame's length behind
     it along the track, pixels."""
     col, row = frame_position(WIDTH, HEIGHT, heading_img_deg)
-    a = math.radians(heading_img_deg)
-    reach = min(WIDTH / 2 / max(abs(math.sin(a)), 1e-9), HEIGHT / 2 / max(abs(math.cos(a)), 1e-9))
-    return col, row, 1.7 * reach
+    return col, row, 1.7 * frame_reach(WIDTH, HEIGHT, heading_img_deg)
 
 
 def _knots(wavelength_m: float) -> float:

@@ -182,13 +182,7 @@ def choose_look(
                 break
             step *= 2
     for _ in range(t.coarse_looks_max):
-        u = look.fit.speed_mps
-        lam_px = float(kelvin.transverse_wavelength(u, g=g)) / look.chip.m_per_px if np.isfinite(u) else np.nan
-        if not (
-            np.isfinite(lam_px)
-            and lam_px > t.coarse_wave_box_fraction * t.box_px
-            and look.fit.significance >= t.significance_min
-        ):
+        if not (_long_for(look, look.step, g, t) and look.fit.significance >= t.significance_min):
             break
         if not room_for(look.step):
             break  # no room for a coarser chip

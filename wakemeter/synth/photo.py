@@ -23,6 +23,7 @@ from scipy import ndimage
 
 from ..errors import ParameterError, SceneWriteError
 from ..fileio import clean_stale, temp_name
+from .demo import _moved
 from .imaging import OpticalModel
 from .scene_maker import SceneSpec, VesselSpec, render
 
@@ -71,13 +72,18 @@ class PhotoSpec:
         return self.pixel_m * FOCAL_MM / PITCH_MM
 
 
+def frame_reach(width: int, height: int, heading_on_photo_deg: float) -> float:
+    """Pixels from the frame's centre to its edge along a direction (clockwise from image up)."""
+    a = math.radians(heading_on_photo_deg)
+    return min(width / 2 / max(abs(math.sin(a)), 1e-9), height / 2 / max(abs(math.cos(a)), 1e-9))
+
+
 def frame_position(width: int, height: int, heading_on_photo_deg: float) -> tuple[float, float]:
     """Where an operator frames a vessel: 70 % of the way from the centre to the edge ahead of it, so its wake
-    runs across the frame (``heading_on_photo_deg``: clockwise from image up)."""
+    runs across the frame (``heading_on_photo_deg``: clockwise from image up); 1.7 reaches of frame lie behind."""
     a = math.radians(heading_on_photo_deg)
-    dc, dr = math.sin(a), -math.cos(a)
-    reach = min(width / 2 / max(abs(dc), 1e-9), height / 2 / max(abs(dr), 1e-9))
-    return width / 2 + 0.7 * reach * dc, height / 2 + 0.7 * reach * dr
+    reach = frame_reach(width, height, heading_on_photo_deg)
+    return width / 2 + 0.7 * reach * math.sin(a), height / 2 - 0.7 * reach * math.cos(a)
 
 
 def render_factor(spec: PhotoSpec, g: float = 9.81) -> int:
@@ -89,21 +95,19 @@ def render_factor(spec: PhotoSpec, g: float = 9.81) -> int:
     return max(f, math.ceil(max(spec.width, spec.height) / _MAX_RENDER_SIDE))
 
 
-def _coarse_spec(spec: PhotoSpec, f: int) -> tuple[SceneSpec, float, float]:
+def _coarse_spec(spec: PhotoSpec, f: int) -> SceneSpec:
     """The scene rendered at ``f`` photo pixels per pixel, north up = image up, and the vessel's place on it."""
     wc, hc = math.ceil(spec.width / f), math.ceil(spec.height / f)
     pc = spec.pixel_m * f
     v = spec.vessel
     # the scene centre: the vessel's offset from the frame centre, walked back on the sphere of the renderer
-    from .demo import _moved
-
     dx = (wc / 2 - spec.vessel_col / f) * pc
     dy = (spec.vessel_row / f - hc / 2) * pc
     lon, lat = _moved(v.lon, v.lat, math.degrees(math.atan2(dx, dy)) % 360, math.hypot(dx, dy))
     drawn = replace(v, heading_deg=(v.heading_deg - spec.yaw_deg) % 360)
     imaging = OpticalModel(sun_azimuth_deg=(spec.sun_azimuth_deg - spec.yaw_deg) % 360, noise_std=0.0, dtype="uint16")
     # geographic grid: its columns run true north, as the photo's image up runs along the yaw
-    return SceneSpec(wc, hc, pc, lon, lat, (drawn,), imaging=imaging, crs="EPSG:4326", seed=spec.seed), wc, hc
+    return SceneSpec(wc, hc, pc, lon, lat, (drawn,), imaging=imaging, crs="EPSG:4326", seed=spec.seed)
 
 
 def render_photo(spec: PhotoSpec, *, factor: int | None = None) -> tuple[np.ndarray, dict]:
@@ -112,8 +116,7 @@ def render_photo(spec: PhotoSpec, *, factor: int | None = None) -> tuple[np.ndar
     f = render_factor(spec) if factor is None else int(factor)
     if f < 1:
         raise ParameterError(f"the rendering factor must be a whole number >= 1, got {factor!r}")
-    coarse_spec, _, _ = _coarse_spec(spec, f)
-    rendered = render(coarse_spec)
+    rendered = render(_coarse_spec(spec, f))
     coarse = rendered.data[0].astype(np.float32) / np.float32(4095.0)
     coeffs = ndimage.spline_filter(coarse, order=3, mode="mirror")
     t = rendered.truth["vessels"][0]
