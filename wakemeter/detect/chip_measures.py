@@ -25,6 +25,35 @@ def track_profile(chip: Chip, back: float, lam_pred: float, m: float, *, gap_px:
     return tf[c - half_w : c + half_w + 1, : valid_u.max() + 1 if valid_u.size else 1].mean(axis=0)
 
 
+def track_rows(
+    chip: Chip, back: float, lam_pred: float, m: float, *, gap_px: int, box_px: int, half_width_waves: float
+) -> np.ndarray:
+    """Parallel profiles along the track behind the vessel, one per pixel row across it, out to
+    ``half_width_waves`` transverse wavelengths either side (the crests curve back further out), over the
+    longest stretch where all of them lie on valid water (the hull's mask and the chip's edge end it)."""
+    half = int(np.clip(half_width_waves * lam_pred / m if np.isfinite(lam_pred) else 2, 2, box_px / 2 - 1))
+    tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(gap_px, gap_px + 2 * box_px), v_half=half + 1)
+    inside = (
+        track_frame(
+            chip.valid.astype(np.float32),
+            chip.vessel_rc,
+            back,
+            u_range=(gap_px, gap_px + 2 * box_px),
+            v_half=half + 1,
+            order=0,
+        )
+        > 0
+    )
+    rows = slice(1, 2 * half + 2)
+    ok = np.concatenate([[False], inside[rows].all(axis=0), [False]])
+    edges = np.flatnonzero(np.diff(ok.astype(np.int8)))
+    starts, ends = edges[0::2], edges[1::2]
+    if not starts.size:
+        return tf[rows, :0]
+    k = int(np.argmax(ends - starts))
+    return tf[rows, starts[k] : ends[k]]
+
+
 def wedge_arms(
     chip: Chip, back: float, lam_pred: float, m: float, *, gap_px: int, k_hi_factor: float
 ) -> tuple[arms_mod.Arms | None, np.ndarray, np.ndarray, int]:

@@ -87,7 +87,10 @@ class Tuning:
     super_gain_min: float = 2.0  #: supercritical curve must beat the others by this (seeds 470-477, Fr_h 1.3)
     super_significance_min: float = 9.0  #: a wake seen only through the supercritical curve needs this
     # ---- crests and arms ----
-    transverse_snr_min: float = 12.0  #: transverse crest spacing reported above this profile SNR
+    transverse_snr_min: float = 5.0  #: transverse crest spacing reported above this SNR of the mean periodogram
+    #: the crest profiles fill a band this many transverse wavelengths either side of the track
+    transverse_half_width_waves: float = 0.7
+    transverse_groups: int = 4  #: contiguous sets of profiles whose peaks' scatter gives the uncertainty
     #: ... and when the profile holds at least this many crests (the analysis looks coarser until the box holds
     #: 5; a photo too small for that gave 35.6 m for 27.9 m at a stated ±1 %: photo_sweep.py)
     transverse_crests_min: float = 5.0
@@ -107,6 +110,10 @@ class Tuning:
     # ---- uncertainty (accuracy_sweep seeds 0-59: 95th percentile of |error|/sigma 1.07, all intervals held) ----
     spectral_sigma_scale: float = 0.5  #: quarter-box spread x this, optical
     spectral_sigma_scale_radar: float = 0.3  #: ... radar (analysed in dB; 95th pct of |error|/sigma 0.53 at 0.5)
+    #: the quarter boxes are refitted in the track frame as found and turned this much (degrees) either way,
+    #: and the variances of the three sets pooled (the harbour demo as a plain image, 9 clicks 4 px apart:
+    #: widths 0.3-0.8 kn with the look's frame alone)
+    spread_turn_deg: float = 1.0
     boot_score_min: float = 3.0  #: a quarter-box refit counts only when its own curve stands out this much
     boot_delta_extra_deg: float = 6.0  #: quarter boxes search the track within |delta| + this
     boot_speed_range: tuple[float, float] = (0.75, 1.33)  #: quarter boxes search this x the full-box speed

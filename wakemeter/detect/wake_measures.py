@@ -12,13 +12,13 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from ..physics import havelock, kelvin
+from . import crests as crests_mod
 from . import lines as lines_mod
 from .arms import Arms
-from .chip_measures import track_profile, wake_drawing, wedge_arms
+from .chip_measures import track_profile, track_rows, wake_drawing, wedge_arms
 from .depth_model import DepthModel
 from .findings import Drawing, LineKind
 from .look import Look
-from .spectral import crest_spacing
 from .tuning import REACH_FRACTION, Tuning
 
 
@@ -43,12 +43,22 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
     lam_pred = float(kelvin.transverse_wavelength(u, h, g=g))
     prof = track_profile(chip, back, lam_pred, m, gap_px=t.gap_px, box_px=t.box_px)
     lo, hi = t.transverse_band_finite if model.finite else t.transverse_band_deep
+    crests = crests_mod.NOTHING
     if np.isfinite(lam_pred):
-        lam_t, lam_t_sd, snr = crest_spacing(prof, m, band_m=(lo * lam_pred, hi * lam_pred))
-    else:
-        lam_t, lam_t_sd, snr = np.nan, np.nan, 0.0
-    # a spacing read off a few crests has a spread the sinusoid's bound does not know: too few, not seen
-    seen = bool(np.isfinite(lam_t) and snr >= t.transverse_snr_min and prof.size * m / lam_t >= t.transverse_crests_min)
+        rows = track_rows(
+            chip, back, lam_pred, m, gap_px=t.gap_px, box_px=t.box_px, half_width_waves=t.transverse_half_width_waves
+        )
+        crests = crests_mod.crest_spacing_rows(
+            rows, m, band_m=(lo * lam_pred, hi * lam_pred), groups=t.transverse_groups
+        )
+    # a spacing read off a few crests has a spread the sets' scatter does not know: too few, not seen
+    seen = bool(
+        np.isfinite(crests.std_m)
+        and crests.snr >= t.transverse_snr_min
+        and crests.groups_agreeing >= crests.groups - 1
+        and crests.crests >= t.transverse_crests_min
+    )
+    lam_t, lam_t_sd = crests.wavelength_m, crests.std_m
     arms, energy, evalid, reach = wedge_arms(
         chip,
         back,
