@@ -106,6 +106,10 @@ class Tuning:
     arms_draw_max_std_deg: float = 6.0  #: arms drawn and used as the line search centre when this well measured
     turbulent_line_max_off_deg: float = 4.0  #: a turbulent wake line further off the fitted track is not reported
     narrow_arm_margin_deg: float = 2.0  #: arms narrower than Kelvin's by max(2 sigma, this) get the fast-hull caution
+    #: added in quadrature to the half-angle's stated uncertainty: where the arms' edges gave 1.5 deg or less,
+    #: the errors were -2.0 to +0.1 deg (mean -0.7; one stated 0.5 deg was 1.25 low and sank the Havelock pair's
+    #: speed): 10 such among 71 half-angles, deep seeds 0-29 and depth seeds 420-467 at Fr_h 0.75-0.92
+    half_angle_sys_std_deg: float = 1.0
     havelock_pair_max_std_deg: float = 4.0  #: half-angle good enough for the Havelock speed-and-depth method
     # ---- uncertainty (accuracy_sweep seeds 0-59: 95th percentile of |error|/sigma 1.07, all intervals held) ----
     spectral_sigma_scale: float = 0.5  #: quarter-box spread x this, optical

@@ -67,7 +67,11 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
         gap_px=t.gap_px,
         k_hi_factor=t.arms_k_hi_factor,
     )
-    half, half_sd = (arms.half_angle_deg, arms.half_angle_std_deg) if arms else (None, None)
+    half, half_sd = (
+        (arms.half_angle_deg, float(np.hypot(arms.half_angle_std_deg, t.half_angle_sys_std_deg)))
+        if arms
+        else (None, None)
+    )
     well_measured = half is not None and half_sd is not None and half_sd <= t.arms_draw_max_std_deg
     # Kelvin arms: wave-energy ridges (the track frame's +v is the image's counter-clockwise side, so its fan
     # angles change sign), searched near the measured half-angle when it is well measured, else near the one
