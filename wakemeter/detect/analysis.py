@@ -30,7 +30,7 @@ from .depth_model import DepthModel, choose_depth_model
 from .explain import closing_cautions, depth_regime, interval_cover, opening_cautions, widen
 from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segment, SegmentKind
 from .line_finding import LineLook, line_finding, look_for_lines
-from .look import Look, choose_look
+from .look import Look, behind_chip, choose_look
 from .methods import SPEED_METHODS, MethodContext, MethodOutput, SpeedMethod, WaveStages, combine, run_methods
 from .request import AnalysisRequest, RadarGeometry, pixel_rel_std
 from .result import WakeAnalysis
@@ -344,7 +344,7 @@ def _measure(
     look, g = a.look, a.g
     model = choose_depth_model(look, a.decision, g=g, depth_m=request.depth_m, tuning=tuning)
     stage(0.45, "measuring crests and arms")
-    measures = measure_wake(look, model, g=g, tuning=tuning)
+    measures = measure_wake(look, model, g=g, tuning=tuning, behind=behind_chip(scene, look, tuning=tuning))
     evidence = vessel_evidence(
         look, measures.lines, hull_elsewhere=a.hull_px is not None, forced=request.force, tuning=tuning
     )

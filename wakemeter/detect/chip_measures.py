@@ -26,32 +26,31 @@ def track_profile(chip: Chip, back: float, lam_pred: float, m: float, *, gap_px:
 
 
 def track_rows(
-    chip: Chip, back: float, lam_pred: float, m: float, *, gap_px: int, box_px: int, half_width_waves: float
-) -> np.ndarray:
-    """Parallel profiles along the track behind the vessel, one per pixel row across it, out to
-    ``half_width_waves`` transverse wavelengths either side (the crests curve back further out), over the
-    longest stretch where all of them lie on valid water (the hull's mask and the chip's edge end it)."""
-    half = int(np.clip(half_width_waves * lam_pred / m if np.isfinite(lam_pred) else 2, 2, box_px / 2 - 1))
-    tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(gap_px, gap_px + 2 * box_px), v_half=half + 1)
-    inside = (
-        track_frame(
-            chip.valid.astype(np.float32),
-            chip.vessel_rc,
-            back,
-            u_range=(gap_px, gap_px + 2 * box_px),
-            v_half=half + 1,
-            order=0,
-        )
-        > 0
-    )
+    chip: Chip,
+    back: float,
+    lam_pred: float,
+    m: float,
+    *,
+    centre_rc: tuple[float, float],
+    u_range: tuple[int, int],
+    half_width_waves: float,
+    half_max_px: float,
+) -> tuple[np.ndarray, int]:
+    """Parallel profiles along the track behind the vessel at ``centre_rc``, one per pixel row across it, out
+    to ``half_width_waves`` transverse wavelengths either side (the crests curve back further out), over the
+    longest stretch of ``u_range`` where all of them lie on valid water (the hull's mask and the chip's edge
+    end it); also the distance behind the vessel (pixels) of their first column."""
+    half = int(np.clip(half_width_waves * lam_pred / m if np.isfinite(lam_pred) else 2, 2, half_max_px))
+    tf = track_frame(chip.data, centre_rc, back, u_range=u_range, v_half=half + 1)
+    inside = track_frame(chip.valid.astype(np.float32), centre_rc, back, u_range=u_range, v_half=half + 1, order=0) > 0
     rows = slice(1, 2 * half + 2)
     ok = np.concatenate([[False], inside[rows].all(axis=0), [False]])
     edges = np.flatnonzero(np.diff(ok.astype(np.int8)))
     starts, ends = edges[0::2], edges[1::2]
     if not starts.size:
-        return tf[rows, :0]
+        return tf[rows, :0], u_range[0]
     k = int(np.argmax(ends - starts))
-    return tf[rows, starts[k] : ends[k]]
+    return tf[rows, starts[k] : ends[k]], u_range[0] + int(starts[k])
 
 
 def wedge_arms(

@@ -14,7 +14,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from ..errors import ParameterError
+from ..errors import ParameterError, TooLittleWaterError
 from ..physics import kelvin
 from ..physics.units import KNOT_MPS
 from ..scene.raster import Scene
@@ -194,3 +194,19 @@ def choose_look(
             break  # the coarser chip lost the wake (its edge reached the frame's): keep the look that saw it
         look = coarser
     return look
+
+
+def behind_chip(scene: Scene, look: Look, *, tuning: Tuning) -> Chip | None:
+    """A chip at the look's scale whose near edge is at the vessel and which runs back along the track (for the
+    crest profiles, :func:`.wake_measures.crest_rows`); None where the scene has too little there."""
+    t = tuning
+    col, row = look.chip.to_scene(*look.chip.vessel_rc)
+    shift = (t.chip_px / 2 - t.gap_px) * look.step
+    a = np.radians(look.back_deg)
+    centre = (col + shift * np.cos(a), row - shift * np.sin(a))
+    if not (0 <= centre[0] < scene.width and 0 <= centre[1] < scene.height):
+        return None
+    try:
+        return prepare_chip(scene, centre, size_px=t.chip_px, step=look.step, radar=look.chip.radar, snap_radius_m=0.0)
+    except (TooLittleWaterError, ParameterError):
+        return None

@@ -19,6 +19,7 @@ from .chip_measures import track_profile, track_rows, wake_drawing, wedge_arms
 from .depth_model import DepthModel
 from .findings import Drawing, LineKind
 from .look import Look
+from .prepare import Chip
 from .tuning import REACH_FRACTION, Tuning
 
 
@@ -35,7 +36,30 @@ class WakeMeasures:
     drawing: Drawing
 
 
-def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> WakeMeasures:
+def crest_rows(chip: Chip, behind: Chip | None, back: float, lam_pred: float, *, tuning: Tuning) -> np.ndarray:
+    """The profiles for the transverse crest spacing: on the look's chip, or on ``behind`` (a chip read
+    further back along the track at the same scale) when that gives longer ones.  The look's chip is centred
+    on the vessel, so its profiles end half a chip behind it; in a photo whose frame holds more wake than that,
+    the crests beyond were left out."""
+    t = tuning
+    kw = dict(half_width_waves=t.transverse_half_width_waves, half_max_px=t.box_px / 2 - 1)
+    rows, u0 = track_rows(
+        chip, back, lam_pred, chip.m_per_px, centre_rc=chip.vessel_rc, u_range=(t.gap_px, t.gap_px + 2 * t.box_px), **kw
+    )
+    if behind is not None:
+        centre = behind.from_scene(*chip.to_scene(*chip.vessel_rc))
+        far, _ = track_rows(
+            behind, back, lam_pred, behind.m_per_px, centre_rc=centre, u_range=(u0, u0 + t.chip_px), **kw
+        )
+        if far.shape[1] > rows.shape[1]:
+            return far
+    return rows
+
+
+def measure_wake(
+    look: Look, model: DepthModel, *, g: float, tuning: Tuning, behind: Chip | None = None
+) -> WakeMeasures:
+    """``behind``: a chip read further back along the track at the look's scale (see :func:`crest_rows`)."""
     t = tuning
     chip, m = look.chip, look.chip.m_per_px
     u, h = model.speed_mps, model.depth_m
@@ -45,9 +69,7 @@ def measure_wake(look: Look, model: DepthModel, *, g: float, tuning: Tuning) -> 
     lo, hi = t.transverse_band_finite if model.finite else t.transverse_band_deep
     crests = crests_mod.NOTHING
     if np.isfinite(lam_pred):
-        rows = track_rows(
-            chip, back, lam_pred, m, gap_px=t.gap_px, box_px=t.box_px, half_width_waves=t.transverse_half_width_waves
-        )
+        rows = crest_rows(chip, behind, back, lam_pred, tuning=t)
         crests = crests_mod.crest_spacing_rows(
             rows, m, band_m=(lo * lam_pred, hi * lam_pred), groups=t.transverse_groups
         )
