@@ -119,6 +119,9 @@ def test_combination_consistent_and_not():
     bad = speed_from_spectral_fit(Uncertain(14.0, 0.3), FIXED_G)
     res = combine_estimates([a, b, bad])
     assert not res.consistent and res.outlier == "spectral fit" and "DISAGREE" in res.verdict
+    # of two that disagree the less precise always has the larger residual in its own units: neither is named
+    two = combine_estimates([b, bad])
+    assert not two.consistent and two.outlier is None and "cannot tell which" in two.verdict
     assert res.p_value == pytest.approx(stats.chi2.sf(res.chi2, 2))
     plain = np.sqrt(1 / (1 / a.std_mps**2 + 1 / b.std_mps**2 + 1 / bad.std_mps**2))
     assert res.std_mps > plain  # inflated, not hidden

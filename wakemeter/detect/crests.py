@@ -3,8 +3,9 @@
 A single profile down the track's centre line runs through the turbulent wake, whose foam texture can
 hide the crests there while they stand out a few pixels to either side: the spacing then came and went
 with a click a few pixels away.  Here every profile of a band about the track gives a periodogram, each
-normalised by its own median so that a foamy profile counts no more than a clear one, and their mean is
-searched for the crest peak (the averaging of periodograms of Bartlett 1948).  The uncertainty comes from
+normalised by its own median so that a foamy profile counts no more than a clear one (the profiles are
+means of a few adjacent rows, across which the crests are straight), and their mean is searched for the crest
+peak (the averaging of periodograms of Bartlett 1948).  The uncertainty comes from
 the spread of the peaks found in a few contiguous sets of profiles (their standard error, widened for the
 few sets by Student's t), so it includes what the crests' curvature away from the centre line does.
 
@@ -72,9 +73,18 @@ def crest_spacing_rows(
     band_m: tuple[float, float],
     groups: int = 4,
     agree_fraction: float = 0.05,
+    block: int = 1,
 ) -> CrestSpacing:
-    """Crest spacing (m) shared by parallel profiles ``rows`` (one per row, 1-px steps) within ``band_m``."""
+    """Crest spacing (m) shared by parallel profiles ``rows`` (one per row, 1-px steps) within ``band_m``.
+
+    ``block``: adjacent rows are first averaged in blocks of this many (across a band narrow enough for the
+    crests to be straight, their signal adds up while the noise averages down); the blocks are the profiles.
+    """
     rows = np.asarray(rows, dtype=float)
+    if block > 1 and rows.shape[0] >= block:
+        n_blocks = rows.shape[0] // block
+        lead = (rows.shape[0] - n_blocks * block) // 2
+        rows = rows[lead : lead + n_blocks * block].reshape(n_blocks, block, -1).mean(axis=1)
     n_rows, n = rows.shape
     if n < 16 or n_rows < groups:
         return NOTHING

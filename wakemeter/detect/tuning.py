@@ -91,6 +91,7 @@ class Tuning:
     #: the crest profiles fill a band this many transverse wavelengths either side of the track
     transverse_half_width_waves: float = 0.7
     transverse_groups: int = 4  #: contiguous sets of profiles whose peaks' scatter gives the uncertainty
+    transverse_block_waves: float = 0.25  #: each profile is the mean of the rows across this many waves
     #: ... and when the profile holds at least this many crests (the analysis looks coarser until the box holds
     #: 5; a photo too small for that gave 35.6 m for 27.9 m at a stated ±1 %: photo_sweep.py)
     transverse_crests_min: float = 5.0

@@ -71,7 +71,11 @@ def measure_wake(
     if np.isfinite(lam_pred):
         rows = crest_rows(chip, behind, back, lam_pred, tuning=t)
         crests = crests_mod.crest_spacing_rows(
-            rows, m, band_m=(lo * lam_pred, hi * lam_pred), groups=t.transverse_groups
+            rows,
+            m,
+            band_m=(lo * lam_pred, hi * lam_pred),
+            groups=t.transverse_groups,
+            block=max(1, round(t.transverse_block_waves * lam_pred / m)),
         )
     # a spacing read off a few crests has a spread the sets' scatter does not know: too few, not seen
     seen = bool(

@@ -358,7 +358,7 @@ class CombinedSpeed:
     dof: int
     p_value: float
     consistent: bool
-    outlier: str | None  #: method standing out most when inconsistent
+    outlier: str | None  #: method standing out most when three or more are inconsistent (of two, neither)
     methods: tuple[str, ...]
     verdict: str
 
@@ -463,12 +463,16 @@ def combine_estimates(estimates: list[SpeedEstimate], *, alpha: float = 0.05) ->
             f"{100 * p:.0f} %, chi-square test)"
         )
     else:
-        resid = np.abs(x - mean) / s
-        outlier = methods[int(np.argmax(resid))]
         std *= float(np.sqrt(chi2 / dof))
+        if dof == 1:  # of two, the less precise always stands out more: which one is wrong cannot be told
+            which = "two methods cannot tell which of them is wrong"
+        else:
+            resid = np.abs(x - mean) / s
+            outlier = methods[int(np.argmax(resid))]
+            which = f"'{outlier}' stands out"
         verdict = (
             f"methods DISAGREE: their spread has a chance of only {100 * p:.1f} % (chi-square test); "
-            f"'{outlier}' stands out; the uncertainty was widened by the excess spread (x {np.sqrt(chi2 / dof):.2f}, "
+            f"{which}; the uncertainty was widened by the excess spread (x {np.sqrt(chi2 / dof):.2f}, "
             "Birge ratio)"
         )
     return CombinedSpeed(
