@@ -99,5 +99,7 @@ def test_clicks_a_few_pixels_apart_on_one_hull_agree(plain_harbour, capsys):
         assert lo <= 14.0 <= hi
         widths.append(hi - lo)
         methods.add(tuple(m["name"] for m in j["methods"]))
+        # crests not read are said to be so, with the reason (here: too faint in the launch's foam)
+        assert j["transverse_wavelength_m"] is not None or "times above the noise" in j["transverse_note"]
     assert max(widths) / min(widths) < 1.6
     assert len(methods) == 1

@@ -428,6 +428,7 @@ def _measure(
         ),
         lines=measures.lines,
         interval_cover=cover,
+        transverse_note=measures.transverse_note,
         request=request,
         plots=plots,
     )

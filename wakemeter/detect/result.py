@@ -58,6 +58,7 @@ class WakeAnalysis:
     diagnostics: Diagnostics = field(default_factory=Diagnostics, compare=False)
     lines: tuple[WakeLine, ...] = ()  #: straight wake lines through the vessel
     interval_cover: IntervalCover | None = None  #: shallower water the interval keeps covering
+    transverse_note: str = ""  #: why the transverse crest spacing was not read, when the wave path looked for it
     request: AnalysisRequest | None = None  #: what was asked
     revised: bool = False  #: hand measurements were combined in (see detect.revise)
     software: str = SOFTWARE
@@ -195,6 +196,7 @@ class WakeAnalysis:
             ],
             "narrow_v_half_angle_deg": _num(self.narrow_v_half_angle_deg),
             "interval_cover": None if self.interval_cover is None else self.interval_cover.to_json(),
+            "transverse_note": self.transverse_note,
             "diagnostics": self.diagnostics.to_json(),
             "drawing": self.drawing.to_json(),
             "revised": self.revised,
@@ -329,6 +331,7 @@ def _from_json(cls: type[WakeAnalysis], j: dict, drawing: Any) -> WakeAnalysis:
         diagnostics=Diagnostics.from_json(j.get("diagnostics")),
         lines=lines,
         interval_cover=IntervalCover.from_json(j.get("interval_cover")),
+        transverse_note=str(j.get("transverse_note") or ""),
         request=None if req is None else AnalysisRequest.from_json(req),
         revised=bool(j.get("revised", False)),
         software=str(j.get("software") or "unknown"),

@@ -29,6 +29,7 @@ class WakeMeasures:
     profile: np.ndarray  #: intensity along the track behind the vessel
     transverse_wavelength_m: float | None  #: None when no regular transverse crests stand out
     transverse_wavelength_std_m: float | None
+    transverse_note: str  #: why the crest spacing was not read ("" when read)
     half_angle_deg: float | None
     half_angle_std_deg: float | None
     arms: Arms | None
@@ -54,6 +55,23 @@ def crest_rows(chip: Chip, behind: Chip | None, back: float, lam_pred: float, *,
         if far.shape[1] > rows.shape[1]:
             return far
     return rows
+
+
+def crest_note(crests: crests_mod.CrestSpacing, *, tuning: Tuning) -> str:
+    """Why a crest spacing was not taken, in words (the first rule it failed)."""
+    t = tuning
+    if not np.isfinite(crests.wavelength_m):
+        return "no crest peak inside the band of wavelengths the fitted speed allows"
+    if crests.snr < t.transverse_snr_min:
+        return (
+            f"the crests stand {crests.snr:.1f} times above the noise along the track ({t.transverse_snr_min:g} needed)"
+        )
+    if crests.groups_agreeing < crests.groups - 1:
+        return (
+            f"sets of profiles either side of the track disagree ({crests.groups_agreeing} of {crests.groups} "
+            "within 5 % of the spacing)"
+        )
+    return f"the profiles hold {crests.crests:.1f} crests ({t.transverse_crests_min:g} needed)"
 
 
 def measure_wake(
@@ -132,6 +150,16 @@ def measure_wake(
         arms if (arms is not None and well_measured) else None,
         [ln for ln in found if ln.kind == LineKind.NARROW_V],
     )
+    note = "" if seen else crest_note(crests, tuning=t)
     return WakeMeasures(
-        back, prof, lam_t if seen else None, lam_t_sd if seen else None, half, half_sd, arms, tuple(found), drawing
+        back,
+        prof,
+        lam_t if seen else None,
+        lam_t_sd if seen else None,
+        note,
+        half,
+        half_sd,
+        arms,
+        tuple(found),
+        drawing,
     )

@@ -74,7 +74,9 @@ def summary_rows(a: WakeAnalysis) -> list[tuple[str, str]]:
             ),
             (
                 "Transverse crest spacing",
-                "not seen" if a.transverse_wavelength_m is None else f"{a.transverse_wavelength_m:.1f} m",
+                (f"not read: {a.transverse_note}" if a.transverse_note else "not seen")
+                if a.transverse_wavelength_m is None
+                else f"{a.transverse_wavelength_m:.1f} m",
             ),
             ("Wake lines through the vessel", describe_lines(a)),
             ("Depth regime", f"{_regime(a)} - {a.regime.explanation}"),
