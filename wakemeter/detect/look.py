@@ -207,6 +207,6 @@ def behind_chip(scene: Scene, look: Look, *, tuning: Tuning) -> Chip | None:
     if not (0 <= centre[0] < scene.width and 0 <= centre[1] < scene.height):
         return None
     try:
-        return prepare_chip(scene, centre, size_px=t.chip_px, step=look.step, radar=look.chip.radar, snap_radius_m=0.0)
+        return prepare_chip(scene, centre, size_px=t.chip_px, step=look.step, radar=look.chip.radar, find_hull=False)
     except (TooLittleWaterError, ParameterError):
         return None

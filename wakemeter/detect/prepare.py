@@ -73,13 +73,14 @@ def prepare_chip(
     hull_mask_m: float = 30.0,
     reach_px: int = 0,
     snap_max_px: float = np.inf,
+    find_hull: bool = True,
 ) -> Chip:
     """Read and prepare a ``size_px`` chip around ``vessel_px`` (scene col, row), decimated by ``step``.
 
     ``reach_px``: the analysis uses only this far from the vessel (chip pixels); the chip must be 30 % valid
     within it (0: the whole chip), so a photo's vessel near the frame's edge is analysed on the side it has.
     ``snap_max_px``: the hull is looked for at most this many chip pixels from the click (a photo's 40 m can be
-    its whole frame)."""
+    its whole frame).  ``find_hull``: False for a chip that only extends a look (no hull snapped or masked)."""
     if size_px < 64 or step < 1:
         raise ParameterError(f"size_px must be >= 64 and step >= 1, got {size_px!r}, {step!r}")
     col, row = vessel_px
@@ -149,7 +150,9 @@ def prepare_chip(
         med, sig = float(np.median(vals)), _mad_sigma(vals)
     centre = scene_to_index((c0, r0), step, col, row)
     snap_m = min(snap_radius_m, snap_max_px * m_px)
-    hull_rc, fvalid = _snap_hull(full, fvalid, med, sig, centre, m_px, snap_m, hull_mask_m, 2 * snap_max_px)
+    hull_rc = None
+    if find_hull:
+        hull_rc, fvalid = _snap_hull(full, fvalid, med, sig, centre, m_px, snap_m, hull_mask_m, 2 * snap_max_px)
     # background removal and normalisation
     filled = np.where(fvalid, full, med)
     bg = wide_gaussian(filled, max(size_px / 24, 4.0))
