@@ -22,6 +22,7 @@ from wakemeter.errors import SceneReadError
 from wakemeter.scene.raster import open_scene
 
 CROP = Path(__file__).parent / "data" / "sentinel2" / "marseille_00_S2L2A_2023-08-22_wake.tif"
+ROOT_SCENE = Path(__file__).resolve().parents[1] / "sample_scenes" / "calm_no_wake.tif"
 NAMES = ("B02", "B03", "B04", "B08")
 
 
@@ -262,3 +263,59 @@ def test_a_zip_without_a_product_or_not_a_zip_is_refused_in_words(tmp_path, monk
                 out.writestr(n, zf.read(n))
     with pytest.raises(SceneReadError, match="B08"):
         open_scene(tmp_path / "partial.zip")
+
+
+def test_band_files_given_one_by_one_are_one_scene_in_every_command(folder, tmp_path, capsys):
+    # the same four files as the folder, named on the command line as a user types them after a download
+    files = [str(folder / f"2023-08-22_S2L2A_{n}.tif") for n in NAMES]
+    assert main(["info", *files]) == 0
+    out = capsys.readouterr().out
+    assert "1 B02 (blue), 2 B03 (green), 3 B04 (red), 4 B08 (near infrared)" in out
+    assert "2023-08-22 (from the file names; a date only)" in out
+    # the list in another order is the same scene, and gives the stacked crop's result
+    assert main(["analyze", *reversed(files), "--vessel-px", "120,120", "--json"]) == 0
+    listed = json.loads(capsys.readouterr().out)
+    assert main(["analyze", str(CROP), "--vessel-px", "120,120", "--json"]) == 0
+    stacked = json.loads(capsys.readouterr().out)
+    assert listed["speed_mps"] == stacked["speed_mps"] and listed["heading_deg"] == stacked["heading_deg"]
+    assert main(["quicklook", *files, "--out", str(tmp_path / "look.png")]) == 0
+    assert (tmp_path / "look.png").is_file()
+
+
+def test_band_files_that_do_not_make_one_scene_are_refused_in_words(folder, tmp_path, capsys):
+    b02 = str(folder / "2023-08-22_S2L2A_B02.tif")
+    odd = tmp_path / "2023-08-22_S2L2A_B05.tif"  # a 20 m band: another pixel grid
+    with rasterio.open(CROP) as src:
+        prof = src.profile
+        prof.update(count=1, width=120, height=120, transform=src.transform @ src.transform.scale(2, 2))
+        with rasterio.open(odd, "w", **prof) as dst:
+            dst.write(src.read(1)[::2, ::2], 1)
+    cases = [
+        ([b02, b02], "given twice"),
+        ([b02, str(odd)], "not on the pixel grid"),
+        ([b02, str(ROOT_SCENE)], "named for its band"),
+        ([b02, str(folder / "missing_B04.tif")], "no such file"),
+    ]
+    for files, said in cases:
+        assert main(["info", *files]) == 2
+        assert said in capsys.readouterr().err
+
+
+def test_the_programs_open_takes_band_files_selected_together(folder, qtbot, tmp_path, monkeypatch):
+    from PySide6.QtWidgets import QFileDialog
+
+    from wakemeter.app.window import MainWindow
+
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    w = MainWindow()
+    qtbot.addWidget(w)
+    files = [str(folder / f"2023-08-22_S2L2A_{n}.tif") for n in NAMES]
+    monkeypatch.setattr(QFileDialog, "getOpenFileNames", staticmethod(lambda *a, **k: (files, "")))
+    w.open_dialog()
+    assert w.doc.scene is not None and w.doc.scene.info.band_descriptions == NAMES
+    errors: list[str] = []
+    monkeypatch.setattr(w, "error", lambda title, text: errors.append(text))
+    monkeypatch.setattr(QFileDialog, "getOpenFileNames", staticmethod(lambda *a, **k: ([files[0], files[0]], "")))
+    w.open_dialog()  # refused in words; the open scene stays
+    assert errors and "given twice" in errors[0] and w.doc.scene.info.count == 4
+    w.close()

@@ -54,9 +54,23 @@ class FileDialogs(WindowPart):
 
     # ---- the dialogs -------------------------------------------------------------
     def open_dialog(self) -> None:
-        path = self._ask_open("scene", "Open scene", SCENE_FILTER)
-        if path:
-            self.open_path(path)
+        """One image file, or several single-band files of one acquisition (selected together) as one scene."""
+        paths, _ = QFileDialog.getOpenFileNames(self, "Open scene", self.start_folder("scene"), SCENE_FILTER)
+        if not paths:
+            return
+        self.used_folder("scene", paths[0])
+        if len(paths) == 1:
+            self.open_path(paths[0])
+            return
+        from ..errors import WakemeterError
+        from ..scene.band_set import band_list_vrt
+
+        try:
+            vrt = band_list_vrt([Path(p) for p in paths])
+        except WakemeterError as err:
+            self.error(f"Could not open {len(paths)} files as one scene", str(err))
+            return
+        self.open_path(str(vrt))
 
     def open_folder_dialog(self) -> None:
         """A folder of one file per band (…_B02.tif, …_B03.tif…) opened as one scene."""

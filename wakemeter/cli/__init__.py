@@ -18,7 +18,7 @@ from typing import NoReturn
 from .. import __version__
 from ..errors import WakemeterError
 from . import analyze, batch, export, report, scene, speed, synth
-from .base import Command
+from .base import Command, one_scene
 from .options import join_negative_lists
 
 COMMANDS: dict[str, Command] = {
@@ -69,6 +69,8 @@ def main(argv: Sequence[str] | None = None) -> int:
         return _open_program(argv)
     args = build_parser().parse_args(argv)
     try:
+        if isinstance(getattr(args, "scene", None), list):  # band files one by one: one scene
+            args.scene = one_scene(args.scene)
         return COMMANDS[args.command].run(args)
     except WakemeterError as err:
         print(f"wakemeter {args.command}: {err}", file=sys.stderr)

@@ -6,7 +6,7 @@ import argparse
 import json
 from typing import TYPE_CHECKING
 
-from .base import CAUTION_LINE, Command
+from .base import CAUTION_LINE, Command, add_scene_argument
 from .options import add_reports_options, add_request_options, apply_calibration, checked_request, compare_with_reports
 
 if TYPE_CHECKING:
@@ -14,7 +14,7 @@ if TYPE_CHECKING:
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scene", help="raster file")
+    add_scene_argument(p, "raster file")
     add_request_options(p)
     add_reports_options(p)
     p.add_argument("--json", action="store_true", help="print one JSON object")

@@ -18,3 +18,23 @@ class Command:
     help: str
     add_arguments: Callable[[argparse.ArgumentParser], None]
     run: Callable[[argparse.Namespace], int]
+
+
+#: what a scene argument also takes (``add_scene_argument``)
+BAND_FILES = "or several single-band files of one acquisition named for their bands (..._B02.tif ..._B08.tif)"
+
+
+def add_scene_argument(p: argparse.ArgumentParser, what: str) -> None:
+    """The scene: ``what`` (one path), or band files one by one, made one scene by :func:`one_scene`."""
+    p.add_argument("scene", nargs="+", help=f"{what}, {BAND_FILES}".replace("%", "%%"))
+
+
+def one_scene(paths: list[str]) -> str:
+    """The one path a command opens: the path given, or a virtual raster of the band files given."""
+    if len(paths) == 1:
+        return paths[0]
+    from pathlib import Path
+
+    from ..scene.band_set import band_list_vrt
+
+    return str(band_list_vrt([Path(p) for p in paths]))

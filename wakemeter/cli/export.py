@@ -7,7 +7,7 @@ import sys
 from dataclasses import replace
 from typing import TYPE_CHECKING
 
-from .base import CAUTION_LINE, Command
+from .base import CAUTION_LINE, Command, add_scene_argument
 from .options import (
     add_reports_options,
     add_request_options,
@@ -22,7 +22,7 @@ if TYPE_CHECKING:
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scene", help="raster file, or a saved session (.json): every vessel not rejected")
+    add_scene_argument(p, "raster file, or a saved session (.json): every vessel not rejected")
     p.add_argument("--out", required=True, metavar="FILE", help="a .gpkg (one layer each) or .geojson file")
     p.add_argument(
         "--vessels",

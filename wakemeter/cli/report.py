@@ -6,7 +6,7 @@ import argparse
 import os
 from typing import TYPE_CHECKING
 
-from .base import CAUTION_LINE, Command
+from .base import CAUTION_LINE, Command, add_scene_argument
 from .options import (
     add_reports_options,
     add_request_options,
@@ -20,7 +20,7 @@ if TYPE_CHECKING:
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scene", help="raster file, or a saved session (.json): every vessel not rejected")
+    add_scene_argument(p, "raster file, or a saved session (.json): every vessel not rejected")
     add_request_options(p)
     add_reports_options(p)
     p.add_argument("--out", required=True, metavar="FOLDER", help="folder in which the evidence set is made")

@@ -5,11 +5,11 @@ from __future__ import annotations
 import argparse
 import json
 
-from .base import Command
+from .base import Command, add_scene_argument
 
 
 def _add_info(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scene", help="raster file (GeoTIFF, COG, PNG, JPEG, ...)")
+    add_scene_argument(p, "raster file (GeoTIFF, COG, PNG, JPEG, ...), a folder of band files, a SAFE product")
     p.add_argument("--json", action="store_true", help="print the summary as JSON")
 
 
@@ -24,7 +24,7 @@ def run_info(args: argparse.Namespace) -> int:
 
 
 def _add_quicklook(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scene")
+    add_scene_argument(p, "raster file")
     p.add_argument("--out", required=True, help="PNG to write")
     p.add_argument("--max-size", type=int, default=1024, help="longest side of the preview, pixels")
 

@@ -1,4 +1,4 @@
-"""A folder of single-band files of one acquisition, read as one multi-band scene (no pixel copied).
+"""A folder (or a list) of single-band files of one acquisition, read as one multi-band scene (no pixel copied).
 
 Archives often deliver one file per band (``2023-08-22_S2L2A_B02.tif``, ``..._B03.tif``...).  The band files
 of a folder that share a name stem and one pixel grid become the bands of a GDAL virtual raster (VRT, an
@@ -11,7 +11,9 @@ file name as it does for a stacked file.  The acquisition date is taken from the
 from __future__ import annotations
 
 import hashlib
+import os
 import re
+from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from xml.sax.saxutils import escape
@@ -64,6 +66,14 @@ def band_files(folder: Path) -> tuple[str, list[BandFile]]:
             "file, or a folder of one file per band"
         )
     stem, files = max(groups.items(), key=lambda kv: (len(kv[1]), kv[0]))
+    same = _on_one_grid(files)
+    if not same:
+        raise SceneReadError(f"{folder}: no single-band file among the band files")
+    return stem, same
+
+
+def _on_one_grid(files: list[BandFile]) -> list[BandFile]:
+    """The single-band files on the first one's pixel grid (size, CRS, transform), sorted by band number."""
     grid = None
     same: list[BandFile] = []
     for f in sorted(files, key=lambda f: _band_number(f.band)):
@@ -75,9 +85,41 @@ def band_files(folder: Path) -> tuple[str, list[BandFile]]:
         grid = grid or this
         if this[:5] == grid[:5] and this[4] == 1:
             same.append(f)
-    if not same:
-        raise SceneReadError(f"{folder}: no single-band file among the band files")
-    return stem, same
+    return same
+
+
+def band_list_vrt(paths: Sequence[Path]) -> Path:
+    """The virtual raster of single-band files given one by one (``wakemeter info a_B02.tif a_B03.tif ...``):
+    each must be named for its band as in a folder, once each, all on one pixel grid."""
+    files: list[BandFile] = []
+    stems: list[str] = []
+    for given in paths:
+        p = Path(given).expanduser().resolve()
+        if not p.is_file():
+            raise SceneReadError(f"{given}: no such file")
+        m = _BAND_FILE.match(p.name)
+        if m is None:
+            raise SceneReadError(
+                f"{p.name}: several files make one scene only when each is named for its band (…_B02.tif, "
+                "…_B8A.jp2); give one image file, or band files of one acquisition"
+            )
+        files.append(BandFile(m["band"].upper(), p))
+        stems.append(m["stem"])
+    bands = [f.band for f in files]
+    twice = sorted({b for b in bands if bands.count(b) > 1})
+    if twice:
+        raise SceneReadError(f"band {twice[0]} is given twice; give each band's file once")
+    same = _on_one_grid(files)
+    if len(same) != len(files):
+        odd = sorted({f.path.name for f in files} - {f.path.name for f in same})
+        raise SceneReadError(
+            f"{odd[0]}: not on the pixel grid of the other band files (size, CRS and transform must agree), or more "
+            "than one band; resample the bands to one grid first"
+        )
+    stem = stems[0] if len(set(stems)) == 1 else (os.path.commonprefix(stems).rstrip("_-. ") or stems[0])
+    date = acquisition_date(stem)
+    meta = {"ACQUISITION_TIME": date, "ACQUISITION_TIME_SOURCE": FROM_NAMES} if date else {}
+    return write_vrt(stem, same, meta)
 
 
 def _band_number(band: str) -> tuple[int, str]:
