@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from collections.abc import Callable
 from dataclasses import dataclass
+from pathlib import Path
 
 from ..caution import CAUTION
 
@@ -33,8 +34,6 @@ def one_scene(paths: list[str]) -> str:
     """The one path a command opens: the path given, or a virtual raster of the band files given."""
     if len(paths) == 1:
         return paths[0]
-    from pathlib import Path
-
-    from ..scene.band_set import band_list_vrt
+    from ..scene.band_set import band_list_vrt  # only when band files are given
 
     return str(band_list_vrt([Path(p) for p in paths]))

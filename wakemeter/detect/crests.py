@@ -98,10 +98,10 @@ def crest_spacing_rows(
         return NOTHING
     norm = _normalised_periodograms(rows, nfft, wide)
     df = float(f[1] - f[0])
-    fpk = _peak(norm.mean(axis=0), narrow, df)
+    total = norm.mean(axis=0)
+    fpk = _peak(total, narrow, df)
     if not np.isfinite(fpk) or fpk <= 0:
         return NOTHING
-    total = norm.mean(axis=0)
     away = wide & (np.abs(f - fpk) > 3.0 / n)
     noise = float(np.median(total[away])) if away.any() else float(np.median(total[wide]))
     snr = max(float(total[int(round(fpk / df))]) / max(noise, 1e-300) - 1.0, 0.0)

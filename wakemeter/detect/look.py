@@ -48,6 +48,12 @@ class Look:
         return bool(self.fit.significance >= tuning.significance_min and self.side_contrast >= tuning.side_contrast_min)
 
 
+def box_frame(chip: Chip, back_deg: float, tuning: Tuning) -> np.ndarray:
+    """The track frame the spectral boxes are cut from: (v, u), u from -(gap + box) to gap + box."""
+    reach = tuning.gap_px + tuning.box_px
+    return track_frame(chip.data, chip.vessel_rc, back_deg, u_range=(-reach, reach), v_half=tuning.box_px / 2)
+
+
 def take_look(
     scene: Scene,
     px: tuple[float, float],
@@ -85,9 +91,8 @@ def take_look(
     ):
         candidates.append(tw.angle_deg)
     best: Look | None = None
-    reach = t.gap_px + t.box_px
     for back in candidates:
-        tf = track_frame(chip.data, chip.vessel_rc, back, u_range=(-reach, reach), v_half=t.box_px / 2)
+        tf = box_frame(chip, back, t)
         sp = whitened_spectrum(tf[:, -t.box_px :], tf[:, : t.box_px][:, ::-1], chip.m_per_px, t)
         fit = fit_curve(sp, g=g, depth_m=depth_m, delta_max_deg=t.delta_max_deg, delta_step_deg=t.delta_step_deg)
         fit = fundamental(sp, fit, g=g, depth_m=depth_m, tuning=t)

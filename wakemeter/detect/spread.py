@@ -18,9 +18,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from .depth_model import DepthModel
-from .look import Look
+from .look import Look, box_frame
 from .spectral import FR_MAX, FR_SUPER_RANGE, fit_curve, refine_speed_depth, student_inflation, whitened_spectrum
-from .trackframe import track_frame
 from .tuning import Tuning
 
 
@@ -40,12 +39,7 @@ def quarter_box_fits(
     t = tuning
     box = t.box_px
     half = box // 2
-    tf = look.tf
-    if turn_deg:
-        reach = t.gap_px + box
-        tf = track_frame(
-            look.chip.data, look.chip.vessel_rc, look.back_deg + turn_deg, u_range=(-reach, reach), v_half=half
-        )
+    tf = box_frame(look.chip, look.back_deg + turn_deg, t) if turn_deg else look.tf
     behind, ahead = tf[:, -box:], tf[:, :box][:, ::-1]
     fr_bounds = FR_SUPER_RANGE if model.supercritical else (0.2, FR_MAX)
     speed, depth, delta = model.speed_mps, model.depth_m, model.delta_deg
