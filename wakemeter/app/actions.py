@@ -33,7 +33,7 @@ MENUS: tuple[tuple[str, str, tuple[Entry, ...]], ...] = (
         "file_menu",
         (
             Entry("&Open scene…", "open_dialog", (_S.Open,)),
-            Entry("Open a folder of &band files…", "open_folder_dialog"),
+            Entry("Open a &folder (band files, or a SAFE product)…", "open_folder_dialog"),
             Entry("Open &recent", RECENT),
             Entry("&Save session…", "save_dialog", (_S.Save,)),
             Entry("Open &session…", "open_session_dialog"),

@@ -13,7 +13,7 @@ from PySide6.QtWidgets import QFileDialog, QInputDialog
 from .window_part import WindowPart
 
 SCENE_FILTER = (
-    "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;Sentinel-2 products (*.zip);;"
+    "Images (*.tif *.tiff *.png *.jpg *.jpeg *.jp2 *.img *.vrt);;Sentinel-1 and -2 products (*.zip);;"
     "STAC items (*.json);;All files (*)"
 )
 SESSION_FILTER = "wakemeter sessions (*.json)"
@@ -73,8 +73,11 @@ class FileDialogs(WindowPart):
         self.open_path(str(vrt))
 
     def open_folder_dialog(self) -> None:
-        """A folder of one file per band (…_B02.tif, …_B03.tif…) opened as one scene."""
-        path = QFileDialog.getExistingDirectory(self, "Open a folder of band files", self.start_folder("scene"))
+        """A folder of one file per band (…_B02.tif, …_B03.tif…), or a Sentinel-1 or -2 SAFE product folder,
+        opened as one scene."""
+        path = QFileDialog.getExistingDirectory(
+            self, "Open a folder (band files, or a SAFE product)", self.start_folder("scene")
+        )
         if path:
             self.settings.setValue("folders/scene", str(Path(path).parent))
             self.open_path(path)

@@ -305,6 +305,7 @@ class MainWindow(FileDialogs, VesselSearch, Calibration, QMainWindow):
         if sc is None:
             return
         self._show_contrast_state()  # the menu says what is shown
+        self.panel.form.geometry_in_scene(sc.radar_product is not None)
         note = "" if sc.info.georeferenced else " — no georeference: use Calibrate before measuring"
         self.say(
             f"{sc.info.origin.name}: {sc.width} × {sc.height} px, {sc.info.count} band(s), {sc.info.dtype}"

@@ -13,7 +13,7 @@ of :class:`~.tuning.Tuning`.  A scene without a wake says so and gives no speed.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -32,7 +32,7 @@ from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segm
 from .line_finding import LineLook, line_finding, look_for_lines
 from .look import Look, behind_chip, choose_look
 from .methods import SPEED_METHODS, MethodContext, MethodOutput, SpeedMethod, WaveStages, combine, run_methods
-from .request import AnalysisRequest, RadarGeometry, pixel_rel_std
+from .request import PRODUCT_GEOMETRY_SOURCE, AnalysisRequest, RadarGeometry, pixel_rel_std
 from .result import WakeAnalysis
 from .spectral import curve_points
 from .spread import Spread, estimate_spread
@@ -104,6 +104,7 @@ def analyze(
 
     stage(0.05, "reading the vessel's surroundings")
     start = _start_px(scene, request)
+    request = _with_product_geometry(scene, request, start)
     try:
         attempt: _Attempt | None = _attempt(scene, request, start, radar=request.radar, hull_px=None, tuning=tuning)
     except TooLittleWaterError:
@@ -166,6 +167,27 @@ def _shift_against(scene: Scene, measured: WakeAnalysis, tuning: Tuning) -> str 
         return moves_against(scene, measured.vessel_px, measured.heading_deg, timing, tuning)
     except ParameterError:
         return None
+
+
+def _with_product_geometry(scene: Scene, request: AnalysisRequest, px: tuple[float, float]) -> AnalysisRequest:
+    """A radar product that carries its geometry (Sentinel-1 GRD) gives the azimuth-offset method its figures
+    at the vessel's pixel, unless the user gave them; a left-looking geometry is not one the method models."""
+    product = scene.radar_product
+    if request.radar_geometry is not None or product is None:
+        return request
+    g = product.at(*px)
+    if not g.right_looking:
+        return request
+    rg = RadarGeometry(
+        g.slant_range_m,
+        g.platform_speed_mps,
+        g.look_bearing_deg,
+        g.incidence_deg,
+        slant_range_std_m=g.slant_range_std_m,
+        platform_speed_std_mps=g.platform_speed_std_mps,
+        source=f"{PRODUCT_GEOMETRY_SOURCE}: {g.source} at the vessel's pixel (line time {g.azimuth_time})",
+    )
+    return replace(request, radar_geometry=rg)
 
 
 def _start_px(scene: Scene, request: AnalysisRequest) -> tuple[float, float]:

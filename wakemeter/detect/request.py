@@ -10,7 +10,7 @@ latitude, slant range), not argument names.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 import numpy as np
@@ -40,6 +40,10 @@ def _pair(x: Any, what: str) -> Point:
     return _finite(x[0], what), _finite(x[1], what)
 
 
+#: how a radar geometry read from the scene's own product begins its ``source`` (typed figures say otherwise)
+PRODUCT_GEOMETRY_SOURCE = "read from the product"
+
+
 @dataclass(frozen=True)
 class RadarGeometry:
     """Radar acquisition geometry for the azimuth-offset method (Raney 1971)."""
@@ -50,6 +54,8 @@ class RadarGeometry:
     incidence_deg: float
     slant_range_std_m: float = 1000.0
     platform_speed_std_mps: float = 10.0
+    #: where the figures come from (typed by the user, or a product's annotation)
+    source: str = field(default="as given by the user", kw_only=True)
 
     def __post_init__(self) -> None:
         checks = (
@@ -77,6 +83,7 @@ class RadarGeometry:
             "incidence_deg": self.incidence_deg,
             "slant_range_std_m": self.slant_range_std_m,
             "platform_speed_std_mps": self.platform_speed_std_mps,
+            "source": self.source,
         }
 
     @classmethod
@@ -88,7 +95,8 @@ class RadarGeometry:
                     "radar geometry needs four numbers: slant range m, platform speed m/s, "
                     f"look bearing deg, incidence deg; got {data!r}"
                 )
-            return cls(*(_finite(v, "radar geometry") for v in data))
+            r, v, look, inc = (_finite(x, "radar geometry") for x in data)
+            return cls(r, v, look, inc)
         if not isinstance(data, dict):
             raise ParameterError(f"radar geometry must be an object or four numbers, got {data!r}")
         names = ("slant_range_m", "platform_speed_mps", "look_bearing_deg", "incidence_deg")
@@ -96,6 +104,8 @@ class RadarGeometry:
         if missing:
             raise ParameterError(f"radar geometry lacks {', '.join(missing)}")
         extra = {k: data[k] for k in ("slant_range_std_m", "platform_speed_std_mps") if k in data}
+        if isinstance(data.get("source"), str):
+            extra["source"] = data["source"]
         return cls(*(data[n] for n in names), **extra)
 
 

@@ -332,6 +332,9 @@ class Tuning:
     radar_max_radial_mps: float = 20.0  #: largest radial speed searched for the wake line
     radar_wake_line_min: float = 5.0  #: significance of the wake line used for the offset
     radar_offset_std_px: float = 2.0  #: standard uncertainty of the offset, pixels
+    #: below this share of the flight direction across the wake line, the hull's distance from the line says
+    #: almost nothing about the azimuth offset (the track runs nearly along the flight)
+    radar_min_flight_share: float = 0.1
     radar_heading_std_deg: float = 1.0  #: heading uncertainty used in the offset inversion
 
     def __post_init__(self) -> None:

@@ -21,6 +21,7 @@ import warnings
 from collections.abc import Iterator
 from dataclasses import dataclass, field, replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 import rasterio
@@ -31,6 +32,9 @@ from rasterio.windows import Window
 
 from ..errors import GeoreferenceError, ParameterError, SceneReadError
 from . import geodesy, limits
+
+if TYPE_CHECKING:
+    from .s1_grd import GrdGeometry
 
 # Scenes without georeference are reported by SceneInfo.georeferenced; rasterio's warning adds nothing
 # (and catching it per call is not thread-safe, so it is filtered once here).
@@ -128,6 +132,8 @@ class Scene:
         self.pyramid: list[tuple[int, Path]] = []  #: (factor, path) of cached reduced levels, if built
         self.calibration: geodesy.LocalFrame | None = None  #: hand calibration of a plain image
         self.photo_note = ""  #: why a photograph's own metadata gave no scale (empty: none tried, or it did)
+        #: the radar geometry at any pixel, when the scene is a radar product that carries it (Sentinel-1 GRD)
+        self.radar_product: GrdGeometry | None = None
 
     # ---- life cycle -------------------------------------------------------
     def __enter__(self) -> Scene:
@@ -235,6 +241,9 @@ class Scene:
                 paths += sorted(
                     Path(f) for f in self.info.files if f not in inside and Path(f).resolve() != self.info.path
                 )
+                ann = self.info.tags.get("SAR_ANNOTATION", "")
+                if ann and not ann.startswith("/vsizip/"):  # a radar product's geometry is read from it
+                    paths.append(Path(ann))
             for path in paths:
                 try:
                     with open(path, "rb") as fh:
@@ -369,14 +378,19 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
         raise SceneReadError(f"{p}: no such file")
     if p.is_dir():  # a Sentinel-2 product, or one file per band: one virtual raster (no pixel copied)
         from .band_set import band_set_vrt
+        from .s1_grd import grd_vrt, is_product
         from .safe_product import metadata_file, safe_vrt
 
         mtd = metadata_file(p)
-        p = safe_vrt(p, mtd) if mtd is not None else band_set_vrt(p)
-    elif p.suffix.lower() == ".zip":  # a Sentinel-2 product as downloaded: its bands read inside the zip
+        if is_product(p):  # a Sentinel-1 GRD product: sigma0 of its co-polarised measurement
+            p = grd_vrt(p)
+        else:
+            p = safe_vrt(p, mtd) if mtd is not None else band_set_vrt(p)
+    elif p.suffix.lower() == ".zip":  # a Sentinel-1 or -2 product as downloaded: read inside the zip
+        from .s1_grd import grd_zip_vrt
         from .safe_product import safe_zip_vrt
 
-        p = safe_zip_vrt(p)
+        p = grd_zip_vrt(p) or safe_zip_vrt(p)
     elif p.suffix.lower() == ".json":  # a STAC item: its local band assets as one virtual raster
         from .stac_item import read_item, stac_vrt
 
@@ -407,7 +421,13 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
         raise SceneReadError(f"{p}: the file's header is not valid ({err})") from err
     if p != given:
         info = replace(info, opened_as=given.resolve())
-    return _with_photo_scale(info)
+    if info.tags.get("GEOREFERENCE_NOTE"):
+        info = replace(info, georeference_note=info.tags["GEOREFERENCE_NOTE"])
+    scene = _with_photo_scale(info)
+    from .s1_grd import geometry_for
+
+    scene.radar_product = geometry_for(info.tags)
+    return scene
 
 
 def _with_photo_scale(info: SceneInfo) -> Scene:

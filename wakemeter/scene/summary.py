@@ -28,6 +28,7 @@ def summarise(scene: Scene) -> dict:
     i = scene.info
     out = {
         "file": str(i.path),
+        "opened": str(i.origin) if i.origin != i.path else None,
         "file_size_bytes": i.file_size,
         "driver": i.driver,
         "width": i.width,
@@ -46,6 +47,9 @@ def summarise(scene: Scene) -> dict:
         "pixel_size_m": None,
         "image_up_true_bearing_deg": None,
         "bounds_wgs84": None,
+        "platform": _platform(i.tags),
+        "backscatter": i.tags.get("BACKSCATTER"),
+        "radar_geometry": _radar_geometry(scene),
     }
     if i.georeferenced:
         f = scene.local_frame()
@@ -54,6 +58,41 @@ def summarise(scene: Scene) -> dict:
         west, south, east, north = lonlat_bounds(scene)
         out["bounds_wgs84"] = {"west": west, "south": south, "east": east, "north": north}
     return out
+
+
+def _platform(tags: dict) -> str | None:
+    """The spacecraft and, for a radar product, its mode, pass and polarisations (as its metadata says)."""
+    craft = tags.get("SPACECRAFT_NAME")
+    if not craft:
+        return None
+    parts = [craft]
+    if tags.get("MODE"):
+        parts.append(f"{tags['MODE']} mode")
+    if tags.get("PASS"):
+        parts.append(f"{tags['PASS'].lower()} pass")
+    if tags.get("POLARISATION"):
+        others = tags.get("OTHER_POLARISATIONS", "").split()
+        parts.append(
+            f"polarisation {tags['POLARISATION']}" + (f" ({', '.join(others)} also in the product)" if others else "")
+        )
+    return ", ".join(parts)
+
+
+def _radar_geometry(scene: Scene) -> dict | None:
+    """The radar geometry a product carries, at the scene's centre."""
+    if scene.radar_product is None:
+        return None
+    g = scene.radar_product.at(scene.width / 2, scene.height / 2)
+    return {
+        "source": g.source,
+        "slant_range_m": g.slant_range_m,
+        "incidence_deg": g.incidence_deg,
+        "look_bearing_deg": g.look_bearing_deg,
+        "flight_bearing_deg": g.flight_bearing_deg,
+        "right_looking": g.right_looking,
+        "platform_speed_mps": g.platform_speed_mps,
+        "azimuth_time": g.azimuth_time,
+    }
 
 
 def _band_list(scene: Scene) -> list[dict]:
@@ -78,7 +117,8 @@ def _timing(scene: Scene) -> str | None:
 
 
 def format_summary(s: dict) -> str:
-    lines = [
+    lines = [f"opened:         {s['opened']} (read through the file below)"] if s.get("opened") else []
+    lines += [
         f"file:           {s['file']} ({s['file_size_bytes']:,} bytes, {s['driver']})",
         f"size:           {s['width']} x {s['height']} pixels, {s['bands']} band(s), {s['dtype']}"
         + (f", nodata {s['nodata']}" if s["nodata"] is not None else ""),
@@ -109,6 +149,20 @@ def format_summary(s: dict) -> str:
         )
     if s.get("band_timing"):
         lines.append(f"band timing:    {s['band_timing']}")
+    if s.get("platform"):
+        lines.append(f"platform:       {s['platform']}")
+    if s.get("backscatter"):
+        lines.append(f"backscatter:    {s['backscatter']}")
+    g = s.get("radar_geometry")
+    if g:
+        side = "right" if g["right_looking"] else "NOT right"
+        look, flight = round(g["look_bearing_deg"], 1) % 360, round(g["flight_bearing_deg"], 1) % 360
+        lines.append(
+            f"radar geometry: from {g['source']}, at each pixel; at the scene centre: slant range "
+            f"{g['slant_range_m'] / 1000:.1f} km, incidence {g['incidence_deg']:.2f}°, look bearing "
+            f"{look:.1f}° ({side} of the flight bearing {flight:.1f}°), platform "
+            f"speed {g['platform_speed_mps']:.0f} m/s, line time {g['azimuth_time']}"
+        )
     return "\n".join(lines)
 
 
