@@ -12,6 +12,7 @@ is analysed a second time with ``radar_geometry`` set to what the product states
 from __future__ import annotations
 
 import tempfile
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -43,14 +44,7 @@ def _case(seed: int, tmp: Path, tuning) -> dict:
         g = sc.radar_product.at(*p.hull_px) if sc.radar_product is not None else None
         typed = None
         if g is not None:
-            rg = RadarGeometry(
-                g.slant_range_m,
-                g.platform_speed_mps,
-                g.look_bearing_deg,
-                g.incidence_deg,
-                slant_range_std_m=g.slant_range_std_m,
-                platform_speed_std_mps=g.platform_speed_std_mps,
-            )
+            rg = replace(RadarGeometry.from_product(g), source="as given by the user")
             typed = analyze(sc, AnalysisRequest(vessel_px=p.hull_px, radar_geometry=rg), tuning)
     radar = [m for m in a.methods if m.method == "radar azimuth offset"]
     row["found"] = a.wake_found

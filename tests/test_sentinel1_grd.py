@@ -233,7 +233,7 @@ def _break(safe: Path, what: str) -> None:
     [
         ("slc", "reads the ground range detected (GRD) edition"),
         ("no calibration", "is not in the product"),
-        ("bad xml", "not readable XML"),
+        ("bad xml", "metadata is not readable XML"),
         ("size", "but its annotation says"),
         ("no measurement", "without a GRD measurement raster"),
         ("no grid", "has no geolocation grid"),

@@ -32,7 +32,7 @@ from .findings import Caution, CautionCode, Diagnostics, Drawing, PlotData, Segm
 from .line_finding import LineLook, line_finding, look_for_lines
 from .look import Look, behind_chip, choose_look
 from .methods import SPEED_METHODS, MethodContext, MethodOutput, SpeedMethod, WaveStages, combine, run_methods
-from .request import PRODUCT_GEOMETRY_SOURCE, AnalysisRequest, RadarGeometry, pixel_rel_std
+from .request import AnalysisRequest, RadarGeometry, pixel_rel_std
 from .result import WakeAnalysis
 from .spectral import curve_points
 from .spread import Spread, estimate_spread
@@ -178,15 +178,7 @@ def _with_product_geometry(scene: Scene, request: AnalysisRequest, px: tuple[flo
     g = product.at(*px)
     if not g.right_looking:
         return request
-    rg = RadarGeometry(
-        g.slant_range_m,
-        g.platform_speed_mps,
-        g.look_bearing_deg,
-        g.incidence_deg,
-        slant_range_std_m=g.slant_range_std_m,
-        platform_speed_std_mps=g.platform_speed_std_mps,
-        source=f"{PRODUCT_GEOMETRY_SOURCE}: {g.source} at the vessel's pixel (line time {g.azimuth_time})",
-    )
+    rg = RadarGeometry.from_product(g)
     return replace(request, radar_geometry=rg)
 
 

@@ -11,12 +11,15 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from ..errors import ParameterError
 from ..physics.inversion import Uncertain
+
+if TYPE_CHECKING:
+    from ..scene.s1_grd import PixelGeometry
 
 REQUEST_SCHEMA = "wakemeter.request/1"
 #: the deepest ocean trench is about 11 km (Challenger Deep, from memory); a larger depth is a typing error
@@ -85,6 +88,20 @@ class RadarGeometry:
             "platform_speed_std_mps": self.platform_speed_std_mps,
             "source": self.source,
         }
+
+    @classmethod
+    def from_product(cls, g: PixelGeometry) -> RadarGeometry:
+        """The geometry a radar product states at one pixel (:meth:`~wakemeter.scene.s1_grd.GrdGeometry.at`),
+        with its uncertainties and its source."""
+        return cls(
+            g.slant_range_m,
+            g.platform_speed_mps,
+            g.look_bearing_deg,
+            g.incidence_deg,
+            slant_range_std_m=g.slant_range_std_m,
+            platform_speed_std_mps=g.platform_speed_std_mps,
+            source=f"{PRODUCT_GEOMETRY_SOURCE}: {g.source} at the vessel's pixel (line time {g.azimuth_time})",
+        )
 
     @classmethod
     def from_json(cls, data: Any) -> RadarGeometry:

@@ -38,6 +38,7 @@ import numpy as np
 from ..errors import SceneReadError
 from ..fileio import atomic_write_bytes
 from .cachedir import cache_dir
+from .safe_product import parse_product_xml
 
 #: speed of light in vacuum, m/s (exact by the SI definition of the metre)
 C_MPS = 299_792_458.0
@@ -109,12 +110,7 @@ def _pick(names: list[str], where: str) -> _Files:
 
 
 def _xml(data: bytes, name: str) -> ET.Element:
-    if len(data) > MAX_XML_BYTES:
-        raise SceneReadError(f"{name}: larger than a product's annotation can be")
-    try:
-        return ET.fromstring(data)
-    except ET.ParseError as err:
-        raise SceneReadError(f"{name}: not readable XML ({err})") from err
+    return parse_product_xml(data, name, MAX_XML_BYTES)
 
 
 def _local(el: ET.Element) -> str:

@@ -39,8 +39,9 @@ def _text(root: ET.Element, tag: str) -> str | None:
     return None
 
 
-def _root(data: bytes, name: str) -> ET.Element:
-    if len(data) > MAX_METADATA_BYTES:
+def parse_product_xml(data: bytes, name: str, limit: int = MAX_METADATA_BYTES) -> ET.Element:
+    """A product's XML file (metadata, annotation), refused in words when too large or not XML."""
+    if len(data) > limit:
         raise SceneReadError(f"{name}: larger than a product's metadata can be")
     try:
         return ET.fromstring(data)
@@ -76,7 +77,7 @@ def safe_vrt(folder: Path, mtd: Path) -> Path:
     """The virtual raster of the product's 10 m bands (first tile), with its time and spacecraft."""
     if mtd.stat().st_size > MAX_METADATA_BYTES:
         raise SceneReadError(f"{mtd.name}: larger than a product's metadata can be")
-    root = _root(mtd.read_bytes(), mtd.name)
+    root = parse_product_xml(mtd.read_bytes(), mtd.name)
     granules = sorted(p for p in (folder / "GRANULE").glob("*") if p.is_dir())
     if not granules:
         raise SceneReadError(f"{folder.name}: a Sentinel-2 product without a GRANULE folder (incomplete download?)")
@@ -116,7 +117,7 @@ def safe_zip_vrt(archive: Path) -> Path:
             )
         if zf.getinfo(mtd).file_size > MAX_METADATA_BYTES:
             raise SceneReadError(f"{mtd}: larger than a product's metadata can be")
-        root = _root(zf.read(mtd), mtd.split("/")[1])
+        root = parse_product_xml(zf.read(mtd), mtd.split("/")[1])
     top = mtd.split("/")[0]
     prefix = f"{top}/GRANULE/"
     granules = sorted({n[len(prefix) :].split("/")[0] for n in names if n.startswith(prefix) and n.count("/") > 2})
