@@ -173,6 +173,13 @@ class Tuning:
     line_partner_fraction: float = 0.3  #: ... when it reaches this share of the first line's significance
     line_partner_significance_min: float = 8.0  #: ... and at least this
     line_partner_dip: float = 0.5  #: ... and the fan between them falls below this share of the weaker one
+    #: a radar target's sidelobe cross (:func:`wakeline.sidelobe_cross`): its weakest arm must stand this far
+    #: above the water (standardised) and this far above the median orientation's; arms are measured over
+    #: this many pixels and blanked this far either side of their centre line
+    radar_cross_min_z: float = 1.0
+    radar_cross_margin_z: float = 0.8
+    radar_cross_arm_px: float = 24.0
+    radar_cross_halfwidth_px: float = 1.5
     narrow_v_max_deg: float = 6.0  #: a radar V narrower than this (half-angle) is the narrow (Bragg) V
     #: in optical scenes a dark line counts only this long (m): a hull's or a quay's shadow is a short dark line
     #: from a bright object, a calm wake in sun glint runs on for kilometres (common practice, no source)

@@ -150,6 +150,71 @@ def _line_scores(
     return np.stack([out, where])
 
 
+def _without_sidelobes(img: np.ndarray, valid: np.ndarray, chip: LineChip, angles: np.ndarray, t: Tuning) -> np.ndarray:
+    """Radar: a bright target's sidelobes draw a cross through its brightest point; its arms are no wake and are
+    set to the water's level before any line is scored."""
+    cross = sidelobe_cross(img, valid, chip, angles, t) if chip.radar else None
+    return img if cross is None else np.where(cross, 0.0, img)
+
+
+def sidelobe_cross(
+    img: np.ndarray, valid: np.ndarray, chip: LineChip, angles: np.ndarray, t: Tuning
+) -> np.ndarray | None:
+    """The pixels (a mask of the chip) of a bright target's sidelobe cross outside its core, or None.
+
+    A strong point target in a SAR image spreads its sidelobes along the range and azimuth directions: four
+    arms at right angles through its brightest point, each as bright as its opposite at the same distance from
+    that point (the impulse response is symmetric; Curlander & McDonough 1991, Synthetic Aperture Radar:
+    Systems and Signal Processing, from memory).  A wake leaves the hull one way only.  The cross is measured
+    from the brightest pixel of the hull's core: for each orientation the least bright of the four arms
+    (rays starting past the core in every direction), which must stand ``radar_cross_min_z`` above the water
+    and ``radar_cross_margin_z`` above the same measure's median over all orientations."""
+    if chip.hull is None or not chip.hull.core.any():
+        return None
+    core = np.where(chip.hull.core, chip.img, -np.inf)
+    pr, pc = np.unravel_index(int(np.argmax(core)), core.shape)
+    rr, cc = np.nonzero(chip.hull.core)  # the blob holds the arms' bright start: the core is the target
+    a = np.radians(angles)[:, None]
+    reach = np.clip(((cc - pc)[None, :] * np.cos(a) - (rr - pr)[None, :] * np.sin(a)).max(axis=1), 0.0, None)
+    quarter = angles.size // 4
+    r_s = np.max([np.roll(reach, -k * quarter) for k in range(4)], axis=0) + t.hull_clearance_px
+    length = t.radar_cross_arm_px
+    arms = np.full(angles.size, np.nan)
+    for k in range(angles.size):
+        r = np.arange(r_s[k], r_s[k] + length, 1.0)
+        v, ok = _rays(img, valid, (float(pr), float(pc)), angles[k : k + 1], r)
+        if ok[0].sum() >= 0.5 * r.size:
+            arms[k] = float(np.mean(v[0][ok[0]]))
+    four = np.stack([np.roll(arms, -k * quarter) for k in range(4)])
+    weakest = np.min(four, axis=0)[:quarter]  # each orientation once (0-90 degrees)
+    if not np.isfinite(weakest).any():
+        return None
+    best = int(np.nanargmax(weakest))
+    med = float(np.nanmedian(weakest))
+    if weakest[best] < t.radar_cross_min_z or weakest[best] - med < t.radar_cross_margin_z:
+        return None
+    # the arms as two lines through the peak, refined to a tenth of a degree, blanked to a few pixels' width
+    fine = np.arange(angles[best] - 1.5, angles[best] + 1.55, 0.1)
+    strength = []
+    for phi in fine:
+        total = 0.0
+        for k in range(4):
+            r = np.arange(r_s[(best + k * quarter) % angles.size], r_s[(best + k * quarter) % angles.size] + length)
+            v, ok = _rays(img, valid, (float(pr), float(pc)), np.array([phi + 90.0 * k]), r)
+            total += float(np.mean(v[0][ok[0]])) if ok[0].any() else 0.0
+        strength.append(total)
+    phi = np.radians(float(fine[int(np.argmax(strength))]))
+    yy, xx = np.mgrid[0 : img.shape[0], 0 : img.shape[1]]
+    dx, dy = xx - pc, pr - yy  # x right, y up
+    across_1 = np.abs(-dx * np.sin(phi) + dy * np.cos(phi))
+    across_2 = np.abs(dx * np.cos(phi) + dy * np.sin(phi))
+    # the arms leave from every bright point of the target: as wide as its core across them, and a margin
+    w1 = float(across_1[chip.hull.core].max()) + t.radar_cross_halfwidth_px
+    w2 = float(across_2[chip.hull.core].max()) + t.radar_cross_halfwidth_px
+    band = (across_1 <= w1) | (across_2 <= w2)
+    return band & ~chip.hull.core
+
+
 def find_wake_line(
     chip: LineChip, *, reach_m: float = 1200.0, rng_seed: int = 0, tuning: Tuning = DEFAULT_TUNING
 ) -> LineWake | None:
@@ -180,6 +245,7 @@ def find_wake_line(
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     origin = chip.vessel_rc
     start = None if chip.hull is None else chip.hull.extent_px(angles, whole=True)
+    img = _without_sidelobes(img, valid, chip, angles, t)
     fans: list = []
     # optical: a short dark line from a hull is its shadow (or a quay's), not a calm wake
     min_dark = 0.0 if chip.radar else t.optical_dark_line_min_m / chip.m_per_px

@@ -79,8 +79,31 @@ class RadarModel:
     narrow_v_half_angle_deg: float = 0.0
     narrow_v_brightness: float = 1.0
     psf_sigma_px: float = 0.0  #: the radar's impulse response as a Gaussian blur, pixels (0: none)
+    #: order nu of K-distributed sea clutter: the backscatter is modulated by a gamma texture of mean 1 and
+    #: shape nu (small nu: spiky, heavy-tailed clutter; Ward 1981, Electronics Letters 17(16), from memory);
+    #: 0 = no texture (plain speckle)
+    clutter_shape: float = 0.0
+    clutter_corr_px: float = 2.0  #: correlation length of that texture, pixels
+    #: peak sidelobe level of a bright target, relative to its peak (intensity; 0.01 = -20 dB): the impulse
+    #: response's sidelobes draw a cross along the range (look) and azimuth (flight) directions, this level at
+    #: the first pixel and falling as 1/k^2 beyond (a sinc^2's envelope; from memory).  0 = none
+    sidelobe_level: float = 0.0
+    sidelobe_extent_px: int = 96  #: how far the cross's arms are drawn, pixels
+    wake_width_factor: float = 1.0  #: the dark turbulent wake's width relative to the usual (beam-sized)
 
     def __post_init__(self) -> None:
+        if not (0 <= self.clutter_shape <= 100 and 0.5 <= self.clutter_corr_px <= 20):
+            raise ParameterError(
+                f"clutter_shape must be within [0, 100] and clutter_corr_px within [0.5, 20], got "
+                f"{self.clutter_shape!r} and {self.clutter_corr_px!r}"
+            )
+        if not (0 <= self.sidelobe_level < 0.5 and 4 <= self.sidelobe_extent_px <= 512):
+            raise ParameterError(
+                f"sidelobe_level must be within [0, 0.5) and sidelobe_extent_px within [4, 512], got "
+                f"{self.sidelobe_level!r} and {self.sidelobe_extent_px!r}"
+            )
+        if not 0.1 <= self.wake_width_factor <= 10:
+            raise ParameterError(f"wake_width_factor must be within [0.1, 10], got {self.wake_width_factor!r}")
         if not 0 < self.incidence_deg < 90:
             raise ParameterError(f"incidence_deg must be within (0, 90), got {self.incidence_deg!r}")
         if not isinstance(self.looks, int) or self.looks < 1:
@@ -200,6 +223,48 @@ def optical_pixels(
     return np.clip(np.round(b * top), 0, top).astype(model.dtype)
 
 
+def clutter_texture(shape: tuple[int, ...], nu: float, corr_px: float, rng: np.random.Generator) -> np.ndarray:
+    """A gamma texture of mean 1 and shape ``nu``, correlated over about ``corr_px`` pixels: a smoothed
+    Gaussian field mapped through its normal quantiles onto the gamma distribution (so each pixel's value is
+    exactly gamma distributed; times speckle, the intensity is K distributed)."""
+    from scipy import special, stats
+
+    g = ndimage.gaussian_filter(rng.standard_normal(shape), corr_px, mode="wrap")
+    g = g / max(float(g.std()), 1e-12)
+    u = np.clip(special.ndtr(g), 1e-9, 1 - 1e-9)
+    return stats.gamma.ppf(u, nu, scale=1.0 / nu).astype(np.float32)
+
+
+def sidelobe_cross(bright: np.ndarray, look_xy: tuple[float, float], model: RadarModel) -> np.ndarray:
+    """The sidelobes of the brightest targets (90 % of the peak or more): their intensity times
+    ``sidelobe_level (1.5 / (k + 0.5))^2`` at k = 1..extent pixels along the range and azimuth directions, both
+    ways (the envelope of a sinc^2 impulse response, from memory; ``sidelobe_level`` at k = 1)."""
+    from scipy.signal import fftconvolve
+
+    n = int(model.sidelobe_extent_px)
+    size = 2 * n + 1
+    kern = np.zeros((size, size), dtype=np.float64)
+    lx, ly = look_xy
+    for ax, ay in ((lx, ly), (-ly, lx)):  # range, then azimuth (perpendicular)
+        for k in range(1, n + 1):
+            level = model.sidelobe_level * (1.5 / (k + 0.5)) ** 2  # 1 at k = 1, then as 1/k^2
+            for sign in (1, -1):
+                c = n + sign * k * ax
+                r = n - sign * k * ay  # grid y is north, rows run south
+                c0, r0 = int(np.floor(c)), int(np.floor(r))
+                fc, fr = c - c0, r - r0
+                for dc, dr, w in (
+                    (0, 0, (1 - fc) * (1 - fr)),
+                    (1, 0, fc * (1 - fr)),
+                    (0, 1, (1 - fc) * fr),
+                    (1, 1, fc * fr),
+                ):
+                    if 0 <= c0 + dc < size and 0 <= r0 + dr < size:
+                        kern[r0 + dr, c0 + dc] += level * w
+    peak = np.where(bright >= 0.9 * bright.max(), bright, 0.0) if bright.max() > 0 else bright
+    return np.clip(fftconvolve(peak, kern, mode="same"), 0.0, None)
+
+
 def radar_pixels(
     slope_look: np.ndarray,
     wake: np.ndarray,
@@ -207,14 +272,20 @@ def radar_pixels(
     model: RadarModel,
     rng: np.random.Generator,
     narrow_v: np.ndarray | None = None,
+    look_xy: tuple[float, float] | None = None,
 ) -> np.ndarray:
-    """Float32 linear backscatter with speckle from the slope along the look direction (unit rms)."""
+    """Float32 linear backscatter with speckle from the slope along the look direction (unit rms);
+    ``look_xy``: the look direction on the grid (x east, y north), for the sidelobe cross."""
     sigma0 = 0.05
     s = sigma0 * np.clip(1.0 + 0.5 * model.tilt_gain * slope_look, 0.05, None)
     s = s * (1.0 - model.wake_darkening * wake) + sigma0 * model.hull_brightness * hull
     if narrow_v is not None:
         s = s + sigma0 * model.narrow_v_brightness * narrow_v
+    if model.sidelobe_level > 0 and look_xy is not None:
+        s = s + sidelobe_cross(sigma0 * model.hull_brightness * hull, look_xy, model)
     s = sensor_blur(s, model.psf_sigma_px)
+    if model.clutter_shape > 0:
+        s = s * clutter_texture(s.shape, model.clutter_shape, model.clutter_corr_px, rng)
     speckle = rng.gamma(model.looks, 1.0 / model.looks, s.shape)
     out = (s * speckle).astype(np.float32)
     # keep 10 mantissa bits (0.1 % precision, far below speckle) so scenes compress well

@@ -223,7 +223,12 @@ def render(spec: SceneSpec) -> RenderedScene:
         wake = np.maximum(
             wake,
             track_profile(
-                rel_x, rel_y, (ux, uy), beam_m=v.hull.beam_m, length_m=v.hull.length_m, decay_m=40 * v.hull.length_m
+                rel_x,
+                rel_y,
+                (ux, uy),
+                beam_m=v.hull.beam_m * (radar_m.wake_width_factor if radar_m is not None else 1.0),
+                length_m=v.hull.length_m,
+                decay_m=40 * v.hull.length_m,
             ),
         )
         if radar_m is not None and radar_m.narrow_v_half_angle_deg > 0:
@@ -379,6 +384,7 @@ def _image(sx, sy, centre, wake, hulls, narrow, radar_m, optical_m, rng) -> np.n
             radar_m,
             rng,
             narrow if radar_m.narrow_v_half_angle_deg > 0 else None,
+            look_xy=(lx, ly),
         )
     assert optical_m is not None
     lx, ly = _grid_direction(centre, optical_m.sun_azimuth_deg)
