@@ -315,3 +315,18 @@ def test_the_form_says_the_geometry_comes_from_the_product_and_typed_figures_win
     typed = form.request(hull, done.request).radar_geometry
     assert typed is not None and typed.slant_range_m == 850_000.0 and typed.source == "as given by the user"
     w.close()
+
+
+@pytest.mark.parametrize("seed", [0, 1])
+def test_a_hull_shifted_onto_its_wakes_side_is_still_the_vessel(tmp_path, cache, seed):
+    """Heading 230 deg with the radar looking east: the moving hull is imaged 290 m north of where its wake
+    starts (Raney 1971), on the side the wake runs to.  The wake from the true start passes the hull 20 px
+    away; before, any line from the start within 45 deg of the hull was taken for the far end of the wake and
+    the analysis said "no wake" on both seeds.  A start is refused only when its line runs onto the hull."""
+    p = radar_wake_product(tmp_path, speed_knots=12.0, heading_deg=230.0, hull=(110.0, 18.0), seed=seed)
+    with open_scene(p.safe) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=p.hull_px))
+    assert a.wake_found, a.decision
+    assert abs((a.heading_deg - 230.0 + 180.0) % 360.0 - 180.0) <= 2 * a.heading_std_deg
+    truth = p.truth["speed_mps"]
+    assert a.speed.ci95_low_mps <= truth <= a.speed.ci95_high_mps

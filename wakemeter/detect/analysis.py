@@ -270,11 +270,14 @@ def _displaced_lines(
     moved = look_for_lines(scene, apex.apex_px, request, tuning, hull_elsewhere=True, hull_axis_deg=axis)
     if not moved.found or moved.wake is None or moved.chip is None:
         return None, None
-    # the wake runs away from where the vessel was: a line from the "start" that heads back towards the hull
-    # means the start found is the far end of the wake
+    # the wake runs away from where the vessel was: a line from the "start" that runs back onto the hull means
+    # the start found is the far end of the hull's own wake.  A hull shifted in azimuth (Raney 1971) lies off
+    # the line from the true start, by the shift times the sine of the angle between wake and flight, so only
+    # a hull close to the line's continuation is refused (a hull merely on the wake's side of the start is not)
     dc, dr = hull_px[0] - apex.apex_px[0], hull_px[1] - apex.apex_px[1]
-    to_hull = float(np.degrees(np.arctan2(-dr, dc)))
-    if abs((moved.wake.back_deg - to_hull + 180.0) % 360.0 - 180.0) < 45.0:
+    b = np.radians(moved.wake.back_deg)
+    along, across = dc * np.cos(b) - dr * np.sin(b), abs(dc * np.sin(b) + dr * np.cos(b))
+    if along > 0 and across <= max(tuning.apex_far_end_px, tuning.apex_far_end_share * along):
         return None, None
     return moved, hull_px
 

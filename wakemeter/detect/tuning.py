@@ -156,6 +156,10 @@ class Tuning:
     apex_line_significance_min: float = 5.0
     #: ... and its darkness must step up this far (robust spreads of the along-line profile) at the apex
     apex_step_contrast_min: float = 1.0
+    #: a wake line from a displaced start that runs onto the hull (within this many pixels, or this share of
+    #: the distance along the line) starts at the far end of the hull's own wake: refused
+    apex_far_end_px: float = 3.0
+    apex_far_end_share: float = 0.25
     # ---- the wake-line search (wakeline.py; values as set with benchmarks/real_sweep.py and the radar line
     # scenes of tests/test_lines.py) ----
     hull_clearance_px: float = 1.5  #: rays start this far beyond the hull's edge (chip pixels)
