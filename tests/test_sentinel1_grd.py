@@ -187,6 +187,17 @@ def test_the_evidence_names_where_the_radar_geometry_came_from(tmp_path, cache, 
     assert safe.name in text  # the evidence names the product opened, not the cache's virtual raster
 
 
+def test_a_cache_cleaned_in_part_is_written_again(product):
+    safe, _, _ = product
+    with open_scene(safe) as sc:
+        first, _ = sc.read_full()
+        gain = next(p for p in map(Path, sc.info.files) if p.name.endswith("_gain.tif"))
+    gain.unlink()  # the user deleted part of the cache folder
+    with open_scene(safe) as sc:
+        again, _ = sc.read_full()
+    assert np.array_equal(first, again)
+
+
 def test_the_zip_is_the_same_scene_read_inside_the_archive(product, tmp_path, capsys):
     safe, _, _ = product
     (tmp_path / "downloads").mkdir()
@@ -222,6 +233,13 @@ def _break(safe: Path, what: str) -> None:
     elif what == "no measurement":
         shutil.rmtree(safe / "measurement")
         (safe / "measurement").mkdir()
+    elif what == "empty measurement":
+        next((safe / "measurement").glob("*vv*.tiff")).write_bytes(b"")
+    elif what == "negative gain":
+        cal = next((safe / "annotation" / "calibration").glob("*vv*.xml"))
+        text = cal.read_text()
+        i = text.index(">", text.index("<sigmaNought")) + 1
+        cal.write_text(text[:i] + "-1 " + text[i:].split(" ", 1)[1])
     elif what == "no grid":
         root = ann.read_text()
         cut = root[: root.index("<geolocationGrid>")] + "</product>\n"
@@ -237,6 +255,8 @@ def _break(safe: Path, what: str) -> None:
         ("size", "but its annotation says"),
         ("no measurement", "without a GRD measurement raster"),
         ("no grid", "has no geolocation grid"),
+        ("empty measurement", "cannot be read - it may be truncated or corrupt"),
+        ("negative gain", "a calibration value that is not a positive number"),
     ],
 )
 def test_a_damaged_product_is_refused_in_words(product, what, said, capsys):

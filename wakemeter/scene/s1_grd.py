@@ -288,8 +288,10 @@ def calibration_table(root: ET.Element, where: str) -> tuple[np.ndarray, np.ndar
             a = np.array(_text(v, "sigmaNought", where).split(), dtype=float)
         except ValueError as err:
             raise SceneReadError(f"{where}: a calibration vector that is not numbers ({err})") from err
-        if px.size != a.size or px.size < 2 or not np.all(np.isfinite(a)) or np.any(a <= 0) or np.any(np.diff(px) <= 0):
+        if px.size != a.size or px.size < 2 or np.any(np.diff(px) <= 0):
             raise SceneReadError(f"{where}: a calibration vector whose pixels and values do not match")
+        if not np.all(np.isfinite(a)) or np.any(a <= 0):
+            raise SceneReadError(f"{where}: a calibration value that is not a positive number (a damaged table)")
         pix0 = px if pix0 is None else pix0
         lines.append(line)
         table.append(a if np.array_equal(px, pix0) else np.interp(pix0, px, a))
@@ -398,8 +400,15 @@ def _write_vrt(product: Product, read: Callable[[str], bytes], top_name: str, ke
     f = product.files
     cal_name = f.calibration.rsplit("/", 1)[-1]
     lines, pixels, a = calibration_table(_xml(read(f.calibration), cal_name), cal_name)
-    with rasterio.open(f.measurement) as ds:
-        width, height, dtype = ds.width, ds.height, ds.dtypes[0]
+    try:
+        with rasterio.open(f.measurement) as ds:
+            width, height, dtype = ds.width, ds.height, ds.dtypes[0]
+    except rasterio.errors.RasterioError as err:
+        name = f.measurement.rsplit("/", 1)[-1]
+        raise SceneReadError(
+            f"{top_name}: the measurement raster {name} cannot be read - it may be truncated or corrupt (an "
+            f"incomplete download?) ({err})"
+        ) from err
     if (width, height) != (product.width, product.height):
         raise SceneReadError(
             f"{top_name}: the measurement raster is {width} x {height} pixels but its annotation says "
@@ -411,10 +420,10 @@ def _write_vrt(product: Product, read: Callable[[str], bytes], top_name: str, ke
     folder = cache_dir() / "sar_products" / key
     stem = re.sub(r"[^A-Za-z0-9_.\-]+", "_", top_name.removesuffix(".zip").removesuffix(".SAFE")).strip("_") or "grd"
     target = folder / f"{stem}_{f.polarisation}_sigma0.vrt"
-    if target.exists():
+    gain_path = folder / f"{stem}_{f.polarisation}_gain.tif"
+    if target.exists() and gain_path.exists():  # both, or the cache was cleaned in part: written again
         return target
     gain = gain_grid(lines, pixels, a, width, height)
-    gain_path = folder / f"{stem}_{f.polarisation}_gain.tif"
     folder.mkdir(parents=True, exist_ok=True)
     _write_gain(gain, gain_path)
     fit = fit_georeference(product.geometry)
