@@ -27,7 +27,7 @@ from wakemeter.detect.request import AnalysisRequest
 from wakemeter.errors import SceneReadError
 from wakemeter.scene import geodesy
 from wakemeter.scene.raster import open_scene
-from wakemeter.scene.s1_grd import GrdGeometry, fit_georeference
+from wakemeter.scene.sar_geometry import GrdGeometry, fit_georeference
 from wakemeter.synth.grd_product import (
     Track,
     _annotation,

@@ -19,7 +19,7 @@ from ..errors import ParameterError
 from ..physics.inversion import Uncertain
 
 if TYPE_CHECKING:
-    from ..scene.s1_grd import PixelGeometry
+    from ..scene.sar_geometry import PixelGeometry
 
 REQUEST_SCHEMA = "wakemeter.request/1"
 #: the deepest ocean trench is about 11 km (Challenger Deep, from memory); a larger depth is a typing error
@@ -91,7 +91,7 @@ class RadarGeometry:
 
     @classmethod
     def from_product(cls, g: PixelGeometry) -> RadarGeometry:
-        """The geometry a radar product states at one pixel (:meth:`~wakemeter.scene.s1_grd.GrdGeometry.at`),
+        """The geometry a radar product states at one pixel (:meth:`~wakemeter.scene.sar_geometry.GrdGeometry.at`),
         with its uncertainties and its source."""
         return cls(
             g.slant_range_m,

@@ -34,7 +34,7 @@ from ..errors import GeoreferenceError, ParameterError, SceneReadError
 from . import geodesy, limits
 
 if TYPE_CHECKING:
-    from .s1_grd import GrdGeometry
+    from .sar_geometry import GrdGeometry
 
 # Scenes without georeference are reported by SceneInfo.georeferenced; rasterio's warning adds nothing
 # (and catching it per call is not thread-safe, so it is filtered once here).

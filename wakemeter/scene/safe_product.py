@@ -15,10 +15,9 @@ from pathlib import Path
 
 from ..errors import SceneReadError
 from .band_set import BandFile, write_vrt
+from .product_xml import MAX_METADATA_BYTES, parse_product_xml
 
 METADATA_FILES = ("MTD_MSIL2A.xml", "MTD_MSIL1C.xml")
-#: the largest metadata file read (a product's is a few hundred kB)
-MAX_METADATA_BYTES = 8 * 1024**2
 TEN_METRE_BANDS = ("B02", "B03", "B04", "B08")
 _BAND_IN_NAME = re.compile(r"_(B\d{2}|B8A)(?:_10m)?\.jp2$", re.IGNORECASE)
 
@@ -37,16 +36,6 @@ def _text(root: ET.Element, tag: str) -> str | None:
         if el.tag.rsplit("}", 1)[-1] == tag and el.text and el.text.strip():
             return el.text.strip()
     return None
-
-
-def parse_product_xml(data: bytes, name: str, limit: int = MAX_METADATA_BYTES) -> ET.Element:
-    """A product's XML file (metadata, annotation), refused in words when too large or not XML."""
-    if len(data) > limit:
-        raise SceneReadError(f"{name}: larger than a product's metadata can be")
-    try:
-        return ET.fromstring(data)
-    except ET.ParseError as err:
-        raise SceneReadError(f"{name}: the product's metadata is not readable XML ({err})") from err
 
 
 def _ten_metre(jp2s: list[str]) -> dict[str, str]:
