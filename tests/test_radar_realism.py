@@ -89,3 +89,23 @@ def test_a_moored_ship_with_a_sidelobe_cross_has_no_wake(seed, tmp_path):
         for dc in (0.0, 3.0):
             a = analyze(sc, AnalysisRequest(vessel_px=(t["pixel_col"] + dc, t["pixel_row"])))
             assert not a.wake_found, a.decision
+
+
+def test_a_moored_hull_beside_a_swell_trough_is_no_wake_once_the_geometry_is_known(tmp_path):
+    """A ship that does not move, in real-looking radar with a swell: without the radar geometry a swell's trough
+    that starts near the hull is taken for a wake displaced from it (heading 177 deg off, "dark calm band",
+    significance 9.9 where 9 is needed; radar_realism_sweep seed 5).  A radar shifts a moving hull along the
+    flight direction only (Raney 1971): with the geometry known, a start that does not lie on the flight axis
+    through the hull is not the vessel's, and the analysis says "no wake"."""
+    from wakemeter.detect.request import RadarGeometry
+    from wakemeter.synth.cases import realistic_radar
+
+    case = make_case(5, radar=True)
+    calm = realistic_radar(case.spec.imaging, np.random.default_rng(20_005), wake=False)
+    spec = replace(case.spec, imaging=calm, vessels=(replace(case.spec.vessels[0], speed_mps=0.05),))
+    tif, side = write(render(spec), tmp_path / "moored_swell.tif")
+    t = json.loads(side.read_text())["vessels"][0]
+    geo = RadarGeometry(calm.slant_range_m, calm.platform_speed_mps, calm.look_bearing_deg, calm.incidence_deg)
+    with open_scene(tif) as sc:
+        known = analyze(sc, AnalysisRequest(vessel_px=(t["pixel_col"], t["pixel_row"]), radar_geometry=geo))
+    assert not known.wake_found, known.decision

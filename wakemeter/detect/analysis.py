@@ -241,11 +241,28 @@ def _from_displaced_apex(scene: Scene, request: AnalysisRequest, first: _Attempt
         apex = find_displaced_apex(
             scene, first.vessel_px, step=first.look.chip.step, size_px=tuning.chip_px, radar=True, tuning=tuning
         )
-        if apex is None:
+        if apex is None or not _along_azimuth(scene, request, first.vessel_px, apex.apex_px, tuning):
             return None
         return _attempt(scene, request, apex.apex_px, radar=True, hull_px=first.vessel_px, tuning=tuning)
     except ParameterError:  # the wake's start lies too near the scene's edge to analyse: keep "no wake"
         return None
+
+
+def _along_azimuth(
+    scene: Scene, request: AnalysisRequest, hull_px: tuple[float, float], start_px: tuple[float, float], t: Tuning
+) -> bool:
+    """Whether a wake start found away from the hull can be where the radar shifted it from: a moving target is
+    imaged shifted along the flight direction only (Raney 1971), so with the geometry known (typed, or read
+    from the product) the hull must lie on the flight axis through the start, within ``apex_off_azimuth_px``
+    or ``apex_off_azimuth_share`` of their distance; without the geometry nothing is checked."""
+    geo = request.radar_geometry
+    if geo is None:
+        return True
+    fdc, fdr = scene.local_frame(*hull_px).image_direction(geo.flight_bearing_deg)
+    dc, dr = start_px[0] - hull_px[0], start_px[1] - hull_px[1]
+    norm = float(np.hypot(fdc, fdr)) or 1.0
+    across = abs(dc * fdr - dr * fdc) / norm
+    return across <= max(t.apex_off_azimuth_px, t.apex_off_azimuth_share * float(np.hypot(dc, dr)))
 
 
 def _displaced_lines(
@@ -263,7 +280,7 @@ def _displaced_lines(
         apex = find_displaced_apex(scene, hull_px, size_px=tuning.chip_px, radar=True, tuning=tuning)
     except ParameterError:
         return None, None
-    if apex is None:
+    if apex is None or not _along_azimuth(scene, request, hull_px, apex.apex_px, tuning):
         return None, None
     h = chip.hull
     axis = h.axis_deg if h.length_m >= tuning.hull_elongation_min * h.width_m else None

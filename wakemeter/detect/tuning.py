@@ -160,6 +160,10 @@ class Tuning:
     #: the distance along the line) starts at the far end of the hull's own wake: refused
     apex_far_end_px: float = 3.0
     apex_far_end_share: float = 0.25
+    #: with the radar geometry known, a wake start away from the hull must lie on the flight axis through the
+    #: hull within this many pixels or this share of their distance (the start is found to a few pixels)
+    apex_off_azimuth_px: float = 5.0
+    apex_off_azimuth_share: float = 0.25
     # ---- the wake-line search (wakeline.py; values as set with benchmarks/real_sweep.py and the radar line
     # scenes of tests/test_lines.py) ----
     hull_clearance_px: float = 1.5  #: rays start this far beyond the hull's edge (chip pixels)
