@@ -23,7 +23,7 @@ from ..physics.inversion import Uncertain
 from ..physics.units import KNOT_MPS
 
 TYPED_GEOMETRY = "Radar geometry (hull offset from its wake)"
-PRODUCT_GEOMETRY = "Radar geometry: read from the product (tick to type other figures)"
+PRODUCT_GEOMETRY = "Radar geometry (read from the product)"
 
 
 def _spin(lo: float, hi: float, dec: int, suffix: str, tip: str, special: str = "unknown") -> QDoubleSpinBox:
