@@ -57,7 +57,8 @@ def add_request_options(p: argparse.ArgumentParser, *, position: bool = True) ->
     p.add_argument(
         "--radar-geometry",
         metavar="R,V,LOOK,INC",
-        help="radar: slant range m, platform speed m/s, look bearing deg, incidence deg",
+        help="radar: slant range m, platform speed m/s, look bearing deg, incidence deg (a Sentinel-1 GRD "
+        "product gives its own at the vessel's pixel; these figures replace them)",
     )
     p.add_argument(
         "--current",
