@@ -172,40 +172,27 @@ def sidelobe_cross(
     if chip.hull is None or not chip.hull.core.any():
         return None
     core = np.where(chip.hull.core, chip.img, -np.inf)
-    pr, pc = np.unravel_index(int(np.argmax(core)), core.shape)
+    peak = np.unravel_index(int(np.argmax(core)), core.shape)
     rr, cc = np.nonzero(chip.hull.core)  # the blob holds the arms' bright start: the core is the target
     a = np.radians(angles)[:, None]
-    reach = np.clip(((cc - pc)[None, :] * np.cos(a) - (rr - pr)[None, :] * np.sin(a)).max(axis=1), 0.0, None)
+    reach = np.clip(((cc - peak[1])[None, :] * np.cos(a) - (rr - peak[0])[None, :] * np.sin(a)).max(axis=1), 0.0, None)
     quarter = angles.size // 4
     r_s = np.max([np.roll(reach, -k * quarter) for k in range(4)], axis=0) + t.hull_clearance_px
-    length = t.radar_cross_arm_px
-    arms = np.full(angles.size, np.nan)
-    for k in range(angles.size):
-        r = np.arange(r_s[k], r_s[k] + length, 1.0)
-        v, ok = _rays(img, valid, (float(pr), float(pc)), angles[k : k + 1], r)
-        if ok[0].sum() >= 0.5 * r.size:
-            arms[k] = float(np.mean(v[0][ok[0]]))
-    four = np.stack([np.roll(arms, -k * quarter) for k in range(4)])
-    weakest = np.min(four, axis=0)[:quarter]  # each orientation once (0-90 degrees)
+    arms = _arm_means(img, valid, peak, angles, r_s, t, whole=True)
+    weakest = arms.reshape(4, quarter).min(axis=0)  # each orientation once: its least bright arm
     if not np.isfinite(weakest).any():
         return None
     best = int(np.nanargmax(weakest))
-    med = float(np.nanmedian(weakest))
-    if weakest[best] < t.radar_cross_min_z or weakest[best] - med < t.radar_cross_margin_z:
+    if weakest[best] < t.radar_cross_min_z or weakest[best] - float(np.nanmedian(weakest)) < t.radar_cross_margin_z:
         return None
-    # the arms as two lines through the peak, refined to a tenth of a degree, blanked to a few pixels' width
+    # the arms' orientation refined to a tenth of a degree: the strongest sum of the four arms
     fine = np.arange(angles[best] - 1.5, angles[best] + 1.55, 0.1)
-    strength = []
-    for phi in fine:
-        total = 0.0
-        for k in range(4):
-            r = np.arange(r_s[(best + k * quarter) % angles.size], r_s[(best + k * quarter) % angles.size] + length)
-            v, ok = _rays(img, valid, (float(pr), float(pc)), np.array([phi + 90.0 * k]), r)
-            total += float(np.mean(v[0][ok[0]])) if ok[0].any() else 0.0
-        strength.append(total)
-    phi = np.radians(float(fine[int(np.argmax(strength))]))
+    four = (fine[None, :] + 90.0 * np.arange(4)[:, None]).ravel()
+    starts = np.repeat(r_s[(best + quarter * np.arange(4)) % angles.size], fine.size)
+    total = _arm_means(img, valid, peak, four, starts, t, whole=False).reshape(4, -1).sum(axis=0)
+    phi = np.radians(float(fine[int(np.argmax(total))]))
     yy, xx = np.mgrid[0 : img.shape[0], 0 : img.shape[1]]
-    dx, dy = xx - pc, pr - yy  # x right, y up
+    dx, dy = xx - peak[1], peak[0] - yy  # x right, y up
     across_1 = np.abs(-dx * np.sin(phi) + dy * np.cos(phi))
     across_2 = np.abs(dx * np.cos(phi) + dy * np.sin(phi))
     # the arms leave from every bright point of the target: as wide as its core across them, and a margin
@@ -213,6 +200,15 @@ def sidelobe_cross(
     w2 = float(across_2[chip.hull.core].max()) + t.radar_cross_halfwidth_px
     band = (across_1 <= w1) | (across_2 <= w2)
     return band & ~chip.hull.core
+
+
+def _arm_means(img, valid, peak, angles: np.ndarray, starts: np.ndarray, t: Tuning, *, whole: bool) -> np.ndarray:
+    """Mean along each ray from ``peak`` over its valid pixels among ``radar_cross_arm_px`` past its start; with
+    ``whole``, NaN when less than half of them are valid, else 0 when none is."""
+    v, ok = _rays(img, valid, (float(peak[0]), float(peak[1])), angles, np.arange(0.0, t.radar_cross_arm_px), starts)
+    n = ok.sum(axis=1)
+    mean = np.where(ok > 0, v, 0.0).sum(axis=1) / np.maximum(n, 1)
+    return np.where(n >= 0.5 * ok.shape[1], mean, np.nan) if whole else mean
 
 
 def find_wake_line(
