@@ -17,13 +17,17 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from ..detect.request import PRODUCT_GEOMETRY_SOURCE as PRODUCT_SOURCE
-from ..detect.request import AnalysisRequest, RadarGeometry, SpeedLimit, WaterCurrent
+from ..detect.request import PRODUCT_GEOMETRY_SOURCE, AnalysisRequest, RadarGeometry, SpeedLimit, WaterCurrent
 from ..physics.inversion import Uncertain
 from ..physics.units import KNOT_MPS
 
 TYPED_GEOMETRY = "Radar geometry (hull offset from its wake)"
 PRODUCT_GEOMETRY = "Radar geometry (read from the product)"
+TYPED_GEOMETRY_TIP = "Enables the azimuth-offset method for radar scenes (Raney 1971)"
+PRODUCT_GEOMETRY_TIP = (
+    "The scene's own radar geometry (slant range, platform speed, look bearing, incidence) is read at the vessel's "
+    "pixel; tick to give other figures"
+)
 
 
 def _spin(lo: float, hi: float, dec: int, suffix: str, tip: str, special: str = "unknown") -> QDoubleSpinBox:
@@ -61,7 +65,7 @@ class RequestForm(QGroupBox):
         )
         form.addRow(self.assume_vessel)
         self.use_radar = QCheckBox(TYPED_GEOMETRY)
-        self.use_radar.setToolTip("Enables the azimuth-offset method for radar scenes (Raney 1971)")
+        self.use_radar.setToolTip(TYPED_GEOMETRY_TIP)
         form.addRow(self.use_radar)
         self.slant = _spin(0.0, 2e6, 0, "m", "Slant range from the radar to the vessel", special="-")
         self.vplat = _spin(0.0, 10000.0, 0, "m/s", "Platform (satellite or aircraft) speed", special="-")
@@ -154,7 +158,7 @@ class RequestForm(QGroupBox):
             old = base.radar_geometry
             rg = (
                 RadarGeometry(r, v, look, inc)
-                if old is None or old.source.startswith(PRODUCT_SOURCE)  # typed figures are the user's own
+                if old is None or old.source.startswith(PRODUCT_GEOMETRY_SOURCE)  # typed figures are the user's own
                 else replace(old, slant_range_m=r, platform_speed_mps=v, look_bearing_deg=look, incidence_deg=inc)
             )
         limit, current = self.limit_and_current()
@@ -190,19 +194,14 @@ class RequestForm(QGroupBox):
         """A radar product that carries its geometry gives the azimuth-offset method its figures: the box then
         says so, and ticking it types other figures instead."""
         self.use_radar.setText(PRODUCT_GEOMETRY if present else TYPED_GEOMETRY)
-        self.use_radar.setToolTip(
-            "The scene's own radar geometry (slant range, platform speed, look bearing, incidence) is read at the "
-            "vessel's pixel; tick to give other figures"
-            if present
-            else "Enables the azimuth-offset method for radar scenes (Raney 1971)"
-        )
+        self.use_radar.setToolTip(PRODUCT_GEOMETRY_TIP if present else TYPED_GEOMETRY_TIP)
 
     def set_request(self, req: AnalysisRequest | None) -> None:
         self.depth_input.setValue(req.depth.value if req is not None and req.depth is not None else 0.0)
         self.depth_std.setValue(req.depth.std if req is not None and req.depth is not None else 0.0)
         self.hull.setValue(req.hull_length_m or 0.0 if req is not None else 0.0)
         rg = None if req is None else req.radar_geometry
-        if rg is not None and rg.source.startswith(PRODUCT_SOURCE):
+        if rg is not None and rg.source.startswith(PRODUCT_GEOMETRY_SOURCE):
             rg = None  # read from the product at the vessel's pixel on each analysis: nothing typed to show
         self.use_radar.setChecked(rg is not None)
         self.assume_vessel.setChecked(bool(req is not None and req.force))

@@ -258,10 +258,9 @@ def _along_azimuth(
     geo = request.radar_geometry
     if geo is None:
         return True
-    fdc, fdr = scene.local_frame(*hull_px).image_direction(geo.flight_bearing_deg)
+    fdc, fdr = scene.local_frame(*hull_px).image_direction(geo.flight_bearing_deg)  # unit length, in pixels
     dc, dr = start_px[0] - hull_px[0], start_px[1] - hull_px[1]
-    norm = float(np.hypot(fdc, fdr)) or 1.0
-    across = abs(dc * fdr - dr * fdc) / norm
+    across = abs(dc * fdr - dr * fdc)
     return across <= max(t.apex_off_azimuth_px, t.apex_off_azimuth_share * float(np.hypot(dc, dr)))
 
 

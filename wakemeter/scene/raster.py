@@ -241,7 +241,9 @@ class Scene:
                 paths += sorted(
                     Path(f) for f in self.info.files if f not in inside and Path(f).resolve() != self.info.path
                 )
-                ann = self.info.tags.get("SAR_ANNOTATION", "")
+                from .s1_grd import ANNOTATION_TAG
+
+                ann = self.info.tags.get(ANNOTATION_TAG, "")
                 if ann and not ann.startswith("/vsizip/"):  # a radar product's geometry is read from it
                     paths.append(Path(ann))
             for path in paths:
@@ -421,10 +423,11 @@ def open_scene(path: str | os.PathLike, *, allow_system_files: bool = False) -> 
         raise SceneReadError(f"{p}: the file's header is not valid ({err})") from err
     if p != given:
         info = replace(info, opened_as=given.resolve())
-    if info.tags.get("GEOREFERENCE_NOTE"):
-        info = replace(info, georeference_note=info.tags["GEOREFERENCE_NOTE"])
+    from .s1_grd import GEOREFERENCE_TAG, geometry_for
+
+    if info.tags.get(GEOREFERENCE_TAG):  # a product's own account of its georeference (fitted to tie points)
+        info = replace(info, georeference_note=info.tags[GEOREFERENCE_TAG])
     scene = _with_photo_scale(info)
-    from .s1_grd import geometry_for
 
     scene.radar_product = geometry_for(info.tags)
     return scene
