@@ -10,7 +10,8 @@ import numpy as np
 import pytest
 
 from wakemeter.detect.analysis import AnalysisRequest, analyze
-from wakemeter.detect.vessel_finder import VesselCandidate, _solid_part, find_vessels, one_per_vessel
+from wakemeter.detect.hull_centre import opened
+from wakemeter.detect.vessel_finder import VesselCandidate, find_vessels, one_per_vessel
 from wakemeter.scene.raster import open_scene
 from wakemeter.synth import write
 from wakemeter.synth.fleet import fleet_spec
@@ -97,7 +98,7 @@ def test_the_solid_part_keeps_a_hull_where_it_is_and_drops_thin_crests():
     img[10:14, 5:15] = 1.0  # a hull 4 px wide
     img[25, :] = 1.0  # a crest 1 px wide
     for k in (2, 3, 4):
-        out = _solid_part(img, k)
+        out = opened(img, k)
         assert np.array_equal(out[10:14, 5:15], img[10:14, 5:15]), k
         assert out[25].max() == 0.0 and out.sum() == img[10:14, 5:15].sum(), k
 

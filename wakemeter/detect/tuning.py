@@ -335,6 +335,24 @@ class Tuning:
     #: its centre is the weighted centre of the pixels next to the peak, weighted by their excess over this share
     #: of the peak
     finder_centre_share: float = 0.5
+    #: the position is then refined at full resolution (hull_centre.py): the hull is the connected pixels around
+    #: the peak whose excess over the water is at least a share of the peak's (an outline at a fixed fraction
+    #: of the peak contrast; common practice, no source; measured against the real ports' hull outlines and
+    #: synthetic fleets, benchmarks/vessel_finder_sweep.py), the first of these shares whose outline closes
+    finder_refine_shares: tuple[float, ...] = (0.3, 0.4, 0.5, 0.6, 0.7)
+    #: ... whose solidity (area over its convex hull's; scikit-image regionprops) is at least this: the 101 real
+    #: hull outlines of the Sentinel-2 ports (COCO, drawn by hand) have 0.80-0.95; a hull joined to a wake's crest
+    #: or arm is not convex
+    finder_refine_solidity: float = 0.75
+    #: ... and at least this wide (the width of a uniform bar from its second moments): a hull is resolved across
+    #: only over two pixels or more (sampling: two samples per period); narrower, the sensor's blur or a foam
+    #: streak makes the outline, and the finder's peak is the better centre (the synthetic Sentinel-2-like fleets
+    #: at 10 m: 23 of 24 within 2 px either way)
+    finder_refine_min_width_px: float = 2.0
+    #: ... sought within this share of the detection's length plus finder_merge_m of the candidate, and at least
+    #: finder_refine_min_m (the whole detection: a long even hull's peak can lie at one of its ends)
+    finder_refine_reach: float = 1.0
+    finder_refine_min_m: float = 20.0
     # ---- two analysed rows that are one vessel (same_vessel.py) ----
     #: vessels this close after analysis are one (a hull's length at the sizes the finder keeps; common
     #: practice, no source)

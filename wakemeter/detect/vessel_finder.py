@@ -40,6 +40,7 @@ from ..scene.land_layer import LandLayer
 from ..scene.raster import Scene, one_pass_cache
 from ..scene.sensor import BandRole, band_roles
 from .blob_shape import blob_shape
+from .hull_centre import opened, refined
 from .line_chip import green_nir_bands
 from .pixels import index_to_scene
 from .tuning import DEFAULT_TUNING, Tuning
@@ -62,6 +63,9 @@ class VesselCandidate:
     pfa: float  #: false-alarm probability per pixel at that score
     pixels: int  #: pixels of the hull (the brightest part of the detection)
     merged: int = 0  #: other detections folded into this vessel (its wake, foam or plume, or a second look)
+    #: length of the detection where the hull is sought (the whole of an evenly bright one, the head of a
+    #: fading trail): how far its outline is followed at full resolution (hull_centre.py)
+    reach_m: float = dataclasses.field(default=0.0, compare=False)
 
     def to_json(self) -> dict:
         return {
@@ -166,9 +170,13 @@ def find_vessels(
     gn = green_nir_bands(scene.info.band_descriptions)
     solid = max(1, int(round(t.finder_solid_m / m_px)))
     bands = _detection_bands(scene)
+    nir = _nir_band(scene)
+    in_db = False
     if radar is None:
         sample, ok = scene.read(window=(c0, r0, min(c1 - c0, 512), min(r1 - r0, 512)), bands=(1,))
-        radar = scene.info.count == 1 and display.looks_like_radar(scene.info.dtype, 1, sample[0][ok[0]][:100_000])
+        values = sample[0][ok[0]][:100_000]
+        radar = scene.info.count == 1 and display.looks_like_radar(scene.info.dtype, 1, values)
+        in_db = radar and display.looks_like_radar_db(scene.info.dtype, 1, values)
     tiles = [(tc, tr) for tr in range(r0, r1, tile) for tc in range(c0, c1, tile)]
     read_bands = tuple(sorted(set(bands) | (set(gn) if gn and not radar else set())))
 
@@ -183,6 +191,10 @@ def find_vessels(
         return scene.read(window=full, out_shape=(full[3] // step, full[2] // step), bands=read_bands)
 
     found: list[VesselCandidate] = []
+    # each vessel's position is refined to the centre of its hull's outline at full resolution (hull_centre.py:
+    # the search grid is coarser at fine pixels, and a hull's brightest point is not its centre), in the near
+    # infrared where there is one (foam is darker there)
+    band = bands[0] if radar else (nir if nir in bands else bands[0])
     # the next window is read in a second thread while this one is searched (GDAL reads outside the GIL; each
     # thread has its own handle on the file)
     with one_pass_cache(), ThreadPoolExecutor(max_workers=1, thread_name_prefix="finder-read") as reader:
@@ -198,30 +210,46 @@ def find_vessels(
             idx = {b: i for i, b in enumerate(read_bands)}
             ok = np.all(valid, axis=0)
             sea = ok if land is None else ok & ~land.mask(scene.georef, full, ok.shape)
-            nir = _nir_band(scene)
             if radar:
                 det, score, pfa_at = _cfar_radar(data[idx[bands[0]]], sea, guard, back, pfa_px)
                 water = sea
                 locate = score
                 link = sea & (score > t.finder_link_share)  # score: intensity over its threshold
             else:
-                water = sea.copy()
-                if gn is not None:
-                    g, n = data[idx[gn[0]]], data[idx[gn[1]]]
-                    ndwi = (g - n) / np.maximum(g + n, 1e-6)
-                    water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px, t)
-                zs = _anomaly_optical([_solid_part(data[idx[b]], solid) for b in bands], water, guard, back)
-                det, score, pfa_at, thr = _threshold(zs, water, pfa_px, m_px, t)
-                link = water & (score > t.finder_link_share * thr)
-                # the hull is told from its foam in the near infrared, where foam is far darker than a hull
-                locate = zs[bands.index(nir)] if nir in bands else score
+                pix = {b: data[i] for b, i in idx.items()}
+                found_here = _optical(pix, ok, sea, gn, bands, nir, (guard, back, solid), pfa_px, m_px, t)
+                det, score, pfa_at, link, locate, water = found_here
             link = _bridged(link | det, m_px, t)
-            found += _blobs(
-                scene, det, score, locate, pfa_at, water, ok, (win, step), core, m_px, frame, link, radar, t
-            )
+            new = _blobs(scene, det, score, locate, pfa_at, water, ok, (win, step), core, m_px, frame, link, radar, t)
+            if step == 1:  # the window in hand is at full resolution
+                held = ((int(win[0]), int(win[1])), data[idx[band]], ok)
+                new = [refined(scene, c, band, in_db, m_px, t, held) for c in new]
+                del held  # or this window's pixels would outlive it into the next one's search
+            found += new
             if progress is not None:
                 progress((k + 1) / len(tiles))
-    return one_per_vessel(found, m_px / step, t)
+        found = one_per_vessel(found, m_px / step, t)
+        if step > 1:  # searched on a coarser grid: each vessel's neighbourhood is read at full resolution
+            found = [refined(scene, c, band, in_db, m_px / step, t) for c in found]
+    return found
+
+
+def _optical(pix, ok, sea, gn, bands, nir, sizes, pfa_px, m_px, t: Tuning):
+    """Optical detections in one window: (detections, score, pfa_at, object mask, the signal that locates a
+    hull, water).  ``pix``: band number to pixels; ``nir``: the near-infrared band or None; ``sizes``: the guard
+    and background windows and the opening's width, px."""
+    guard, back, solid = sizes
+    water = sea.copy()
+    if gn is not None:
+        g, n = pix[gn[0]], pix[gn[1]]
+        ndwi = (g - n) / np.maximum(g + n, 1e-6)
+        water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px, t)
+    zs = _anomaly_optical([opened(pix[b], solid) for b in bands], water, guard, back)
+    det, score, pfa_at, thr = _threshold(zs, water, pfa_px, m_px, t)
+    link = water & (score > t.finder_link_share * thr)
+    # the hull is told from its foam in the near infrared, where foam is far darker than a hull
+    locate = zs[bands.index(nir)] if nir in bands else score
+    return det, score, pfa_at, link, locate, water
 
 
 def _window_px(m_px: float, t: Tuning) -> tuple[int, int]:
@@ -231,19 +259,6 @@ def _window_px(m_px: float, t: Tuning) -> tuple[int, int]:
     back_m = guard_m * t.finder_background_m / t.finder_guard_m
     guard = max(3, int(round(guard_m / m_px)) | 1)
     return guard, max(guard + 4, int(round(back_m / m_px)) | 1)
-
-
-def _solid_part(band: np.ndarray, k: int) -> np.ndarray:
-    """The band's solid bright parts: a grey-level opening by a k x k square keeps what is at least k pixels
-    wide (a hull) and removes thinner bright lines (wave crests, the stripes of a wake; Serra 1982, Image
-    Analysis and Mathematical Morphology, the opening as a size filter).  k = 1 leaves the band as it is."""
-    if k < 2:
-        return band
-    # the dilation's anchor mirrors the erosion's: with an even k, OpenCV's opening (one anchor for both) would
-    # shift everything by a pixel
-    box = np.ones((k, k), np.uint8)
-    eroded = cv2.erode(band.astype(np.float32, copy=False), box, anchor=(k // 2, k // 2))
-    return cv2.dilate(eroded, box, anchor=(k - 1 - k // 2, k - 1 - k // 2))
 
 
 def _bridged(link: np.ndarray, m_px: float, t: Tuning) -> np.ndarray:
@@ -473,6 +488,8 @@ def _blobs(
         if not (core[0] <= col < core[0] + core[2] and core[1] <= row < core[1] + core[3]):
             continue  # found again by the tile whose core holds it
         length_m, width_m, axis = blob_shape(rr, cc, m_px)
+        head_r, head_c = np.nonzero(head)
+        reach_m = blob_shape(head_r, head_c, m_px)[0]
         if length_m > t.finder_max_length_m or npx_core * m_px * m_px > t.finder_max_area_m2:
             continue
         dc, dr = math.cos(math.radians(axis)), -math.sin(math.radians(axis))
@@ -497,6 +514,7 @@ def _blobs(
                 float(score[rr[k], cc[k]]),
                 pfa_at(int(rr[k]), int(cc[k])),
                 npx_core,
+                reach_m=reach_m,
             ),
         )
         out.append(item)
