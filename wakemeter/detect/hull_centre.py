@@ -109,6 +109,7 @@ def refined(
     scene: Scene,
     cand,
     band: int,
+    radar: bool,
     radar_db: bool,
     m_px: float,
     t: Tuning = DEFAULT_TUNING,
@@ -117,8 +118,8 @@ def refined(
     """``cand`` (a VesselCandidate) moved to the centre of its hull's outline in ``band`` at full resolution
     (``m_px`` metres per pixel); unchanged where no outline is found.  ``held``: (origin col, row), that band
     and its valid mask for a window already read at full resolution, used where it covers the neighbourhood
-    (else the neighbourhood is read).  ``radar_db``: the band holds decibels (the outline is taken in
-    intensity)."""
+    (else the neighbourhood is read).  ``radar``: a radar band (speckle is averaged over 3 x 3 pixels first);
+    ``radar_db``: it holds decibels (the outline is taken in intensity)."""
     # no farther than the longest hull the finder keeps (a wake's whole object can be kilometres long)
     reach_m = min(t.finder_refine_reach * cand.reach_m + t.finder_merge_m, t.finder_max_length_m)
     reach = max(reach_m, t.finder_refine_min_m) / m_px
@@ -136,6 +137,10 @@ def refined(
     if radar_db:
         img = np.power(10.0, np.clip(img, -100.0, 100.0) / 10.0)
     img = opened(np.where(valid, img, 0.0), int(round(t.finder_solid_m / m_px)))
+    if radar:
+        # speckle: the mean of 3 x 3 pixels (a boxcar multilook, the simplest speckle filter; Lee 1980, Digital
+        # image enhancement and noise filtering by use of local statistics, IEEE PAMI 2(2)) before the outline
+        img = cv2.blur(img.astype(np.float32), (3, 3)).astype(np.float64)
     near = max(3.0, 0.5 * cand.length_m / m_px)
     ir, ic = scene_to_index((c0, r0), 1, *cand.px)
     c = centre_of_hull(img, valid, (ic, ir), reach, near, t)

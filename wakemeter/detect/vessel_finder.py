@@ -223,14 +223,14 @@ def find_vessels(
             new = _blobs(scene, det, score, locate, pfa_at, water, ok, (win, step), core, m_px, frame, link, radar, t)
             if step == 1:  # the window in hand is at full resolution
                 held = ((int(win[0]), int(win[1])), data[idx[band]], ok)
-                new = [refined(scene, c, band, in_db, m_px, t, held) for c in new]
+                new = [refined(scene, c, band, radar, in_db, m_px, t, held) for c in new]
                 del held  # or this window's pixels would outlive it into the next one's search
             found += new
             if progress is not None:
                 progress((k + 1) / len(tiles))
         found = one_per_vessel(found, m_px / step, t)
         if step > 1:  # searched on a coarser grid: each vessel's neighbourhood is read at full resolution
-            found = [refined(scene, c, band, in_db, m_px / step, t) for c in found]
+            found = [refined(scene, c, band, radar, in_db, m_px / step, t) for c in found]
     return found
 
 
