@@ -286,8 +286,8 @@ SENSOR_BLUR_PX = 0.57
 
 def _score(cands, truth) -> tuple[int, int, int, int, float, list[float]]:
     """(found within 2 px, found within half the hull's length, vessels found more than once, false, worst
-    offset px, each found vessel's offset px): every candidate is given to its nearest vessel when within half that vessel's length (at
-    least 2 px); the rest are false."""
+    offset px, each found vessel's offset px): every candidate is given to its nearest vessel when within half
+    that vessel's length (at least 2 px); the rest are false."""
     near2 = near_half = twice = false = 0
     worst = 0.0
     per_vessel = [0] * len(truth)
