@@ -75,8 +75,14 @@ def decision_text(decision: Decision, look: Look, tuning: Tuning) -> str:
             "of this wake to measure its waves (significance "
             f"{decision.significance:.1f}, wake-side contrast {look.side_contrast:.1f})"
         )
+    # the significance is the supercritical curve's where that curve explains the wake best: it needs more
+    needs = (
+        f"{t.super_significance_min} for the supercritical curve, which fits best"
+        if decision.supercritical
+        else f"{t.significance_min}"
+    )
     return (
-        f"no wake found: spectral significance {decision.significance:.1f} (needs {t.significance_min}) and "
+        f"no wake found: spectral significance {decision.significance:.1f} (needs {needs}) and "
         f"wake-side contrast {look.side_contrast:.1f} (needs {t.side_contrast_min}); thresholds set for "
         f"{t.false_alarm_note}"
     )
