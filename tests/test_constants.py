@@ -18,6 +18,7 @@ NOT_TUNING = {
     "radon.py:_A": "numerics of the projection",
     "radon.py:MATRIX_CACHE_VERSION": "cache format version",
     "wide_blur.py:FFT_FROM_SIGMA": "numerics: when an FFT blur is faster",
+    "vessel_finder.py:_FEW_PIXELS_SHARE": "numerics: when working on a mask's pixels alone is faster (same result)",
     "wide_blur.py:REACH_SIGMAS": "numerics: kernel reach",
     "speed_check.py:DRAWS": "Monte Carlo draws",
     "band_shift.py:MC_DRAWS": "Monte Carlo draws",

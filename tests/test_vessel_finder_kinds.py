@@ -120,3 +120,24 @@ def test_the_radar_demo_as_intensity_amplitude_or_db_gives_its_ferry_once(kind, 
     assert len(cands) == 1
     reach = 0.5 * truth["hull_length_m"] / 5.0  # 5 m pixels
     assert np.hypot(cands[0].px[0] - truth["hull_pixel_col"], cands[0].px[1] - truth["hull_pixel_row"]) <= reach
+
+
+def test_the_sparse_mask_path_gives_the_very_masks_of_the_window_pass(monkeypatch):
+    # open sea: the dry and bright masks hold a few hulls, worked on pixel by pixel; the result must be the mask
+    # a pass over the whole window gives (the share is a speed switch only)
+    from wakemeter.detect import vessel_finder as vf
+    from wakemeter.detect.tuning import DEFAULT_TUNING
+
+    rng = np.random.default_rng(5)
+    z = rng.normal(0.0, 1.0, (400, 500)).astype(np.float32)
+    for r, c in rng.integers(5, 395, (12, 2)):
+        z[r : r + 3, c : c + 8] += 9.0  # hulls
+    z[:, :4] += 9.0  # a bright strip along the edge (a quay)
+    water = np.ones(z.shape, bool)
+    dry = z > 6.0
+    sparse = (vf._islands(dry, 10.0, DEFAULT_TUNING), vf._wake_objects(z, water, 6.0, 10.0, DEFAULT_TUNING))
+    assert vf._few_pixels(dry) is not None and sparse[0].any() and sparse[1].any()
+    monkeypatch.setattr(vf, "_FEW_PIXELS_SHARE", -1.0)
+    assert vf._few_pixels(dry) is None
+    dense = (vf._islands(dry, 10.0, DEFAULT_TUNING), vf._wake_objects(z, water, 6.0, 10.0, DEFAULT_TUNING))
+    assert np.array_equal(sparse[0], dense[0]) and np.array_equal(sparse[1], dense[1])
