@@ -98,6 +98,7 @@ class _Ring:
         self.g = max(1, int(round(guard / f)))
         self.bk = max(self.g + 2, int(round(back / f)))
         self.valid = valid
+        self.invalid = ~valid
         self.n = np.maximum(self._ring(self._blocks(valid.astype(np.float32))), 1.0)
 
     def _blocks(self, a: np.ndarray) -> np.ndarray:
@@ -122,7 +123,7 @@ class _Ring:
         sample = img[::k, ::k][self.valid[::k, ::k]]  # about 10 000 pixels on a regular grid
         offset = float(np.median(sample)) if sample.size else 0.0
         x = np.subtract(img, np.float32(offset), dtype=np.float32)
-        x *= self.valid
+        x[self.invalid] = 0.0  # nodata can be NaN: set, not multiplied
         s1, s2 = self._ring(self._blocks(x)), self._ring(self._blocks(x * x))
         mean = s1 / self.n
         sd = np.sqrt(np.maximum(s2 / self.n - mean * mean, 1e-12))
