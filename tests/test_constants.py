@@ -31,6 +31,7 @@ NOT_TUNING = {
     "revise.py:HAND_ANGLE_STD_DEG": "hand-drawn arm uncertainty, not a decision",
     "revise.py:HAND_ANGLE_MAX_DEG": "input bound of a hand-drawn arm",
     "tuning.py:REACH_FRACTION": "geometry of the chip (largest radius inside it)",
+    "wakeline.py:_POINTS_AT_ONCE": "memory only: background points scored together (the same scores in any grouping)",
     "wakeline.py:ANGLE_STEP_DEG": "grid of the ray search (the partner search indexes it in whole steps)",
     "line_finding.py:NOTE_SPEEDS_KN": "speeds named in a message, not a decision",
     "line_finding.py:RESOLVABLE_WAVE_PX": "sampling rule for a message (two samples per crest)",

@@ -40,6 +40,8 @@ from .tuning import DEFAULT_TUNING, Tuning
 
 #: directions searched (image angles, degrees)
 ANGLE_STEP_DEG = 1.0
+#: background points scored together (memory only: the same scores in any grouping)
+_POINTS_AT_ONCE = 32
 
 
 @dataclass(frozen=True)
@@ -64,11 +66,14 @@ class LineWake:
 
 def _rays(img: np.ndarray, valid: np.ndarray, origin_rc, angles_deg: np.ndarray, r: np.ndarray, start=None):
     """Samples (angles, r) along rays and their validity; ``start`` (one per angle) moves each ray's first
-    sample out by that many pixels (past the hull)."""
+    sample out by that many pixels (past the hull).  ``origin_rc`` may be an array of origins (points, 2): the
+    samples are then (points, angles, r)."""
     a = np.radians(angles_deg)[:, None]
     rr = r[None, :] + (0.0 if start is None else np.asarray(start, float)[:, None])
-    rows = origin_rc[0] - rr * np.sin(a)
-    cols = origin_rc[1] + rr * np.cos(a)
+    o = np.asarray(origin_rc, float)
+    o_r, o_c = (o[0], o[1]) if o.ndim == 1 else (o[:, 0, None, None], o[:, 1, None, None])
+    rows = o_r - rr * np.sin(a)
+    cols = o_c + rr * np.cos(a)
     coords = [rows.ravel(), cols.ravel()]
     vals = ndimage.map_coordinates(img, coords, order=1, mode="constant", cval=0.0).reshape(rows.shape)
     ok = ndimage.map_coordinates(valid.astype(np.float32), coords, order=0, mode="constant", cval=0.0).reshape(
@@ -88,24 +93,25 @@ def _nanmedian_last(a: np.ndarray) -> np.ndarray:
 
 
 def _profiles(vals: np.ndarray, ok: np.ndarray, n_r: int) -> np.ndarray:
-    """Median along each ray over its first ``n_r`` samples (NaN when fewer than half are valid): a line
+    """Median along each ray (the last axis) over its first ``n_r`` samples (NaN when fewer than half are valid): a line
     crossing the ray adds a few bright samples and moves the median little; a line along it moves it."""
-    v = np.where(ok[:, :n_r], vals[:, :n_r], np.nan)
-    cnt = ok[:, :n_r].sum(axis=1)
+    v = np.where(ok[..., :n_r], vals[..., :n_r], np.nan)
+    cnt = ok[..., :n_r].sum(axis=-1)
     return np.where(cnt >= 0.5 * n_r, _nanmedian_last(v), np.nan)
 
 
 def _scores(prof: np.ndarray, angles: np.ndarray, r_mid: float, t: Tuning) -> np.ndarray:
-    """One-sided line score for every direction (bright sign); ``prof`` covers 0-360 degrees evenly.  The
-    rays beside the line lie ``line_side_gap_px`` and more to either side of it at mid-length."""
+    """One-sided line score for every direction (bright sign); ``prof`` covers 0-360 degrees evenly along its
+    last axis (one profile, or one per point).  The rays beside the line lie ``line_side_gap_px`` and more to
+    either side of it at mid-length."""
     m = angles.size
     step = 360.0 / m
-    opp = np.roll(prof, -m // 2)
+    opp = np.roll(prof, -m // 2, axis=-1)
     lo_deg = max(np.degrees(np.arctan(t.line_side_gap_px / max(r_mid, 1.0))), 3.0)
     lo = int(np.ceil(lo_deg / step))
     hi = lo + int(round(t.line_side_span_deg / step))
     shifts = np.array(list(range(lo, hi + 1)) + list(range(-hi, -lo + 1)))
-    stack = prof[(np.arange(m)[:, None] - shifts[None, :]) % m]  # column k: the profile turned by shifts[k]
+    stack = prof[..., (np.arange(m)[:, None] - shifts[None, :]) % m]  # column k: the profile turned by shifts[k]
     side = _nanmedian_last(stack)  # directions with no valid ray beside them: NaN, as wanted
     # ... and from the open water as a whole (0 after standardising): water beyond a calm patch or a slick is
     # brighter than the patch around it without being a line
@@ -312,6 +318,26 @@ def find_wake_line(
     )
 
 
+def _best_scores(img, valid, points: np.ndarray, r0: float, r_max: float, t: Tuning, min_dark: float) -> np.ndarray:
+    """:func:`_line_scores`' best scores (lengths, signs) for many origins at once, (points, lengths, 2): the same
+    arithmetic on a leading axis of points, without a Python loop over them."""
+    angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
+    r = np.arange(r0, r_max, 1.0)
+    vals, ok = _rays(img, valid, points, angles, r)
+    out = np.full((len(points), len(t.line_length_fractions), 2), -np.inf)
+    for i, frac in enumerate(t.line_length_fractions):
+        n_r = max(int(frac * r.size), 6)
+        full, near = _profiles(vals, ok, n_r), _profiles(vals, ok, max(n_r // 2, 4))
+        for j, sign in enumerate((1.0, -1.0)):
+            if sign < 0 and n_r < min_dark:
+                continue  # not scored: -inf, as a direction set with no finite score
+            s = _scores(np.fmin(sign * full, sign * near), angles, r0 + n_r / 2, t)
+            finite = np.isfinite(s)
+            best = np.max(np.where(finite, s, -np.inf), axis=-1)
+            out[:, i, j] = np.where(finite.any(axis=-1), best, -np.inf)
+    return out
+
+
 def _scene_lines(img, chip: LineChip, r0: float, r_max: float, min_dark: float, rng_seed: int, t: Tuning):
     """The scene's own lines: the same best scores from ``line_null_points`` water points away from the vessel,
     standardised per length and sign; (scored pairs, centre, spread, median and robust spread of the points'
@@ -324,8 +350,12 @@ def _scene_lines(img, chip: LineChip, r0: float, r_max: float, min_dark: float, 
         return None
     pick = rng.choice(wr.size, size=min(t.line_null_points, wr.size), replace=False)
     valid = chip.valid
-    null = np.stack(
-        [_line_scores(img, valid, (float(wr[k]), float(wc[k])), r0, r_max, t=t, min_dark_px=min_dark)[0] for k in pick]
+    points = np.stack([wr[pick], wc[pick]], axis=1).astype(float)
+    null = np.concatenate(
+        [
+            _best_scores(img, valid, points[k : k + _POINTS_AT_ONCE], r0, r_max, t, min_dark)
+            for k in range(0, len(points), _POINTS_AT_ONCE)
+        ]
     )
     # standardise each length and sign on the background points, then take the best: the background's best
     # standardised scores are the reference for the vessel's best
