@@ -147,26 +147,14 @@ def test_a_scene_with_nan_nodata_still_gives_its_vessel(tmp_path):
     # a float scene whose nodata is NaN (a strip outside the swath): the sea's statistics must not turn NaN
     # (a first version of a speed change multiplied the pixels by their validity: NaN times 0 stayed NaN and the
     # window found nothing)
-    import rasterio
     from rasterio.transform import from_origin
+    from test_scene import _write
 
     rng = np.random.default_rng(2)
     a = rng.normal(100.0, 5.0, (600, 600)).astype(np.float32)
     a[:, :120] = np.nan
     a[300:303, 400:412] = 400.0  # a hull 12 x 3 px at 10 m
-    with rasterio.open(
-        tmp_path / "nan.tif",
-        "w",
-        driver="GTiff",
-        width=600,
-        height=600,
-        count=1,
-        dtype="float32",
-        crs="EPSG:32633",
-        transform=from_origin(500_000, 4_800_000, 10, 10),
-        nodata=float("nan"),
-    ) as o:
-        o.write(a, 1)
+    _write(tmp_path / "nan.tif", a, crs="EPSG:32633", transform=from_origin(500_000, 4_800_000, 10, 10), nodata=np.nan)
     with open_scene(tmp_path / "nan.tif") as sc:
         cands = find_vessels(sc)
     assert len(cands) == 1, [c.px for c in cands]
