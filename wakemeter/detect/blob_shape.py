@@ -5,6 +5,8 @@ the vessels found in a whole scene (vessel_finder): a uniform bar of length L ha
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 
@@ -19,3 +21,16 @@ def blob_shape(rows: np.ndarray, cols: np.ndarray, m_px: float) -> tuple[float, 
     width = float(np.sqrt(12 * max(evals[0], 1 / 12))) * m_px
     axis = float(np.degrees(np.arctan2(major[1], major[0])) % 180.0)
     return length, width, axis
+
+
+def end_means(
+    rows: np.ndarray, cols: np.ndarray, values: np.ndarray, axis_deg: float
+) -> tuple[np.ndarray, float, float]:
+    """Each pixel's position along the axis at ``axis_deg`` (as :func:`blob_shape` gives it; image up positive)
+    and the mean of ``values`` over the blob's two end thirds along it: (positions, low end, high end).  A hull
+    leading its foam trail is brighter at one end (the vessel finder's trail head, the hull's outline)."""
+    a = math.radians(axis_deg)
+    u = (cols - cols.mean()) * math.cos(a) - (rows - rows.mean()) * math.sin(a)
+    lo, hi = u.min(), u.max()
+    third = (hi - lo) / 3.0
+    return u, float(np.mean(values[u <= lo + third])), float(np.mean(values[u >= hi - third]))

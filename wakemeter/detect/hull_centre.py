@@ -26,7 +26,7 @@ from skimage.measure import regionprops
 
 from ..scene import geodesy
 from ..scene.raster import Scene
-from .blob_shape import blob_shape
+from .blob_shape import blob_shape, end_means
 from .pixels import index_to_scene, scene_to_index
 from .tuning import DEFAULT_TUNING, Tuning
 
@@ -97,11 +97,7 @@ def _fades(hull: np.ndarray, excess: np.ndarray, t: Tuning) -> bool:
     length, width, axis = blob_shape(rr, cc, 1.0)
     if length < t.finder_trail_min_elongation * width:
         return False
-    a = math.radians(axis)
-    u = (cc - cc.mean()) * math.cos(a) - (rr - rr.mean()) * math.sin(a)
-    v = excess[rr, cc]
-    third = (u.max() - u.min()) / 3.0
-    lo, hi = float(np.mean(v[u <= u.min() + third])), float(np.mean(v[u >= u.max() - third]))
+    _, lo, hi = end_means(rr, cc, excess[rr, cc], axis)
     return max(lo, hi) >= t.finder_trail_fade * max(min(lo, hi), 1e-12)
 
 

@@ -39,7 +39,7 @@ from ..scene import display, geodesy
 from ..scene.land_layer import LandLayer
 from ..scene.raster import Scene, one_pass_cache
 from ..scene.sensor import BandRole, band_roles
-from .blob_shape import blob_shape
+from .blob_shape import blob_shape, end_means
 from .hull_centre import opened, refined
 from .line_chip import green_nir_bands
 from .pixels import index_to_scene
@@ -449,12 +449,8 @@ def _trail_head(m: np.ndarray, loc: np.ndarray, t: Tuning) -> np.ndarray:
     length, width, axis = blob_shape(rr, cc, 1.0)
     if length < t.finder_trail_min_px or length < t.finder_trail_min_elongation * width:
         return m
-    a = math.radians(axis)
-    u = (cc - cc.mean()) * math.cos(a) - (rr - rr.mean()) * math.sin(a)  # along the axis (image up positive)
-    v = loc[rr, cc]
+    u, end_lo, end_hi = end_means(rr, cc, loc[rr, cc], axis)
     lo, hi = u.min(), u.max()
-    third = (hi - lo) / 3.0
-    end_lo, end_hi = float(np.mean(v[u <= lo + third])), float(np.mean(v[u >= hi - third]))
     if max(end_lo, end_hi) < t.finder_trail_fade * max(min(end_lo, end_hi), 1e-9):
         return m  # evenly bright: a long hull, not a fading trail
     keep = (u >= hi - t.finder_trail_head_px) if end_hi > end_lo else (u <= lo + t.finder_trail_head_px)

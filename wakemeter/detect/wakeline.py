@@ -133,12 +133,15 @@ def _line_scores(
     """Best one-sided score for each length of ``line_length_fractions`` and each sign: shape (lengths, 2), with
     the angle of each best: (scores, angles).  ``start``: per-direction offset of the rays (past the hull).
     ``keep``: a list that receives every direction's scores, one array (directions,) per length and sign.
-    Dark lines shorter than ``min_dark_px`` are not scored."""
+    Dark lines shorter than ``min_dark_px`` are not scored.  ``origin_rc`` may be an array of origins
+    (points, 2): every shape then gains a leading axis of points (the same arithmetic, without a Python loop
+    over the points)."""
     angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
     r = np.arange(r0, r_max, 1.0)
     vals, ok = _rays(img, valid, origin_rc, angles, r, start)
-    out = np.full((len(t.line_length_fractions), 2), -np.inf)
-    where = np.full((len(t.line_length_fractions), 2), np.nan)
+    shape = vals.shape[:-2] + (len(t.line_length_fractions), 2)
+    out = np.full(shape, -np.inf)
+    where = np.full(shape, np.nan)
     for i, frac in enumerate(t.line_length_fractions):
         n_r = max(int(frac * r.size), 6)
         full, near = _profiles(vals, ok, n_r), _profiles(vals, ok, max(n_r // 2, 4))
@@ -150,9 +153,12 @@ def _line_scores(
                 s = np.full_like(s, np.nan)
             if keep is not None:
                 keep.append(s)
-            if np.isfinite(s).any():
-                k = int(np.nanargmax(s))
-                out[i, j], where[i, j] = s[k], angles[k]
+            # the first best direction, as numpy's nanargmax takes it; none where no direction is scored
+            finite = np.isfinite(s)
+            k = np.argmax(np.where(finite, s, -np.inf), axis=-1)
+            scored = finite.any(axis=-1)
+            out[..., i, j] = np.where(scored, np.take_along_axis(s, k[..., None], axis=-1)[..., 0], -np.inf)
+            where[..., i, j] = np.where(scored, angles[k], np.nan)
     return np.stack([out, where])
 
 
@@ -318,26 +324,6 @@ def find_wake_line(
     )
 
 
-def _best_scores(img, valid, points: np.ndarray, r0: float, r_max: float, t: Tuning, min_dark: float) -> np.ndarray:
-    """:func:`_line_scores`' best scores (lengths, signs) for many origins at once, (points, lengths, 2): the same
-    arithmetic on a leading axis of points, without a Python loop over them."""
-    angles = np.arange(0.0, 360.0, ANGLE_STEP_DEG)
-    r = np.arange(r0, r_max, 1.0)
-    vals, ok = _rays(img, valid, points, angles, r)
-    out = np.full((len(points), len(t.line_length_fractions), 2), -np.inf)
-    for i, frac in enumerate(t.line_length_fractions):
-        n_r = max(int(frac * r.size), 6)
-        full, near = _profiles(vals, ok, n_r), _profiles(vals, ok, max(n_r // 2, 4))
-        for j, sign in enumerate((1.0, -1.0)):
-            if sign < 0 and n_r < min_dark:
-                continue  # not scored: -inf, as a direction set with no finite score
-            s = _scores(np.fmin(sign * full, sign * near), angles, r0 + n_r / 2, t)
-            finite = np.isfinite(s)
-            best = np.max(np.where(finite, s, -np.inf), axis=-1)
-            out[:, i, j] = np.where(finite.any(axis=-1), best, -np.inf)
-    return out
-
-
 def _scene_lines(img, chip: LineChip, r0: float, r_max: float, min_dark: float, rng_seed: int, t: Tuning):
     """The scene's own lines: the same best scores from ``line_null_points`` water points away from the vessel,
     standardised per length and sign; (scored pairs, centre, spread, median and robust spread of the points'
@@ -353,7 +339,7 @@ def _scene_lines(img, chip: LineChip, r0: float, r_max: float, min_dark: float, 
     points = np.stack([wr[pick], wc[pick]], axis=1).astype(float)
     null = np.concatenate(
         [
-            _best_scores(img, valid, points[k : k + _POINTS_AT_ONCE], r0, r_max, t, min_dark)
+            _line_scores(img, valid, points[k : k + _POINTS_AT_ONCE], r0, r_max, t=t, min_dark_px=min_dark)[0]
             for k in range(0, len(points), _POINTS_AT_ONCE)
         ]
     )
