@@ -82,6 +82,22 @@ def test_nodata_and_nan_are_invalid(tmp_path):
         assert not v[0, 0, 0] and not v[0, 1, 1] and v.sum() == 398
 
 
+def test_reads_without_a_mask_keep_nan_invalid_and_match_rasterio(tmp_path):
+    # A file with no nodata is read without a GDAL mask (speed only): NaN in a float band is still invalid,
+    # and the pixels are the reference library's (rasterio's own read of the same window).
+    a = np.ones((2, 20, 20), np.float32)
+    a[1, 3, 4] = np.nan
+    with open_scene(_write(tmp_path / "f.tif", a)) as sc:
+        d, v = sc.read(window=(2, 2, 10, 10))
+        assert not v[1, 1, 2] and v.sum() == 2 * 100 - 1
+    b = np.random.default_rng(3).integers(0, 60000, (3, 30, 40)).astype(np.uint16)
+    p = _write(tmp_path / "u.tif", b)
+    with open_scene(p) as sc, rasterio.open(p) as ref:
+        d, v = sc.read(window=(5, 6, 20, 10), bands=(3, 1))
+        want = ref.read([3, 1], window=rasterio.windows.Window(5, 6, 20, 10)).astype(np.float32)
+        assert v.all() and np.array_equal(d, want)
+
+
 def test_internal_overviews_are_reported_and_used(tmp_path):
     rng = np.random.default_rng(1)
     a = rng.random((512, 512)).astype(np.float32)

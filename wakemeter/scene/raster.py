@@ -26,7 +26,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 import rasterio
 from affine import Affine
-from rasterio.enums import Resampling
+from rasterio.enums import MaskFlags, Resampling
 from rasterio.errors import NotGeoreferencedWarning, RasterioError
 from rasterio.windows import Window
 
@@ -310,12 +310,14 @@ class Scene:
         try:
             with self._reading():
                 ds = self._dataset(path)
+                # no nodata and no mask on any band read: every pixel is valid, and GDAL need not make a mask
+                masked = not all(ds.mask_flag_enums[b - 1] == [MaskFlags.all_valid] for b in bands)
                 arr = ds.read(
                     list(bands),
                     window=win,
                     out_shape=(len(bands), oh, ow),
                     resampling=resampling,
-                    masked=True,
+                    masked=masked,
                     boundless=False,
                 )
         except GDAL_ERRORS as err:
@@ -325,6 +327,11 @@ class Scene:
             ) from err
         except MemoryError as err:
             raise SceneReadError(f"{self.info.path.name}: not enough memory to read {ow} x {oh} pixels") from err
+        if not masked:
+            data = np.asarray(arr, dtype=np.float32)
+            # integers are always finite; floats can hold NaN without a nodata value
+            valid = np.isfinite(data) if arr.dtype.kind == "f" else np.ones(data.shape, bool)
+            return data, valid
         data = np.asarray(arr.filled(np.nan) if arr.dtype.kind == "f" else arr.data, dtype=np.float32)
         valid = ~np.ma.getmaskarray(arr) & np.isfinite(data)
         return data, valid
