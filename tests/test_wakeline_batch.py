@@ -1,5 +1,6 @@
-"""The line search's background scored for many points at once must give the very scores of one point at a
-time (a speed change only: same arithmetic on a leading axis).  Source of the check values: none outside the
+"""Speed-only changes to the line search give the very same results: the background scored for many points at
+once equals one point at a time (same arithmetic on a leading axis), and the validity lookup and the land mask's
+opening equal the scipy calls they replace.  Source of the check values: none outside the
 project is needed or used; the reference is the one-point-at-a-time path itself, whose results the real sweep
 (benchmarks/real_sweep.py, 156 real cases) shows unchanged.  On a real Sentinel-2 crop (tests/data/sentinel2,
 MIT licence), with and without a dark-line length limit, and with points whose rays leave the chip."""
@@ -33,3 +34,37 @@ def test_many_points_at_once_equal_one_at_a_time(min_dark):
     one = np.stack([_line_scores(img, chip.valid, tuple(p), r0, r_max, t=t, min_dark_px=min_dark)[0] for p in points])
     many = _line_scores(img, chip.valid, points, r0, r_max, t=t, min_dark_px=min_dark)[0]
     assert np.array_equal(one, many)
+
+
+@pytest.mark.parametrize("n", [320, 17])
+def test_validity_lookup_equals_scipy_nearest_sampling(n):
+    # Reference library: scipy.ndimage.map_coordinates with order=0 and mode="constant" (the lookup replaces it
+    # for speed).  Random points, whole and half-pixel ties, and points on and just past the edges.
+    from scipy import ndimage
+
+    from wakemeter.detect.wakeline import _nearest
+
+    rng = np.random.default_rng(n)
+    mask = rng.random((n, n)) > 0.3
+    rows, cols = rng.uniform(-3, n + 3, 400_000), rng.uniform(-3, n + 3, 400_000)
+    ties = rng.integers(-2, n + 2, (2, 20_000)) + 0.5 * rng.integers(0, 2, (2, 20_000))
+    rows[:20_000], cols[:20_000] = ties
+    rows[20_000:22_000], rows[22_000:24_000] = n - 1, n - 1 + 1e-12
+    cols[24_000:26_000], cols[26_000:28_000] = -1e-12, -0.5
+    want = ndimage.map_coordinates(mask.astype(np.float32), [rows, cols], order=0, mode="constant", cval=0.0) > 0.5
+    assert np.array_equal(_nearest(mask, rows, cols), want)
+
+
+def test_land_opening_equals_scipy_binary_opening():
+    # Reference library: scipy.ndimage.binary_opening with the same diamond (OpenCV replaces it for speed), on
+    # random blobs touching the edges, at the radii the land mask uses (1 to 20 pixels).
+    from scipy import ndimage
+
+    from wakemeter.detect.line_chip import binary_opened
+
+    rng = np.random.default_rng(4)
+    for radius in (1, 2, 3, 5, 8, 13, 20):
+        mask = ndimage.uniform_filter(rng.random((200, 240)), 9) > 0.5
+        mask[:5], mask[:, -3:] = True, True
+        disk = ndimage.iterate_structure(ndimage.generate_binary_structure(2, 1), radius)
+        assert np.array_equal(binary_opened(mask, radius), ndimage.binary_opening(mask, structure=disk))

@@ -119,9 +119,9 @@ def analyze(
         spectral_note = f"spectral significance {attempt.decision.significance:.1f}, needs {tuning.significance_min:g}"
         if attempt.decision.found:
             measured = _measure(scene, request, attempt, tuning, stage, methods)
-            against = _shift_against(scene, measured, tuning)
-            if against is None:
+            if isinstance(measured, WakeAnalysis):
                 return measured
+            against = measured
             # the wave fit read the wake on the wrong side of the hull: its heading and speed are not the
             # vessel's; the wake is looked for as lines, where the hull's shift gives the speed
             spectral_note = f"the wave fit (significance {attempt.decision.significance:.1f}) was set aside: {against}"
@@ -155,16 +155,16 @@ def analyze(
     return _no_wake(scene, request, attempt, tuning, lines_note=lines.why_not)
 
 
-def _shift_against(scene: Scene, measured: WakeAnalysis, tuning: Tuning) -> str | None:
+def _shift_against(scene: Scene, vessel_px: tuple[float, float], heading_deg: float, tuning: Tuning) -> str | None:
     """For an optical scene whose band timing is known: a reason when the hull's shift between bands says the
     vessel moves against the heading of the wave fit (see :func:`band_shift.moves_against`)."""
-    if measured.heading_deg is None or scene.info.count < 2:
+    if scene.info.count < 2:
         return None
     timing = scene_band_timing(scene)
     if timing is None:
         return None
     try:
-        return moves_against(scene, measured.vessel_px, measured.heading_deg, timing, tuning)
+        return moves_against(scene, vessel_px, heading_deg, timing, tuning)
     except ParameterError:
         return None
 
@@ -373,7 +373,9 @@ def _measure(
     tuning: Tuning,
     stage: Callable[[float, str], None],
     speed_methods: tuple[SpeedMethod, ...],
-) -> WakeAnalysis:
+) -> WakeAnalysis | str:
+    """The wave path's result; or, where the hull's shift between bands says the vessel moves against the fit's
+    heading, the reason to set the fit aside (checked before the costly uncertainty and methods)."""
     look, g = a.look, a.g
     model = choose_depth_model(look, a.decision, g=g, depth_m=request.depth_m, tuning=tuning)
     stage(0.45, "measuring crests and arms")
@@ -383,11 +385,14 @@ def _measure(
     )
     if evidence == "none":
         return _no_wake(scene, request, a, tuning, no_vessel=True)
-    stage(0.65, "estimating uncertainty")
-    spread = estimate_spread(look, model, g=g, tuning=tuning)
     frame = scene.local_frame(*a.vessel_px)
     back = np.radians(measures.back_deg + 180)
     heading = float(frame.bearing_of(np.cos(back), -np.sin(back)))
+    against = _shift_against(scene, a.vessel_px, heading, tuning)
+    if against is not None:
+        return against
+    stage(0.65, "estimating uncertainty")
+    spread = estimate_spread(look, model, g=g, tuning=tuning)
     depth = _depth(request, model, spread)
     cond = inv.Conditions(g_mps2=a.g_u, depth_m=depth, pixel_scale_rel_std=pixel_rel_std(request, frame))
     ctx = MethodContext(

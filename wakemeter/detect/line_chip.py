@@ -24,6 +24,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import cv2
 import numpy as np
 from scipy import ndimage
 
@@ -231,8 +232,7 @@ def land_mask(
 
     def opened(cand: np.ndarray, radius_m: float, cap: int, area_m2: float) -> np.ndarray:
         radius = int(np.clip(round(radius_m / m_px), 1, cap))
-        disk = ndimage.iterate_structure(ndimage.generate_binary_structure(2, 1), radius)
-        wide = ndimage.binary_opening(cand, structure=disk)
+        wide = binary_opened(cand, radius)
         lab, n = ndimage.label(wide)
         if n == 0:
             return wide
@@ -248,6 +248,15 @@ def land_mask(
     if ndwi is not None:
         land |= opened(valid & (ndwi < 0.0), tuning.dry_disk_m, 10, tuning.dry_area_m2)
     return ndimage.binary_dilation(land, iterations=3)
+
+
+def binary_opened(mask: np.ndarray, radius: int) -> np.ndarray:
+    """``scipy.ndimage.binary_opening`` of ``mask`` by a diamond of ``radius`` (``iterate_structure`` of the
+    4-connected cross), pixels beyond the edge counted as background, by OpenCV: the same pixels
+    (tests/test_wakeline_batch.py holds them equal), about 50 times faster at a radius of 20."""
+    disk = ndimage.iterate_structure(ndimage.generate_binary_structure(2, 1), radius).astype(np.uint8)
+    eroded = cv2.erode(mask.astype(np.uint8), disk, borderType=cv2.BORDER_CONSTANT, borderValue=0)
+    return np.asarray(cv2.dilate(eroded, disk, borderType=cv2.BORDER_CONSTANT, borderValue=0), bool)
 
 
 def _find_hull(
