@@ -186,3 +186,22 @@ def test_window_labelling_matches_scipy(connectivity):
     ref, n_ref = ndimage.label(mask, structure=np.ones((3, 3)) if connectivity == 8 else None)
     pairs = set(zip(ours[mask].tolist(), ref[mask].tolist()))
     assert n == n_ref == len(pairs) and not ours[~mask].any()
+
+
+def test_region_boxes_from_few_pixels_equal_scipy_find_objects():
+    # Reference library: scipy.ndimage.find_objects (the finder takes the boxes from the pixels themselves
+    # where they are few, for speed): random sparse blobs, some touching the window's edges.
+    from scipy import ndimage
+
+    from wakemeter.detect.vessel_finder import _boxes, _few_pixels, _label
+
+    rng = np.random.default_rng(6)
+    mask = np.zeros((300, 400), bool)
+    for r, c, h, w in zip(
+        rng.integers(-3, 300, 40), rng.integers(-3, 400, 40), rng.integers(1, 9, 40), rng.integers(1, 9, 40)
+    ):
+        mask[max(r, 0) : r + h, max(c, 0) : c + w] = True
+    lab, n = _label(mask)
+    at = _few_pixels(mask)
+    assert at is not None and n > 20
+    assert _boxes(lab, n, at) == ndimage.find_objects(lab)

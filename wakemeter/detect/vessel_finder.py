@@ -99,13 +99,17 @@ class _Ring:
         self.bk = max(self.g + 2, int(round(back / f)))
         self.valid = valid
         self.invalid = ~valid
+        self.some_invalid = bool(self.invalid.any())
         self.n = np.maximum(self._ring(self._blocks(valid.astype(np.float32))), 1.0)
 
     def _blocks(self, a: np.ndarray) -> np.ndarray:
         """Sums over f x f blocks (OpenCV's area resampling is the block mean when the size divides)."""
         f = self.f
-        pad = np.zeros((self.hh, self.ww), np.float32)
-        pad[: self.h, : self.w] = a
+        if (self.hh, self.ww) == (self.h, self.w):
+            pad = a.astype(np.float32, copy=False)  # the blocks divide the window: nothing to pad
+        else:
+            pad = np.zeros((self.hh, self.ww), np.float32)
+            pad[: self.h, : self.w] = a
         if f == 1:
             return pad.astype(np.float64)
         small = cv2.resize(pad, (self.ww // f, self.hh // f), interpolation=cv2.INTER_AREA)
@@ -123,7 +127,8 @@ class _Ring:
         sample = img[::k, ::k][self.valid[::k, ::k]]  # about 10 000 pixels on a regular grid
         offset = float(np.median(sample)) if sample.size else 0.0
         x = np.subtract(img, np.float32(offset), dtype=np.float32)
-        x[self.invalid] = 0.0  # nodata can be NaN: set, not multiplied
+        if self.some_invalid:
+            x[self.invalid] = 0.0  # nodata can be NaN: set, not multiplied
         s1, s2 = self._ring(self._blocks(x)), self._ring(self._blocks(x * x))
         mean = s1 / self.n
         sd = np.sqrt(np.maximum(s2 / self.n - mean * mean, 1e-12))
@@ -247,8 +252,9 @@ def _optical(pix, ok, sea, gn, bands, nir, sizes, pfa_px, m_px, t: Tuning):
     water = sea.copy()
     if gn is not None:
         g, n = pix[gn[0]], pix[gn[1]]
-        ndwi = (g - n) / np.maximum(g + n, 1e-6)
-        water &= (ndwi > 0.0) | _islands(ok & (ndwi <= 0.0), m_px, t)
+        # NDWI = (g - n) / (g + n) is positive where g > n (the denominator is positive): the sign is compared
+        # without the division
+        water &= (g > n) | _islands(ok & (g <= n), m_px, t)
     zs = _anomaly_optical([opened(pix[b], solid) for b in bands], water, guard, back)
     det, score, pfa_at, thr = _threshold(zs, water, pfa_px, m_px, t)
     link = water & (score > t.finder_link_share * thr)
@@ -273,7 +279,7 @@ def _bridged(link: np.ndarray, m_px: float, t: Tuning) -> np.ndarray:
     if r < 1:
         return link
     disc = cv2.getStructuringElement(cv2.MORPH_ELLIPSE, (2 * r + 1, 2 * r + 1))
-    return cv2.dilate(link.astype(np.uint8), disc).astype(bool)
+    return cv2.dilate(_u8(link), disc).view(bool)  # 0 and 1 stay 0 and 1
 
 
 def one_per_vessel(found: list[VesselCandidate], m_px: float, t: Tuning = DEFAULT_TUNING) -> list[VesselCandidate]:
@@ -326,7 +332,7 @@ def _cfar_radar(img, ok, guard, back, pfa_px):
 def _label(mask: np.ndarray, connectivity: int = 8) -> tuple[np.ndarray, int]:
     """Connected regions of a whole window (0: background, 1..n), as ``ndimage.label`` numbers them; OpenCV's
     labelling is several times faster on windows this size."""
-    n, lab = cv2.connectedComponents(mask.astype(np.uint8), connectivity=connectivity, ltype=cv2.CV_32S)
+    n, lab = cv2.connectedComponents(_u8(mask), connectivity=connectivity, ltype=cv2.CV_32S)
     return lab, int(n) - 1
 
 
@@ -345,11 +351,18 @@ def _islands(dry: np.ndarray, m_px: float, t: Tuning) -> np.ndarray:
     return _kept(lab, small, at)
 
 
+def _u8(mask: np.ndarray) -> np.ndarray:
+    """A boolean mask as the 0/1 bytes OpenCV takes, without a copy where it can be."""
+    if mask.dtype == bool and mask.flags.c_contiguous:
+        return mask.view(np.uint8)
+    return mask.astype(np.uint8)
+
+
 def _few_pixels(mask: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
     """(rows, cols) of a mask's pixels where they are few (at most _FEW_PIXELS_SHARE of the window: open sea,
     whose only dry or bright pixels are hulls), else None: work on them alone is then cheaper than a pass over
     the window (speed only; the results are the same)."""
-    m8 = mask.view(np.uint8) if mask.dtype == bool else mask.astype(np.uint8)
+    m8 = _u8(mask)
     if cv2.countNonZero(m8) > _FEW_PIXELS_SHARE * mask.size:
         return None
     pts = cv2.findNonZero(m8)
@@ -357,6 +370,22 @@ def _few_pixels(mask: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
         return np.zeros(0, np.intp), np.zeros(0, np.intp)
     pts = pts.reshape(-1, 2)
     return pts[:, 1], pts[:, 0]
+
+
+def _boxes(lab: np.ndarray, n: int, at: tuple[np.ndarray, np.ndarray] | None) -> list:
+    """Each labelled region's bounding slices, as ``ndimage.find_objects`` gives them (``at``: every labelled
+    pixel, or None): from the few pixels themselves where there are few (speed only; the same slices)."""
+    if at is None:
+        return ndimage.find_objects(lab)
+    rr, cc = at
+    which = lab[rr, cc]
+    order = np.argsort(which, kind="stable")
+    rr, cc = rr[order], cc[order]
+    starts = np.flatnonzero(np.r_[True, which[order][1:] != which[order][:-1]])
+    r0, r1 = np.minimum.reduceat(rr, starts), np.maximum.reduceat(rr, starts) + 1
+    c0, c1 = np.minimum.reduceat(cc, starts), np.maximum.reduceat(cc, starts) + 1
+    assert starts.size == n  # every region has its pixels among them
+    return [(slice(int(a), int(b)), slice(int(c), int(d))) for a, b, c, d in zip(r0, r1, c0, c1)]
 
 
 def _kept(lab: np.ndarray, keep: np.ndarray, at: tuple[np.ndarray, np.ndarray] | None) -> np.ndarray:
@@ -390,12 +419,14 @@ def _threshold(zs, water, pfa_px, m_px: float, t: Tuning):
     glint and specks make real sea heavier tailed than a normal): an exponential fitted to the excesses
     over the 99th percentile of the window's water (peaks over threshold; Coles 2001, An Introduction to
     Statistical Modeling of Extreme Values, the generalised Pareto with shape 0)."""
-    z_max = np.maximum.reduce(zs) if len(zs) > 1 else zs[0]
+    z_max = zs[0]
+    for z in zs[1:]:  # pairwise: np.maximum.reduce would first stack the bands into one array
+        z_max = np.maximum(z_max, z)
     thr = float(stats.norm.isf(pfa_px))
     tail: tuple[float, float] | None = None
     # censored: what stands out at the normal threshold (hulls, their foam) and its surroundings are left out
     # of the sea's own tail, or a scene holding a large wake would hide its own vessel
-    strong = cv2.dilate((z_max > t.finder_censor_factor * thr).astype(np.uint8), np.ones((7, 7), np.uint8)) > 0
+    strong = cv2.dilate(_u8(z_max > t.finder_censor_factor * thr), np.ones((7, 7), np.uint8)).view(bool)
     strong |= _wake_objects(z_max, water, thr, m_px, t)
     sea = z_max[water & ~strong]
     if sea.size > 200_000:  # the tail from a regular sample of the sea (its order does not matter)
@@ -475,7 +506,7 @@ def _blobs(
     # land next to a blob: the blob is a quay edge or a moored hull against it (dry pixels within 2 px)
     land = ok & ~water
     out: list[tuple[int, float, VesselCandidate]] = []  # (object, summed score of the detection, candidate)
-    objects = ndimage.find_objects(lab)
+    objects = _boxes(lab, n, _few_pixels(det))
     for i, sl in enumerate(objects, start=1):
         if sl is None:
             continue
