@@ -59,6 +59,9 @@ def test_each_vessel_is_found_once_and_a_repeat_is_merged_after_analysis(win, qt
     t.refresh()
     heads = [t.horizontalHeaderItem(j).text() for j in range(t.columnCount())]
     assert t.rowCount() == 2 and {"Finder score", "Merged", "Position report"} <= set(heads)
+    # every header is readable in full (a narrow column once showed "ower bound (kn")
+    fm = t.horizontalHeader().fontMetrics()
+    assert all(t.columnWidth(j) >= fm.horizontalAdvance(h) for j, h in enumerate(heads))
     # undone, both rows come back, each with its analysis
     win.doc.undo.undo()
     (gone_id,) = gone

@@ -112,6 +112,7 @@ class VesselTable(QTableWidget):
                 cell.setData(Qt.ItemDataRole.UserRole, row["vid"])
                 self.setItem(i, j, cell)
         self.setSortingEnabled(True)
+        self.resizeColumnsToContents()  # every header readable ("Lower bound (kn)" was cut)
         for i in range(self.rowCount()):
             it = self.item(i, 0)
             if it is not None and it.data(Qt.ItemDataRole.UserRole) == self.doc.selected:
