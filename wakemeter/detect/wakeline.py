@@ -150,9 +150,16 @@ def _line_scores(
     shape = vals.shape[:-2] + (len(t.line_length_fractions), 2)
     out = np.full(shape, -np.inf)
     where = np.full(shape, np.nan)
+    medians: dict[int, np.ndarray] = {}  # a length's first half is often the length before it: taken once
+
+    def profile(n: int) -> np.ndarray:
+        if n not in medians:
+            medians[n] = _profiles(vals, ok, n)
+        return medians[n]
+
     for i, frac in enumerate(t.line_length_fractions):
         n_r = max(int(frac * r.size), 6)
-        full, near = _profiles(vals, ok, n_r), _profiles(vals, ok, max(n_r // 2, 4))
+        full, near = profile(n_r), profile(max(n_r // 2, 4))
         for j, sign in enumerate((1.0, -1.0)):
             # a wake is there from its start: the line's value is the lesser of its whole and its first half
             prof = np.fmin(sign * full, sign * near)
