@@ -330,8 +330,9 @@ def _cfar_radar(img, ok, guard, back, pfa_px):
 
 
 def _label(mask: np.ndarray, connectivity: int = 8) -> tuple[np.ndarray, int]:
-    """Connected regions of a whole window (0: background, 1..n), as ``ndimage.label`` numbers them; OpenCV's
-    labelling is several times faster on windows this size."""
+    """Connected regions of a whole window (0: background, 1..n): the regions ``ndimage.label`` finds, numbered
+    in OpenCV's order (not always scipy's: the order only breaks ties); OpenCV's labelling is several times
+    faster on windows this size."""
     n, lab = cv2.connectedComponents(_u8(mask), connectivity=connectivity, ltype=cv2.CV_32S)
     return lab, int(n) - 1
 
