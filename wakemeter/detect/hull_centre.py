@@ -56,8 +56,9 @@ def centre_of_hull(
     ``reach_px``) is at least a share of the peak excess found within ``near_px`` of ``at``.
 
     The shares (finder_refine_shares) are tried in turn until those pixels form a hull's outline: closed within
-    ``reach_px`` (a wake's crests, a foam trail or a quay run on), solid (finder_refine_solidity: a hull joined to
-    a crest or an arm is not convex) and not fading from one end to the other (finder_trail_fade: a hull with the
+    ``reach_px`` (a wake's crests, a foam trail or a quay run on), solid (finder_refine_solidity, or the lower
+    finder_refine_solidity_small for outlines too small to show their shape in pixels: a hull joined to a crest or
+    an arm is not convex) and not fading from one end to the other (finder_trail_fade: a hull with the
     foam trail it leads).  None where nothing there stands above the water, no share gives an outline, or the
     outline is narrower than finder_refine_min_width_px (a hull blurred into the sensor's point spread, or a foam
     streak: the finder's peak is then the better centre)."""
@@ -80,7 +81,8 @@ def centre_of_hull(
         if np.any(dist[hull] > reach_px - 1.5) or _fades(hull, excess, t):
             continue
         props = regionprops(hull.astype(np.uint8))[0]
-        if props.solidity >= t.finder_refine_solidity:
+        small = props.area < t.finder_refine_solidity_min_px
+        if props.solidity >= (t.finder_refine_solidity_small if small else t.finder_refine_solidity):
             if props.axis_minor_length < t.finder_refine_min_width_px:
                 return None  # not resolved across: its peak is the better centre
             row, col = props.centroid

@@ -344,6 +344,14 @@ class Tuning:
     #: hull outlines of the Sentinel-2 ports (COCO, drawn by hand) have 0.80-0.95; a hull joined to a wake's crest
     #: or arm is not convex
     finder_refine_solidity: float = 0.75
+    #: ... or, for outlines smaller than finder_refine_solidity_min_px, at least finder_refine_solidity_small: a
+    #: pixelated outline that small shows its shape poorly.  Convex ellipses 3-30 px long and 1-6 px wide at random
+    #: angles and positions, area-averaged to pixels, blurred by the synthetic sensor's point spread (0.57 px) and
+    #: cut at 30-70 % of their peak, measure below 0.75 in 15-21 % of cases at 10-50 px and under 1 % from 50 px;
+    #: their 1st percentile is 0.61-0.65 below 50 px (4000 shapes, scikit-image regionprops; our measurement, no
+    #: source).  A hull joined to a crest stays out (0.53, tests/test_hull_centre.py)
+    finder_refine_solidity_min_px: float = 50.0
+    finder_refine_solidity_small: float = 0.6
     #: ... and at least this wide (the width of a uniform bar from its second moments): a hull is resolved across
     #: only over two pixels or more (sampling: two samples per period); narrower, the sensor's blur or a foam
     #: streak makes the outline, and the finder's peak is the better centre (the synthetic Sentinel-2-like fleets
