@@ -455,20 +455,24 @@ def _measure(
         pixel_m=look.chip.m_per_px,
         cautions=tuple(cautions),
         drawing=drawing,
-        diagnostics=Diagnostics(
-            side_contrast=look.side_contrast,
-            fit_speed_mps=look.fit.speed_mps,
-            depth_gain=model.depth_gain,
-            shallow_rule_out=model.rule_out,
-            boot_speeds_mps=spread.boot_speeds_mps,
-            look_step=look.step,
-            vessel_evidence=evidence,
-        ),
+        diagnostics=_diagnostics(look, model, spread, evidence),
         lines=measures.lines,
         interval_cover=cover,
         transverse_note=measures.transverse_note,
         request=request,
         plots=plots,
+    )
+
+
+def _diagnostics(look, model: DepthModel, spread, evidence: str) -> Diagnostics:
+    return Diagnostics(
+        side_contrast=look.side_contrast,
+        fit_speed_mps=look.fit.speed_mps,
+        depth_gain=model.depth_gain,
+        shallow_rule_out=model.rule_out,
+        boot_speeds_mps=spread.boot_speeds_mps,
+        look_step=look.step,
+        vessel_evidence=evidence,
     )
 
 
