@@ -60,6 +60,8 @@ class VesselTable(QTableWidget):
         self.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.setSortingEnabled(True)
         self.verticalHeader().setVisible(False)
+        # columns fit their headers and the first rows (all of 500 rows would cost 30 ms at every refresh)
+        self.horizontalHeader().setResizeContentsPrecision(100)
         self.setToolTip("Every vessel with its speed, interval, heading and limit verdict; click a header to sort")
         self._later = QTimer(self)
         self._later.setSingleShot(True)
