@@ -1,6 +1,6 @@
 """Speed-only changes to the line search give the very same results: the background scored for many points at
 once equals one point at a time (same arithmetic on a leading axis), and the validity lookup and the land mask's
-opening equal the scipy calls they replace.  Source of the check values: none outside the
+opening and dilations equal the scipy calls they replace.  Source of the check values: none outside the
 project is needed or used; the reference is the one-point-at-a-time path itself, whose results the real sweep
 (benchmarks/real_sweep.py, 156 real cases) shows unchanged.  On a real Sentinel-2 crop (tests/data/sentinel2,
 MIT licence), with and without a dark-line length limit, and with points whose rays leave the chip."""
@@ -60,7 +60,7 @@ def test_land_opening_equals_scipy_binary_opening():
     # random blobs touching the edges, at the radii the land mask uses (1 to 20 pixels).
     from scipy import ndimage
 
-    from wakemeter.detect.line_chip import binary_opened
+    from wakemeter.detect.binary_morph import binary_opened
 
     rng = np.random.default_rng(4)
     for radius in (1, 2, 3, 5, 8, 13, 20):
@@ -68,3 +68,18 @@ def test_land_opening_equals_scipy_binary_opening():
         mask[:5], mask[:, -3:] = True, True
         disk = ndimage.iterate_structure(ndimage.generate_binary_structure(2, 1), radius)
         assert np.array_equal(binary_opened(mask, radius), ndimage.binary_opening(mask, structure=disk))
+
+
+def test_dilation_and_repeated_opening_equal_scipy():
+    # Reference library: scipy.ndimage.binary_dilation with its default cross, repeated, and binary_opening with
+    # iterations (OpenCV replaces them for speed), on random blobs and specks touching the edges.
+    from scipy import ndimage
+
+    from wakemeter.detect.binary_morph import binary_dilated, binary_opened
+
+    rng = np.random.default_rng(7)
+    for k in (1, 2, 3, 5):
+        mask = (ndimage.uniform_filter(rng.random((150, 170)), 7) > 0.55) | (rng.random((150, 170)) > 0.995)
+        mask[:, :2] = True
+        assert np.array_equal(binary_dilated(mask, k), ndimage.binary_dilation(mask, iterations=k))
+        assert np.array_equal(binary_opened(mask, k), ndimage.binary_opening(mask, iterations=k))

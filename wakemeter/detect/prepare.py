@@ -17,6 +17,7 @@ from ..errors import ParameterError, TooLittleWaterError
 from ..scene import display
 from ..scene.geodesy import LocalFrame
 from ..scene.raster import Scene
+from .binary_morph import binary_dilated, binary_opened
 from .line_chip import green_nir_bands, land_mask
 from .pixels import index_to_scene, scene_to_index
 from .robust import median_spread
@@ -134,8 +135,8 @@ def prepare_chip(
         top = np.iinfo(np.dtype(scene.info.dtype)).max
         if vals.max() >= 0.995 * top:
             # saturated land or cloud: sizeable connected areas at the top of the range, not specks
-            sat = ndimage.binary_opening(fvalid & (full >= 0.995 * top), iterations=2)
-            fvalid &= ~ndimage.binary_dilation(sat, iterations=2)
+            sat = binary_opened(fvalid & (full >= 0.995 * top), 2)
+            fvalid &= ~binary_dilated(sat, 2)
     m_px = float(np.sqrt(frame.m_per_col * frame.m_per_row_up)) * step
     gn = None if radar else green_nir_bands(scene.info.band_descriptions)
     if gn is not None:  # land and quays inside the box, by the water index where the bands are named
@@ -189,12 +190,12 @@ def _snap_hull(
         pr, pc = np.nonzero(peaks)
         k = int(np.argmin((pr - centre[0]) ** 2 + (pc - centre[1]) ** 2))
         hull_rc = (float(pr[k]), float(pc[k]))
-        blob = ndimage.binary_dilation(sm > float(np.median(sm_vals)) + 5 * sm_sig, iterations=2)
+        blob = binary_dilated(sm > float(np.median(sm_vals)) + 5 * sm_sig, 2)
         lab, _ = ndimage.label(blob)
         if lab[pr[k], pc[k]] > 0:
             hull = lab == lab[pr[k], pc[k]]
             if np.isfinite(mask_max_px):  # at centimetre pixels the foam behind is part of the blob: not the wake
                 hull &= (rr - hull_rc[0]) ** 2 + (cc - hull_rc[1]) ** 2 <= mask_max_px**2
             if hull.sum() * m_px**2 < (4 * hull_mask_m) ** 2:  # a hull, not a whole bright region
-                fvalid &= ~ndimage.binary_dilation(hull, iterations=2)
+                fvalid &= ~binary_dilated(hull, 2)
     return hull_rc, fvalid
