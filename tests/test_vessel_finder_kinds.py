@@ -52,22 +52,27 @@ def test_each_demo_vessel_is_found_once_and_analysed_right(name):
             assert a.speed.ci95_low_mps <= v["speed_mps"] <= a.speed.ci95_high_mps, (v["name"], a.speed)
 
 
+def _fleet(path, n, pixel_m, spacing_m, length_m):
+    """A single-band optical fleet of the finder sweep (seed 0) seen through a sensor's blur: its truth and the
+    finder's candidates."""
+    spec = fleet_spec(
+        n,
+        seed=0,
+        size=1024,
+        pixel_m=pixel_m,
+        spacing_m=spacing_m,
+        length_m=length_m,
+        imaging=OpticalModel(psf_sigma_px=0.57),
+    )
+    tif, _ = write(render(spec), path)
+    with open_scene(tif) as sc:
+        return json.loads(tif.with_suffix(".truth.json").read_text())["vessels"], find_vessels(sc)
+
+
 def test_small_boats_at_half_a_metre_are_found_once(tmp_path):
     # Synthetic truth: three boats of 7-18 m at 4-8 kn in a 512 m square at 0.5 m pixels, seen through a
     # sensor's blur.  Before: none found (the windows reached beyond the scene, the wakes set the threshold).
-    spec = fleet_spec(
-        3,
-        seed=0,
-        size=1024,
-        pixel_m=0.5,
-        spacing_m=150.0,
-        length_m=(6.0, 30.0),
-        imaging=OpticalModel(psf_sigma_px=0.57),
-    )
-    tif, _ = write(render(spec), tmp_path / "boats.tif")
-    truth = json.loads(tif.with_suffix(".truth.json").read_text())["vessels"]
-    with open_scene(tif) as sc:
-        cands = find_vessels(sc)
+    truth, cands = _fleet(tmp_path / "boats.tif", 3, 0.5, 150.0, (6.0, 30.0))
     found = [v for v in truth if _nearest(cands, v["pixel_col"], v["pixel_row"])[0] <= v["hull_length_m"]]
     assert len(found) >= 2  # the sweep finds 8 of 9 in three such scenes
     assert len(cands) <= len(truth)  # never a boat twice, nothing on the wakes
@@ -78,19 +83,7 @@ def test_small_hulls_at_five_metres_are_centred_though_pixelated(tmp_path):
     # Synthetic truth: the 5 m fleet of benchmarks/vessel_finder_sweep.py, seed 0.  Its first boat (44 m, heading
     # 308 degrees) is a 9 x 2 px diagonal outline whose solidity is 0.67-0.75 at every share tried: pixelation,
     # not a crest (tuning.finder_refine_solidity_small).  Before: left at the peak on its stern, 4.1 px off.
-    spec = fleet_spec(
-        5,
-        seed=0,
-        size=1024,
-        pixel_m=5.0,
-        spacing_m=1000.0,
-        length_m=(15.0, 80.0),
-        imaging=OpticalModel(psf_sigma_px=0.57),
-    )
-    tif, _ = write(render(spec), tmp_path / "fleet.tif")
-    truth = json.loads(tif.with_suffix(".truth.json").read_text())["vessels"]
-    with open_scene(tif) as sc:
-        cands = find_vessels(sc)
+    truth, cands = _fleet(tmp_path / "fleet.tif", 5, 5.0, 1000.0, (15.0, 80.0))
     first = truth[0]
     assert _nearest(cands, first["pixel_col"], first["pixel_row"])[0] <= 2.0
     # and the whole fleet: each boat once, none off by more than half its hull
