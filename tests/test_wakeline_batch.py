@@ -83,3 +83,5 @@ def test_dilation_and_repeated_opening_equal_scipy():
         mask[:, :2] = True
         assert np.array_equal(binary_dilated(mask, k), ndimage.binary_dilation(mask, iterations=k))
         assert np.array_equal(binary_opened(mask, k), ndimage.binary_opening(mask, iterations=k))
+    with pytest.raises(ValueError, match="at least one step"):
+        binary_dilated(mask, 0)  # scipy would dilate until nothing changes: not what a gap of 0 px means

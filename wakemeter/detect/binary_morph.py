@@ -21,9 +21,10 @@ def binary_opened(mask: np.ndarray, radius: int) -> np.ndarray:
 
 
 def binary_dilated(mask: np.ndarray, iterations: int = 1) -> np.ndarray:
-    """``ndimage.binary_dilation(mask, iterations=iterations)`` (the cross, repeated)."""
+    """``ndimage.binary_dilation(mask, iterations=iterations)`` (the cross, repeated) for ``iterations`` >= 1;
+    scipy reads fewer as "until nothing changes", which would flood every region, so they are refused."""
     if iterations < 1:
-        return mask.astype(bool)
+        raise ValueError(f"a dilation needs at least one step, got {iterations}")
     out = cv2.dilate(
         mask.astype(np.uint8), _CROSS, iterations=iterations, borderType=cv2.BORDER_CONSTANT, borderValue=0
     )
