@@ -99,6 +99,39 @@ def test_real_wake_with_room_for_the_spectrum_keeps_its_heading(click):
     assert a.methods[0].method.startswith("hull shift between bands")
 
 
+#: vessels of two other ports seen as one bright streak (hull and foam) over hazy, glinting water: (file, vessel
+#: pixel, heading by eye, deg); the headings are the shared data's own, read by eye from true colour to +/-15 deg
+#: (tests/data/sentinel2/README.md).  Before the streak reading: "no line starts at the vessel" on both
+STREAKS = [
+    ("cartagena_02_S2L2A_2023-07-30_streak.tif", (120.5, 120.5), 165.0),
+    ("klang_02_S2L2A_2023-04-08_streak.tif", (116.5, 120.5), 110.0),
+]
+#: two ships on open water without a trail (labelled by eye), brighter at one end: (col, row)
+HULLS_WITHOUT_WAKE = [(135.0, 185.0), (115.5, 120.0)]
+
+
+@pytest.mark.parametrize("name, ship, eye", STREAKS)
+def test_real_foam_streak_at_another_port_is_a_wake_with_its_heading(name, ship, eye):
+    with open_scene(DATA / name) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=ship))
+    assert a.wake_found, a.decision
+    assert a.heading_deg is not None and a.heading_std_deg is not None
+    assert _angle_diff(a.heading_deg, eye) <= 15.0  # the eye reading's own tolerance
+    assert _angle_diff(a.heading_deg, eye) <= 2 * a.heading_std_deg + EYE_READING_DEG
+    assert a.has_caution(CautionCode.STREAK)
+
+
+@pytest.mark.parametrize("ship", HULLS_WITHOUT_WAKE)
+def test_real_ship_brighter_at_one_end_is_not_a_foam_streak(ship):
+    # each is a compact streak brighter at one end, as a hull and its foam are; its far end is as bright in the
+    # near infrared as in the visible (share about 1.9), which foam never is (Moore et al. 1998; Dierssen 2019).
+    # Without that test both were read as wakes heading 260-268 deg, one with a speed
+    with open_scene(DATA / "gdynia_r430_c980_S2L2A_hulls.tif") as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=ship))
+    assert not a.wake_found and a.speed is None
+    assert "near infrared" in a.decision
+
+
 @pytest.mark.parametrize("path", SEA, ids=[p.name for p in SEA])
 def test_real_sea_tiles_stay_quiet(path):
     """Clean sea (seam, slicks, sediment, swell, an old straight line): no wake at the centre nor at the three

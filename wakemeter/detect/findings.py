@@ -39,6 +39,7 @@ class CautionCode(StrEnum):
     OVER_GROUND = "over-ground"  #: a speed over ground (hull shift between bands), not through the water
     SHIFT_OFF_TRACK = "shift-off-track"  #: the hull's shift between bands does not follow its wake
     OUT_OF_DOMAIN = "out-of-domain"  #: a method's figure fell outside its domain: not given as a speed
+    STREAK = "streak"  #: the wake is a short streak fading from its head: direction read from which end is bright
     NOTE = "note"  #: a caution read from an older record that names no code
 
 

@@ -62,6 +62,15 @@ class Hull:
 
 
 @dataclass(frozen=True, eq=False)
+class Spectral:
+    """An optical chip's bands as read, and which of them are visible and which near infrared."""
+
+    pixels: np.ndarray  #: float32 (bands, n, n)
+    visible: tuple[int, ...]  #: indices into ``pixels``
+    nir: int
+
+
+@dataclass(frozen=True, eq=False)
 class LineChip:
     img: np.ndarray  #: float32 (n, n) standardised (water median 0, spread 1), masked pixels 0
     valid: np.ndarray  #: bool (n, n): open water inside the scene
@@ -75,6 +84,9 @@ class LineChip:
     land_fraction: float  #: share of the in-scene pixels masked as land, cloud or quay
     hull_at_land: bool = False  #: the hull touches land or a quay (moored: lines along the quay are not wakes)
     step: int = 1  #: scene pixels per chip pixel (block means; 1 but for centimetre photos)
+    #: optical bands as read (bands, n, n; masked pixels 0) with the indices of the visible ones and of a near
+    #: infrared one, when the file names them (a bright object's colour: foam or a hull, :mod:`.foam_streak`)
+    spectral: Spectral | None = None
 
     @property
     def vessel_rc(self) -> tuple[float, float]:
@@ -83,6 +95,16 @@ class LineChip:
     def to_scene(self, row: float, col: float) -> tuple[float, float]:
         """Scene (col, row) of a chip (row, col) (see :mod:`.pixels`)."""
         return index_to_scene(self.origin_px, self.step, row, col)
+
+
+def _spectral(full: np.ndarray, descriptions: tuple[str | None, ...], bands: tuple[int, ...]) -> Spectral | None:
+    roles = band_roles(descriptions)
+    nir = roles.get(BandRole.NIR)
+    visible = [roles.get(r) for r in (BandRole.BLUE, BandRole.GREEN, BandRole.RED)]
+    seen = tuple(bands.index(b) for b in visible if b is not None and b in bands)
+    if nir is None or nir not in bands or not seen:
+        return None
+    return Spectral(full, seen, bands.index(nir))
 
 
 def _green_nir(descriptions: tuple[str | None, ...], bands: tuple[int, ...]) -> tuple[int, int] | None:
@@ -181,6 +203,7 @@ def prepare_line_chip(
         float((land & valid).sum() / in_scene),
         bool(hull is not None and (binary_dilated(hull.mask, int(tuning.moored_gap_px)) & land).any()),
         step,
+        None if radar else _spectral(full, scene.info.band_descriptions, bands),
     )
 
 

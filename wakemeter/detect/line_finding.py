@@ -13,9 +13,10 @@ the lines, and gives a speed only from what the scene allows:
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
+from scipy import ndimage
 
 from ..errors import ParameterError
 from ..physics import inversion as inv
@@ -25,8 +26,10 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from .explain import opening_cautions
 from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, LinePlotData, Segment, SegmentKind
+from .foam_streak import foam_streak
 from .hull_outline import line_is_the_hull
 from .line_chip import LineChip, prepare_line_chip
+from .lines import WakeLine
 from .methods import SPEED_METHODS, LineStages, MethodContext, SpeedMethod, combine, run_methods
 from .request import AnalysisRequest, pixel_rel_std
 from .result import WakeAnalysis
@@ -61,7 +64,8 @@ def look_for_lines(
 ) -> LineLook:
     """Search the vessel's surroundings for a wake line; never raises for a poor area (says why instead).
     ``hull_elsewhere``: the search starts where a radar hull's displaced wake begins (the hull is the
-    evidence of a vessel)."""
+    evidence of a vessel).  A line that does not make a wake alone may still run along a bright streak
+    fading from its head (hull and foam at coarse pixels, :mod:`.foam_streak`)."""
     try:
         chip = prepare_line_chip(
             scene, px, size_px=tuning.line_chip_px, snap_radius_m=tuning.line_snap_radius_m, tuning=tuning
@@ -69,6 +73,68 @@ def look_for_lines(
     except ParameterError as err:
         return LineLook(None, None, False, str(err))
     wake = find_wake_line(chip, reach_m=tuning.line_reach_m, rng_seed=request.seed, tuning=tuning)
+    look = _line_look(chip, wake, request, tuning, hull_elsewhere=hull_elsewhere, hull_axis_deg=hull_axis_deg)
+    if look.found or wake is None or hull_elsewhere or chip.hull_at_land:
+        return look
+    if chip.radar or chip.m_per_px < tuning.streak_pixel_min_m:
+        return look
+    streak_look, why = _streak_look(chip, request.seed, tuning)
+    if streak_look is not None:
+        return streak_look
+    return LineLook(chip, wake, False, f"{look.why_not}; nor is it a streak from its head: {why}")
+
+
+def _streak_look(chip: LineChip, seed: int, tuning: Tuning) -> tuple[LineLook | None, str]:
+    """The wake as a bright streak fading from its head, when the best bright line from the head (scored as
+    any line, against the scene's other lines) runs back along the streak."""
+    streak, why = foam_streak(chip, tuning)
+    if streak is None:
+        return None, why
+    wake = find_wake_line(
+        replace(chip, click_rc=streak.head_rc, hull=None), reach_m=tuning.line_reach_m, rng_seed=seed, tuning=tuning
+    )
+    if wake is None:
+        return None, "too little open water around the streak to compare lines"
+    sig, angle, length = wake.bright_line
+    off = abs((angle - streak.back_deg + 180.0) % 360.0 - 180.0)
+    if off > tuning.streak_axis_agree_deg or sig < tuning.streak_line_significance_min:
+        return None, (
+            f"the best bright line from its head (significance {sig:.1f}, "
+            f"{tuning.streak_line_significance_min:g} needed) runs {off:.0f}\N{DEGREE SIGN} off the streak "
+            f"({tuning.streak_axis_agree_deg:g}\N{DEGREE SIGN} allowed)"
+        )
+    r = np.arange(0.0, 2.0 * streak.length_px, 1.0)
+    a = np.radians(streak.back_deg)
+    rows, cols = streak.head_rc[0] - r * np.sin(a), streak.head_rc[1] + r * np.cos(a)
+    along = ndimage.map_coordinates(chip.img, [rows, cols], order=1, mode="constant", cval=np.nan)
+    found = LineWake(
+        streak.back_deg,
+        streak.back_std_deg,
+        wake.score,
+        sig,
+        wake.null_median,
+        wake.null_spread,
+        False,
+        streak.length_px,
+        float("nan"),
+        (WakeLine(LineKind.TURBULENT_BRIGHT, 0.0, sig, streak.length_px),),
+        streak.head_rc,
+        along=np.asarray(along, float),
+        from_streak=True,
+    )
+    return LineLook(chip, found, True, ""), ""
+
+
+def _line_look(
+    chip: LineChip,
+    wake: LineWake | None,
+    request: AnalysisRequest,
+    tuning: Tuning,
+    *,
+    hull_elsewhere: bool,
+    hull_axis_deg: float | None,
+) -> LineLook:
+    """The line search's own verdict on its best line."""
     if wake is None:
         return LineLook(chip, None, False, "too little open water around the vessel to compare lines")
     if wake.significance < tuning.line_significance_min:
@@ -158,6 +224,29 @@ def _no_speed_reason(chip: LineChip, g: float, spectral_note: str) -> str:
     return said + f", so the waves of a vessel slower than about {u_min:.0f} kn cannot show at this pixel size"
 
 
+_STREAK_CAUTION = (
+    "the wake is a short bright streak (the hull and its foam in one): the track is its axis and the direction of "
+    "travel is read from its bright, sharp head, away from the fading tail; a vessel brighter at its stern than at "
+    "its bow would be read backwards; the heading's uncertainty includes the streak's shape and the model term, "
+    "not that reversal"
+)
+
+
+def _seen(wake: LineWake, tuning: Tuning) -> str:
+    """The decision's opening: how the wake was seen, with its significance and what was needed."""
+    if wake.from_streak:
+        return (
+            f"wake found as a bright streak fading from the vessel's head (hull and foam, {wake.length_px:.0f} "
+            f"pixels), with a line along it of significance {wake.significance:.1f} against the scene's other lines "
+            f"(a streak needs {tuning.streak_line_significance_min:g}, a line alone {tuning.line_significance_min:g}); "
+        )
+    kind = "dark calm band" if wake.dark else "bright foam line"
+    return (
+        f"wake found as a line from the vessel ({kind}): significance {wake.significance:.1f} against the "
+        f"scene's other lines (needs {tuning.line_significance_min:g}); "
+    )
+
+
 def line_finding(
     scene: Scene,
     request: AnalysisRequest,
@@ -202,15 +291,12 @@ def line_finding(
     reason = "; ".join([_no_speed_reason(chip, g, spectral_note), *(o.why_not for o in outputs if o.why_not)])
     cautions.insert(1, Caution(CautionCode.LINES_ONLY, reason))
     combined = combine(estimates)
-    kind = "dark calm band" if wake.dark else "bright foam line"
-    decision = (
-        f"wake found as a line from the vessel ({kind}): significance {wake.significance:.1f} against the scene's "
-        f"other lines (needs {tuning.line_significance_min:g}); "
-        + (
-            "speed from " + " and ".join(dict.fromkeys(e.method for e in estimates))
-            if combined is not None
-            else "no speed: see the cautions"
-        )
+    if wake.from_streak:
+        cautions.insert(2, Caution(CautionCode.STREAK, _STREAK_CAUTION))
+    decision = _seen(wake, tuning) + (
+        "speed from " + " and ".join(dict.fromkeys(e.method for e in estimates))
+        if combined is not None
+        else "no speed: see the cautions"
     )
     regime = inv.DepthRegime.unmeasured(inv.Regime.UNKNOWN, "no waves resolved: depth regime not judged")
     n = chip.img.shape[0]

@@ -246,6 +246,28 @@ class Tuning:
     #: ... checked only at pixels this fine (m): the white hulls taken for wakes were on 1.5-3 m images; at 10 m
     #: a small boat with a short even foam tail (a real sea tile, marseille_r768_c512) looks the same
     hull_line_max_pixel_m: float = 5.0
+    # ---- a vessel seen as a bright streak fading from its head (foam_streak.py; benchmarks/real_sweep.py) ----
+    #: set on the real Sentinel-2 data only (nine wakes of two ports read by eye; the port vessels and sea specks
+    #: without a wake); README, real scenes, gives where each case sits against them.  Used at pixels this coarse
+    #: (m) and up, where a hull and its foam are one streak (finer, the hull's own outline is read)
+    streak_pixel_min_m: float = 5.0
+    streak_ring_inner_px: float = 10.0  #: the water around the point: a ring this far out ...
+    streak_ring_outer_px: float = 40.0  #: ... to this far (pixels)
+    streak_peak_z_min: float = 5.0  #: the streak's peak above that water (robust spreads; wakes 5.3-15.8)
+    streak_elongation_min: float = 2.8  #: length over width (second moments; wakes 3.1-6.1)
+    streak_length_min_px: float = 10.0  #: along its axis (wakes 10-25 px)
+    #: skew of the brightness along the axis (bright head, fading tail; wakes 0.28-0.87, even hulls 0.01-0.22)
+    streak_skew_min: float = 0.25
+    #: the streak's tail (its rear half) must be darker in the near infrared than in the visible: its excess over
+    #: the water in B08 at most this share of its mean excess in the visible bands.  Foam reflects less in the near
+    #: infrared than in the visible (Moore et al. 1998, J. Atmos. Oceanic Technol. 15(2), ship-made foam; Kokhanovsky
+    #: 2004, JGR 109 C05021; Dierssen 2019, Front. Earth Sci. 7:14); a white or grey hull about as much (share 1, from
+    #: memory).  Shared real data (benchmarks/real_sweep.py): foam tails 0.49-0.87, hulls without a wake 0.86-3.1
+    streak_nir_share_max: float = 0.9
+    #: the line search's own best line must run along the streak's axis within this angle (either way) ...
+    streak_axis_agree_deg: float = 20.0
+    #: ... with at least this significance against the scene's other lines
+    streak_line_significance_min: float = 3.0
     # ---- narrow arms and hull length (Rabaud & Moisy 2013) ----
     #: a hull is measured on the image only at pixels this small (m): coarser, its outline cannot be told from
     #: its foam (common practice, no source)

@@ -62,6 +62,9 @@ class LineWake:
     half_angle: tuple[float, float] | None = None  #: (half-angle, its std) when two arms of a V were seen
     fan_significance: np.ndarray = field(default_factory=lambda: np.zeros(0), compare=False, repr=False)
     along: np.ndarray = field(default_factory=lambda: np.zeros(0), compare=False, repr=False)  #: along the line
+    from_streak: bool = False  #: read as a bright streak fading from its head (:mod:`.foam_streak`)
+    #: the best bright line alone (significance, image angle, length in pixels), which a dark best line can hide
+    bright_line: tuple[float, float, float] = (float("-inf"), 0.0, 0.0)
 
 
 def _rays(img: np.ndarray, valid: np.ndarray, origin_rc, angles_deg: np.ndarray, r: np.ndarray, start=None):
@@ -255,10 +258,9 @@ def find_wake_line(
         The line search's thresholds (``line_*``, ``hull_clearance_px``, ``narrow_v_max_deg``).
     """
     t = tuning
-    img = np.clip(ndimage.gaussian_filter(chip.img, 0.7), -t.line_clip_z, t.line_clip_z)
     valid = chip.valid
+    img = np.where(valid, np.clip(ndimage.gaussian_filter(chip.img, 0.7), -t.line_clip_z, t.line_clip_z), 0.0)
     r0 = t.hull_clearance_px
-    img = np.where(valid, img, 0.0)
     n = img.shape[0]
     r_max = float(min(reach_m / chip.m_per_px, 0.42 * n))
     if r_max < r0 + 12:
@@ -281,6 +283,7 @@ def find_wake_line(
     z_own = np.nan_to_num((own - centre) / spread, nan=-np.inf)
     i, j = np.unravel_index(int(np.argmax(z_own)), z_own.shape)
     sig = float((z_own[i, j] - med) / sp)
+    bright_line = _best_bright(z_own, own_angle, med, sp, np.arange(r0, r_max, 1.0).size, t)
     score, angle, dark = float(own[i, j]), float(own_angle[i, j]), bool(j == 1)
     n_r = max(int(t.line_length_fractions[i] * np.arange(r0, r_max, 1.0).size), 6)
     # from the centre, past the core behind the vessel: the line's own start
@@ -336,7 +339,15 @@ def find_wake_line(
         half_angle,
         np.asarray(sig_fan, float),
         along,
+        bright_line=bright_line,
     )
+
+
+def _best_bright(z_own, own_angle, med: float, sp: float, n_rays: int, t: Tuning) -> tuple[float, float, float]:
+    """The best bright line alone: (significance, image angle, length in pixels)."""
+    i_b = int(np.argmax(z_own[:, 0]))
+    n_b = max(int(t.line_length_fractions[i_b] * n_rays), 6)
+    return float((z_own[i_b, 0] - med) / sp), float(own_angle[i_b, 0]), float(n_b)
 
 
 def _scene_lines(img, chip: LineChip, r0: float, r_max: float, min_dark: float, rng_seed: int, t: Tuning):

@@ -7,7 +7,14 @@ switchable on its own:
   of the hull is a bright line from it, which must not be taken for a wake);
 * a foam trail fading behind the stern (a wake seen as a line), along the hull's axis or turned off it;
 * a planing boat's foam V: two bright foam arms from the stern at a small half-angle (not Kelvin wave ridges;
-  attached to the hull, so the hull's length cannot be read from the blob).
+  attached to the hull, so the hull's length cannot be read from the blob);
+* haze and glint over the water: a smooth brightness field kilometres across (``haze_contrast``, the same in
+  every band), as over a hazy, glinting bay where the water's spread across the scene is several times its
+  spread around a vessel;
+* foam's colour: ``foam_nir_share`` is the foam's excess over the water in the near-infrared band (B08) as a
+  share of its excess in the visible bands.  Real foam reflects less in the near infrared (Moore et al. 1998;
+  Dierssen 2019: a share of about 0.6-0.8, from memory of their spectra); the default 1 keeps the grey foam of
+  the earlier scenes.  The hull stays grey (the same excess in every band).
 
 The scene is a 4-band (B02 B03 B04 B08 named) or single-band uint16 GeoTIFF in UTM zone 31N; the pixel values
 are invented, of the order of a Level-2A product's.  Truth: the heading (true bearing of the bow).
@@ -60,6 +67,8 @@ def white_hull_scene(
     bands: int = 4,
     size_px: int = 400,
     seed: int = 1,
+    haze_contrast: float = 0.0,
+    foam_nir_share: float = 1.0,
 ) -> HullScene:
     """Write the scene and return its truth (see the module's description)."""
     rng = np.random.default_rng(seed)
@@ -95,13 +104,18 @@ def white_hull_scene(
     foam = np.clip(foam, 0, 1)
     foam_level = 0.8 * hull_contrast if foam_contrast is None else foam_contrast
     out = np.empty((bands, n, n), np.float32)
+    haze = np.zeros((n, n))
+    if haze_contrast > 0:  # drawn only then, so the scenes without haze stay as they were
+        haze = ndimage.gaussian_filter(rng.normal(0, 1, (n, n)), n / 4, mode="wrap")
+        haze = haze_contrast * (haze - haze.min()) / max(float(np.ptp(haze)), 1e-12)
     for i in range(bands):
         white = WATER[i] + hull_contrast
         b = WATER[i] + rng.normal(0, 15, (n, n))
-        b = np.where(foam > 0, WATER[i] + foam_level * foam, b)
+        tint = foam_nir_share if BAND_NAMES[i] == "B08" and bands == 4 else 1.0
+        b = np.where(foam > 0, WATER[i] + tint * foam_level * foam, b)
         b = np.where(hull, white + rng.normal(0, 20, (n, n)), b)
         b = np.where(deck, WATER[i] + superstructure_factor * hull_contrast, b)
-        out[i] = ndimage.gaussian_filter(b, 0.6)
+        out[i] = ndimage.gaussian_filter(b + haze, 0.6)
     target = Path(path)
     part = target.with_name(f".{target.name}.{os.getpid()}.part")
     prof = dict(
