@@ -293,3 +293,52 @@ def test_a_single_band_streak_is_not_read_as_a_wake(tmp_path):
     with open_scene(hs.path) as sc:
         a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
     assert not a.wake_found
+
+
+def _on_slicks(hs, n: int, k: int = 4) -> list[tuple[float, float]]:
+    """Up to ``k`` points on the scene's slicks (a quarter, half and three quarters along each), inside the scene
+    by 20 pixels and farther than 40 pixels from the hull."""
+    out = []
+    for (c0, r0), (c1, r1) in hs.slicks:
+        for f in (0.25, 0.5, 0.75):
+            c, r = c0 + f * (c1 - c0), r0 + f * (r1 - r0)
+            inside = 20 <= c <= n - 20 and 20 <= r <= n - 20
+            if inside and np.hypot(c - hs.centre_px[0], r - hs.centre_px[1]) > 40:
+                out.append((c, r))
+    return out[:k]
+
+
+@pytest.mark.parametrize("seed", [1, 2])
+def test_wind_slicks_in_sun_glint_are_not_wakes(tmp_path, seed):
+    # a glinting sea with six wind slicks (dark lines 1-3 km long that start nowhere near a vessel) and a small
+    # vessel with a short foam tail and a dark calm wake, the wake and slicks damping 30 % of the glint (plainly
+    # visible; synthetic, glint_scenes): a click on a slick gives no wake, and the vessel gives no wake or its
+    # own heading, never a slick's
+    from wakemeter.synth.glint_scenes import glint_wake_scene
+
+    hs = glint_wake_scene(tmp_path / "g.tif", heading_deg=300.0, seed=seed, calm_depth=0.3)
+    with open_scene(hs.path) as sc:
+        points = _on_slicks(hs, sc.width)
+        assert len(points) >= 2
+        for p in points:
+            a = analyze(sc, AnalysisRequest(vessel_px=p))
+            assert not a.wake_found, (p, a.decision)
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
+    if a.wake_found:
+        assert a.heading_deg is not None and a.heading_std_deg is not None
+        assert abs((a.heading_deg - 300.0 + 180) % 360 - 180) <= 2 * a.heading_std_deg
+
+
+@pytest.mark.xfail(strict=True, reason="dark calm wakes across sun glint are not found yet (README, real scenes)")
+def test_a_dark_calm_wake_across_sun_glint_is_found(tmp_path):
+    # the known miss, held so that it is seen when it changes: on the real Sentinel-2 crops (cartagena 04 and
+    # 07) the calm line behind a small craft is 0.2-0.3 of the scene's spread darker than the glint beside it;
+    # here (6 % of the glint, one texture spread) the line search scores 6-7 where 9 is needed, and at 30 % it
+    # stands out (9-17) but the hull is not seen against the glint, so it is refused as a line from elsewhere
+    from wakemeter.synth.glint_scenes import glint_wake_scene
+
+    hs = glint_wake_scene(tmp_path / "g.tif", heading_deg=300.0, seed=1)
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
+    assert a.wake_found and a.heading_deg is not None and a.heading_std_deg is not None
+    assert abs((a.heading_deg - 300.0 + 180) % 360 - 180) <= 2 * a.heading_std_deg

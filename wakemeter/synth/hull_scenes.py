@@ -116,12 +116,27 @@ def white_hull_scene(
         b = np.where(hull, white + rng.normal(0, 20, (n, n)), b)
         b = np.where(deck, WATER[i] + superstructure_factor * hull_contrast, b)
         out[i] = ndimage.gaussian_filter(b + haze, 0.6)
+    target = write_bands(path, out, pixel_m)
+    return HullScene(
+        path=target,
+        centre_px=(c0, r0),
+        along_px=(float(ux), float(uy)),
+        heading_deg=heading_deg,
+        pixel_m=pixel_m,
+        length_m=length_m,
+    )
+
+
+def write_bands(path: str | Path, out: np.ndarray, pixel_m: float) -> Path:
+    """Write ``out`` (bands, n, n) as a uint16 GeoTIFF in UTM zone 31N with ``pixel_m`` pixels, the bands named
+    B02, B03, B04, B08 in turn, through a temporary file renamed into place."""
     target = Path(path)
     part = target.with_name(f".{target.name}.{os.getpid()}.part")
+    bands, h, w = out.shape
     prof = dict(
         driver="GTiff",
-        width=n,
-        height=n,
+        width=w,
+        height=h,
         count=bands,
         dtype="uint16",
         crs="EPSG:32631",
@@ -132,11 +147,4 @@ def white_hull_scene(
         for i in range(bands):
             ds.set_band_description(i + 1, BAND_NAMES[i])
     os.replace(part, target)
-    return HullScene(
-        path=target,
-        centre_px=(c0, r0),
-        along_px=(float(ux), float(uy)),
-        heading_deg=heading_deg,
-        pixel_m=pixel_m,
-        length_m=length_m,
-    )
+    return target
