@@ -13,6 +13,7 @@ pytest.importorskip("PySide6")
 from wakemeter.app.document import AddItem, Vessel  # noqa: E402
 from wakemeter.app.window import MainWindow  # noqa: E402
 from wakemeter.detect.findings import CautionCode
+from wakemeter.detect.tuning import DEFAULT_TUNING
 
 ROOT = Path(__file__).resolve().parents[1]
 SCENE = ROOT / "sample_scenes" / "harbour_approach_optical.tif"
@@ -379,6 +380,22 @@ def test_real_sentinel2_crop_in_the_program(qtbot, tmp_path, monkeypatch):
         view.prof_plot.getPlotItem().titleLabel.text
     )
     w.grab().save(str(tmp_path / "real_crop.png"))
+    w.close()
+
+
+def test_real_foam_streak_in_the_program(qtbot, tmp_path, monkeypatch):
+    """A vessel and its foam seen as one streak (real Sentinel-2 crop of another port, tests/data/sentinel2): the
+    panel says how it was read and the Plots tab shows the directions from its head (it was empty: the streak
+    finding carried no fan)."""
+    crop = ROOT / "tests" / "data" / "sentinel2" / "cartagena_02_S2L2A_2023-07-30_streak.tif"
+    w = _window(qtbot, tmp_path, monkeypatch, crop, "Streak boat", (120.0, 120.0))
+    _analyse(w, qtbot)
+    f = w.doc.effective_finding(next(iter(w.doc.vessels)))
+    assert f.wake_found and f.has_caution(CautionCode.STREAK)
+    assert "bright streak" in w.controller.panel.text.toHtml()
+    angles, sig = w.controller.panel.view.spec_line.getData()
+    assert angles is not None and sig.max() >= DEFAULT_TUNING.streak_line_significance_min
+    assert abs(angles[int(np.argmax(sig))]) <= 20.0  # the best direction runs along the streak
     w.close()
 
 

@@ -119,6 +119,7 @@ def _streak_look(chip: LineChip, seed: int, tuning: Tuning) -> tuple[LineLook | 
         float("nan"),
         (WakeLine(LineKind.TURBULENT_BRIGHT, 0.0, sig, streak.length_px),),
         streak.head_rc,
+        fan_significance=wake.fan_significance,  # every direction from the head: the plot of what it rests on
         along=np.asarray(along, float),
         from_streak=True,
     )
@@ -348,7 +349,7 @@ def _line_plots(wake: LineWake, chip: LineChip, tuning: Tuning) -> LinePlotData 
     return LinePlotData(
         rel[order],
         np.nan_to_num(fan[order], nan=0.0, neginf=0.0),
-        tuning.line_significance_min,
+        tuning.streak_line_significance_min if wake.from_streak else tuning.line_significance_min,
         wake.along,
         chip.m_per_px,
         wake.dark,

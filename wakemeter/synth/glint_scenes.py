@@ -12,8 +12,8 @@ by the wind and currents; they start and end nowhere near a vessel).  The scene 
 * the calm wake: from the stern back along the track for ``calm_wake_m``, ``calm_width_m`` wide and widening
   slowly, the glint lowered by ``calm_depth`` (a share of it; by default one texture spread, faint as on the
   real crops, where the calm line is 0.2-0.3 of the scene's spread darker than the glint beside it);
-* ``slicks`` wind slicks as dark as the wake, 1-3 km long and 20-60 m wide, at random places and angles, none passing within
-  ``slick_clearance_m`` of the hull.
+* ``slicks`` wind slicks as dark as the wake, 1-3 km long and 20-60 m wide, at random places and angles,
+  none passing within ``slick_clearance_m`` of the hull.
 
 Pixel values are invented, of the order of a Level-2A product's (4 bands named B02 B03 B04 B08).  Truth: the
 heading (true bearing of the bow).
