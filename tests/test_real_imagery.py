@@ -132,6 +132,29 @@ def test_real_ship_brighter_at_one_end_is_not_a_foam_streak(ship):
     assert "near infrared" in a.decision
 
 
+@pytest.mark.parametrize("click", [(121.6, 193.5), (120.6, 56.6), (121.6, 130.0)])
+def test_real_pier_clicked_is_not_a_vessel_with_a_wake(click):
+    # a pier about 1.9 km long and one or two pixels wide at Gdynia (tests/data/sentinel2/README.md): the water
+    # index does not mask it (NDWI 0.0-0.1, mixed with the water), so a click on it found a "hull" and a bright
+    # line along the pier from it: a wake heading 180 deg at the first click (and, on the whole port scene, at
+    # every finder candidate on the pier, one with a speed)
+    with open_scene(DATA / "gdynia_r570_c790_S2L2A_pier.tif") as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=click))
+    assert not a.wake_found and a.speed is None, a.decision
+    if click == (121.6, 193.5):
+        assert "longer than any vessel" in a.decision
+
+
+def test_real_rocky_islet_clicked_gives_no_foam_wake():
+    # a white limestone islet off Marseille, about 100 m long (tests/data/sentinel2/README.md), where the vessel
+    # finder put a candidate: a bright line ran from it and was read as a wake heading 8 deg; that line is as
+    # bright in the near infrared as in the visible (share 1.3), which foam never is (foam_colour.py)
+    with open_scene(DATA / "marseille_r1216_c690_S2L2A_islets.tif") as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=(120.3, 204.8)))
+    assert not a.wake_found and a.speed is None
+    assert "not foam" in a.decision
+
+
 @pytest.mark.parametrize("path", SEA, ids=[p.name for p in SEA])
 def test_real_sea_tiles_stay_quiet(path):
     """Clean sea (seam, slicks, sediment, swell, an old straight line): no wake at the centre nor at the three
@@ -210,6 +233,25 @@ def test_sentinel2_like_scene_speed_and_heading_within_their_intervals(seed, tmp
     assert _angle_diff(a.heading_deg, truth["heading_deg"]) <= 3 * a.heading_std_deg + 1.0
     assert a.speed is not None
     assert a.speed.ci95_low_mps <= truth["speed_mps"] <= a.speed.ci95_high_mps
+
+
+def test_sentinel2_like_ship_with_a_long_bright_foam_wake_is_not_taken_for_a_pier(tmp_path):
+    # a 200 m hull at 10 m/s: its foam is as bright as the hull for 500 m, longer than any vessel; a pier that
+    # long is refused, but this object's near-infrared share is foam's (synthetic, Sentinel-2-like)
+    from wakemeter.detect.line_chip import prepare_line_chip
+    from wakemeter.detect.tuning import DEFAULT_TUNING
+
+    v = VesselSpec("Long wake", -35.0, 36.0, 10.0, 70.0, Hull(200.0, 200.0 / 6))
+    ms = render_multispectral(vessel_scene("t", v, 320, 10.0, seed=5), MultispectralLook(wind_mps=5.0))
+    path = tmp_path / "long_S2.tif"
+    write(ms.rendered, path, band_names=BANDS)
+    t = ms.rendered.truth["vessels"][0]
+    with open_scene(path) as sc:
+        chip = prepare_line_chip(sc, (t["pixel_col"], t["pixel_row"]), size_px=DEFAULT_TUNING.line_chip_px)
+        assert chip.hull is not None and chip.hull.core_length_m > DEFAULT_TUNING.finder_max_length_m
+        a = analyze(sc, AnalysisRequest(vessel_px=(t["pixel_col"], t["pixel_row"])))
+    assert a.wake_found and a.heading_deg is not None and a.heading_std_deg is not None
+    assert _angle_diff(a.heading_deg, 70.0) <= 2 * a.heading_std_deg
 
 
 def test_sentinel2_like_hull_moves_between_bands_by_speed_times_delay(tmp_path):

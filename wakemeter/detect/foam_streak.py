@@ -13,11 +13,10 @@ chip's spread.  This test reads the streak itself:
   standardised moment along the axis; a hull seen alone is an even plateau, skew near 0);
 * its rear half is darker in the near infrared than in the visible (its excess over the water in the
   near-infrared band at most ``streak_nir_share_max`` of its mean excess in the visible bands): foam reflects
-  less in the near infrared than in the visible (Moore et al. 1998, ship-made foam; Kokhanovsky 2004; Dierssen
-  2019), a grey or white hull about as much.  Without a near-infrared band the streak is not read at all: a
-  hull brighter at its stern than at its bow fades from one end just as a streak does (a synthetic 150 m hull
-  with a bright aft superstructure was read as a wake with its heading reversed at 5 of 6 clicks without this
-  test, and at none with it);
+  less in the near infrared than in the visible, a grey or white hull about as much (:mod:`.foam_colour`).
+  Without a near-infrared band the streak is not read at all: a hull brighter at its stern than at its bow
+  fades from one end just as a streak does (a synthetic 150 m hull with a bright aft superstructure was read as
+  a wake with its heading reversed at 5 of 6 clicks without this test, and at none with it);
 * it touches no land, quay or scene edge;
 * the best bright line from its head, scored against the scene's other lines as any line is, runs along it.
 
@@ -30,15 +29,6 @@ wakes of two ports read by eye, and the port vessels and sea specks without a wa
 those cases is recorded there; they are not general constants.  The near-infrared bound stands on the
 published spectra: on the same data foam tails measure 0.49-0.87 and the hulls without a wake that pass the
 shape tests 1.9-2.8.
-
-References
-----------
-1. Moore, K. D., Voss, K. J. & Gordon, H. R. (1998). Spectral reflectance of whitecaps: instrumentation,
-   calibration, and performance in coastal waters. *J. Atmos. Oceanic Technol.* 15(2), 496-509.
-2. Kokhanovsky, A. A. (2004). Spectral reflectance of whitecaps. *J. Geophys. Res.* 109, C05021.
-3. Dierssen, H. M. (2019). Hyperspectral measurements, parameterizations, and atmospheric correction of
-   whitecaps and foam from visible to shortwave infrared for ocean color remote sensing. *Front. Earth Sci.*
-   7, 14.
 """
 
 from __future__ import annotations
@@ -48,6 +38,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import ndimage
 
+from .foam_colour import nir_share
 from .line_chip import LineChip
 from .robust import median_spread
 from .tuning import Tuning
@@ -117,7 +108,7 @@ def foam_streak(chip: LineChip, t: Tuning) -> tuple[FoamStreak | None, str]:
         )
     if skew < t.streak_skew_min:
         return None, f"the bright object at the point is evenly bright along its length (skew {skew:.2f}): a hull"
-    share = nir_share(chip, ys, xs, along, rc, t)
+    share = nir_share(chip, ys[along >= 0], xs[along >= 0], rc, t)
     if share is None:
         return None, "no near-infrared and visible bands named in the file to tell foam from a hull"
     if share > t.streak_nir_share_max:
@@ -136,27 +127,3 @@ def foam_streak(chip: LineChip, t: Tuning) -> tuple[FoamStreak | None, str]:
     # the axis of an object of this length to within half a pixel at its ends
     std = float(np.degrees(np.arctan(0.5 / max(0.5 * length, 1.0))))
     return FoamStreak(head, back % 360.0, std, length, peak, skew, share), ""
-
-
-def nir_share(
-    chip: LineChip, ys: np.ndarray, xs: np.ndarray, along: np.ndarray, rc: tuple[float, float], t: Tuning
-) -> float | None:
-    """The excess over the water around ``rc`` of the object's rear half (``along`` >= 0: the pixels ``ys``,
-    ``xs``) in the near infrared, over its mean excess in the visible bands; None without both kinds of band
-    or without a visible excess."""
-    sp = chip.spectral
-    if sp is None:
-        return None
-    n = chip.img.shape[0]
-    rr, cc = np.mgrid[:n, :n]
-    d = np.hypot(rr - rc[0], cc - rc[1])
-    ring = chip.valid & (d > t.streak_ring_inner_px) & (d < t.streak_ring_outer_px)
-    tail = along >= 0
-    ty, tx = ys[tail], xs[tail]
-
-    def excess(b: int) -> float:
-        band = sp.pixels[b]
-        return float(np.sum(band[ty, tx] - np.median(band[ring])))
-
-    vis = float(np.mean([excess(b) for b in sp.visible]))
-    return excess(sp.nir) / vis if vis > 0 else None

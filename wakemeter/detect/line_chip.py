@@ -48,6 +48,7 @@ class Hull:
     peak_z: float
     mask: np.ndarray  #: bool, the blob (the hull with the foam attached to it, above a quarter of the peak)
     core: np.ndarray  #: bool, its brightest part (above half the peak): the hull, and foam as bright as it
+    core_length_m: float = 0.0  #: the core's length (second moments, as ``length_m``)
 
     def extent_px(self, angles_deg: np.ndarray, *, whole: bool = False) -> np.ndarray:
         """How far the core (or with ``whole`` the blob) reaches from the centre in each image direction (chip
@@ -313,4 +314,6 @@ def _find_hull(
     c_c = float((w * cc).sum() / tot)
     length, width, axis = blob_shape(rr[blob] - r_c, cc[blob] - c_c, m_px)
     core = blob & (sm > max(floor / 2, 0.5 * float(sm[pr[k], pc[k]])))
-    return Hull((r_c, c_c), length, width, axis, float(sm[pr[k], pc[k]]), blob, core)
+    kr, kc = np.nonzero(core)
+    core_length = blob_shape(kr - kr.mean(), kc - kc.mean(), m_px)[0] if kr.size else 0.0
+    return Hull((r_c, c_c), length, width, axis, float(sm[pr[k], pc[k]]), blob, core, float(core_length))

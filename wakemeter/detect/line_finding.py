@@ -26,6 +26,7 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from .explain import opening_cautions
 from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, LinePlotData, Segment, SegmentKind
+from .foam_colour import line_nir_share, nir_share
 from .foam_streak import foam_streak
 from .hull_outline import line_is_the_hull
 from .line_chip import LineChip, prepare_line_chip
@@ -74,7 +75,7 @@ def look_for_lines(
         return LineLook(None, None, False, str(err))
     wake = find_wake_line(chip, reach_m=tuning.line_reach_m, rng_seed=request.seed, tuning=tuning)
     look = _line_look(chip, wake, request, tuning, hull_elsewhere=hull_elsewhere, hull_axis_deg=hull_axis_deg)
-    if look.found or wake is None or hull_elsewhere or chip.hull_at_land:
+    if look.found or wake is None or hull_elsewhere or chip.hull_at_land or _structure(chip, tuning):
         return look
     if chip.radar or chip.m_per_px < tuning.streak_pixel_min_m:
         return look
@@ -146,6 +147,9 @@ def _line_look(
             f"no line starts at the vessel: best line significance {wake.significance:.1f} against the scene's "
             f"other lines (needs {tuning.line_significance_min:g})",
         )
+    structure = _structure(chip, tuning) or _not_foam(chip, wake, tuning)
+    if structure and not request.force:
+        return LineLook(chip, wake, False, f"no wake: {structure}")
     if chip.hull is None and not hull_elsewhere and not request.force and not _radar_v(wake):
         return LineLook(
             chip,
@@ -231,6 +235,47 @@ _STREAK_CAUTION = (
     "its bow would be read backwards; the heading's uncertainty includes the streak's shape and the model term, "
     "not that reversal"
 )
+
+
+def _structure(chip: LineChip, tuning: Tuning) -> str:
+    """Why the bright object at the point is no vessel but a pier, breakwater or quay (empty when it may be one):
+    its brightest part (the hull, and foam as bright as it) is longer than the longest ships
+    (``finder_max_length_m``) and, where the file has near-infrared and visible bands, not darker in the near
+    infrared than foam is (``streak_nir_share_max``: a ship trailing a long bright foam wake is).  On the shared
+    real ports the piers clicked measured 0.9-1.9 km, the vessels with a wake 26-149 m; the water index misses a
+    pier one or two pixels wide (NDWI 0.0-0.1, mixed with the water)."""
+    hull = chip.hull
+    # optical only: a radar hull's sidelobes, as bright as half its peak in decibels, would lengthen its core
+    if hull is None or chip.radar or hull.core_length_m <= tuning.finder_max_length_m:
+        return ""
+    ys, xs = np.nonzero(hull.core)
+    share = nir_share(chip, ys, xs, hull.rc, tuning)
+    if share is not None and share <= tuning.streak_nir_share_max:
+        return ""  # foam: a ship with its long bright wake
+    return (
+        f"the bright object at the point is {hull.core_length_m:.0f} m long, longer than any vessel "
+        f"({tuning.finder_max_length_m:.0f} m), and not foam: a pier, breakwater or quay, and lines along it are "
+        "not wakes"
+    )
+
+
+def _not_foam(chip: LineChip, wake: LineWake, tuning: Tuning) -> str:
+    """Why a single bright line from the point is not a foam wake (empty when it may be one): in a file with
+    near-infrared and visible bands, its pixels are not darker in the near infrared than foam is
+    (``streak_nir_share_max``, :mod:`.foam_colour`).  On the shared real ports: wake lines 0.45-0.77, lines from
+    rocky islets and along piers 1.06-1.6.  Dark lines and the two arms of a V are not foam and are not judged."""
+    if chip.spectral is None or wake.dark or wake.half_angle is not None:
+        return ""
+    behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([wake.back_deg]), whole=True)[0])
+    share = line_nir_share(
+        chip, chip.vessel_rc, wake.back_deg, tuning.hull_clearance_px + behind, wake.length_px, tuning
+    )
+    if share is None or share <= tuning.streak_nir_share_max:
+        return ""
+    return (
+        f"the bright line from the point is not foam: as bright in the near infrared as in the visible (a share of "
+        f"{share:.2f}; foam's is at most {tuning.streak_nir_share_max:g}): a shore, rock, pier or hull edge"
+    )
 
 
 def _seen(wake: LineWake, tuning: Tuning) -> str:
