@@ -93,6 +93,18 @@ def test_a_white_hull_with_its_foam_trail_is_a_wake_with_the_right_heading(tmp_p
             assert err <= 2 * a.heading_std_deg, (a.heading_deg, a.heading_std_deg)
 
 
+def test_a_bright_trail_as_bright_in_the_near_infrared_as_in_the_visible_is_not_foam(tmp_path):
+    # the same hull and trail with the trail grey (as bright in B08 as in B02-B04): a concrete edge or a rock's,
+    # not foam, which is darker in the near infrared (foam_colour.py); in one band nothing tells them apart
+    hs = white_hull_scene(tmp_path / "hull.tif", superstructure_factor=6.0, foam_trail_m=150.0, foam_nir_share=1.0)
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
+    assert not a.wake_found and "not foam" in a.decision
+    one = white_hull_scene(tmp_path / "one.tif", superstructure_factor=6.0, foam_trail_m=150.0, bands=1)
+    with open_scene(one.path) as sc:
+        assert analyze(sc, AnalysisRequest(vessel_px=one.at(0.0))).wake_found
+
+
 def _planing_boat(tmp_path, **kw):
     """A 12 m boat at 1.5 m per pixel with a 6 deg foam V from its stern corners (synthetic)."""
     args = dict(length_m=12.0, superstructure_factor=1.5, hull_contrast=900.0, foam_v_half_angle_deg=6.0)

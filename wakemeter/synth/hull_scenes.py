@@ -13,8 +13,8 @@ switchable on its own:
   spread around a vessel;
 * foam's colour: ``foam_nir_share`` is the foam's excess over the water in the near-infrared band (B08) as a
   share of its excess in the visible bands.  Real foam reflects less in the near infrared (Moore et al. 1998;
-  Dierssen 2019: a share of about 0.6-0.8, from memory of their spectra); the default 1 keeps the grey foam of
-  the earlier scenes.  The hull stays grey (the same excess in every band).
+  Dierssen 2019: a share of about 0.6-0.8, from memory of their spectra; default 0.65); 1 makes grey foam,
+  which no sea makes.  The hull stays grey (the same excess in every band).
 
 The scene is a 4-band (B02 B03 B04 B08 named) or single-band uint16 GeoTIFF in UTM zone 31N; the pixel values
 are invented, of the order of a Level-2A product's.  Truth: the heading (true bearing of the bow).
@@ -68,7 +68,7 @@ def white_hull_scene(
     size_px: int = 400,
     seed: int = 1,
     haze_contrast: float = 0.0,
-    foam_nir_share: float = 1.0,
+    foam_nir_share: float = 0.65,
 ) -> HullScene:
     """Write the scene and return its truth (see the module's description)."""
     rng = np.random.default_rng(seed)
