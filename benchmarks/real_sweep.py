@@ -19,6 +19,9 @@ directory).  The summary is recorded in ``benchmarks/results/`` beside the last 
   centre.  The outlines say where vessels are, not whether they move: ``real_sweep_eye_labels.csv`` holds
   a person's reading of each vessel's picture (wake visible or not), and found / missed / false alarm are
   counted against it.  Labels read by eye are judgement, not ground truth.
+* Finder candidates: every candidate the vessel finder gives in the port scenes, analysed as ``batch --find``
+  analyses it (the outlines above miss small boats, and the finder also lands on piers and islets); where a
+  wake is found, ``real_sweep_candidate_review.csv`` says what a person saw there.
 """
 
 from __future__ import annotations
@@ -44,6 +47,9 @@ from sweep_record import parse, record
 HERE = Path(__file__).resolve().parent
 EYE_LABELS = HERE / "real_sweep_eye_labels.csv"
 EYE_HEADINGS = HERE / "real_sweep_eye_headings.csv"
+#: what a person saw at each vessel-finder candidate where a wake was found in the port scenes (judgement, not
+#: ground truth; reviewed from true colour and the near-infrared band at 6x)
+CANDIDATE_REVIEW = HERE / "real_sweep_candidate_review.csv"
 BANDS = ("B02", "B03", "B04", "B08")
 PICTURE_PX = 120  # scene pixels around the vessel in each picture
 
@@ -267,6 +273,43 @@ def ports(root: Path, pics: Path, tuning, eye: dict) -> list[dict]:
     return rows
 
 
+def _candidate_review() -> dict[str, list[tuple[float, float, str]]]:
+    out: dict[str, list[tuple[float, float, str]]] = {}
+    if CANDIDATE_REVIEW.exists():
+        for r in csv.DictReader(CANDIDATE_REVIEW.open()):
+            out.setdefault(r["port"], []).append((float(r["col"]), float(r["row"]), r["by_eye"]))
+    return out
+
+
+def port_candidates(root: Path, pics: Path, tuning) -> list[dict]:
+    """Every vessel-finder candidate in the port scenes analysed, as ``batch --find`` does (not only the
+    outlined vessels): where a wake is found, what a person saw there (``CANDIDATE_REVIEW``, nearest within
+    3 px; "not reviewed" otherwise)."""
+    from wakemeter.detect.vessel_finder import find_vessels
+
+    review = _candidate_review()
+    rows, shots = [], []
+    with tempfile.TemporaryDirectory() as tmp:
+        for port_dir, stack, _ in port_scenes(root / "sentinel2_ports", Path(tmp)):
+            with open_scene(stack) as sc:
+                for k, cand in enumerate(find_vessels(sc)):
+                    a = analyze(sc, AnalysisRequest(vessel_px=cand.px), tuning)
+                    seen = [
+                        (np.hypot(c - cand.px[0], r - cand.px[1]), what) for c, r, what in review.get(port_dir.name, [])
+                    ]
+                    d, what = min(seen, default=(np.inf, ""))
+                    by_eye = (what if d <= 3.0 else "not reviewed") if a.wake_found else None
+                    point = [round(cand.px[0], 1), round(cand.px[1], 1)]
+                    rows.append(_row(a, group="candidate", file=f"{port_dir.name}#{k}", point=point, by_eye=by_eye))
+                    if a.wake_found:
+                        shot = pics / f"candidate_{port_dir.name}_{k:03d}.png"
+                        _picture(sc, a, f"{port_dir.name} candidate {k}", shot)
+                        shots.append(shot)
+                    print(rows[-1], flush=True)
+    _sheet(shots, pics / "sheet_candidates.png")
+    return rows
+
+
 def summarise(rows: list[dict]) -> dict:
     c = [r for r in rows if r["group"] == "crop"]
     m = [r for r in rows if r["group"] == "crop_more"]
@@ -303,6 +346,16 @@ def summarise(rows: list[dict]) -> dict:
         "port_false_alarms_no_wake_by_eye": sum(r["wake"] and not r["wake_by_eye"] for r in labelled),
         "port_found_unlabelled": sum(r["wake"] for r in p if r["wake_by_eye"] is None),
     }
+    cand = [r for r in rows if r["group"] == "candidate"]
+    if cand:
+        seen = [r["by_eye"] for r in cand if r["wake"]]
+        out |= {
+            "finder_candidates": len(cand),
+            "finder_candidates_with_a_wake": len(seen),
+            "of_which_vessel_with_a_trail_by_eye": seen.count("vessel with a trail"),
+            "of_which_no_vessel_by_eye": seen.count("no vessel"),
+            "of_which_unclear_or_not_reviewed": sum(s not in ("vessel with a trail", "no vessel") for s in seen),
+        }
     return out
 
 
@@ -329,5 +382,6 @@ if __name__ == "__main__":
     pics.mkdir(parents=True, exist_ok=True)
     rows = crops(root, pics, tuning) + more_crops(root, pics, tuning) + sea_tiles(root, pics, tuning)
     rows += ports(root, pics, tuning, _eye_labels())
+    rows += port_candidates(root, pics, tuning)
     print(f"pictures in {pics}")
     record("real_sweep", {}, tuning, summarise(rows), rows, write=not args.no_record)

@@ -27,7 +27,7 @@ from pathlib import Path
 import numpy as np
 from scipy import ndimage
 
-from .hull_scenes import WATER, HullScene, write_bands
+from .hull_scenes import WATER, HullScene, hull_frame, write_bands
 
 #: foam's near-infrared excess over its visible one (Moore et al. 1998; Dierssen 2019; from memory of spectra)
 FOAM_NIR_SHARE = 0.65
@@ -97,12 +97,7 @@ def glint_wake_scene(
     """Write the scene and return its truth (see the module's description)."""
     rng = np.random.default_rng(seed)
     n = size_px
-    rr, cc = np.mgrid[:n, :n].astype(float)
-    c0 = r0 = n / 2
-    a = np.radians(90.0 - heading_deg)  # image angle (counter-clockwise from the column axis), north up
-    ux, uy = np.cos(a), -np.sin(a)
-    along = ((cc + 0.5 - c0) * ux + (rr + 0.5 - r0) * uy) * pixel_m
-    across = (-(cc + 0.5 - c0) * uy + (rr + 0.5 - r0) * ux) * pixel_m
+    _, _, c0, r0, (ux, uy), along, across = hull_frame(n, heading_deg, pixel_m)
     hull = (np.abs(along) <= length_m / 2) & (np.abs(across) <= beam_m / 2)
     behind = -(along + length_m / 2)  # distance behind the stern (m)
     foam = np.where((behind > 0) & (behind < foam_tail_m) & (np.abs(across) <= beam_m / 2), 1 - behind / foam_tail_m, 0)

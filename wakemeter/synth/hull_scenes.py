@@ -74,12 +74,7 @@ def white_hull_scene(
     rng = np.random.default_rng(seed)
     n = size_px
     beam = length_m / 5 if beam_m is None else beam_m
-    rr, cc = np.mgrid[:n, :n].astype(float)
-    c0 = r0 = n / 2
-    a = np.radians(90.0 - heading_deg)  # image angle (counter-clockwise from the column axis), north up
-    ux, uy = np.cos(a), -np.sin(a)
-    along = ((cc + 0.5 - c0) * ux + (rr + 0.5 - r0) * uy) * pixel_m
-    across = (-(cc + 0.5 - c0) * uy + (rr + 0.5 - r0) * ux) * pixel_m
+    rr, cc, c0, r0, (ux, uy), along, across = hull_frame(n, heading_deg, pixel_m)
     half_beam = beam / 2 * np.clip((length_m / 2 - along) / (0.2 * length_m), 0, 1)  # a pointed bow
     hull = (np.abs(along) <= length_m / 2) & (np.abs(across) <= half_beam)
     deck = hull & (np.abs(along + 0.2 * length_m) <= 0.12 * length_m) & (np.abs(across) <= 0.3 * beam)
@@ -125,6 +120,18 @@ def white_hull_scene(
         pixel_m=pixel_m,
         length_m=length_m,
     )
+
+
+def hull_frame(n: int, heading_deg: float, pixel_m: float):
+    """An n x n scene's pixel grid (rows, cols), its centre (c0, r0, where the hull is), the unit vector from
+    stern to bow (col, row) and each pixel centre's distance along and across the hull's axis (m)."""
+    rr, cc = np.mgrid[:n, :n].astype(float)
+    c0 = r0 = n / 2
+    a = np.radians(90.0 - heading_deg)  # image angle (counter-clockwise from the column axis), north up
+    ux, uy = np.cos(a), -np.sin(a)
+    along = ((cc + 0.5 - c0) * ux + (rr + 0.5 - r0) * uy) * pixel_m
+    across = (-(cc + 0.5 - c0) * uy + (rr + 0.5 - r0) * ux) * pixel_m
+    return rr, cc, c0, r0, (ux, uy), along, across
 
 
 def write_bands(path: str | Path, out: np.ndarray, pixel_m: float) -> Path:
