@@ -69,9 +69,11 @@ def record(
         print(f"{k:<36} {_fmt(v):>14} {_fmt(old):>14}")
     if last is not None:
         changed = _changed_cases(last["cases"], cases)
+        extra = len(cases) - len(last["cases"])
+        more = f", {extra} more than it had" if extra > 0 else (f", {-extra} fewer than it had" if extra < 0 else "")
         print(
             f"(last record: commit {last['commit'][:10]}, {last['date']}; {changed} of {len(cases)} cases "
-            "differ from it, timings aside)"
+            f"differ from it, timings aside{more})"
         )
     if not write:
         return None
@@ -97,14 +99,13 @@ def record(
 
 
 def _changed_cases(old: list[dict], new: list[dict]) -> int:
-    """Cases whose figures differ from the last record's (wall times are left out)."""
+    """Cases whose figures differ from the last record's, case by case in order (wall times are left out); when
+    one run has more cases (a group added or left out), the cases beyond the shorter one count as differing."""
 
     def strip(c: dict) -> str:
         return json.dumps({k: v for k, v in c.items() if k != "time_s"}, sort_keys=True, default=_plain)
 
-    if len(old) != len(new):
-        return max(len(old), len(new))
-    return sum(strip(a) != strip(b) for a, b in zip(old, new))
+    return sum(strip(a) != strip(b) for a, b in zip(old, new)) + abs(len(old) - len(new))
 
 
 def _fmt(v: object) -> str:
