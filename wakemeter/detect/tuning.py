@@ -262,7 +262,9 @@ class Tuning:
     #: the water in B08 at most this share of its mean excess in the visible bands.  Foam reflects less in the near
     #: infrared than in the visible (Moore et al. 1998, J. Atmos. Oceanic Technol. 15(2), ship-made foam; Kokhanovsky
     #: 2004, JGR 109 C05021; Dierssen 2019, Front. Earth Sci. 7:14); a white or grey hull about as much (share 1, from
-    #: memory).  Shared real data (benchmarks/real_sweep.py): foam tails 0.49-0.87, hulls without a wake 0.86-3.1
+    #: memory).  Shared real data (benchmarks/real_sweep.py): foam tails 0.49-0.87, hulls without a wake 0.86-3.1.
+    #: The same bound tells a single bright wake line (0.45-0.77) from one along a pier or from a rock (1.06-1.6),
+    #: and a long ship's foam core from a pier's (foam_colour.py, line_finding._structure and _not_foam)
     streak_nir_share_max: float = 0.9
     #: the line search's own best line must run along the streak's axis within this angle (either way) ...
     streak_axis_agree_deg: float = 20.0
