@@ -9,6 +9,8 @@ boat's foam V and foam-covered hull read as narrow Kelvin arms and a 101 m hull,
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 import pytest
 
@@ -354,3 +356,30 @@ def test_a_dark_calm_wake_across_sun_glint_is_found(tmp_path):
         a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
     assert a.wake_found and a.heading_deg is not None and a.heading_std_deg is not None
     assert abs((a.heading_deg - 300.0 + 180) % 360 - 180) <= 2 * a.heading_std_deg
+
+
+def test_near_infrared_share_of_an_object_is_its_excess_ratio():
+    # hand-worked: water 100 in B02-B04 and 50 in B08; an object 3 pixels long with 400 in each visible band (an
+    # excess of 300) and 200 in B08 (an excess of 150): share 150 / 300 = 0.5, foam-like; with B08 at 350 it is
+    # 300 / 300 = 1, a grey surface
+    from wakemeter.detect.foam_colour import line_nir_share, nir_share
+    from wakemeter.detect.line_chip import LineChip, Spectral
+
+    n = 100
+    pixels = np.empty((4, n, n), np.float32)
+    pixels[:3], pixels[3] = 100.0, 50.0
+    ys, xs = np.array([50, 50, 50]), np.array([52, 53, 54])
+    pixels[:3, ys, xs], pixels[3, ys, xs] = 400.0, 200.0
+    valid = np.ones((n, n), bool)
+    chip = LineChip(
+        np.zeros((n, n), np.float32), valid, (0, 0), (50.0, 50.0), None, 10.0, None, False, (1, 2, 3, 4), 0.0,
+        spectral=Spectral(pixels, (0, 1, 2), 3),
+    )  # fmt: skip
+    t = DEFAULT_TUNING
+    assert nir_share(chip, ys, xs, (50.0, 50.0), t) == pytest.approx(0.5)
+    # along the ray from (50, 50) at image angle 0 (towards larger columns), 2 to 5 pixels out: the same pixels
+    assert line_nir_share(chip, (50.0, 50.0), 0.0, 2.0, 3.0, t) == pytest.approx(0.5)
+    pixels[3, ys, xs] = 350.0
+    assert nir_share(chip, ys, xs, (50.0, 50.0), t) == pytest.approx(1.0)
+    # no near-infrared band named: no share
+    assert nir_share(dataclasses.replace(chip, spectral=None), ys, xs, (50.0, 50.0), t) is None
