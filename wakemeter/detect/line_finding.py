@@ -74,8 +74,11 @@ def look_for_lines(
     except ParameterError as err:
         return LineLook(None, None, False, str(err))
     wake = find_wake_line(chip, reach_m=tuning.line_reach_m, rng_seed=request.seed, tuning=tuning)
-    look = _line_look(chip, wake, request, tuning, hull_elsewhere=hull_elsewhere, hull_axis_deg=hull_axis_deg)
-    if look.found or wake is None or hull_elsewhere or chip.hull_at_land or _structure(chip, tuning):
+    structure = _structure(chip, tuning)
+    look = _line_look(
+        chip, wake, request, tuning, hull_elsewhere=hull_elsewhere, hull_axis_deg=hull_axis_deg, structure=structure
+    )
+    if look.found or wake is None or hull_elsewhere or chip.hull_at_land or structure:
         return look
     if chip.radar or chip.m_per_px < tuning.streak_pixel_min_m:
         return look
@@ -135,8 +138,10 @@ def _line_look(
     *,
     hull_elsewhere: bool,
     hull_axis_deg: float | None,
+    structure: str,
 ) -> LineLook:
-    """The line search's own verdict on its best line."""
+    """The line search's own verdict on its best line; ``structure``: why the object at the point is a pier or
+    quay (:func:`_structure`), empty when it may be a vessel."""
     if wake is None:
         return LineLook(chip, None, False, "too little open water around the vessel to compare lines")
     if wake.significance < tuning.line_significance_min:
@@ -147,9 +152,9 @@ def _line_look(
             f"no line starts at the vessel: best line significance {wake.significance:.1f} against the scene's "
             f"other lines (needs {tuning.line_significance_min:g})",
         )
-    structure = _structure(chip, tuning) or _not_foam(chip, wake, tuning)
-    if structure and not request.force:
-        return LineLook(chip, wake, False, f"no wake: {structure}")
+    refused = structure or _not_foam(chip, wake, tuning)
+    if refused and not request.force:
+        return LineLook(chip, wake, False, f"no wake: {refused}")
     if chip.hull is None and not hull_elsewhere and not request.force and not _radar_v(wake):
         return LineLook(
             chip,

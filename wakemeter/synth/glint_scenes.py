@@ -27,10 +27,7 @@ from pathlib import Path
 import numpy as np
 from scipy import ndimage
 
-from .hull_scenes import WATER, HullScene, hull_frame, write_bands
-
-#: foam's near-infrared excess over its visible one (Moore et al. 1998; Dierssen 2019; from memory of spectra)
-FOAM_NIR_SHARE = 0.65
+from .hull_scenes import FOAM_NIR_SHARE, WATER, HullScene, hull_frame, write_bands
 
 
 def _segment_distance(px: np.ndarray, py: np.ndarray, a: tuple[float, float], b: tuple[float, float]) -> np.ndarray:

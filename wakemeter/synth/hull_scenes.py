@@ -33,6 +33,9 @@ from scipy import ndimage
 
 WATER = np.array([900.0, 800.0, 600.0, 300.0])  #: calm water per band (B02 B03 B04 B08)
 BAND_NAMES = ("B02", "B03", "B04", "B08")
+#: foam's excess over the water in B08 as a share of its excess in the visible bands (Moore et al. 1998; Dierssen
+#: 2019; from memory of their spectra, about 0.6-0.8)
+FOAM_NIR_SHARE = 0.65
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -68,7 +71,7 @@ def white_hull_scene(
     size_px: int = 400,
     seed: int = 1,
     haze_contrast: float = 0.0,
-    foam_nir_share: float = 0.65,
+    foam_nir_share: float = FOAM_NIR_SHARE,
 ) -> HullScene:
     """Write the scene and return its truth (see the module's description)."""
     rng = np.random.default_rng(seed)
