@@ -42,7 +42,7 @@ def test_validity_lookup_equals_scipy_nearest_sampling(n):
     # for speed).  Random points, whole and half-pixel ties, and points on and just past the edges.
     from scipy import ndimage
 
-    from wakemeter.detect.wakeline import _nearest
+    from wakemeter.detect.ray_grid import nearest_valid as _nearest
 
     rng = np.random.default_rng(n)
     mask = rng.random((n, n)) > 0.3
@@ -85,3 +85,69 @@ def test_dilation_and_repeated_opening_equal_scipy():
         assert np.array_equal(binary_opened(mask, k), ndimage.binary_opening(mask, iterations=k))
     with pytest.raises(ValueError, match="at least one step"):
         binary_dilated(mask, 0)  # scipy would dilate until nothing changes: not what a gap of 0 px means
+
+
+@pytest.mark.parametrize("dtype", [np.float32, np.float64])
+def test_ray_fan_equals_scipy_sampling(dtype):
+    # Reference library: scipy.ndimage.map_coordinates (order 1, constant mode) for the values and the nearest
+    # pixel lookup that equals its order-0 sampling (above) for the validity, as wakeline._rays samples one
+    # origin at a time.  Origins inside and on every edge of a chip with holes; rays leaving it.
+    from wakemeter.detect.ray_grid import RayFan
+    from wakemeter.detect.wakeline import _rays
+
+    rng = np.random.default_rng(11)
+    h, w = 90, 120
+    img = (ndimage_smooth(rng.normal(size=(h, w))) * 300.0).astype(dtype)
+    valid = rng.random((h, w)) > 0.1
+    angles, r = np.arange(0.0, 360.0, 1.0), np.arange(3.0, 60.0, 1.0)
+    fan = RayFan(np.where(valid, img, 0).astype(dtype), valid, angles, r)
+    points = np.array([[0, 0], [h - 1, w - 1], [0, w - 1], [h - 1, 0], [45, 60], [1, 77], [88, 3]], float)
+    points = np.vstack([points, np.stack([rng.integers(0, h, 40), rng.integers(0, w, 40)], 1)])
+    vals, ok = fan.sample(points)
+    want_vals, want_ok = _rays(np.where(valid, img, 0).astype(dtype), valid, points, angles, r)
+    assert np.array_equal(ok, want_ok)
+    assert ok.any() and (~ok).any()
+    # to rounding: single precision's last places, or in double the origin's rounding of the fractional offset
+    tol = max(4 * float(np.finfo(dtype).eps), 1e-12) * float(np.abs(img).max())
+    assert np.max(np.abs(np.where(ok, vals - want_vals, 0))) <= tol
+    assert vals.dtype == dtype
+
+
+def ndimage_smooth(a):
+    from scipy import ndimage
+
+    return ndimage.gaussian_filter(a, 2.0)
+
+
+def test_ray_fan_refuses_origins_off_whole_pixels_or_outside():
+    from wakemeter.detect.ray_grid import RayFan
+
+    fan = RayFan(
+        np.zeros((20, 20), np.float32), np.ones((20, 20), bool), np.arange(0.0, 360.0, 10.0), np.arange(1.0, 8.0)
+    )
+    with pytest.raises(ValueError, match="whole pixels"):
+        fan.sample(np.array([[3.5, 4.0]]))
+    with pytest.raises(ValueError, match="within the image"):
+        fan.sample(np.array([[3.0, 20.0]]))
+
+
+def test_scene_lines_with_the_fan_equal_one_point_at_a_time():
+    # the background's best scores from the fan (many whole-pixel origins at once) equal those sampled point by
+    # point with scipy, to the rounding of the samples, on the real Sentinel-2 crop
+    from wakemeter.detect.ray_grid import RayFan
+
+    t = DEFAULT_TUNING
+    with open_scene(CROP) as sc:
+        chip = prepare_line_chip(sc, (200.0, 193.0), tuning=t)
+    img = np.where(chip.valid, chip.img, 0.0)
+    wr, wc = np.nonzero(chip.valid)
+    pick = np.random.default_rng(3).choice(wr.size, 32, replace=False)
+    points = np.stack([wr[pick], wc[pick]], axis=1).astype(float)
+    r0, r_max = t.hull_clearance_px, 0.42 * chip.img.shape[0]
+    fan = RayFan(img, chip.valid, np.arange(0.0, 360.0, 1.0), np.arange(r0, r_max, 1.0))
+    plain = _line_scores(img, chip.valid, points, r0, r_max, t=t, min_dark_px=40.0)
+    fast = _line_scores(img, chip.valid, points, r0, r_max, t=t, min_dark_px=40.0, fan=fan)
+    # (the background uses the best scores only: which of two directions scoring alike to the rounding is the
+    # best does not matter to it)
+    assert np.isfinite(plain[0]).any()
+    assert np.allclose(fast[0], plain[0], rtol=1e-5, atol=1e-5, equal_nan=True)
