@@ -106,3 +106,52 @@ def test_the_shift_says_when_a_heading_points_the_wrong_way(tmp_path):
         assert moves_against(sc, (60.0, 60.5), 90.0, TIMING) is None  # east: agrees
         reason = moves_against(sc, (60.0, 60.5), 270.0, TIMING)  # west: the hull moved east
     assert reason is not None and "against" in reason
+
+
+# ---- the bands recorded in between: a moving hull's edge advances with time (kinematics: position grows with
+# time at constant velocity), so in a band recorded between the two timed bands it lies part of the way from its
+# first position to its last.  Sentinel-2 records B08 and B03 between B02 and B04 (Heiselberg 2019, the band
+# timing table; from memory); only that order is used. ----
+TIMING4 = BandTiming("test sensor", 1, 2, 1.0, 0.0, "test timing", "given", 0.1, (3, 4), ("B08", "B03"))
+
+
+def _four_band_scene(tmp_path, last_px: float, b08_px: float, b03_px: float):
+    rng = np.random.default_rng(5)
+    bands = [_band(x, foam=True, rng=rng, hull_px=6) for x in (0.0, last_px, b08_px, b03_px)]
+    path = tmp_path / f"four_bands_{last_px}_{b08_px}_{b03_px}.tif"
+    prof = dict(driver="GTiff", width=N, height=N, count=4, dtype="float32", crs="EPSG:32633")
+    prof["transform"] = from_origin(500_000.0 - N * PIXEL_M / 2, 6_200_000.0, PIXEL_M, PIXEL_M)
+    with rasterio.open(path, "w", **prof) as d:
+        d.write(np.stack(bands).astype(np.float32))
+    return path
+
+
+def _four(path):
+    from wakemeter.detect.band_shift import not_motion
+
+    with open_scene(path) as sc:
+        s = measure_band_shift(sc, (60.0, 60.5), 180.0, TIMING4, rng=np.random.default_rng(0))
+    assert s is not None
+    return s, not_motion(s)
+
+
+def test_bands_in_between_that_show_the_hull_on_its_way_agree(tmp_path):
+    # synthetic truth: 2.0 px between the timed bands, B08 at 0.3 and B03 at 0.5 of the way
+    s, why = _four(_four_band_scene(tmp_path, 2.0, 0.6, 1.0))
+    assert [name for name, _, _ in s.between] == ["B08", "B03"]
+    assert s.between[0][1] == pytest.approx(0.6, abs=0.2) and s.between[1][1] == pytest.approx(1.0, abs=0.2)
+    assert why is None
+
+
+@pytest.mark.parametrize(("b08", "b03"), [(-0.3, 2.7), (3.2, 1.0)])
+def test_a_band_in_between_that_does_not_show_the_hull_on_its_way_is_not_motion(tmp_path, b08, b03):
+    # synthetic: the timed bands' edges 3.7 px apart (a real case: a colour edge at a Sentinel-2 bow, B08 at -0.3
+    # px) or B08 beyond the last band's edge: the edges moved for another reason than the hull's motion
+    _, why = _four(_four_band_scene(tmp_path, 3.7 if b08 < 0 else 2.0, b08, b03))
+    assert why is not None and "band B08" in why and "not the hull's motion" in why
+
+
+def test_a_shift_too_small_to_judge_is_not_judged_by_the_bands_in_between(tmp_path):
+    # synthetic: 0.4 px between the timed bands is within its own uncertainty: no share can be read from it
+    _, why = _four(_four_band_scene(tmp_path, 0.4, -0.3, 0.2))
+    assert why is None

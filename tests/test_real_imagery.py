@@ -161,6 +161,18 @@ def test_real_pier_clicked_is_not_a_vessel_with_a_wake(click):
         assert "longer than any vessel" in a.decision
 
 
+def test_real_bow_with_coloured_fringes_gives_no_speed_from_the_shift_between_bands():
+    # a small craft with a bright trail off Marseille (tests/data/sentinel2/README.md): its leading edge moves
+    # 3.7 px from B02 to B04, which read as 52 kn (46-58), but in B08, recorded between them (Heiselberg 2019,
+    # the band timing; from memory), it does not move at all (-0.3 px): the shift is not the hull's motion.  The
+    # wake is still reported, without a speed, and the caution says why
+    with open_scene(DATA / "marseille_r730_c62_S2L2A_colour_edge.tif") as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=(120.5, 119.6)))
+    assert a.wake_found and a.speed is None
+    why = [c for c in a.cautions if c.code == CautionCode.SHIFT_NOT_MOTION]
+    assert why and "band B08" in why[0].text
+
+
 def test_real_rocky_islet_clicked_gives_no_foam_wake():
     # a white limestone islet off Marseille, about 100 m long (tests/data/sentinel2/README.md), where the vessel
     # finder put a candidate: a bright line ran from it and was read as a wake heading 8 deg; that line is as

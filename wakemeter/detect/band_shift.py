@@ -44,6 +44,9 @@ class BandShift:
     course_deg: float  #: true bearing of the shift
     estimate: inv.SpeedEstimate
     timing: BandTiming
+    #: the bands recorded between the two (band name, the hull's along-track shift from the first band in px,
+    #: its standard uncertainty), where their edge is clear
+    between: tuple[tuple[str, float, float], ...] = ()
 
 
 def scene_band_timing(scene: Scene) -> BandTiming | None:
@@ -85,40 +88,16 @@ def measure_band_shift(
     row), travelling opposite to the image angle ``back_deg`` of its wake; None when no clear edge is found
     in either band."""
     col, row = vessel_px
-    reach = int(tuning.band_shift_edge_reach_px)
-    half = reach + 4
-    c0, r0 = int(np.floor(col)) - half, int(np.floor(row)) - half
-    if c0 < 0 or r0 < 0 or c0 + 2 * half + 1 > scene.width or r0 + 2 * half + 1 > scene.height:
+    bands = (timing.first_band, timing.last_band) + tuple(timing.between)
+    found = _leading_edges(scene, vessel_px, back_deg, bands, tuning)
+    if found is None or not all(np.isfinite(found[k][0]) for k in (0, 1)):
         return None
-    data, ok = scene.read(window=(c0, r0, 2 * half + 1, 2 * half + 1), bands=(timing.first_band, timing.last_band))
-    if not ok.all():
-        return None
+    edges = [found[0][0], found[1][0]]
+    stds = [found[0][1], found[1][1]]
+    across = [found[0][2], found[1][2]]
     a = np.radians(back_deg + 180.0)  # direction of travel (image angle)
     fr, fc = -np.sin(a), np.cos(a)  # forwards (row, col)
     lr, lc = -fc, fr  # to the left
-    t = np.arange(reach, -reach - 1e-9, -0.25)  # from ahead to behind, in px along the track
-    lat = np.arange(-1.0, 1.0 + 1e-9, 0.5)
-    vr, vc = row - r0, col - c0
-    edges, stds, across = [], [], []
-    for b in range(2):
-        img = ndimage.gaussian_filter(data[b].astype(float), 0.5)
-        rows = vr + t[:, None] * fr + lat[None, :] * lr
-        cols = vc + t[:, None] * fc + lat[None, :] * lc
-        prof = ndimage.map_coordinates(img, [rows.ravel(), cols.ravel()], order=1, mode="nearest")
-        prof = prof.reshape(rows.shape).mean(axis=1)
-        e, s = _edge(prof, -t, reach)  # positions measured backwards from the vessel; the edge is where the hull starts
-        if not np.isfinite(e):
-            return None
-        edges.append(-e)  # forwards coordinate of the leading edge
-        stds.append(max(s, tuning.band_shift_edge_std_floor_px))
-        # across: the brightness-weighted lateral centre of the cross-section two pixels behind the edge
-        cross = np.arange(-4.0, 4.0 + 1e-9, 0.5)
-        at = -e - 2.0
-        cr = vr + at * fr + cross * lr
-        cc = vc + at * fc + cross * lc
-        x = ndimage.map_coordinates(img, [cr, cc], order=1, mode="nearest")
-        w = np.clip(x - np.median(img), 0, None)
-        across.append(float((w * cross).sum() / w.sum()) if w.sum() > 0 else 0.0)
     along = edges[1] - edges[0]
     acr = across[1] - across[0]
     dcol, drow = along * fc + acr * lc, along * fr + acr * lr
@@ -151,6 +130,12 @@ def measure_band_shift(
         ),
         over_ground=True,
     )
+    names = timing.between_names or tuple(f"number {b}" for b in timing.between)
+    between = tuple(
+        (name, float(e - edges[0]), float(np.hypot(s, stds[0])))
+        for name, (e, s, _) in zip(names, found[2:])
+        if np.isfinite(e)
+    )
     return BandShift(
         (float(dcol), float(drow)),
         float(along),
@@ -159,7 +144,78 @@ def measure_band_shift(
         float(frame.bearing_of(dcol, drow)) % 360.0,
         est,
         timing,
+        between,
     )
+
+
+def _leading_edges(
+    scene: Scene, vessel_px: tuple[float, float], back_deg: float, bands: tuple[int, ...], tuning: Tuning
+) -> list[tuple[float, float, float]] | None:
+    """For each band: the forwards coordinate of the hull's leading edge (px from ``vessel_px`` along the
+    direction of travel, opposite to the image angle ``back_deg``), its standard uncertainty, and the
+    across-track centre of the hull behind it; NaN where a band shows no clear edge.  None near the scene's
+    edge or over nodata."""
+    col, row = vessel_px
+    reach = int(tuning.band_shift_edge_reach_px)
+    half = reach + 4
+    c0, r0 = int(np.floor(col)) - half, int(np.floor(row)) - half
+    if c0 < 0 or r0 < 0 or c0 + 2 * half + 1 > scene.width or r0 + 2 * half + 1 > scene.height:
+        return None
+    data, ok = scene.read(window=(c0, r0, 2 * half + 1, 2 * half + 1), bands=bands)
+    if not ok.all():
+        return None
+    a = np.radians(back_deg + 180.0)  # direction of travel (image angle)
+    fr, fc = -np.sin(a), np.cos(a)  # forwards (row, col)
+    lr, lc = -fc, fr  # to the left
+    t = np.arange(reach, -reach - 1e-9, -0.25)  # from ahead to behind, in px along the track
+    lat = np.arange(-1.0, 1.0 + 1e-9, 0.5)
+    vr, vc = row - r0, col - c0
+    out = []
+    for b in range(len(bands)):
+        img = ndimage.gaussian_filter(data[b].astype(float), 0.5)
+        rows = vr + t[:, None] * fr + lat[None, :] * lr
+        cols = vc + t[:, None] * fc + lat[None, :] * lc
+        prof = ndimage.map_coordinates(img, [rows.ravel(), cols.ravel()], order=1, mode="nearest")
+        prof = prof.reshape(rows.shape).mean(axis=1)
+        e, s = _edge(prof, -t, reach)  # positions measured backwards from the vessel; the edge is where the hull starts
+        if not np.isfinite(e):
+            out.append((np.nan, np.nan, np.nan))
+            continue
+        # across: the brightness-weighted lateral centre of the cross-section two pixels behind the edge
+        cross = np.arange(-4.0, 4.0 + 1e-9, 0.5)
+        at = -e - 2.0
+        cr = vr + at * fr + cross * lr
+        cc = vc + at * fc + cross * lc
+        x = ndimage.map_coordinates(img, [cr, cc], order=1, mode="nearest")
+        w = np.clip(x - np.median(img), 0, None)
+        centre = float((w * cross).sum() / w.sum()) if w.sum() > 0 else 0.0
+        out.append((-e, max(s, tuning.band_shift_edge_std_floor_px), centre))
+    return out
+
+
+def not_motion(shift: BandShift, tuning: Tuning = DEFAULT_TUNING) -> str | None:
+    """A reason when a band recorded between the two does not show the hull part of the way from its first to
+    its last position (tuning.band_shift_between_share, within band_shift_clear_sigmas standard uncertainties):
+    the edges then moved for another reason (a colour edge, glint, foam that is not the hull).  None when they
+    agree, or when the shift is too small to judge."""
+    reg = shift.timing.co_registration_std_px
+    s = shift.along_px
+    s_std = float(np.sqrt(shift.edge_std_px[0] ** 2 + shift.edge_std_px[1] ** 2 + 2 * reg**2))
+    z = tuning.band_shift_clear_sigmas
+    if s <= z * s_std:
+        return None
+    lo, hi = tuning.band_shift_between_share
+    for band, moved, std in shift.between:
+        share = moved / s
+        k_std = float(np.hypot(std, np.sqrt(2) * reg))
+        share_std = float(np.hypot(k_std, share * s_std)) / s
+        if share + z * share_std < lo or share - z * share_std > hi:
+            return (
+                f"band {band}, recorded between the two timed bands, shows the hull's edge {moved:.2f} pixels along, "
+                f"where a hull that moved {s:.2f} pixels between them would show it {lo * s:.1f}-{hi * s:.1f} pixels "
+                "along: the shift between bands is not the hull's motion (a colour edge, glint or foam)"
+            )
+    return None
 
 
 def moves_against(

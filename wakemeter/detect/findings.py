@@ -38,6 +38,7 @@ class CautionCode(StrEnum):
     LINES_ONLY = "lines-only"  #: the wake was seen as lines only: no wave crests, and why no speed from waves
     OVER_GROUND = "over-ground"  #: a speed over ground (hull shift between bands), not through the water
     SHIFT_OFF_TRACK = "shift-off-track"  #: the hull's shift between bands does not follow its wake
+    SHIFT_NOT_MOTION = "shift-not-motion"  #: the bands recorded in between do not show the hull moving
     OUT_OF_DOMAIN = "out-of-domain"  #: a method's figure fell outside its domain: not given as a speed
     STREAK = "streak"  #: the wake is a short streak fading from its head: direction read from which end is bright
     NOTE = "note"  #: a caution read from an older record that names no code

@@ -151,6 +151,12 @@ class Tuning:
     #: a shift counts as clear when it exceeds this many of its standard uncertainties (the wave fit set aside
     #: against the hull's shift: a real crop, marseille_01 whole, tests/test_real_imagery.py)
     band_shift_clear_sigmas: float = 3.0
+    #: a band recorded between the two (Sentinel-2: B08, B03) must show the hull this share of the way from its
+    #: first to its last position, within band_shift_clear_sigmas: a moving hull's edge advances with time.  The
+    #: bands' times are not used (from memory: B08 0.26 and B03 0.53 of the way); on 17 real moving Sentinel-2
+    #: hulls the shares were 0.33-0.73 and one 1.14 (a 0.87 px shift: 0.3 of its uncertainty from 0.85); a
+    #: shift of 3.7 px with B08 at -0.09 (a colour edge, not motion) falls out (benchmarks/real_sweep.py)
+    band_shift_between_share: tuple[float, float] = (0.15, 0.85)
     # ---- displaced radar hull (apex.py; benchmarks/displaced_hull_sweep.py) ----
     #: the dark line must stand this far below the Radon background (robust spreads) ...
     apex_line_significance_min: float = 5.0

@@ -53,6 +53,10 @@ class BandTiming:
     source: str  #: where the timing comes from, for the result's assumptions
     recognised_from: str  #: what in the file told us the sensor
     co_registration_std_px: float = 0.0  #: standard uncertainty of one band's position (pixels per axis)
+    #: bands recorded between first_band and last_band (1-based band numbers): a moving hull's edge in each lies
+    #: between its edges in those two
+    between: tuple[int, ...] = ()
+    between_names: tuple[str, ...] = ()  #: their names (as the sensor calls them)
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -75,6 +79,8 @@ class SensorRecord:
     timing_pair: tuple[str, str] | None = None
     #: standard uncertainty of one band's position from the registration of the bands (pixels per axis)
     co_registration_std_px: float = 0.0
+    #: bands recorded after the timing pair's first band and before its last (their times need not be known)
+    recorded_between: tuple[str, ...] = ()
 
     def band_numbers(self, descriptions: tuple[str | None, ...]) -> dict[str, int]:
         """Canonical band name -> 1-based band number, for the bands the file names in this sensor's way."""
@@ -116,6 +122,8 @@ class SensorRecord:
             self.timing_source,
             how,
             self.co_registration_std_px,
+            tuple(where[b] for b in self.recorded_between if b in where),
+            tuple(b for b in self.recorded_between if b in where),
         )
 
 
@@ -152,6 +160,9 @@ SENTINEL2 = SensorRecord(
     timing_pair=("B02", "B04"),
     # Sentinel-2's multispectral registration requirement is 0.3 px at 3 sigma for the 10 m bands (from memory)
     co_registration_std_px=0.1,
+    # B08 and B03 are recorded between B02 and B04 (from memory: about 0.26 s and 0.53 s after B02, the band
+    # timing tabulated by Heiselberg 2019, ref. 3; only the order is used, not the times)
+    recorded_between=("B08", "B03"),
 )
 #: any sensor whose bands are named by what they see
 PLAIN_NAMES = SensorRecord(

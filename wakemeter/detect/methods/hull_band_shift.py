@@ -7,7 +7,7 @@ from __future__ import annotations
 import numpy as np
 
 from ...errors import ParameterError
-from ..band_shift import measure_band_shift, scene_band_timing
+from ..band_shift import measure_band_shift, not_motion, scene_band_timing
 from ..findings import Caution, CautionCode
 from .base import NOTHING, MethodContext, MethodOutput
 
@@ -48,6 +48,11 @@ class HullBandShift:
                         "the hull's edge, so no speed is taken from it",
                     ),
                 )
+            )
+        why = not_motion(shift, ctx.tuning)
+        if why is not None:
+            return MethodOutput(
+                cautions=(Caution(CautionCode.SHIFT_NOT_MOTION, f"{why}, so no speed is taken from it"),)
             )
         caution = Caution(
             CautionCode.OVER_GROUND,
