@@ -46,8 +46,11 @@ def _scene(tmp_path, shift_px: float, *, foam: bool = False, flat: bool = False,
     bands = [_band(0.0, foam=foam, rng=rng, hull_px=hull_px), _band(shift_px, foam=foam, rng=rng, hull_px=hull_px)]
     if flat:
         bands = [0.05 + rng.normal(0, 0.01, (N, N)) for _ in range(2)]
-    path = tmp_path / f"two_bands_{shift_px}_{foam}_{flat}_{hull_px}.tif"
-    prof = dict(driver="GTiff", width=N, height=N, count=2, dtype="float32", crs="EPSG:32633")
+    return _write(tmp_path / f"two_bands_{shift_px}_{foam}_{flat}_{hull_px}.tif", bands)
+
+
+def _write(path, bands):
+    prof = dict(driver="GTiff", width=N, height=N, count=len(bands), dtype="float32", crs="EPSG:32633")
     # easting 500 000 m is the zone's central meridian: the grid scale factor there is 0.9996
     prof["transform"] = from_origin(500_000.0 - N * PIXEL_M / 2, 6_200_000.0, PIXEL_M, PIXEL_M)
     with rasterio.open(path, "w", **prof) as d:
@@ -118,12 +121,7 @@ TIMING4 = BandTiming("test sensor", 1, 2, 1.0, 0.0, "test timing", "given", 0.1,
 def _four_band_scene(tmp_path, last_px: float, b08_px: float, b03_px: float):
     rng = np.random.default_rng(5)
     bands = [_band(x, foam=True, rng=rng, hull_px=6) for x in (0.0, last_px, b08_px, b03_px)]
-    path = tmp_path / f"four_bands_{last_px}_{b08_px}_{b03_px}.tif"
-    prof = dict(driver="GTiff", width=N, height=N, count=4, dtype="float32", crs="EPSG:32633")
-    prof["transform"] = from_origin(500_000.0 - N * PIXEL_M / 2, 6_200_000.0, PIXEL_M, PIXEL_M)
-    with rasterio.open(path, "w", **prof) as d:
-        d.write(np.stack(bands).astype(np.float32))
-    return path
+    return _write(tmp_path / f"four_bands_{last_px}_{b08_px}_{b03_px}.tif", bands)
 
 
 def _four(path):
