@@ -378,6 +378,14 @@ def _measure(
     heading, the reason to set the fit aside (checked before the costly uncertainty and methods)."""
     look, g = a.look, a.g
     model = choose_depth_model(look, a.decision, g=g, depth_m=request.depth_m, tuning=tuning)
+    # the track the measures use (measure_wake's back_deg), and so the heading, is known before they are taken
+    frame = scene.local_frame(*a.vessel_px)
+    back = np.radians((look.back_deg + model.delta_deg) % 360.0 + 180)
+    heading = float(frame.bearing_of(np.cos(back), -np.sin(back)))
+    if look.chip.hull_rc is not None or a.hull_px is not None:  # a hull is the vessel's evidence (vessel_evidence)
+        against = _shift_against(scene, a.vessel_px, heading, tuning)
+        if against is not None:
+            return against  # set aside before the crests and arms are measured
     stage(0.45, "measuring crests and arms")
     measures = measure_wake(look, model, g=g, tuning=tuning, behind=behind_chip(scene, look, tuning=tuning))
     evidence = vessel_evidence(
@@ -385,10 +393,7 @@ def _measure(
     )
     if evidence == "none":
         return _no_wake(scene, request, a, tuning, no_vessel=True)
-    frame = scene.local_frame(*a.vessel_px)
-    back = np.radians(measures.back_deg + 180)
-    heading = float(frame.bearing_of(np.cos(back), -np.sin(back)))
-    against = _shift_against(scene, a.vessel_px, heading, tuning)
+    against = _shift_against(scene, a.vessel_px, heading, tuning) if evidence != "hull" else None
     if against is not None:
         return against
     stage(0.65, "estimating uncertainty")
