@@ -107,6 +107,22 @@ def test_a_bright_trail_as_bright_in_the_near_infrared_as_in_the_visible_is_not_
         assert analyze(sc, AnalysisRequest(vessel_px=one.at(0.0))).wake_found
 
 
+def test_a_bright_trail_green_or_blue_green_in_the_visible_is_not_foam(tmp_path):
+    # the same hull and trail, the trail coloured as a shallow sandy bottom seen through the water (its excess over
+    # the water in green 1.4 times and in red 0.1 times that in blue; dark in B08): foam is about white in the
+    # visible (Moore et al. 1998; Dierssen 2019; foam_colour.py), so it is no wake; white, it is one
+    shallow = (1.0, 1.4, 0.1)
+    hs = white_hull_scene(tmp_path / "h.tif", superstructure_factor=6.0, foam_trail_m=150.0, trail_colour=shallow)
+    with open_scene(hs.path) as sc:
+        a = analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0)))
+    assert not a.wake_found and "not white in the visible" in a.decision
+    hs = white_hull_scene(
+        tmp_path / "w.tif", superstructure_factor=6.0, foam_trail_m=150.0, trail_colour=(1.0, 0.9, 0.7)
+    )
+    with open_scene(hs.path) as sc:
+        assert analyze(sc, AnalysisRequest(vessel_px=hs.at(0.0))).wake_found
+
+
 def _planing_boat(tmp_path, **kw):
     """A 12 m boat at 1.5 m per pixel with a 6 deg foam V from its stern corners (synthetic)."""
     args = dict(length_m=12.0, superstructure_factor=1.5, hull_contrast=900.0, foam_v_half_angle_deg=6.0)

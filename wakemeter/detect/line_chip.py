@@ -69,6 +69,8 @@ class Spectral:
     pixels: np.ndarray  #: float32 (bands, n, n)
     visible: tuple[int, ...]  #: indices into ``pixels``
     nir: int
+    #: indices into ``pixels`` of the blue, green and red bands (None where the file does not name one)
+    colours: tuple[int | None, int | None, int | None] = (None, None, None)
 
 
 @dataclass(frozen=True, eq=False)
@@ -105,7 +107,8 @@ def _spectral(full: np.ndarray, descriptions: tuple[str | None, ...], bands: tup
     seen = tuple(bands.index(b) for b in visible if b is not None and b in bands)
     if nir is None or nir not in bands or not seen:
         return None
-    return Spectral(full, seen, bands.index(nir))
+    colours = tuple(bands.index(b) if b is not None and b in bands else None for b in visible)
+    return Spectral(full, seen, bands.index(nir), (colours[0], colours[1], colours[2]))
 
 
 def _green_nir(descriptions: tuple[str | None, ...], bands: tuple[int, ...]) -> tuple[int, int] | None:

@@ -26,7 +26,7 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from .explain import opening_cautions
 from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, LinePlotData, Segment, SegmentKind
-from .foam_colour import line_nir_share, nir_share
+from .foam_colour import line_nir_share, nir_share, ray_pixels, visible_tilt
 from .foam_streak import foam_streak
 from .hull_outline import line_is_the_hull
 from .line_chip import LineChip, prepare_line_chip
@@ -267,19 +267,38 @@ def _structure(chip: LineChip, tuning: Tuning) -> str:
 def _not_foam(chip: LineChip, wake: LineWake, tuning: Tuning) -> str:
     """Why a single bright line from the point is not a foam wake (empty when it may be one): in a file with
     near-infrared and visible bands, its pixels are not darker in the near infrared than foam is
-    (``streak_nir_share_max``, :mod:`.foam_colour`).  On the shared real ports: wake lines 0.45-0.77, lines from
-    rocky islets and along piers 1.06-1.6.  Dark lines and the two arms of a V are not foam and are not judged."""
+    (``streak_nir_share_max``, :mod:`.foam_colour`; on the shared real ports: wake lines 0.45-0.77, lines from
+    rocky islets and along piers 1.06-1.6), or not about white in the visible (:func:`_not_white`).  Dark lines
+    and the two arms of a V are not foam and are not judged."""
     if chip.spectral is None or wake.dark or wake.half_angle is not None:
         return ""
     behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([wake.back_deg]), whole=True)[0])
     share = line_nir_share(
         chip, chip.vessel_rc, wake.back_deg, tuning.hull_clearance_px + behind, wake.length_px, tuning
     )
-    if share is None or share <= tuning.streak_nir_share_max:
+    if share is not None and share > tuning.streak_nir_share_max:
+        return (
+            f"the bright line from the point is not foam: as bright in the near infrared as in the visible (a share "
+            f"of {share:.2f}; foam's is at most {tuning.streak_nir_share_max:g}): a shore, rock, pier or hull edge"
+        )
+    return _not_white(chip, wake, behind, tuning)
+
+
+def _not_white(chip: LineChip, wake: LineWake, behind: float, tuning: Tuning) -> str:
+    """Why a single bright line is not foam by its colour in the visible (empty when it may be): foam is about
+    white there, a shallow bottom or a plume seen through the water is green or blue-green (:mod:`.foam_colour`)."""
+    px = ray_pixels(chip, chip.vessel_rc, wake.back_deg, tuning.hull_clearance_px + behind, wake.length_px)
+    tilt = None if px is None else visible_tilt(chip, px[0], px[1], chip.vessel_rc, tuning)
+    if tilt is None:
+        return ""
+    green, red = tilt
+    if green <= tuning.foam_green_blue_max and red >= tuning.foam_red_blue_min:
         return ""
     return (
-        f"the bright line from the point is not foam: as bright in the near infrared as in the visible (a share of "
-        f"{share:.2f}; foam's is at most {tuning.streak_nir_share_max:g}): a shore, rock, pier or hull edge"
+        f"the bright line from the point is not foam: it is not white in the visible (its excess over the water in "
+        f"green is {green:.2f} and in red {red:.2f} times that in blue; foam's at most "
+        f"{tuning.foam_green_blue_max:g} and at least {tuning.foam_red_blue_min:g}): a shallow bottom, a plume or "
+        "a bloom seen through the water"
     )
 
 

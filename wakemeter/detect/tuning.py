@@ -272,6 +272,12 @@ class Tuning:
     #: The same bound tells a single bright wake line (0.45-0.77) from one along a pier or from a rock (1.06-1.6),
     #: and a long ship's foam core from a pier's (foam_colour.py, line_finding._structure and _not_foam)
     streak_nir_share_max: float = 0.9
+    #: a single bright line is foam only where it is about white in the visible (foam_colour.py): its excess over
+    #: the water in green at most this times that in blue ... (shared real data: foam lines 0.79-1.08; lines over
+    #: shallow turquoise water beside islets off Marseille 1.30 and 1.53, a pale plume at Gdynia 1.52)
+    foam_green_blue_max: float = 1.25
+    #: ... and in red at least this times that in blue (foam lines 0.52-0.96; the shallow bottom 0.09)
+    foam_red_blue_min: float = 0.3
     #: the line search's own best line must run along the streak's axis within this angle (either way) ...
     streak_axis_agree_deg: float = 20.0
     #: ... with at least this significance against the scene's other lines

@@ -72,8 +72,10 @@ def white_hull_scene(
     seed: int = 1,
     haze_contrast: float = 0.0,
     foam_nir_share: float = FOAM_NIR_SHARE,
+    trail_colour: tuple[float, float, float] = (1.0, 1.0, 1.0),
 ) -> HullScene:
-    """Write the scene and return its truth (see the module's description)."""
+    """Write the scene and return its truth (see the module's description).  ``trail_colour``: the trail's
+    excess over the water in B02, B03 and B04 relative to ``foam_contrast`` (foam is about white: equal)."""
     rng = np.random.default_rng(seed)
     n = size_px
     beam = length_m / 5 if beam_m is None else beam_m
@@ -110,6 +112,8 @@ def white_hull_scene(
         white = WATER[i] + hull_contrast
         b = WATER[i] + rng.normal(0, 15, (n, n))
         tint = foam_nir_share if BAND_NAMES[i] == "B08" and bands == 4 else 1.0
+        if bands == 4 and i < 3:
+            tint = trail_colour[i]
         b = np.where(foam > 0, WATER[i] + tint * foam_level * foam, b)
         b = np.where(hull, white + rng.normal(0, 20, (n, n)), b)
         b = np.where(deck, WATER[i] + superstructure_factor * hull_contrast, b)
