@@ -366,6 +366,14 @@ def _no_wake(
     )
 
 
+def _track_heading(scene: Scene, a: _Attempt, model: DepthModel) -> tuple[geodesy.LocalFrame, float]:
+    """(local frame at the vessel, true heading): the track the wave measures use (measure_wake's back_deg) is
+    known from the look and the depth model before they are taken."""
+    frame = scene.local_frame(*a.vessel_px)
+    back = np.radians((a.look.back_deg + model.delta_deg) % 360.0 + 180)
+    return frame, float(frame.bearing_of(np.cos(back), -np.sin(back)))
+
+
 def _measure(
     scene: Scene,
     request: AnalysisRequest,
@@ -378,10 +386,7 @@ def _measure(
     heading, the reason to set the fit aside (checked before the costly uncertainty and methods)."""
     look, g = a.look, a.g
     model = choose_depth_model(look, a.decision, g=g, depth_m=request.depth_m, tuning=tuning)
-    # the track the measures use (measure_wake's back_deg), and so the heading, is known before they are taken
-    frame = scene.local_frame(*a.vessel_px)
-    back = np.radians((look.back_deg + model.delta_deg) % 360.0 + 180)
-    heading = float(frame.bearing_of(np.cos(back), -np.sin(back)))
+    frame, heading = _track_heading(scene, a, model)
     if look.chip.hull_rc is not None or a.hull_px is not None:  # a hull is the vessel's evidence (vessel_evidence)
         against = _shift_against(scene, a.vessel_px, heading, tuning)
         if against is not None:
