@@ -28,6 +28,7 @@ from __future__ import annotations
 
 import csv
 import json
+import shutil
 import tempfile
 from pathlib import Path
 
@@ -190,14 +191,30 @@ def more_crops(root: Path, pics: Path, tuning) -> list[dict]:
     return _crop_group(folder, items, "crop_more", tuning, pics)
 
 
-def sea_tiles(root: Path, pics: Path, tuning) -> list[dict]:
+def _named_copy(src: Path, tmp: Path) -> Path:
+    """The tile with its bands named as the data set's README gives their order (B02 B03 B04 B08) and a Sentinel-2
+    Level-2A name, as a user's own Sentinel-2 file carries them (the shared tiles carry neither)."""
+    dst = tmp / f"{src.stem}_S2L2A.tif"
+    shutil.copy(src, dst)
+    with rasterio.open(dst, "r+") as ds:
+        for i, name in enumerate(BANDS):
+            ds.set_band_description(i + 1, name)
+    return dst
+
+
+def sea_tiles(root: Path, pics: Path, tuning, named: bool = False) -> list[dict]:
+    """The sea tiles' centre and three brightest specks; ``named``: the same with the bands named (group
+    "sea_named": the colour tests and the band timing then apply; headings are not compared twice)."""
     folder = root / "sentinel2_sea_tiles"
     rows, shots = [], []
-    headings = _eye_headings()
+    headings = {} if named else _eye_headings()
+    group = "sea_named" if named else "sea"
+    tmp = Path(tempfile.mkdtemp())
     for item in csv.DictReader((folder / "index.csv").open()):
         label = item["visual_label_by_helper"]
         holds_boat = label.startswith("CONTAINS")
-        with open_scene(folder / item["file"]) as sc:
+        path = _named_copy(folder / item["file"], tmp) if named else folder / item["file"]
+        with open_scene(path) as sc:
             data, valid = sc.read()
             z = np.mean(
                 [(b - np.median(b)) / (1.4826 * np.median(np.abs(b - np.median(b))) + 1e-9) for b in data], axis=0
@@ -209,16 +226,17 @@ def sea_tiles(root: Path, pics: Path, tuning) -> list[dict]:
             for i, p in enumerate(points):
                 a = analyze(sc, AnalysisRequest(vessel_px=p), tuning)
                 r = {
-                    **_row(a, group="sea", file=item["file"], point=list(p), label=label, holds_boat=holds_boat),
+                    **_row(a, group=group, file=item["file"], point=list(p), label=label, holds_boat=holds_boat),
                     **_axis_off(sc, a, tuning),
                 }
                 rows.append(_heading_error(r, headings.get(f"{item['file']}@{int(p[0])}_{int(p[1])}")))
-                if a.wake_found or i == 0:
-                    shot = pics / f"sea_{Path(item['file']).stem}_{i}.png"
+                if a.wake_found or (i == 0 and not named):
+                    shot = pics / f"{group}_{Path(item['file']).stem}_{i}.png"
                     _picture(sc, a, f"{Path(item['file']).stem} {i}", shot)
                     shots.append(shot)
                 print(rows[-1], flush=True)
-    _sheet(shots, pics / "sheet_sea.png")
+    _sheet(shots, pics / f"sheet_{group}.png")
+    shutil.rmtree(tmp, ignore_errors=True)
     return rows
 
 
@@ -316,6 +334,7 @@ def summarise(rows: list[dict]) -> dict:
     errs = [(r["heading_error_deg"], r["heading_std_deg"]) for r in rows if r.get("heading_error_deg") is not None]
     z = [abs(e) / max(s, 1e-9) for e, s in errs]
     s = [r for r in rows if r["group"] == "sea"]
+    named = [r for r in rows if r["group"] == "sea_named"]
     p = [r for r in rows if r["group"] == "port"]
     clean = [r for r in s if not r["holds_boat"]]
     boat = [r for r in s if r["holds_boat"]]
@@ -339,6 +358,9 @@ def summarise(rows: list[dict]) -> dict:
         "sea_clean_tiles_with_alarm": len({r["file"] for r in clean if r["wake"]}),
         "sea_points_in_boat_tiles": len(boat),
         "sea_wakes_in_boat_tiles": sum(r["wake"] for r in boat),
+        "sea_named_false_alarms_clean": sum(r["wake"] for r in named if not r["holds_boat"]),
+        "sea_named_wakes_in_boat_tiles": sum(r["wake"] for r in named if r["holds_boat"]),
+        "sea_named_speeds": sum(r["speed_knots"] is not None for r in named),
         "port_vessels": len(p),
         "port_vessels_labelled": len(labelled),
         "port_wakes_by_eye": sum(r["wake_by_eye"] for r in labelled),
@@ -381,6 +403,7 @@ if __name__ == "__main__":
     root, pics = Path(args.realdata), Path(args.pictures)
     pics.mkdir(parents=True, exist_ok=True)
     rows = crops(root, pics, tuning) + more_crops(root, pics, tuning) + sea_tiles(root, pics, tuning)
+    rows += sea_tiles(root, pics, tuning, named=True)
     rows += ports(root, pics, tuning, _eye_labels())
     rows += port_candidates(root, pics, tuning)
     print(f"pictures in {pics}")
