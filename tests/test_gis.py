@@ -152,6 +152,10 @@ def test_batch_table_and_gis_layer_share_one_vessel_row():
     row = result_row(WakeAnalysis.from_json(stored))
     assert row["speed_kn"] == pytest.approx(10.0, rel=1e-5)  # 1 kn = 1852/3600 m/s (BIPM SI Brochure, Table 8)
     assert row["method"] == "spectral fit" and row["speed_basis"] == "through the water"
+    # a finding without a speed has no basis: the vessel table once said "through the water" on a "no speed" row
+    no_speed = {k: v for k, v in stored.items() if k not in ("speed_mps", "speed_ci95_mps", "methods")}
+    row = result_row(WakeAnalysis.from_json(no_speed))
+    assert row["speed_kn"] is None and row["speed_basis"] is None
 
 
 def test_the_vessel_row_carries_the_limit_its_probability_and_the_lower_bound():

@@ -407,7 +407,7 @@ def result_row(a: WakeAnalysis | None) -> dict:
         "speed_kn": None if sp is None else _num(sp.speed_mps / KNOT_MPS),
         "speed_ci95_low_kn": None if sp is None else _num(sp.ci95_low_mps / KNOT_MPS),
         "speed_ci95_high_kn": None if sp is None else _num(sp.ci95_high_mps / KNOT_MPS),
-        "speed_basis": a.speed_basis or "through the water",
+        "speed_basis": a.speed_basis,  # none without a speed: a row with no figure has no basis either
         "heading_deg": _num(a.heading_deg),
         "heading_std_deg": _num(a.heading_std_deg),
         "regime": a.regime.regime.value.replace(" ", "-"),
