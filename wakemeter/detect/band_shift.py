@@ -205,15 +205,17 @@ def not_motion(shift: BandShift, tuning: Tuning = DEFAULT_TUNING) -> str | None:
     if s <= z * s_std:
         return None
     lo, hi = tuning.band_shift_between_share
+    first, last = shift.timing.pair_names
     for band, moved, std in shift.between:
         share = moved / s
         k_std = float(np.hypot(std, np.sqrt(2) * reg))
         share_std = float(np.hypot(k_std, share * s_std)) / s
         if share + z * share_std < lo or share - z * share_std > hi:
             return (
-                f"band {band}, recorded between the two timed bands, shows the hull's edge {moved:.2f} pixels along, "
-                f"where a hull that moved {s:.2f} pixels between them would show it {lo * s:.1f}-{hi * s:.1f} pixels "
-                "along: the shift between bands is not the hull's motion (a colour edge, glint or foam)"
+                f"band {band}, recorded between {first} and {last}, shows the hull's edge {moved:.2f} pixels along, "
+                f"where a hull that moved {s:.2f} pixels from {first} to {last} would show it "
+                f"{lo * s:.1f}-{hi * s:.1f} pixels along: the shift between bands is not the hull's motion (a colour "
+                "edge, glint or foam)"
             )
     return None
 

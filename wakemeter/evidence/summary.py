@@ -49,6 +49,10 @@ def speed_text(a: WakeAnalysis) -> tuple[str, str]:
 
 
 def speed_label(a: WakeAnalysis) -> str:
+    """The speed row's label: what the figure is (over ground or through the water), or plain "Speed" when there
+    is no figure to qualify."""
+    if a.speed is None:
+        return "Speed"
     return "Speed over ground" if a.speed_over_ground else "Speed through water"
 
 

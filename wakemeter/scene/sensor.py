@@ -57,6 +57,7 @@ class BandTiming:
     #: between its edges in those two
     between: tuple[int, ...] = ()
     between_names: tuple[str, ...] = ()  #: their names (as the sensor calls them)
+    pair_names: tuple[str, str] = ("the first band", "the last band")  #: the names of first_band and last_band
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -124,6 +125,7 @@ class SensorRecord:
             self.co_registration_std_px,
             tuple(where[b] for b in self.recorded_between if b in where),
             tuple(b for b in self.recorded_between if b in where),
+            (first, last),
         )
 
 
