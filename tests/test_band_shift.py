@@ -153,3 +153,20 @@ def test_a_shift_too_small_to_judge_is_not_judged_by_the_bands_in_between(tmp_pa
     # synthetic: 0.4 px between the timed bands is within its own uncertainty: no share can be read from it
     _, why = _four(_four_band_scene(tmp_path, 0.4, -0.3, 0.2))
     assert why is None
+
+
+def test_a_band_in_between_with_nodata_at_the_hull_leaves_the_speed_to_the_timed_bands(tmp_path):
+    # synthetic: B03 has NaN nodata over the hull (a saturated or missing line of a real product); the timed
+    # bands still give the speed (2.0 px in 1 s), B08 is still checked, B03 is left out (program behaviour)
+    rng = np.random.default_rng(5)
+    bands = [_band(x, foam=True, rng=rng, hull_px=6) for x in (0.0, 2.0, 0.6, 1.0)]
+    bands[3][55:66, 50:70] = np.nan
+    path = _write(tmp_path / "nodata_b03.tif", bands)
+    from wakemeter.detect.band_shift import not_motion
+
+    with rasterio.open(path, "r+") as d:
+        d.nodata = float("nan")
+    with open_scene(path) as sc:
+        s = measure_band_shift(sc, (60.0, 60.5), 180.0, TIMING4, rng=np.random.default_rng(0))
+    assert s is not None and s.along_px == pytest.approx(2.0, abs=0.2)
+    assert [name for name, _, _ in s.between] == ["B08"] and not_motion(s) is None

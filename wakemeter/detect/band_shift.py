@@ -153,8 +153,8 @@ def _leading_edges(
 ) -> list[tuple[float, float, float]] | None:
     """For each band: the forwards coordinate of the hull's leading edge (px from ``vessel_px`` along the
     direction of travel, opposite to the image angle ``back_deg``), its standard uncertainty, and the
-    across-track centre of the hull behind it; NaN where a band shows no clear edge.  None near the scene's
-    edge or over nodata."""
+    across-track centre of the hull behind it; NaN where a band shows no clear edge or has nodata there.  None
+    near the scene's edge or where the first two bands have nodata."""
     col, row = vessel_px
     reach = int(tuning.band_shift_edge_reach_px)
     half = reach + 4
@@ -162,7 +162,7 @@ def _leading_edges(
     if c0 < 0 or r0 < 0 or c0 + 2 * half + 1 > scene.width or r0 + 2 * half + 1 > scene.height:
         return None
     data, ok = scene.read(window=(c0, r0, 2 * half + 1, 2 * half + 1), bands=bands)
-    if not ok.all():
+    if not ok[:2].all():  # the first two bands must be whole; a band after them with nodata has no edge
         return None
     a = np.radians(back_deg + 180.0)  # direction of travel (image angle)
     fr, fc = -np.sin(a), np.cos(a)  # forwards (row, col)
@@ -172,6 +172,9 @@ def _leading_edges(
     vr, vc = row - r0, col - c0
     out = []
     for b in range(len(bands)):
+        if not ok[b].all():
+            out.append((np.nan, np.nan, np.nan))
+            continue
         img = ndimage.gaussian_filter(data[b].astype(float), 0.5)
         rows = vr + t[:, None] * fr + lat[None, :] * lr
         cols = vc + t[:, None] * fc + lat[None, :] * lc
