@@ -26,7 +26,7 @@ from ..scene import geodesy
 from ..scene.raster import Scene
 from .explain import opening_cautions
 from .findings import Caution, CautionCode, Diagnostics, Drawing, LineKind, LinePlotData, Segment, SegmentKind
-from .foam_colour import line_nir_share, nir_share, ray_pixels, visible_tilt
+from .foam_colour import nir_share, ray_pixels, visible_tilt
 from .foam_streak import foam_streak
 from .hull_outline import line_is_the_hull
 from .line_chip import LineChip, prepare_line_chip
@@ -273,22 +273,23 @@ def _not_foam(chip: LineChip, wake: LineWake, tuning: Tuning) -> str:
     if chip.spectral is None or wake.dark or wake.half_angle is not None:
         return ""
     behind = 0.0 if chip.hull is None else float(chip.hull.extent_px(np.array([wake.back_deg]), whole=True)[0])
-    share = line_nir_share(
-        chip, chip.vessel_rc, wake.back_deg, tuning.hull_clearance_px + behind, wake.length_px, tuning
-    )
+    px = ray_pixels(chip, chip.vessel_rc, wake.back_deg, tuning.hull_clearance_px + behind, wake.length_px)
+    if px is None:
+        return ""
+    share = nir_share(chip, px[0], px[1], chip.vessel_rc, tuning)
     if share is not None and share > tuning.streak_nir_share_max:
         return (
             f"the bright line from the point is not foam: as bright in the near infrared as in the visible (a share "
             f"of {share:.2f}; foam's is at most {tuning.streak_nir_share_max:g}): a shore, rock, pier or hull edge"
         )
-    return _not_white(chip, wake, behind, tuning)
+    return _not_white(chip, px, tuning)
 
 
-def _not_white(chip: LineChip, wake: LineWake, behind: float, tuning: Tuning) -> str:
-    """Why a single bright line is not foam by its colour in the visible (empty when it may be): foam is about
-    white there, a shallow bottom or a plume seen through the water is green or blue-green (:mod:`.foam_colour`)."""
-    px = ray_pixels(chip, chip.vessel_rc, wake.back_deg, tuning.hull_clearance_px + behind, wake.length_px)
-    tilt = None if px is None else visible_tilt(chip, px[0], px[1], chip.vessel_rc, tuning)
+def _not_white(chip: LineChip, px: tuple[np.ndarray, np.ndarray], tuning: Tuning) -> str:
+    """Why a single bright line (its pixels ``px``: rows, cols) is not foam by its colour in the visible (empty
+    when it may be): foam is about white there, a shallow bottom or a plume seen through the water is green or
+    blue-green (:mod:`.foam_colour`)."""
+    tilt = visible_tilt(chip, px[0], px[1], chip.vessel_rc, tuning)
     if tilt is None:
         return ""
     green, red = tilt
