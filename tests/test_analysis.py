@@ -9,6 +9,7 @@ import json
 from pathlib import Path
 
 import pytest
+from scipy import stats
 
 from wakemeter.cli import main  # noqa: E402
 from wakemeter.detect.analysis import AnalysisRequest, RadarGeometry, analyze  # noqa: E402
@@ -57,7 +58,10 @@ def test_wake_lines_on_random_scenes(sweep):
     found = [a for _, a in sweep if a.wake_found]
     assert not [ln for a in found for ln in a.lines if ln.kind == "narrow-V arm"]
     with_arm = [a for a in found if any(ln.kind == "Kelvin arm" for ln in a.lines)]
-    assert len(with_arm) >= 0.8 * len(found)
+    # the arm rate measured on seeds 300-359: 51 of 60 (0.85), the same before and after the renderer's
+    # half-pixel fix; fewer arms than the binomial 1 % quantile at that rate would be a real loss, a couple of
+    # cases either way is chance (16 seeds gave 13 then 12)
+    assert len(with_arm) >= stats.binom.ppf(0.01, len(found), 0.85)
     for a in with_arm:
         for ln in a.lines:
             if ln.kind == "Kelvin arm":

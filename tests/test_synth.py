@@ -39,6 +39,21 @@ def _profile_wavelength(profile: np.ndarray, dx: float) -> float:
     return 1.0 / ((i + 0.5 * (a - c) / (a - 2 * b + c)) / (n * dx))
 
 
+def test_slow_hull_dent_lies_under_the_hull():
+    # Hydrostatics (Lamb 1932 sec. 242, from memory): a pressure patch moving far slower than any wave the grid
+    # holds presses the surface down by p / (rho g) under itself.  Positions are measured from the grid's
+    # corner, so pixel i's centre lies at i + 0.5: a hull at (100.0, 80.0) m on a 1 m grid has its dent centred
+    # at index (99.5, 79.5), where the renderer draws the hull itself (scene_maker's grid).
+    n = 256
+    eta = kelvin_elevation(
+        (n, n), dx_m=1.0, dy_m=1.0, vessel_xy_m=(100.0, 80.0), speed_mps=0.05, heading_xy=(1, 0), hull=Hull(20, 6), g=G
+    )
+    w = np.clip(-eta, 0.0, None)
+    rows, cols = np.indices(w.shape)
+    assert float((cols * w).sum() / w.sum()) == pytest.approx(99.5, abs=0.05)
+    assert float((rows * w).sum() / w.sum()) == pytest.approx(79.5, abs=0.05)
+
+
 @pytest.mark.parametrize("u", [5.0, 8.0])
 def test_transverse_wavelength_deep(u):
     # Self-consistency against lambda_t = 2 pi U^2 / g (Lamb 1932 sec. 256): within 1 %.

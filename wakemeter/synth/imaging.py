@@ -213,11 +213,20 @@ def mtf_sigma_px(mtf_nyquist: float) -> float:
     return float(np.sqrt(-np.log(mtf_nyquist) / (2 * np.pi**2 * 0.25)))
 
 
+#: a deck's brightness (white paint: with the sun on it the brightest thing on the water, at or near the top of
+#: an 8-bit scene's range)
+DECK = 1.0
+
+
 def optical_pixels(
     slope_sun: np.ndarray, foam: np.ndarray, hull: np.ndarray, model: OpticalModel, rng: np.random.Generator
 ) -> np.ndarray:
-    """Quantised optical brightness from the slope along the sun direction (unit rms), foam and hull masks."""
-    b = 0.35 + 0.12 * model.shading_gain * slope_sun + model.foam * 0.4 * foam + 0.5 * hull
+    """Quantised optical brightness from the slope along the sun direction (unit rms), foam and hull masks.
+    The hull is opaque: where it covers the water (``hull`` near 1) its deck is seen, not the water's shading
+    or foam beneath it."""
+    cover = np.clip(hull, 0.0, 1.0)
+    water = 0.35 + 0.12 * model.shading_gain * slope_sun + model.foam * 0.4 * foam
+    b = water * (1.0 - cover) + DECK * cover
     b = sensor_blur(b, model.psf_sigma_px) + rng.normal(0.0, model.noise_std, b.shape)
     top = 255 if model.dtype == "uint8" else 4095  # 12-bit data in uint16, as many sensors deliver
     return np.clip(np.round(b * top), 0, top).astype(model.dtype)

@@ -164,9 +164,10 @@ def kelvin_elevation(
     ux, uy = ux / norm, uy / norm
     py, px = ny * pad, nx * pad
     py, px = sfft.next_fast_len(py), sfft.next_fast_len(px)
-    # pressure on the padded grid, centred at the vessel, coordinates wrapped (periodic)
-    xs = np.arange(px) - vessel_xy_m[0] / dx_m
-    ys = np.arange(py) - vessel_xy_m[1] / dy_m
+    # pressure on the padded grid, centred at the vessel, coordinates wrapped (periodic); pixel i's centre lies
+    # i + 0.5 pixels from the grid's corner
+    xs = np.arange(px) + 0.5 - vessel_xy_m[0] / dx_m
+    ys = np.arange(py) + 0.5 - vessel_xy_m[1] / dy_m
     xs = (xs + px / 2) % px - px / 2
     ys = (ys + py / 2) % py - py / 2
     X = xs * dx_m
