@@ -1,8 +1,8 @@
 """Imaging models that turn a wave field into optical or radar pixels.
 
 Optical: brightness follows the surface slope along the sun's horizontal
-direction (shading), plus foam along the track, a bright hull and sensor
-noise, quantised to uint8 or uint16.
+direction (shading), plus foam along the track; the hull is an opaque white
+deck over the water it covers; sensor noise; quantised to uint8 or uint16.
 
 Radar: backscatter is modulated by the slope along the look direction (tilt
 modulation), darkened along the turbulent wake, with a bright hull and
